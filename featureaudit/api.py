@@ -1,0 +1,141 @@
+"""The Python door: ``audit()`` and the result object it returns."""
+
+from __future__ import annotations
+
+import html
+import os
+from pathlib import Path
+from typing import Any
+
+import pandas as pd
+
+from featureaudit.dictionary import DataDictionary
+from featureaudit.findings import Findings, droplist
+from featureaudit.pipeline import run_audit
+from featureaudit.report import render_all
+from featureaudit.settings import Settings, check_level
+from featureaudit.table import build_table
+from featureaudit.writer import write_files
+
+__all__ = ["audit", "AuditResult"]
+
+
+class AuditResult:
+    """The findings of one audit, as a table, a list of suspects, and files on demand."""
+
+    def __init__(self, findings: Findings) -> None:
+        self.findings = findings
+
+    @property
+    def document(self) -> dict[str, Any]:
+        """The findings.json document as a dict."""
+        return self.findings.document
+
+    @property
+    def columns(self) -> pd.DataFrame:
+        """One row per audited column, most suspect first, with the JSON's fields."""
+        rows = self.findings.columns
+        return pd.DataFrame(rows, columns=["column", "score", "level", "kinds", "summary",
+                                           "role", "description", "evidence"])
+
+    @property
+    def dataset_findings(self) -> pd.DataFrame:
+        return pd.DataFrame(self.findings.dataset_findings,
+                            columns=["probe", "kind", "statistic", "value", "threshold",
+                                     "level", "summary", "detail"])
+
+    def suspects(self, at_least: str = "high") -> list[str]:
+        """Column names at level ``at_least`` or above, most suspect first."""
+        return droplist(self.findings, check_level(at_least, flag="at_least"))
+
+    def write(self, out: str | os.PathLike[str] = "featureaudit-report") -> list[Path]:
+        """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``."""
+        return write_files(out, render_all(self.findings))
+
+    def __repr__(self) -> str:
+        d = self.document["dataset"]
+        return (f"<AuditResult {d['source']}: {d['rows']} rows, {len(self.findings.columns)} "
+                f"columns audited, suspects at high+: {self.suspects('high')[:5]}>")
+
+    def _repr_html_(self) -> str:
+        rows = [c for c in self.findings.columns if c["level"] != "none"][:25]
+        body = "".join(
+            f"<tr><td>{html.escape(c['level'])}</td><td>{c['score']:.2f}</td>"
+            f"<td><code>{html.escape(str(c['column']))}</code></td>"
+            f"<td>{html.escape(', '.join(c['kinds']))}</td>"
+            f"<td>{html.escape(str(c['summary']))}</td></tr>" for c in rows)
+        dataset = "".join(
+            f"<li>{html.escape(f['level'])}: {html.escape(f['kind'])}: "
+            f"{html.escape(str(f['summary']))}</li>" for f in self.findings.dataset_findings
+            if f["level"] != "none")
+        clean = len(self.findings.columns) - len(rows)
+        d = self.document["dataset"]
+        return (f"<div><strong>featureaudit</strong>: {html.escape(str(d['source']))}, "
+                f"{d['rows']} rows, target <code>{html.escape(str(d['target']))}</code>"
+                f"<table><thead><tr><th>level</th><th>score</th><th>column</th><th>kinds</th>"
+                f"<th>summary</th></tr></thead><tbody>{body}</tbody></table>"
+                f"<p>{clean} more columns without findings shown.</p>"
+                + (f"<ul>{dataset}</ul>" if dataset else "") + "</div>")
+
+
+def audit(
+    data: object,
+    *,
+    target: str | None = None,
+    test: object | None = None,
+    split_column: str | None = None,
+    train_value: str = "train",
+    task: str | None = None,
+    dictionary: str | os.PathLike[str] | DataDictionary | None = None,
+    label_time: str | None = None,
+    cutoff_time: str | None = None,
+    horizon: str | None = None,
+    entity: str | None = None,
+    seed: int = 0,
+    probes: list[str] | None = None,
+    settings: Settings | None = None,
+    source: str | None = None,
+) -> AuditResult:
+    """Audit a table (and its held-out rows) for target leakage.
+
+    Parameters
+    ----------
+    data : path, pandas.DataFrame or pyarrow.Table
+        The table; with ``split_column`` it holds both sides of the split.
+    target : str, optional
+        The outcome column (or the dictionary row with role ``target``).
+    test : path, DataFrame or pyarrow.Table, optional
+        Held-out rows with the same columns; their target may be absent.
+    split_column, train_value : str
+        Rows whose ``split_column`` equals ``train_value`` (default ``"train"``) are training.
+    task : {"binary", "multiclass", "numeric"}, optional
+        Overrides the inferred task.
+    dictionary : path or DataDictionary, optional
+        The data dictionary CSV (roles, ``known_at``, descriptions).
+    label_time, cutoff_time, horizon, entity : str, optional
+        As the scan flags of the same names.
+    seed : int, default 0
+        Seeds every sample and fold, so the same inputs give the same findings.
+
+    Returns
+    -------
+    AuditResult
+
+    Raises
+    ------
+    FeatureAuditError
+        On bad input, with a message that names the file, column or argument.
+
+    Examples
+    --------
+    >>> import featureaudit as fa                                   # doctest: +SKIP
+    >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
+    >>> result.suspects("high")                                     # doctest: +SKIP
+    """
+    table = build_table(data, test=test, split_column=split_column, train_value=train_value,
+                        target=target, task=task, dictionary=dictionary, label_time=label_time,
+                        cutoff_time=cutoff_time, horizon=horizon, entity=entity, source=source)
+    settings = settings or Settings(seed=seed)
+    if settings.seed != seed and seed != 0:
+        settings = Settings(**{**settings.to_dict(), "seed": seed})
+    return AuditResult(run_audit(table, settings, probes=probes))

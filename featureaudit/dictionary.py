@@ -1,0 +1,157 @@
+"""The data dictionary: parse and validate its CSV, and draft one from a table.
+
+A row's ``known_at`` is blank, the name of a datetime column, or a signed duration relative
+to the row's label time. Errors name the file, the line and the value.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pandas as pd
+
+from featureaudit.durations import parse_duration
+from featureaudit.errors import DictionaryError, DurationError, InputFileError
+
+__all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
+
+ROLES = ("feature", "target", "id", "entity", "label_time", "cutoff_time", "split", "weight",
+         "ignore")
+STANDARD = ("column", "role", "known_at", "description")
+
+
+@dataclass(frozen=True)
+class DictionaryEntry:
+    """One dictionary row: the column, its role, when it becomes known and free text."""
+
+    column: str
+    role: str = "feature"
+    known_at: str = ""
+    known_at_column: str | None = None
+    known_at_offset: pd.Timedelta | None = None
+    description: str = ""
+    line: int = 0
+    extra: dict[str, str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class DataDictionary:
+    """All rows of a dictionary file, keyed by column name, with where they came from."""
+
+    entries: dict[str, DictionaryEntry]
+    source: str = ""
+    extra_headers: tuple[str, ...] = ()
+
+    def role_of(self, column: str) -> str | None:
+        entry = self.entries.get(column)
+        return entry.role if entry else None
+
+    def columns_with_role(self, role: str) -> list[str]:
+        return [c for c, e in self.entries.items() if e.role == role]
+
+
+def read_dictionary(path: str | Path) -> DataDictionary:
+    """Read and validate a dictionary CSV; raise :class:`DictionaryError` naming file and line."""
+    p = Path(path)
+    if not p.is_file():
+        raise InputFileError(f"dictionary {str(p)!r} does not exist; pass --dictionary with a CSV "
+                             "file (draft one with `featureaudit dictionary TABLE`).")
+    try:
+        text = p.read_text(encoding="utf-8-sig")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputFileError(f"cannot read dictionary {str(p)!r}: {exc}; save it as UTF-8 CSV.") \
+            from exc
+    return parse_dictionary(text, source=str(p))
+
+
+def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary:
+    """Parse dictionary CSV text (see :func:`read_dictionary`)."""
+    reader = csv.reader(io.StringIO(text))
+    rows = list(reader)
+    if not rows:
+        raise DictionaryError(f"dictionary {source!r} is empty; it needs a header row with at "
+                              "least a 'column' header.")
+    header = [h.strip() for h in rows[0]]
+    lowered = [h.lower() for h in header]
+    if "column" not in lowered:
+        raise DictionaryError(f"dictionary {source!r} line 1 has headers {header}; a 'column' "
+                              "header is required (also allowed: role, known_at, description).")
+    index = {h: lowered.index(h) for h in STANDARD if h in lowered}
+    extra_headers = tuple(h for h, low in zip(header, lowered, strict=True) if low not in STANDARD)
+    entries: dict[str, DictionaryEntry] = {}
+    for line_no, row in enumerate(rows[1:], start=2):
+        if not any(cell.strip() for cell in row):
+            continue
+        def cell(name: str, row: list[str] = row) -> str:
+            i = index.get(name)
+            return row[i].strip() if i is not None and i < len(row) else ""
+        column = cell("column")
+        if not column:
+            raise DictionaryError(f"dictionary {source!r} line {line_no}: the 'column' cell is "
+                                  "empty; name a column of the table or delete the line.")
+        role = (cell("role") or "feature").lower()
+        if role not in ROLES:
+            raise DictionaryError(f"dictionary {source!r} line {line_no}: role {cell('role')!r} "
+                                  f"of column {column!r} is not one of {', '.join(ROLES)}.")
+        if column in entries:
+            raise DictionaryError(f"dictionary {source!r} line {line_no}: column {column!r} is "
+                                  f"already described on line {entries[column].line}; keep one.")
+        known_at = cell("known_at")
+        offset, known_col = _parse_known_at(known_at, source=source, line=line_no, column=column)
+        extra = {h: (row[i].strip() if i < len(row) else "")
+                 for i, h in enumerate(header) if h.lower() not in STANDARD}
+        entries[column] = DictionaryEntry(
+            column=column, role=role, known_at=known_at, known_at_column=known_col,
+            known_at_offset=offset, description=cell("description"), line=line_no, extra=extra)
+    return DataDictionary(entries=entries, source=source, extra_headers=extra_headers)
+
+
+def _parse_known_at(value: str, *, source: str, line: int, column: str
+                    ) -> tuple[pd.Timedelta | None, str | None]:
+    """A duration if it parses as one; otherwise a column name (checked against the table later)."""
+    if not value:
+        return None, None
+    looks_like_duration = value[0] in "+-" or value[0].isdigit() or value.upper().startswith("P")
+    try:
+        return parse_duration(value, what="known_at"), None
+    except DurationError as exc:
+        if looks_like_duration and (value[0] in "+-" or value[0].isdigit()):
+            raise DictionaryError(f"dictionary {source!r} line {line}: known_at {value!r} of "
+                                  f"column {column!r} is neither a duration nor a column name; "
+                                  f"{str(exc).split('; ', 1)[-1]}") from exc
+    return None, value
+
+
+def draft_dictionary(frame: pd.DataFrame, *, target: str | None = None) -> str:
+    """Return dictionary CSV text: every column of ``frame``, a guessed role, blank known_at."""
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(STANDARD)
+    for name in frame.columns:
+        writer.writerow([name, guess_role(frame[name], name, target=target), "", ""])
+    return buf.getvalue()
+
+
+def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
+    """Guess a column's role from its name and values; the user confirms it in the draft."""
+    low = name.lower()
+    if target is not None and name == target:
+        return "target"
+    if low in ("split", "fold", "partition", "subset", "set", "is_test", "is_train"):
+        return "split"
+    if pd.api.types.is_datetime64_any_dtype(s.dtype):
+        return "feature"
+    n = int(s.notna().sum())
+    unique_share = s.nunique(dropna=True) / n if n else 0.0
+    is_integer_or_text = pd.api.types.is_integer_dtype(s.dtype) or not (
+        pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype))
+    id_name = (low == "id" or low.endswith(("_id", "_key", "_no", "_number"))
+               or name.endswith(("Id", "ID")))
+    if is_integer_or_text and id_name:
+        return "id" if unique_share > 0.95 else "entity"
+    if is_integer_or_text and unique_share > 0.999 and n > 50:
+        return "id"
+    return "feature"

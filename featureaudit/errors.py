@@ -1,0 +1,48 @@
+"""Public exceptions: each names what is wrong, the value received and how to fix it.
+
+Every class also inherits the matching built-in, so callers that catch ``ValueError`` or
+``KeyError`` keep working. The CLI prints ``str(error)`` on one line and exits with code 2.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "FeatureAuditError",
+    "InputFileError",
+    "ColumnNotFound",
+    "DictionaryError",
+    "DurationError",
+    "SettingError",
+    "TargetError",
+]
+
+
+class FeatureAuditError(Exception):
+    """Base class of every error featureaudit raises on purpose (bad input or invocation)."""
+
+    def __str__(self) -> str:  # KeyError would otherwise quote the message
+        return " ".join(str(a) for a in self.args).replace("\n", " ")
+
+
+class InputFileError(FeatureAuditError, OSError):
+    """A table, dictionary, config or findings file that is missing or cannot be read."""
+
+
+class ColumnNotFound(FeatureAuditError, KeyError):
+    """A column named by a flag, the dictionary or the config is not in the table."""
+
+
+class DictionaryError(FeatureAuditError, ValueError):
+    """A data dictionary row whose role or known_at cannot be understood."""
+
+
+class DurationError(FeatureAuditError, ValueError):
+    """A duration such as ``--horizon`` or ``known_at`` that is not in an accepted spelling."""
+
+
+class SettingError(FeatureAuditError, ValueError):
+    """A flag or config value outside what is allowed."""
+
+
+class TargetError(FeatureAuditError, ValueError):
+    """A target that cannot be audited: all missing, a single class, or the wrong task."""

@@ -1,0 +1,127 @@
+"""findings.json (schema ``featureaudit.findings/1``): build, write, read back, drop list, diff."""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from pathlib import Path
+from typing import Any
+
+from featureaudit.errors import InputFileError
+from featureaudit.evidence import LEVEL_RANK, clean_json
+
+__all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
+
+SCHEMA = "featureaudit.findings/1"
+
+
+@dataclass(frozen=True)
+class Findings:
+    """The whole result of an audit as plain data (the JSON document, field for field)."""
+
+    document: dict[str, Any]
+
+    @property
+    def columns(self) -> list[dict[str, Any]]:
+        return self.document["columns"]
+
+    @property
+    def dataset_findings(self) -> list[dict[str, Any]]:
+        return self.document["dataset_findings"]
+
+    def to_json(self) -> str:
+        return json.dumps(self.document, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def build_document(*, tool_version: str, dataset: dict[str, Any], settings: dict[str, Any],
+                   columns: list[dict[str, Any]], dataset_findings: list[dict[str, Any]],
+                   skipped: list[dict[str, Any]], warnings: list[str],
+                   created: datetime | None = None) -> Findings:
+    """Assemble the document in the contract's key order."""
+    stamp = (created or datetime.now(UTC)).strftime("%Y-%m-%dT%H:%M:%SZ")
+    return Findings(clean_json({
+        "schema": SCHEMA, "tool_version": tool_version, "created": stamp,
+        "dataset": dataset, "settings": settings, "columns": columns,
+        "dataset_findings": dataset_findings, "skipped": skipped, "warnings": warnings}))
+
+
+def load_findings(path: str | Path) -> Findings:
+    """Read a findings file, checking that it is one of ours and of a schema we read."""
+    p = Path(path)
+    if not p.is_file():
+        raise InputFileError(f"findings file {str(p)!r} does not exist; pass the findings.json "
+                             "that `featureaudit scan` wrote.")
+    try:
+        doc = json.loads(p.read_text(encoding="utf-8"))
+    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        raise InputFileError(f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
+                             "findings.json that `featureaudit scan` wrote.") from exc
+    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
+        got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
+        raise InputFileError(f"findings file {str(p)!r} has schema {got!r}; this version reads "
+                             f"{SCHEMA!r}. Re-run `featureaudit scan` to produce it.")
+    for key in ("columns", "dataset_findings"):
+        if not isinstance(doc.get(key), list):
+            raise InputFileError(f"findings file {str(p)!r} has no {key!r} list; it is "
+                                 "incomplete. Re-run `featureaudit scan`.")
+    return Findings(doc)
+
+
+def droplist(findings: Findings, at_least: str = "high") -> list[str]:
+    """Columns at ``at_least`` or above, most suspect first (the file lists them by score)."""
+    floor = LEVEL_RANK[at_least]
+    cols = [c for c in findings.columns if LEVEL_RANK.get(c.get("level", "none"), 0) >= floor]
+    cols.sort(key=lambda c: -float(c.get("score") or 0.0))
+    return [c["column"] for c in cols]
+
+
+@dataclass(frozen=True)
+class DiffLine:
+    """One change between two runs."""
+
+    change: str            # new, gone, raised, lowered
+    scope: str             # column or dataset
+    name: str
+    old_level: str | None
+    new_level: str | None
+    detail: str = ""
+    extra: dict[str, Any] = field(default_factory=dict)
+
+    def text(self) -> str:
+        levels = (self.new_level or "") if self.change == "new" else (
+            (self.old_level or "") if self.change == "gone"
+            else f"{self.old_level} -> {self.new_level}")
+        return f"{self.change:<8} {self.scope:<8} {self.name}  {levels}" + (
+            f"  ({self.detail})" if self.detail else "")
+
+
+def _dataset_key(f: dict[str, Any]) -> str:
+    return f"{f.get('probe')}/{f.get('kind')}/{f.get('statistic')}"
+
+
+def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
+    """Columns and dataset findings that are new, gone, or changed level between two runs."""
+    lines: list[DiffLine] = []
+    pairs = [("column", {c["column"]: c for c in old.columns},
+              {c["column"]: c for c in new.columns}),
+             ("dataset", {_dataset_key(f): f for f in old.dataset_findings},
+              {_dataset_key(f): f for f in new.dataset_findings})]
+    for scope, before, after in pairs:
+        for name, item in after.items():
+            level = item.get("level", "none")
+            if name not in before:
+                if scope == "dataset" or level != "none":
+                    lines.append(DiffLine("new", scope, name, None, level, item.get("summary", "")))
+                continue
+            was = before[name].get("level", "none")
+            if was != level:
+                change = "raised" if LEVEL_RANK[level] > LEVEL_RANK[was] else "lowered"
+                lines.append(DiffLine(change, scope, name, was, level, item.get("summary", "")))
+        for name, item in before.items():
+            if name not in after:
+                lines.append(DiffLine("gone", scope, name, item.get("level", "none"), None))
+    order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
+    lines.sort(key=lambda d: (order[d.change], -LEVEL_RANK[d.new_level or d.old_level or "none"],
+                              d.scope, d.name))
+    return lines

@@ -1,0 +1,67 @@
+"""Run the registered probes on an audit table and rank what they found."""
+
+from __future__ import annotations
+
+import sys
+import time
+from collections.abc import Iterable
+
+from featureaudit import __version__
+from featureaudit.errors import FeatureAuditError
+from featureaudit.evidence import Evidence, Skip
+from featureaudit.findings import Findings, build_document
+from featureaudit.ranker import rank
+from featureaudit.registry import registered
+from featureaudit.settings import Settings
+from featureaudit.table import AuditTable
+
+__all__ = ["run_audit"]
+
+
+def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | None = None,
+              progress: bool | None = None) -> Findings:
+    """Run each registered probe (or those named), rank the evidence and build the findings.
+
+    A probe that fails unexpectedly does not sink the audit: it is listed under ``skipped``
+    with the error, and a warning says the report is incomplete.
+    """
+    available = registered()
+    names = list(available) if probes is None else list(probes)
+    unknown = [n for n in names if n not in available]
+    if unknown:
+        raise FeatureAuditError(f"unknown probes {unknown}; known probes are {sorted(available)}.")
+    show = sys.stderr.isatty() if progress is None else progress
+    evidence: list[Evidence] = []
+    skipped: list[Skip] = []
+    warnings = list(table.warnings)
+    timings: dict[str, float] = {}
+    for i, name in enumerate(names, start=1):
+        if show:
+            print(f"[{i}/{len(names)}] {name} …", file=sys.stderr, flush=True)
+        start = time.perf_counter()
+        try:
+            found, skips = available[name]().run(table, settings)
+        except FeatureAuditError:
+            raise
+        except Exception as exc:  # noqa: BLE001 — one broken probe must not lose the report
+            skipped.append(Skip(name, f"the probe failed: {type(exc).__name__}: {exc}"))
+            warnings.append(f"probe {name!r} failed, so this report is incomplete; please report "
+                            f"it with the error: {type(exc).__name__}: {exc}")
+            continue
+        timings[name] = round(time.perf_counter() - start, 3)
+        evidence.extend(found)
+        skipped.extend(skips)
+    verdicts, dataset_findings = rank(table, evidence)
+    dataset = {
+        "source": table.source, "rows": table.n_rows, "train_rows": table.train_rows,
+        "heldout_rows": table.heldout_rows, "columns": int(table.frame.shape[1]),
+        "target": table.target, "task": table.task, "split": table.split,
+        "label_time": table.label_time_column, "cutoff": table.cutoff_source,
+        "entity": table.entity, "audited_columns": len(verdicts),
+    }
+    return build_document(
+        tool_version=__version__, dataset=dataset,
+        settings={**settings.to_dict(), "probes": names, "probe_seconds": timings},
+        columns=[v.to_dict() for v in verdicts],
+        dataset_findings=[e.to_dict() for e in dataset_findings],
+        skipped=[s.to_dict() for s in skipped], warnings=warnings)

@@ -1,0 +1,62 @@
+"""From evidence to one verdict per column (score 0–1, level, kinds, summary) and dataset findings.
+
+A column's level is the highest level of its evidence; two different kinds each at ``high``
+corroborate one another and make it ``critical``. The score places the column within its
+level band (none 0–0.2, low 0.2–0.4, …, critical 0.8–1) by the strongest evidence's severity.
+"""
+
+from __future__ import annotations
+
+from featureaudit.evidence import LEVEL_RANK, ColumnVerdict, Evidence
+from featureaudit.table import AuditTable
+
+__all__ = ["rank"]
+
+_LEVELS = tuple(LEVEL_RANK)
+
+
+def _strength(e: Evidence) -> tuple[int, float]:
+    return LEVEL_RANK[e.level], min(max(e.severity, 0.0), 0.999)
+
+
+def rank(table: AuditTable, evidence: list[Evidence]
+         ) -> tuple[list[ColumnVerdict], list[Evidence]]:
+    """Return column verdicts sorted by score (descending) and dataset findings by level."""
+    by_column: dict[str, list[Evidence]] = {c: [] for c in table.id_columns + table.features}
+    dataset: list[Evidence] = []
+    for e in evidence:
+        if e.column is None:
+            dataset.append(e)
+        else:
+            by_column.setdefault(e.column, []).append(e)
+    verdicts = [_verdict(table, name, items) for name, items in by_column.items()]
+    verdicts.sort(key=lambda v: (-v.score, v.column))
+    dataset.sort(key=lambda e: (-_strength(e)[0], -_strength(e)[1], e.probe, e.kind))
+    return verdicts, dataset
+
+
+def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdict:
+    items = sorted(items, key=_strength, reverse=True)
+    entry = table.dictionary.entries.get(name) if table.dictionary else None
+    role = table.roles.get(name, "feature")
+    description = entry.description if entry else ""
+    if not items:
+        return ColumnVerdict(name, 0.0, "none", (), "no probe measured this column", (),
+                             role, description)
+    top = items[0]
+    rank_, sev = _strength(top)
+    strong_kinds = {e.kind for e in items if LEVEL_RANK[e.level] >= LEVEL_RANK["high"]}
+    if rank_ == LEVEL_RANK["high"] and len(strong_kinds) >= 2:
+        rank_, sev = LEVEL_RANK["critical"], 0.0
+    level = _LEVELS[rank_]
+    kinds: list[str] = []
+    for e in items:
+        if LEVEL_RANK[e.level] >= LEVEL_RANK["low"] and e.kind not in kinds:
+            kinds.append(e.kind)
+    summary = top.summary or f"{top.statistic} = {top.value}"
+    others = [k for k in kinds if k != top.kind]
+    if others:
+        summary += "; also " + ", ".join(k.replace("_", " ") for k in others)
+    score = (rank_ + sev) / len(_LEVELS)
+    return ColumnVerdict(name, score, level, tuple(kinds), summary, tuple(items), role,
+                         description)

@@ -1,0 +1,64 @@
+"""The probe protocol and registry. A probe is rejected when it registers, not when it runs."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import ClassVar
+
+from featureaudit.evidence import KINDS, Evidence, Skip
+from featureaudit.settings import Settings
+from featureaudit.table import AuditTable
+
+__all__ = ["Probe", "register", "registered", "ProbeOutput"]
+
+ProbeOutput = tuple[list[Evidence], list[Skip]]
+_REGISTRY: dict[str, type[Probe]] = {}
+
+
+class Probe:
+    """Base class: set ``name``, ``scope`` and ``kinds``; fill :meth:`run`.
+
+    ``run`` returns the evidence it found and the parts it skipped with a reason. It must
+    not modify the table, and the same seed must give the same result.
+    """
+
+    name: ClassVar[str] = ""
+    scope: ClassVar[str] = "column"    # "column" or "table"
+    kinds: ClassVar[tuple[str, ...]] = ()
+
+    def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
+        raise NotImplementedError
+
+
+def register(cls: type[Probe]) -> type[Probe]:
+    """Class decorator: validate the probe's declaration and add it to the registry."""
+    if not cls.name or not cls.name.isidentifier():
+        raise TypeError(f"probe {cls.__name__} needs a name that is an identifier")
+    if cls.name in _REGISTRY:
+        raise TypeError(f"probe name {cls.name!r} is already registered")
+    if cls.scope not in ("column", "table"):
+        raise TypeError(f"probe {cls.name!r} has scope {cls.scope!r}; use 'column' or 'table'")
+    if not cls.kinds or any(k not in KINDS for k in cls.kinds):
+        raise TypeError(f"probe {cls.name!r} declares kinds {cls.kinds}; each must be one of "
+                        f"{KINDS}")
+    if not (cls.__doc__ or "").strip():
+        raise TypeError(f"probe {cls.name!r} needs a docstring saying what it detects and how "
+                        "its thresholds were chosen")
+    if cls.run is Probe.run:
+        raise TypeError(f"probe {cls.name!r} does not implement run()")
+    _REGISTRY[cls.name] = cls
+    return cls
+
+
+def registered() -> dict[str, type[Probe]]:
+    """Every registered probe by name (importing featureaudit.probes registers them)."""
+    import featureaudit.probes  # noqa: F401  (registers on import)
+    return dict(_REGISTRY)
+
+
+def unregister(name: str) -> None:
+    """Remove a probe (for tests that register throwaway probes)."""
+    _REGISTRY.pop(name, None)
+
+
+Factory = Callable[[], Probe]

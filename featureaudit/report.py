@@ -1,0 +1,82 @@
+"""Render the report files (dossier.html, summary.md, droplist.txt) from a findings document."""
+
+from __future__ import annotations
+
+import re
+from functools import lru_cache
+from typing import Any
+
+import jinja2
+
+from featureaudit.findings import Findings, droplist
+
+__all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
+
+CAUTION = ("An audit finds evidence, not proof: a suspect may be legitimate, and a clean audit "
+           "does not prove that the data is free of leakage. Models that affect people (credit, "
+           "health, employment) still go through the organisation's review and the rules that "
+           "apply to them.")
+_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
+
+
+def _visible(value: Any) -> str:
+    """Control characters shown as ``\\xNN`` so they cannot hide or break a line."""
+    return _CONTROL.sub(lambda m: f"\\x{ord(m.group()):02x}", "" if value is None else str(value))
+
+
+@lru_cache(maxsize=1)
+def _env() -> jinja2.Environment:
+    env = jinja2.Environment(
+        loader=jinja2.PackageLoader("featureaudit.reports", "templates"),
+        autoescape=True, undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True)
+    env.filters["visible"] = _visible
+    env.filters["fmt"] = _fmt
+    return env
+
+
+def _fmt(value: Any) -> str:
+    if isinstance(value, float):
+        return f"{value:.3g}" if abs(value) < 1e4 else f"{value:,.0f}"
+    return _visible(value)
+
+
+def verdict_line(findings: Findings) -> str:
+    """One plain sentence: how many suspects at which levels."""
+    counts: dict[str, int] = {}
+    for c in findings.columns:
+        counts[c["level"]] = counts.get(c["level"], 0) + 1
+    for f in findings.dataset_findings:
+        counts[f["level"]] = counts.get(f["level"], 0) + 1
+    serious = counts.get("critical", 0) + counts.get("high", 0)
+    if serious == 0:
+        return ("No column or split finding reached level high. Review the medium ones, "
+                "and remember what the audit cannot see.")
+    parts = [f"{counts[k]} {k}" for k in ("critical", "high", "medium") if counts.get(k)]
+    return (f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
+            f"({', '.join(parts)}). Resolve them before trusting validation scores.")
+
+
+def render_dossier(findings: Findings) -> str:
+    doc = findings.document
+    return _env().get_template("dossier.html.j2").render(
+        doc=doc, verdict=verdict_line(findings), caution=CAUTION,
+        suspects=[c for c in doc["columns"] if c["level"] != "none"],
+        clean=[c for c in doc["columns"] if c["level"] == "none"],
+        drops=droplist(findings, "high"))
+
+
+def render_summary(findings: Findings) -> str:
+    doc = findings.document
+    return _env().get_template("summary.md.j2").render(
+        doc=doc, verdict=verdict_line(findings), caution=CAUTION,
+        suspects=[c for c in doc["columns"] if c["level"] in ("critical", "high", "medium")][:20],
+        drops=droplist(findings, "high"))
+
+
+def render_all(findings: Findings) -> dict[str, str]:
+    """Every file of a report, rendered in memory so they can be written together."""
+    drops = droplist(findings, "high")
+    return {"findings.json": findings.to_json(),
+            "droplist.txt": "".join(f"{c}\n" for c in drops),
+            "summary.md": render_summary(findings),
+            "dossier.html": render_dossier(findings)}

@@ -1,0 +1,70 @@
+"""Audit settings: defaults, validation at the public edge, and the TOML ``--config`` file."""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import asdict, dataclass, fields
+from pathlib import Path
+from typing import Any
+
+from featureaudit.errors import InputFileError, SettingError
+
+__all__ = ["Settings", "LEVELS", "read_config", "CONFIG_KEYS"]
+
+LEVELS = ("none", "low", "medium", "high", "critical")
+TASKS = ("binary", "multiclass", "numeric")
+
+# Keys of the config file: every scan flag, with '-' written as '_'.
+CONFIG_KEYS = ("test", "split_column", "train_value", "target", "task", "dictionary",
+               "label_time", "cutoff_time", "horizon", "entity", "out", "fail_at", "seed")
+
+
+@dataclass(frozen=True)
+class Settings:
+    """Knobs of the probes; every one is recorded in findings.json under ``settings``."""
+
+    seed: int = 0
+    folds: int = 5                 # out-of-fold folds of the single-column scores
+    bins: int = 20                 # quantile bins per numeric column
+    reference_rows: int = 20_000   # sample for the model-based reference (seeded, stratified)
+    min_rows: int = 100            # below this, levels are capped at medium (small sample)
+
+    def __post_init__(self) -> None:
+        if self.folds < 2:
+            raise SettingError(f"folds must be at least 2; got {self.folds}.")
+        if not 2 <= self.bins <= 256:
+            raise SettingError(f"bins must be between 2 and 256; got {self.bins}.")
+        if self.reference_rows < 100:
+            raise SettingError(f"reference_rows must be at least 100; got {self.reference_rows}.")
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)
+
+    @classmethod
+    def names(cls) -> tuple[str, ...]:
+        return tuple(f.name for f in fields(cls))
+
+
+def read_config(path: str | Path) -> dict[str, Any]:
+    """Read a TOML settings file; unknown keys are an error that lists the known ones."""
+    p = Path(path)
+    if not p.is_file():
+        raise InputFileError(f"config {str(p)!r} does not exist; pass --config with a TOML file.")
+    try:
+        data = tomllib.loads(p.read_text(encoding="utf-8"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise SettingError(f"config {str(p)!r} is not valid TOML: {exc}; fix the line it names.") \
+            from exc
+    unknown = sorted(set(data) - set(CONFIG_KEYS) - set(Settings.names()))
+    if unknown:
+        raise SettingError(f"config {str(p)!r} has unknown keys {unknown}; known keys are "
+                           f"{', '.join(CONFIG_KEYS + Settings.names())}.")
+    return data
+
+
+def check_level(value: str, *, flag: str) -> str:
+    """Validate a level name given to ``flag``."""
+    low = str(value).strip().lower()
+    if low not in LEVELS:
+        raise SettingError(f"{flag} {value!r} is not a level; use one of {', '.join(LEVELS)}.")
+    return low

@@ -1,0 +1,293 @@
+"""The audit table: the frame with its roles, target and task, split, times and entity.
+
+Built once at the public edge (:func:`build_table`); probes only read it. Flags win over
+the dictionary, and every column that a flag or the dictionary names is checked here.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from featureaudit.dictionary import DataDictionary, guess_role, read_dictionary
+from featureaudit.durations import parse_duration
+from featureaudit.errors import ColumnNotFound, SettingError, TargetError
+from featureaudit.io import as_frame, normalise_frame
+from featureaudit.settings import TASKS
+from featureaudit.times import as_datetime
+
+__all__ = ["AuditTable", "build_table", "infer_task"]
+
+NON_FEATURE_ROLES = ("target", "label_time", "cutoff_time", "split", "weight", "ignore", "entity")
+FEW_CLASSES = 20  # common practice, no source: an integer target with at most 20 values is a label
+
+
+@dataclass
+class AuditTable:
+    """Everything a probe reads. Arrays are aligned with ``frame``'s rows (0..n-1)."""
+
+    frame: pd.DataFrame
+    source: str
+    roles: dict[str, str]
+    features: list[str]
+    id_columns: list[str]
+    target: str | None = None
+    task: str | None = None
+    y: np.ndarray | None = None            # codes 0..K-1 (classes) or floats; NaN/-1 = unlabelled
+    classes: list[str] = field(default_factory=list)
+    heldout: np.ndarray | None = None      # bool per row; None when audited as one pool
+    split: str = "none"
+    label_time: pd.Series | None = None
+    cutoff_time: pd.Series | None = None
+    label_time_column: str | None = None
+    cutoff_source: str | None = None       # "column:X", "horizon:30 days", "label time"
+    entity: str | None = None
+    dictionary: DataDictionary | None = None
+    warnings: list[str] = field(default_factory=list)
+    target_problem: str | None = None      # why target-based probes cannot run
+
+    @property
+    def n_rows(self) -> int:
+        return len(self.frame)
+
+    @property
+    def labelled(self) -> np.ndarray:
+        """Rows with a known target."""
+        if self.y is None:
+            return np.zeros(self.n_rows, dtype=bool)
+        if self.task == "numeric":
+            return ~np.isnan(self.y)
+        return self.y >= 0
+
+    @property
+    def train_rows(self) -> int:
+        return int(self.n_rows if self.heldout is None else (~self.heldout).sum())
+
+    @property
+    def heldout_rows(self) -> int:
+        return 0 if self.heldout is None else int(self.heldout.sum())
+
+
+def build_table(
+    data: object,
+    *,
+    test: object | None = None,
+    split_column: str | None = None,
+    train_value: str = "train",
+    target: str | None = None,
+    task: str | None = None,
+    dictionary: str | os.PathLike[str] | DataDictionary | None = None,
+    label_time: str | None = None,
+    cutoff_time: str | None = None,
+    horizon: str | None = None,
+    entity: str | None = None,
+    source: str | None = None,
+) -> AuditTable:
+    """Load and validate every input into an :class:`AuditTable` (raises on bad input)."""
+    if test is not None and split_column is not None:
+        raise SettingError("--test and --split-column were both given; pass one way of naming "
+                           "the held-out rows.")
+    if cutoff_time is not None and horizon is not None:
+        raise SettingError("--cutoff-time and --horizon were both given; pass one of them.")
+    if task is not None and task not in TASKS:
+        raise SettingError(f"--task {task!r} is not one of {', '.join(TASKS)}.")
+    src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
+    frame = as_frame(data, what=src)
+    if len(frame) == 0:
+        raise TargetError(f"table {src!r} has no rows; pass a table with data rows.")
+    warnings: list[str] = []
+
+    ddict = read_dictionary(dictionary) if isinstance(dictionary, (str, os.PathLike)) \
+        else dictionary
+    heldout = None
+    split_desc = "none"
+    if test is not None:
+        tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
+        frame, heldout = _append_test(frame, as_frame(test, what=tsrc), src, tsrc, target, ddict,
+                                      warnings)
+        split_desc = f"test:{tsrc}"
+
+    roles = _resolve_roles(frame, ddict, warnings)
+    flags = {"target": target, "split": split_column, "label_time": label_time,
+             "cutoff_time": cutoff_time, "entity": entity}
+    flag_names = {"target": "--target", "split": "--split-column", "label_time": "--label-time",
+                  "cutoff_time": "--cutoff-time", "entity": "--entity"}
+    chosen: dict[str, str | None] = {}
+    for role, value in flags.items():
+        if value is not None:
+            _require(frame, value, flag_names[role], src)
+            chosen[role] = value
+        else:
+            named = [c for c, r in roles.items() if r == role]
+            if len(named) > 1:
+                raise SettingError(f"dictionary {ddict.source if ddict else ''!r} gives role "
+                                   f"{role!r} to {len(named)} columns {named}; keep one or pass "
+                                   f"{flag_names[role]}.")
+            chosen[role] = named[0] if named else None
+    for role, col in chosen.items():
+        if col is not None:
+            roles[col] = role
+    if test is not None and chosen["split"] is not None:
+        warnings.append(f"--test names the held-out rows, so split column {chosen['split']!r} "
+                        "of the dictionary is not used to split.")
+        chosen["split"] = None
+
+    if chosen["split"] is not None:
+        col = chosen["split"]
+        values = frame[col].astype(object).where(frame[col].notna(), None)
+        is_train = np.array([v is not None and str(v) == str(train_value) for v in values])
+        if not is_train.any():
+            seen = sorted({str(v) for v in values if v is not None})[:10]
+            raise SettingError(f"no row of split column {col!r} equals --train-value "
+                               f"{train_value!r}; its values are {seen}. Pass --train-value "
+                               "with the value that marks training rows.")
+        if is_train.all():
+            warnings.append(f"every row of split column {col!r} is a training row; audited as "
+                            "one pool.")
+        else:
+            heldout = ~is_train
+            split_desc = f"column:{col}"
+
+    table = AuditTable(frame=frame, source=src, roles=roles, features=[], id_columns=[],
+                       heldout=heldout, split=split_desc, dictionary=ddict, warnings=warnings,
+                       entity=chosen["entity"])
+    _set_target(table, chosen["target"], task)
+    _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
+    for name in frame.columns:
+        role = roles.get(name, "feature")
+        if role == "id":
+            table.id_columns.append(name)
+        elif role not in NON_FEATURE_ROLES:
+            table.features.append(name)
+    return table
+
+
+def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
+    if column not in frame.columns:
+        shown = ", ".join(list(frame.columns)[:30]) + (" …" if frame.shape[1] > 30 else "")
+        raise ColumnNotFound(f"{flag} column {column!r} is not in {src}; columns are: {shown}. "
+                             f"Pass {flag} with one of them.")
+
+
+def _append_test(frame: pd.DataFrame, test: pd.DataFrame, src: str, tsrc: str,
+                 target: str | None, ddict: DataDictionary | None, warnings: list[str]
+                 ) -> tuple[pd.DataFrame, np.ndarray]:
+    targets = {target} if target else set()
+    if ddict is not None:
+        targets |= set(ddict.columns_with_role("target"))
+    missing = [c for c in frame.columns if c not in test.columns and c not in targets]
+    if missing:
+        raise ColumnNotFound(f"held-out table {tsrc!r} lacks columns {missing[:10]} that {src} "
+                             "has; pass a held-out table with the same columns (its target may "
+                             "be absent).")
+    extra = [c for c in test.columns if c not in frame.columns]
+    if extra:
+        warnings.append(f"held-out table {tsrc!r} has columns {extra[:10]} that {src} lacks; "
+                        "they are not audited.")
+    test = test[[c for c in frame.columns if c in test.columns]]
+    both = pd.concat([_plain(frame), _plain(test)], ignore_index=True)
+    heldout = np.r_[np.zeros(len(frame), bool), np.ones(len(test), bool)]
+    return normalise_frame(both, source=src), heldout
+
+
+def _plain(frame: pd.DataFrame) -> pd.DataFrame:
+    """Categoricals back to values so two tables with different levels concatenate cleanly."""
+    out = frame.copy()
+    for c in out.columns:
+        if isinstance(out[c].dtype, pd.CategoricalDtype):
+            out[c] = out[c].astype(object)
+    return out
+
+
+def _resolve_roles(frame: pd.DataFrame, ddict: DataDictionary | None, warnings: list[str]
+                   ) -> dict[str, str]:
+    roles: dict[str, str] = {}
+    if ddict is not None:
+        for name, entry in ddict.entries.items():
+            if name not in frame.columns:
+                warnings.append(f"dictionary {ddict.source!r} line {entry.line} names column "
+                                f"{name!r}, which the table lacks; the line is ignored.")
+                continue
+            roles[name] = entry.role
+            if entry.known_at_column and entry.known_at_column not in frame.columns:
+                warnings.append(f"dictionary {ddict.source!r} line {entry.line}: known_at of "
+                                f"{name!r} names column {entry.known_at_column!r}, which the table"
+                                " lacks; its timing is not checked.")
+    for name in frame.columns:
+        if name not in roles and guess_role(frame[name], name) == "id":
+            roles[name] = "id"
+    return roles
+
+
+def infer_task(values: pd.Series) -> str:
+    """binary, multiclass or numeric, as the contract says (integers with few values are labels)."""
+    present = values.dropna()
+    n_unique = present.nunique()
+    if pd.api.types.is_bool_dtype(values.dtype) or n_unique <= 2:
+        return "binary"
+    if pd.api.types.is_numeric_dtype(values.dtype):
+        as_float = present.astype("float64")
+        integral = bool(np.all(np.isclose(as_float, np.round(as_float))))
+        return "multiclass" if integral and n_unique <= FEW_CLASSES else "numeric"
+    return "multiclass"
+
+
+def _set_target(table: AuditTable, target: str | None, task: str | None) -> None:
+    if target is None:
+        return
+    s = table.frame[target]
+    present = s.dropna()
+    if present.empty:
+        raise TargetError(f"target column {target!r} of {table.source} has no values; pass "
+                          "--target with a column that holds the outcome.")
+    table.target = target
+    table.task = task or infer_task(s)
+    if table.task == "numeric":
+        if not pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
+            raise TargetError(f"target column {target!r} is not numeric, so --task numeric cannot "
+                              "apply; drop --task or pass binary or multiclass.")
+        table.y = pd.to_numeric(s, errors="coerce").astype("float64").to_numpy()
+    else:
+        labels = s.astype(object).where(s.notna(), None)
+        classes = sorted({str(v) for v in labels if v is not None}, key=_natural)
+        lookup = {c: i for i, c in enumerate(classes)}
+        table.y = np.array([lookup[str(v)] if v is not None else -1 for v in labels], np.int64)
+        table.classes = classes
+        if table.task == "binary" and len(classes) > 2:
+            raise TargetError(f"target column {target!r} has {len(classes)} values, so --task "
+                              "binary cannot apply; pass --task multiclass.")
+    if present.nunique() < 2:
+        table.target_problem = (f"target {target!r} has a single value ({present.iloc[0]!r}) in "
+                                "the labelled rows")
+        table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
+
+
+def _natural(text: str) -> tuple[int, float, str]:
+    try:
+        return (0, float(text), text)
+    except ValueError:
+        return (1, 0.0, text)
+
+
+def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon: str | None
+               ) -> None:
+    if label is not None:
+        table.label_time = as_datetime(table.frame[label], column=label, what="label time")
+        table.label_time_column = label
+    if cutoff is not None:
+        table.cutoff_time = as_datetime(table.frame[cutoff], column=cutoff, what="cutoff time")
+        table.cutoff_source = f"column:{cutoff}"
+    elif horizon is not None:
+        delta = parse_duration(horizon, what="--horizon")
+        if table.label_time is None:
+            raise SettingError("--horizon needs a label time to count back from; pass "
+                               "--label-time or give a column the role label_time.")
+        table.cutoff_time = table.label_time - delta
+        table.cutoff_source = f"horizon:{horizon}"
+    elif table.label_time is not None:
+        table.cutoff_time = table.label_time
+        table.cutoff_source = "label time"

@@ -1,0 +1,152 @@
+"""What the other columns say about a column: a conditional-dependence test and a reference model.
+
+An outcome-caused column depends on the other columns only through the target, so adding
+the target to a linear model of the column on its peers explains much of what the peers
+leave unexplained; an honest feature is explained by its peers and gains little. The share
+is ``1 - resid_var(col | peers, target) / resid_var(col | peers)``, the squared partial
+correlation for one target column, computed on a seeded sample from one correlation matrix.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.special import ndtri
+
+__all__ = ["PeerInput", "dependence_shares", "reference_power", "normal_scores"]
+
+RIDGE = 1e-3          # on correlations; keeps near-collinear peers invertible
+COPY_CORR = 0.995     # a peer this correlated is a copy of the column, not evidence about it
+MAX_PEERS = 200       # the most powerful columns serve as peers beyond this many
+
+
+@dataclass(frozen=True)
+class PeerInput:
+    """The sample's representation: one standardised variable per column, and the target."""
+
+    names: list[str]
+    z: np.ndarray            # [rows, columns], standardised, missing at 0
+    z_tree: np.ndarray       # the same with NaN where missing (for the tree model)
+    y_block: np.ndarray      # [rows, 1] or [rows, K-1]
+    y_codes: np.ndarray      # target of the sample rows (codes or floats)
+    power: np.ndarray        # single-column power per column, to choose peers
+
+
+def normal_scores(values: np.ndarray) -> np.ndarray:
+    """Rank-based normal scores (average ranks), NaN kept as NaN."""
+    out = np.full(values.shape, np.nan)
+    ok = np.isfinite(values)
+    if ok.sum() > 1:
+        from scipy.stats import rankdata
+        r = rankdata(values[ok])
+        out[ok] = ndtri((r - 0.5) / ok.sum())
+    return out
+
+
+def _residual_share(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray
+                    ) -> tuple[float, float, float]:
+    """(share explained by the target beyond peers, R² on peers, R² on peers and target)."""
+    def resid(idx: np.ndarray) -> float:
+        if idx.size == 0:
+            return 1.0
+        sub = corr[np.ix_(idx, idx)] + RIDGE * np.eye(idx.size)
+        cj = corr[idx, j]
+        return float(1.0 - cj @ np.linalg.solve(sub, cj))
+    without = max(resid(peers), 1e-9)
+    with_y = max(resid(np.r_[peers, ys]), 0.0)
+    return max(0.0, 1.0 - with_y / without), 1.0 - without, 1.0 - with_y
+
+
+def typical_share(shares: dict[str, dict], power: dict[str, float], exclude: str,
+                  min_power: float) -> float:
+    """Median share of the other columns with some power: what this table's honest columns show.
+
+    Flagged columns stay in the median (a few leaks barely move it), so removing them from
+    the peers cannot lower the bar step by step.
+
+    Where the target genuinely causes the features (a plant's cultivar its chemistry), every
+    column has a large share; a leak is the column that stands out above that level.
+    """
+    others = [v["share"] for c, v in shares.items()
+              if c != exclude and v["share"] is not None
+              and power.get(c, 0.0) >= min_power]
+    return float(np.median(others)) if len(others) >= 3 else 0.0
+
+
+def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
+                      min_power: float, rounds: int = 5) -> dict[str, dict]:
+    """Share per column; columns flagged in one round are removed from the peers of the next.
+
+    A column is flagged when its share exceeds the typical share of the other columns by
+    ``flag_share`` and its power reaches ``flag_power``. Removing flagged columns stops two
+    outcome-caused columns from hiding one another.
+    """
+    p = len(inp.names)
+    full = np.c_[inp.z, inp.y_block]
+    usable = full.std(axis=0) > 1e-12
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = np.nan_to_num(np.corrcoef(full, rowvar=False))
+    ys = np.flatnonzero(usable[p:]) + p
+    order = np.argsort(-inp.power)
+    power = dict(zip(inp.names, inp.power.tolist(), strict=True))
+    flagged: dict[int, int] = {}
+    out: dict[str, dict] = {}
+    for round_no in range(1, rounds + 1):
+        for j in range(p):
+            if not usable[j]:
+                out[inp.names[j]] = {"share": None, "r2_peers": None, "r2_peers_target": None,
+                                     "flag_round": None, "peers": 0, "typical_share": None}
+                continue
+            peers = np.array([k for k in order if k != j and usable[k] and k not in flagged
+                              and abs(corr[j, k]) < COPY_CORR][:MAX_PEERS], dtype=np.int64)
+            share, r2_a, r2_c = _residual_share(corr, j, peers, ys)
+            out[inp.names[j]] = {"share": share, "r2_peers": r2_a, "r2_peers_target": r2_c,
+                                 "flag_round": flagged.get(j), "peers": int(peers.size)}
+        new = []
+        for j, name in enumerate(inp.names):
+            typical = typical_share(out, power, name, min_power)
+            out[name]["typical_share"] = typical
+            share = out[name]["share"]
+            if (j not in flagged and share is not None and inp.power[j] >= flag_power
+                    and share >= typical + flag_share):
+                new.append(j)
+        if not new:
+            break
+        for j in new:
+            flagged[j] = round_no
+            out[inp.names[j]]["flag_round"] = round_no
+    return out
+
+
+def reference_power(inp: PeerInput, columns: np.ndarray, task: str, n_classes: int,
+                    seed: int, folds: int = 3) -> float:
+    """Out-of-fold LightGBM on the given columns of the sample: Gini of its AUC, or its R²."""
+    import lightgbm as lgb
+    from sklearn.metrics import r2_score, roc_auc_score
+    from sklearn.model_selection import KFold, StratifiedKFold
+
+    if columns.size == 0:
+        return 0.0
+    x = inp.z_tree[:, columns]
+    y = inp.y_codes
+    params = dict(n_estimators=80, learning_rate=0.1, num_leaves=15, min_child_samples=10,
+                  subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
+                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True)
+    if task == "numeric":
+        split = KFold(folds, shuffle=True, random_state=seed).split(x)
+        pred = np.zeros(len(y))
+        for tr, te in split:
+            pred[te] = lgb.LGBMRegressor(**params).fit(x[tr], y[tr]).predict(x[te])
+        return max(0.0, float(r2_score(y, pred)))
+    split = StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, y)
+    prob = np.zeros((len(y), n_classes))
+    for tr, te in split:
+        model = lgb.LGBMClassifier(**params).fit(x[tr], y[tr])
+        prob[np.ix_(te, model.classes_)] = model.predict_proba(x[te])
+    if n_classes == 2:
+        auc = roc_auc_score(y, prob[:, 1])
+    else:
+        prob = prob / np.maximum(prob.sum(1, keepdims=True), 1e-12)
+        auc = roc_auc_score(y, prob, multi_class="ovr", average="macro", labels=range(n_classes))
+    return max(0.0, 2 * float(auc) - 1)

@@ -1,0 +1,1 @@
+"""Jinja2 templates of the dossier and the review summary (package data)."""

@@ -1,0 +1,1 @@
+"""The invented demo scenario (invoices of a wholesale supplier) and its generator."""
