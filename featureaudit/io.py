@@ -151,7 +151,7 @@ def _normalise_column(s: pd.Series) -> pd.Series:
 def _parse_iso(s: pd.Series) -> pd.Series | None:
     """Parse ISO strings; mixed offsets become UTC, naive stays naive; None if unparseable."""
     text = s.astype(object)
-    has_zone = text.dropna().astype(str).str.contains(r"(Z|[+-]\d{2}:?\d{2})$", regex=True)
+    has_zone = text.dropna().astype(str).str.contains(r"(?:Z|[+-]\d{2}:?\d{2})$", regex=True)
     try:
         if has_zone.all():
             return pd.to_datetime(text, utc=True, format="ISO8601")

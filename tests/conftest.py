@@ -1,0 +1,58 @@
+"""Shared fixtures: real bundled datasets and small hand-made tables."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+from sklearn.datasets import load_breast_cancer, load_diabetes, load_wine
+
+
+def noisy_copy(y: np.ndarray, share: float, seed: int, n_classes: int = 2) -> np.ndarray:
+    """The target with ``share`` of its labels changed to another class."""
+    rng = np.random.default_rng(seed)
+    flip = rng.random(len(y)) < share
+    shift = rng.integers(1, n_classes, len(y))
+    return np.where(flip, (y + shift) % n_classes, y)
+
+
+@pytest.fixture(scope="session")
+def breast_cancer() -> pd.DataFrame:
+    """scikit-learn's bundled breast-cancer data (real), target 'malignant' (1 = malignant)."""
+    data = load_breast_cancer(as_frame=True)
+    frame = data.data.copy()
+    frame["malignant"] = 1 - data.target.to_numpy()
+    return frame
+
+
+@pytest.fixture(scope="session")
+def wine() -> pd.DataFrame:
+    """scikit-learn's bundled wine data (real): three cultivars, target 'cultivar'."""
+    data = load_wine(as_frame=True)
+    frame = data.data.copy()
+    frame["cultivar"] = data.target.to_numpy()
+    return frame
+
+
+@pytest.fixture(scope="session")
+def diabetes() -> pd.DataFrame:
+    """scikit-learn's bundled diabetes data (real): numeric target 'progression'."""
+    data = load_diabetes(as_frame=True)
+    frame = data.data.copy()
+    frame["progression"] = data.target.to_numpy()
+    return frame
+
+
+@pytest.fixture()
+def small_binary() -> pd.DataFrame:
+    """400 rows: one informative feature, two noise columns, a category, a date."""
+    rng = np.random.default_rng(3)
+    n = 400
+    x = rng.normal(size=n)
+    y = (x + rng.normal(scale=1.0, size=n) > 0).astype(int)
+    return pd.DataFrame({
+        "signal": x, "noise": rng.normal(size=n), "noise2": rng.uniform(size=n),
+        "colour": rng.choice(["red", "green", "blue"], n),
+        "seen_at": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 300, n), "D"),
+        "y": y,
+    })

@@ -1,0 +1,138 @@
+"""The solo probe on real bundled data with planted leaks, and on hand-made edge cases."""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import featureaudit as fa
+from tests.conftest import noisy_copy
+
+
+def _levels(result):
+    return dict(zip(result.columns["column"], result.columns["level"], strict=True))
+
+
+def _detail(result, column):
+    row = result.columns.set_index("column").loc[column]
+    return next(e for e in row["evidence"] if e["probe"] == "solo")["detail"]
+
+
+HIGH = ("high", "critical")
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_breast_cancer_noisy_copy_is_caught_and_honest_columns_are_not(breast_cancer, seed):
+    # Real data: scikit-learn's bundled breast-cancer set; honest single-column AUC up to ~0.97.
+    frame = breast_cancer.copy()
+    frame["noisy_copy"] = noisy_copy(frame["malignant"].to_numpy(), 0.05, seed)
+    result = fa.audit(frame, target="malignant", probes=["solo"], seed=seed)
+    levels = _levels(result)
+    assert levels["noisy_copy"] in HIGH
+    assert result.columns["column"].iloc[0] == "noisy_copy"
+    honest = [c for c in breast_cancer.columns if c != "malignant"]
+    assert not [c for c in honest if levels[c] in HIGH]
+    # the honest top column is stronger alone than the leak, yet explained by its peers
+    assert _detail(result, "worst perimeter")["share_beyond_peers"] < 0.05
+    assert _detail(result, "noisy_copy")["share_beyond_peers"] > 0.25
+
+
+def test_breast_cancer_without_a_leak_has_no_suspect_column(breast_cancer):
+    result = fa.audit(breast_cancer, target="malignant", probes=["solo"])
+    assert result.suspects("high") == []
+
+
+@pytest.mark.parametrize("seed", [0, 1])
+def test_wine_multiclass(wine, seed):
+    # Real data: scikit-learn's bundled wine set (three cultivars).
+    frame = wine.copy()
+    frame["noisy_copy"] = noisy_copy(frame["cultivar"].to_numpy(), 0.05, seed, n_classes=3)
+    result = fa.audit(frame, target="cultivar", probes=["solo"], seed=seed)
+    levels = _levels(result)
+    assert result.document["dataset"]["task"] == "multiclass"
+    assert levels["noisy_copy"] in HIGH
+    assert not [c for c in wine.columns if c != "cultivar" and levels[c] in HIGH]
+
+
+def test_diabetes_numeric_target(diabetes):
+    # Real data: scikit-learn's bundled diabetes set (numeric disease progression).
+    rng = np.random.default_rng(0)
+    frame = diabetes.copy()
+    y = frame["progression"].to_numpy()
+    frame["noisy_copy"] = y + rng.normal(0, 0.3 * y.std(), len(y))
+    result = fa.audit(frame, target="progression", probes=["solo"])
+    levels = _levels(result)
+    assert result.document["dataset"]["task"] == "numeric"
+    assert levels["noisy_copy"] in HIGH
+    assert not [c for c in diabetes.columns if c != "progression" and levels[c] in HIGH]
+    evidence = _detail(result, "noisy_copy")
+    assert evidence["oof_value"] > 0.8 and evidence["spearman"] > 0.9
+
+
+def test_sorted_by_target_with_sequential_id_raises_row_order(breast_cancer):
+    frame = breast_cancer.sort_values("malignant", kind="stable").reset_index(drop=True)
+    frame.insert(0, "record_id", np.arange(1, len(frame) + 1))
+    result = fa.audit(frame, target="malignant", probes=["solo"])
+    row = result.columns.set_index("column").loc["record_id"]
+    assert row["level"] in HIGH and "row_order_tells_target" in row["kinds"]
+    position = [f for f in result.document["dataset_findings"]
+                if f["kind"] == "row_order_tells_target"]
+    assert position and position[0]["level"] in HIGH
+
+
+def test_shuffled_rows_with_sequential_id_stay_clean(breast_cancer):
+    frame = breast_cancer.sample(frac=1, random_state=0).reset_index(drop=True)
+    frame.insert(0, "record_id", np.arange(1, len(frame) + 1))
+    result = fa.audit(frame, target="malignant", probes=["solo"])
+    assert _levels(result)["record_id"] in ("none", "low")
+    position = [f for f in result.document["dataset_findings"]
+                if f["kind"] == "row_order_tells_target"]
+    assert position[0]["level"] in ("none", "low")
+
+
+def test_neutral_column_stays_none(small_binary):
+    result = fa.audit(small_binary, target="y", probes=["solo"])
+    levels = _levels(result)
+    assert levels["noise"] == "none" and levels["noise2"] == "none"
+
+
+def test_high_cardinality_text_cannot_leak_through_the_probe():
+    rng = np.random.default_rng(4)
+    n = 3000
+    frame = pd.DataFrame({"ticket": [f"T-{rng.integers(1e9):09d}-{i}" for i in range(n)],
+                          "x": rng.normal(size=n), "y": rng.integers(0, 2, n)})
+    result = fa.audit(frame, target="y", probes=["solo"])
+    assert _detail(result, "ticket")["oof_value"] == pytest.approx(0.5, abs=0.02)
+
+
+def test_missingness_that_tells_the_target_is_reported():
+    rng = np.random.default_rng(6)
+    n = 3000
+    y = rng.integers(0, 2, n)
+    frame = pd.DataFrame({f"f{i}": rng.normal(size=n) + 0.3 * y for i in range(4)})
+    frame["closing_note_len"] = np.where(y == 1, rng.integers(5, 300, n), np.nan)
+    frame.loc[rng.random(n) < 0.03, "closing_note_len"] = 42.0
+    frame["y"] = y
+    result = fa.audit(frame, target="y", probes=["solo"])
+    detail = _detail(result, "closing_note_len")
+    assert detail["missing"]["auc"] > 0.95
+    assert _levels(result)["closing_note_len"] in HIGH
+
+
+def test_datetime_and_category_columns_are_scored(small_binary):
+    frame = small_binary.copy()
+    frame["signal_day"] = pd.Timestamp("2025-01-01") + pd.to_timedelta(
+        np.argsort(np.argsort(frame["signal"].to_numpy())), "D")
+    result = fa.audit(frame, target="y", probes=["solo"])
+    detail = _detail(result, "signal_day")
+    assert detail["oof_value"] > 0.7 and detail["bins"][1]["bin"].startswith("[2025")
+    assert _detail(result, "colour")["bin_kind"] == "categories"
+
+
+def test_evidence_carries_what_a_reviewer_needs(breast_cancer):
+    result = fa.audit(breast_cancer, target="malignant", probes=["solo"])
+    d = _detail(result, "worst perimeter")
+    for key in ("oof_value", "ci95", "fold_values", "reference_power", "bins", "se",
+                "share_beyond_peers", "determinism_given_target"):
+        assert key in d, key
+    assert d["ci95"][0] < d["oof_value"] < d["ci95"][1]
+    assert len(d["fold_values"]) == 5 and 0 < d["reference_power"] <= 1

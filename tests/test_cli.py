@@ -1,0 +1,154 @@
+"""The command line: exit codes 0, 1 and 2, the report files, droplist, diff, dictionary, demo."""
+
+import json
+import os
+
+import numpy as np
+import pandas as pd
+import pytest
+from typer.testing import CliRunner
+
+from featureaudit.cli import app
+from featureaudit.findings import SCHEMA
+
+runner = CliRunner()
+
+
+def run(*args):
+    return runner.invoke(app, [str(a) for a in args], prog_name="featureaudit")
+
+
+@pytest.fixture(scope="module")
+def leaky_csv(tmp_path_factory):
+    rng = np.random.default_rng(0)
+    n = 1500
+    y = rng.integers(0, 2, n)
+    frame = pd.DataFrame({f"f{i}": rng.normal(size=n) + 0.4 * y for i in range(5)})
+    frame["closed_code"] = np.where(rng.random(n) < 0.97, y, 1 - y)
+    frame["split"] = np.where(rng.random(n) < 0.8, "train", "test")
+    frame["y"] = y
+    path = tmp_path_factory.mktemp("data") / "leaky.csv"
+    frame.to_csv(path, index=False)
+    return path
+
+
+@pytest.fixture(scope="module")
+def report(leaky_csv, tmp_path_factory):
+    out = tmp_path_factory.mktemp("report")
+    result = run("scan", leaky_csv, "--target", "y", "--split-column", "split", "--out", out)
+    assert result.exit_code == 0, result.stderr
+    return out
+
+
+def test_scan_writes_the_four_files(report):
+    assert sorted(p.name for p in report.iterdir()) == ["dossier.html", "droplist.txt",
+                                                       "findings.json", "summary.md"]
+    doc = json.loads((report / "findings.json").read_text())
+    assert doc["schema"] == SCHEMA
+    assert doc["dataset"]["train_rows"] + doc["dataset"]["heldout_rows"] == doc["dataset"]["rows"]
+    assert doc["dataset"]["split"] == "column:split" and doc["dataset"]["task"] == "binary"
+    assert (report / "droplist.txt").read_text().splitlines()[0] == "closed_code"
+    scores = [c["score"] for c in doc["columns"]]
+    assert scores == sorted(scores, reverse=True)
+    for key in ("schema", "tool_version", "created", "dataset", "settings", "columns",
+                "dataset_findings", "skipped", "warnings"):
+        assert key in doc
+
+
+def test_fail_at_exits_1_when_reached(leaky_csv, tmp_path):
+    result = run("scan", leaky_csv, "--target", "y", "--out", tmp_path, "--fail-at", "high")
+    assert result.exit_code == 1
+    assert (tmp_path / "findings.json").exists()
+
+
+def test_fail_at_not_reached_exits_0(tmp_path):
+    rng = np.random.default_rng(1)
+    frame = pd.DataFrame({"a": rng.normal(size=400), "b": rng.normal(size=400),
+                          "y": rng.integers(0, 2, 400)})
+    frame.to_csv(tmp_path / "clean.csv", index=False)
+    result = run("scan", tmp_path / "clean.csv", "--target", "y", "--out", tmp_path / "r",
+                 "--fail-at", "high")
+    assert result.exit_code == 0, result.stdout + result.stderr
+
+
+def test_bad_flag_value_exits_2_with_one_line(leaky_csv, tmp_path):
+    result = run("scan", leaky_csv, "--target", "nope", "--out", tmp_path)
+    assert result.exit_code == 2
+    assert result.stderr.count("\n") == 1 and "'nope'" in result.stderr
+    assert "--target" in result.stderr and "Traceback" not in result.stderr
+
+
+def test_unknown_option_exits_2_with_one_line(leaky_csv):
+    result = run("scan", leaky_csv, "--no-such-flag")
+    assert result.exit_code == 2 and result.stderr.count("\n") == 1
+    assert "--no-such-flag" in result.stderr
+
+
+def test_failed_run_leaves_the_earlier_report_untouched(leaky_csv, report, tmp_path):
+    before = {p.name: p.read_bytes() for p in report.iterdir()}
+    result = run("scan", leaky_csv, "--target", "y", "--task", "bogus", "--out", report)
+    assert result.exit_code == 2
+    assert {p.name: p.read_bytes() for p in report.iterdir()} == before
+
+
+def test_droplist_command(report):
+    text = run("droplist", report / "findings.json")
+    assert text.exit_code == 0 and text.stdout.splitlines()[0] == "closed_code"
+    as_json = run("droplist", report / "findings.json", "--format", "json", "--at-least", "none")
+    names = json.loads(as_json.stdout)
+    assert names[0] == "closed_code" and len(names) == 6
+    assert run("droplist", report / "findings.json", "--at-least", "severe").exit_code == 2
+
+
+def test_diff_command(report, tmp_path):
+    doc = json.loads((report / "findings.json").read_text())
+    old = json.loads(json.dumps(doc))
+    old["columns"] = [c for c in old["columns"] if c["column"] != "closed_code"]
+    old["columns"][0]["level"] = "critical"
+    (tmp_path / "old.json").write_text(json.dumps(old))
+    result = run("diff", tmp_path / "old.json", report / "findings.json")
+    assert result.exit_code == 0
+    assert any(line.startswith("new") and "closed_code" in line
+               for line in result.stdout.splitlines())
+    assert any(line.startswith("lowered") for line in result.stdout.splitlines())
+    failing = run("diff", tmp_path / "old.json", report / "findings.json", "--fail-at", "high")
+    assert failing.exit_code == 1
+    same = run("diff", report / "findings.json", report / "findings.json", "--fail-at", "low")
+    assert same.exit_code == 0 and "no change" in same.stdout
+
+
+def test_dictionary_command(leaky_csv):
+    result = run("dictionary", leaky_csv, "--target", "y")
+    assert result.exit_code == 0
+    lines = result.stdout.strip().splitlines()
+    assert lines[0] == "column,role,known_at,description"
+    assert "y,target,," in lines and "split,split,," in lines
+
+
+def test_config_file_supplies_flags_and_flags_win(leaky_csv, tmp_path):
+    cfg = tmp_path / "audit.toml"
+    cfg.write_text('target = "y"\nsplit_column = "split"\nfail_at = "critical"\nseed = 4\n')
+    result = run("scan", leaky_csv, "--config", cfg, "--out", tmp_path / "r", "--fail-at", "high")
+    assert result.exit_code == 1
+    doc = json.loads((tmp_path / "r" / "findings.json").read_text())
+    assert doc["settings"]["seed"] == 4 and doc["dataset"]["split"] == "column:split"
+    cfg.write_text('target = "y"\ncolour = "blue"\n')
+    bad = run("scan", leaky_csv, "--config", cfg)
+    assert bad.exit_code == 2 and "colour" in bad.stderr
+
+
+def test_demo_runs_end_to_end(tmp_path):
+    cwd = os.getcwd()
+    result = run("demo", "--out", tmp_path / "demo")
+    assert os.getcwd() == cwd
+    assert result.exit_code == 0, result.stderr
+    assert "dossier" in result.stdout and (tmp_path / "demo" / "dossier.html").exists()
+    drops = (tmp_path / "demo" / "droplist.txt").read_text().splitlines()
+    assert {"reminders_sent", "in_collections"} <= set(drops)
+
+
+def test_every_command_has_an_example_in_its_help():
+    for command in ("scan", "droplist", "diff", "dictionary", "demo"):
+        result = run(command, "--help")
+        assert result.exit_code == 0 and "Example: featureaudit " + command in \
+            " ".join(result.stdout.split()), command
