@@ -7,6 +7,8 @@ from dataclasses import asdict, dataclass, fields
 from pathlib import Path
 from typing import Any
 
+import pandas as pd
+
 from featureaudit.errors import InputFileError, SettingError
 
 __all__ = ["Settings", "LEVELS", "read_config", "CONFIG_KEYS"]
@@ -28,12 +30,19 @@ class Settings:
     bins: int = 20                 # quantile bins per numeric column
     reference_rows: int = 20_000   # sample for the model-based reference (seeded, stratified)
     min_rows: int = 100            # below this, levels are capped at medium (small sample)
+    time_tolerance: str = "1d"     # clock skew and same-day recording (see probes/timing.py)
+    share_tolerance: float = 0.01  # shares of rows below this are not flagged
 
     def __post_init__(self) -> None:
         if self.folds < 2:
             raise SettingError(f"folds must be at least 2; got {self.folds}.")
         if not 2 <= self.bins <= 256:
             raise SettingError(f"bins must be between 2 and 256; got {self.bins}.")
+        if not 0 <= self.share_tolerance < 1:
+            raise SettingError(f"share_tolerance must be in [0, 1); got {self.share_tolerance}.")
+        from featureaudit.durations import parse_duration
+        if parse_duration(self.time_tolerance, what="time_tolerance") < pd.Timedelta(0):
+            raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
         if self.reference_rows < 100:
             raise SettingError(f"reference_rows must be at least 100; got {self.reference_rows}.")
 

@@ -1,8 +1,9 @@
 """Turn a column into datetimes once, with one clear error when it cannot be done.
 
-Accepted: datetime dtypes, ISO strings, and epoch numbers (seconds or milliseconds, chosen
-by magnitude). Zone-aware values are converted to UTC and compared as naive UTC; a column
-mixing aware and naive values is an error naming the column, since no conversion is safe.
+Accepted: datetime dtypes, ISO strings, whole years (1000–3000, read as 1 January) and epoch
+numbers (seconds or milliseconds, chosen by magnitude). Zone-aware values are converted to
+UTC and compared as naive UTC; a column mixing aware and naive values is an error naming
+the column, since no conversion is safe.
 """
 
 from __future__ import annotations
@@ -30,6 +31,11 @@ def as_datetime(s: pd.Series, *, column: str, what: str = "column") -> pd.Series
     if pd.api.types.is_numeric_dtype(s.dtype):
         values = pd.to_numeric(s, errors="coerce").astype("float64")
         med = float(np.nanmedian(np.abs(values))) if values.notna().any() else np.nan
+        present = values.dropna()
+        if (not present.empty and present.between(1000, 3000).all()
+                and np.allclose(present, np.round(present))):
+            years = values.round().astype("Int64").astype(str).where(values.notna(), None)
+            return pd.to_datetime(years, format="%Y").astype("datetime64[ns]")
         if _EPOCH_S[0] <= med <= _EPOCH_S[1]:
             return pd.to_datetime(values, unit="s").astype("datetime64[ns]")
         if _EPOCH_MS[0] <= med <= _EPOCH_MS[1]:

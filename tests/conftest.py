@@ -8,12 +8,18 @@ import pytest
 from sklearn.datasets import load_breast_cancer, load_diabetes, load_wine
 
 
-def noisy_copy(y: np.ndarray, share: float, seed: int, n_classes: int = 2) -> np.ndarray:
+def _noisy_copy(y: np.ndarray, share: float, seed: int, n_classes: int = 2) -> np.ndarray:
     """The target with ``share`` of its labels changed to another class."""
     rng = np.random.default_rng(seed)
     flip = rng.random(len(y)) < share
     shift = rng.integers(1, n_classes, len(y))
     return np.where(flip, (y + shift) % n_classes, y)
+
+
+@pytest.fixture(scope="session")
+def noisy_copy():
+    """A function: the target with a share of its labels changed to another class."""
+    return _noisy_copy
 
 
 @pytest.fixture(scope="session")

@@ -5,7 +5,6 @@ import pandas as pd
 import pytest
 
 import featureaudit as fa
-from tests.conftest import noisy_copy
 
 
 def _levels(result):
@@ -21,7 +20,8 @@ HIGH = ("high", "critical")
 
 
 @pytest.mark.parametrize("seed", [0, 1, 2])
-def test_breast_cancer_noisy_copy_is_caught_and_honest_columns_are_not(breast_cancer, seed):
+def test_breast_cancer_noisy_copy_is_caught_and_honest_columns_are_not(breast_cancer, seed,
+                                                                     noisy_copy):
     # Real data: scikit-learn's bundled breast-cancer set; honest single-column AUC up to ~0.97.
     frame = breast_cancer.copy()
     frame["noisy_copy"] = noisy_copy(frame["malignant"].to_numpy(), 0.05, seed)
@@ -42,7 +42,7 @@ def test_breast_cancer_without_a_leak_has_no_suspect_column(breast_cancer):
 
 
 @pytest.mark.parametrize("seed", [0, 1])
-def test_wine_multiclass(wine, seed):
+def test_wine_multiclass(wine, seed, noisy_copy):
     # Real data: scikit-learn's bundled wine set (three cultivars).
     frame = wine.copy()
     frame["noisy_copy"] = noisy_copy(frame["cultivar"].to_numpy(), 0.05, seed, n_classes=3)
