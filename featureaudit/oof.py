@@ -108,7 +108,7 @@ def score_bins(codes_all: np.ndarray, n_bins: int, t: Target) -> CellScore:
         n1, n0 = int(pos.sum()), int(neg.sum())
         return CellScore("oof_auc", auc, max(0.0, 2 * auc - 1), folds,
                          hanley_mcneil_se(auc, n1, n0), null_auc_se(n1, n0), None,
-                         bin_rows, rates[:, 1], None, pred, uncertainty_coefficient(total))
+                         bin_rows, rates[:, 1], None, pred, _determinism(total))
     per_class, per_fold, null = [], np.zeros(F), []
     for k in range(K):
         pos = counts[..., k]
@@ -123,7 +123,17 @@ def score_bins(codes_all: np.ndarray, n_bins: int, t: Target) -> CellScore:
     return CellScore("oof_macro_auc", auc, max(0.0, 2 * auc - 1), folds,
                      float(np.std(folds, ddof=1) / np.sqrt(F)), float(np.mean(null) / np.sqrt(K)),
                      None, bin_rows, rates[np.arange(B), top], top, pred,
-                     uncertainty_coefficient(total))
+                     _determinism(total))
+
+
+def _determinism(counts: np.ndarray) -> float:
+    """Theil's U of the column given the target, or of its missing-value indicator if higher.
+
+    Bin 0 holds the missing values; a column filled in only for one outcome is almost a
+    function of the target through its missingness even when its values are spread out.
+    """
+    indicator = np.stack([counts[0], counts[1:].sum(axis=0)])
+    return max(uncertainty_coefficient(counts), uncertainty_coefficient(indicator))
 
 
 def _numeric(codes: np.ndarray, F: int, B: int, t: Target) -> CellScore:
@@ -148,7 +158,7 @@ def _numeric(codes: np.ndarray, F: int, B: int, t: Target) -> CellScore:
     return CellScore("oof_r2", r2, max(0.0, r2), folds,
                      float(np.nanstd(folds, ddof=1) / np.sqrt(F)), 1.0 / np.sqrt(len(t.y)),
                      rho, bin_rows, bin_mean, None, pred,
-                     uncertainty_coefficient(joint.reshape(B, t.n_y_bins)))
+                     _determinism(joint.reshape(B, t.n_y_bins)))
 
 
 def _spearman_cells(codes: np.ndarray, pred: np.ndarray, n: np.ndarray, t: Target, F: int,

@@ -44,18 +44,30 @@ def normal_scores(values: np.ndarray) -> np.ndarray:
     return out
 
 
-def _residual_share(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray
-                    ) -> tuple[float, float, float]:
-    """(share explained by the target beyond peers, R² on peers, R² on peers and target)."""
-    def resid(idx: np.ndarray) -> float:
-        if idx.size == 0:
-            return 1.0
-        sub = corr[np.ix_(idx, idx)] + RIDGE * np.eye(idx.size)
-        cj = corr[idx, j]
-        return float(1.0 - cj @ np.linalg.solve(sub, cj))
-    without = max(resid(peers), 1e-9)
-    with_y = max(resid(np.r_[peers, ys]), 0.0)
-    return max(0.0, 1.0 - with_y / without), 1.0 - without, 1.0 - with_y
+def _r2(corr: np.ndarray, j: int, idx: np.ndarray) -> float:
+    """Linear R² of variable ``j`` on the variables ``idx``, from the correlation matrix."""
+    if idx.size == 0:
+        return 0.0
+    sub = corr[np.ix_(idx, idx)] + RIDGE * np.eye(idx.size)
+    cj = corr[idx, j]
+    return float(min(1.0, max(0.0, cj @ np.linalg.solve(sub, cj))))
+
+
+def _figures(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray) -> dict[str, float]:
+    """The column's linear R² on its peers (a), the target (b), both (c), and the target's own
+    R² on the peers; from them the two shares the probe weighs.
+
+    ``share`` = (c - a) / (1 - a): what the target adds beyond the peers.
+    ``peers_beyond_target`` = (c - b) / (1 - b): what the peers add beyond the target, near 0
+    for a column that depends on the others only through the target.
+    """
+    a = _r2(corr, j, peers)
+    b = _r2(corr, j, ys)
+    c = max(_r2(corr, j, np.r_[peers, ys]), a, b)
+    target_on_peers = float(np.mean([_r2(corr, int(y), peers) for y in ys])) if ys.size else 0.0
+    return {"share": (c - a) / (1 - a) if a < 1 else 0.0, "r2_peers": a, "r2_target": b,
+            "r2_peers_target": c, "peers_beyond_target": (c - b) / (1 - b) if b < 1 else 0.0,
+            "target_r2_on_peers": target_on_peers}
 
 
 def typical_share(shares: dict[str, dict], power: dict[str, float], exclude: str,
@@ -75,11 +87,13 @@ def typical_share(shares: dict[str, dict], power: dict[str, float], exclude: str
 
 
 def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
-                      min_power: float, rounds: int = 5) -> dict[str, dict]:
+                      min_power: float, flag_beyond: float, rounds: int = 5
+                      ) -> dict[str, dict]:
     """Share per column; columns flagged in one round are removed from the peers of the next.
 
     A column is flagged when its share exceeds the typical share of the other columns by
-    ``flag_share`` and its power reaches ``flag_power``. Removing flagged columns stops two
+    ``flag_share``, its power reaches ``flag_power`` and the peers add at most ``flag_beyond``
+    beyond the target. Removing flagged columns stops two
     outcome-caused columns from hiding one another.
     """
     p = len(inp.names)
@@ -95,21 +109,21 @@ def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
     for round_no in range(1, rounds + 1):
         for j in range(p):
             if not usable[j]:
-                out[inp.names[j]] = {"share": None, "r2_peers": None, "r2_peers_target": None,
-                                     "flag_round": None, "peers": 0, "typical_share": None}
+                out[inp.names[j]] = {"share": None, "flag_round": None, "peers": 0,
+                                     "typical_share": None}
                 continue
             peers = np.array([k for k in order if k != j and usable[k] and k not in flagged
                               and abs(corr[j, k]) < COPY_CORR][:MAX_PEERS], dtype=np.int64)
-            share, r2_a, r2_c = _residual_share(corr, j, peers, ys)
-            out[inp.names[j]] = {"share": share, "r2_peers": r2_a, "r2_peers_target": r2_c,
-                                 "flag_round": flagged.get(j), "peers": int(peers.size)}
+            out[inp.names[j]] = {**_figures(corr, j, peers, ys), "flag_round": flagged.get(j),
+                                 "peers": int(peers.size)}
         new = []
         for j, name in enumerate(inp.names):
             typical = typical_share(out, power, name, min_power)
             out[name]["typical_share"] = typical
             share = out[name]["share"]
             if (j not in flagged and share is not None and inp.power[j] >= flag_power
-                    and share >= typical + flag_share):
+                    and share >= typical + flag_share
+                    and out[name]["peers_beyond_target"] <= flag_beyond):
                 new.append(j)
         if not new:
             break

@@ -23,11 +23,11 @@ the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tes
 from __future__ import annotations
 
 import numpy as np
-from featureaudit.probes._peers import PeerInput, dependence_shares, normal_scores, reference_power
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
 from featureaudit.oof import CellScore, Target, make_target, score_bins
+from featureaudit.probes._peers import PeerInput, dependence_shares, normal_scores, reference_power
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, auc_from_cells, bin_codes
@@ -40,6 +40,9 @@ FUNCTION_OF_TARGET = {"critical": (0.7, 0.8), "high": (0.5, 0.5)}  # (Theil's U,
 STRONG_ALONE = 0.8         # power alone that is worth a look (low) even when explained
 MATCH_MARGIN = 0.02        # alone within this of all the other columns together
 MIN_PEERS = 3              # fewer peers than this cannot tell a leak from a strong feature
+BEYOND_MAX = 0.10          # an effect of the outcome: peers add at most this beyond the target
+PEER_SIGNAL = 0.08         # under that reading the peers must explain this much of the column
+MISSING_AS_ENCODING = 0.01  # numeric columns missing this often enter the peer test encoded
 ORDER_POWER = {"critical": 0.6, "high": 0.2, "medium": 0.1}
 ORDER_Z = {"high": 4.0, "medium": 3.0, "low": 2.0}
 LEVELS = ("none", "low", "medium", "high", "critical")
@@ -184,15 +187,21 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
     typical = peer.get("typical_share") or 0.0
     others = peer.get("others_power", ref.get("power"))
     enough_peers = n_peers >= MIN_PEERS and share is not None
+    beyond = peer.get("peers_beyond_target")
+    effect_like = beyond is not None and beyond <= BEYOND_MAX
+    expected = (peer.get("r2_target") or 0.0) * (peer.get("target_r2_on_peers") or 0.0)
+    tellable = expected >= PEER_SIGNAL
     level, statistic, value, threshold, why = "none", score.statistic, score.value, \
         _threshold(t, SHARE_POWER["high"]), "explained"
     for lv in ("low", "medium", "high", "critical"):
         if enough_peers and share >= typical + SHARE[lv] and power >= SHARE_POWER[lv]:
             level, why = lv, "share"
+    if why == "share" and level in ("high", "critical") and not (effect_like and tellable):
+        level, why = "medium", "share_untold"
     if power >= STRONG_ALONE and LEVELS.index(level) < LEVELS.index("low"):
         level, why = "low", "strong"
     if (enough_peers and others is not None and power >= 0.6 and power >= others - MATCH_MARGIN
-            and LEVELS.index(level) < LEVELS.index("high")):
+            and effect_like and tellable and LEVELS.index(level) < LEVELS.index("high")):
         level, why = "high", "match"
     for lv in ("high", "critical"):
         u_min, p_min = FUNCTION_OF_TARGET[lv]
@@ -200,7 +209,8 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
                 and LEVELS.index(level) <= LEVELS.index(lv)):
             level, why = lv, "function"
     if power >= DETERMINISTIC:
-        level, why = "critical", "deterministic"
+        explained = enough_peers and not effect_like and share < typical + SHARE["low"]
+        level, why = ("high" if explained else "critical"), "deterministic"
     if small and level in ("high", "critical"):
         level = "medium"
     if not enough_peers and level in ("high", "critical") and why not in ("deterministic",
@@ -211,6 +221,13 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
         statistic, value, threshold = "target_share_beyond_peers", share, typical + SHARE[level]
         summary = (f"the target explains {share:.0%} of what the other columns leave "
                    f"unexplained in it ({txt}): it looks caused by the outcome")
+    elif why == "share_untold":
+        statistic, value, threshold = "target_share_beyond_peers", share, typical + SHARE["high"]
+        reason = ("the other columns explain it beyond the target, as they would an honest "
+                  "feature" if not effect_like else "the other columns say too little about "
+                  "the target to tell an effect of the outcome from a strong cause")
+        summary = (f"the target explains {share:.0%} of what the other columns leave "
+                   f"unexplained in it ({txt}), but {reason}")
     elif why == "deterministic":
         threshold = _threshold(t, DETERMINISTIC)
         summary = f"alone predicts the target almost exactly ({txt})"
@@ -233,7 +250,9 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
         summary += " (too few other columns to compare with)"
     detail = {**_common_detail(score, b, t), "share_beyond_peers": share, "typical_share": typical,
               "r2_on_peers": peer.get("r2_peers"), "r2_on_peers_and_target":
-              peer.get("r2_peers_target"), "peers": peer.get("peers"),
+              peer.get("r2_peers_target"), "r2_on_target": peer.get("r2_target"),
+              "peers_beyond_target": beyond, "target_r2_on_peers": peer.get("target_r2_on_peers"),
+              "expected_r2_on_peers_if_effect": expected, "peers": peer.get("peers"),
               "reference_power": others, "reference_rows": ref.get("rows"),
               "reference_columns": ref.get("columns"), "decided_by": why}
     severity = 0.5 * power + 0.5 * min(1.0, (share or 0.0) / 0.5)
@@ -261,7 +280,8 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     cols, trees = [], []
     for name in features:
         values = numeric_view(table.frame[name])
-        if values is not None:
+        missing = float(np.mean(~np.isfinite(values[t.rows]))) if values is not None else 0.0
+        if values is not None and missing < MISSING_AS_ENCODING:
             raw = normal_scores(values[t.rows][pick])
         else:
             pred = scores[name].row_scores(t, bins[name].codes)[pick]
@@ -280,7 +300,7 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     power = np.array([scores[c].power for c in features])
     inp = PeerInput(features, np.column_stack(cols), np.column_stack(trees), y_block, y, power)
     shares = dependence_shares(inp, flag_share=SHARE["high"], flag_power=SHARE_POWER["high"],
-                               min_power=0.0)
+                               min_power=0.0, flag_beyond=BEYOND_MAX)
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
     keep = np.array([i for i, c in enumerate(features) if c not in flagged], dtype=np.int64)
     ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed),

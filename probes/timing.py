@@ -226,7 +226,7 @@ def _per_entity(entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.nd
 def _datetime_like(s: pd.Series) -> bool:
     if pd.api.types.is_datetime64_any_dtype(s.dtype):
         return True
-    if s.dtype != object:
+    if pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
         return False
     sample = s.dropna().astype(str).head(200)
     return bool(len(sample)) and sample.str.match(r"^\d{4}-\d{2}-\d{2}").mean() > 0.9

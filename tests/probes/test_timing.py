@@ -1,0 +1,174 @@
+"""The timing probe on real panel and quarterly data, the demo scenario and hand-made rows."""
+
+import numpy as np
+import pandas as pd
+import pytest
+import statsmodels.api as sm
+
+import featureaudit as fa
+from featureaudit.demo import demo_paths
+from featureaudit.dictionary import parse_dictionary
+from featureaudit.probes.timing import Timing
+from featureaudit.settings import Settings
+from featureaudit.table import build_table
+
+HIGH = ("high", "critical")
+
+
+def _overlap(result):
+    found = [f for f in result.document["dataset_findings"]
+             if f["kind"] == "time_overlap_across_split"]
+    assert len(found) == 1
+    return found[0]
+
+
+@pytest.fixture(scope="module")
+def grunfeld():
+    # Real data: statsmodels' bundled Grunfeld investment panel (firms x years 1935-1954).
+    frame = sm.datasets.grunfeld.load_pandas().data.copy()
+    frame["high_invest"] = (frame["invest"] > frame["invest"].median()).astype(int)
+    return frame.drop(columns="invest")
+
+
+@pytest.fixture(scope="module")
+def macrodata():
+    # Real data: statsmodels' bundled US macroeconomic quarterly series (1959-2009).
+    frame = sm.datasets.macrodata.load_pandas().data.copy()
+    frame["quarter_start"] = pd.PeriodIndex.from_fields(
+        year=frame["year"].astype(int), quarter=frame["quarter"].astype(int), freq="Q"
+    ).to_timestamp()
+    frame["unemp_up"] = (frame["unemp"].diff().fillna(0) > 0).astype(int)
+    return frame.drop(columns=["year", "quarter", "unemp"])
+
+
+def test_grunfeld_random_split_overlaps(grunfeld):
+    rng = np.random.default_rng(0)
+    frame = grunfeld.assign(split=np.where(rng.random(len(grunfeld)) < 0.75, "train", "test"))
+    result = fa.audit(frame, target="high_invest", split_column="split", label_time="year",
+                      entity="firm", probes=["timing"])
+    found = _overlap(result)
+    assert found["level"] in HIGH and found["value"] > 0.5
+    assert found["detail"]["entity_share_before_own_training_end"] > 0.5
+
+
+def test_grunfeld_forward_split_is_clean(grunfeld):
+    frame = grunfeld.assign(split=np.where(grunfeld["year"] <= 1950, "train", "test"))
+    result = fa.audit(frame, target="high_invest", split_column="split", label_time="year",
+                      probes=["timing"])
+    found = _overlap(result)
+    assert found["level"] == "none" and found["value"] == 0.0
+    assert found["detail"]["train_period"][1].startswith("1950")
+
+
+def test_macrodata_random_and_forward_splits(macrodata):
+    rng = np.random.default_rng(1)
+    random_split = macrodata.assign(split=np.where(rng.random(len(macrodata)) < 0.8, "train",
+                                                   "test"))
+    result = fa.audit(random_split, target="unemp_up", split_column="split",
+                      label_time="quarter_start", probes=["timing"])
+    assert _overlap(result)["level"] in HIGH
+    forward = macrodata.assign(split=np.where(macrodata["quarter_start"] < "2000-01-01", "train",
+                                              "test"))
+    result = fa.audit(forward, target="unemp_up", split_column="split",
+                      label_time="quarter_start", probes=["timing"])
+    assert _overlap(result)["level"] == "none"
+
+
+def test_lag_arithmetic_matches_pandas_across_daylight_saving():
+    # Europe/Berlin moves to summer time on 2025-03-30: one calendar day there is 23 hours.
+    cut = pd.Series(pd.to_datetime(["2025-03-29 12:00", "2025-03-29 12:00", "2025-10-25 12:00",
+                                    "2025-01-10 08:00"]).tz_localize("Europe/Berlin"))
+    seen = pd.Series(pd.to_datetime(["2025-03-30 12:00", "2025-03-29 11:00", "2025-10-26 12:00",
+                                     "2025-01-13 08:00"]).tz_localize("Europe/Berlin"))
+    frame = pd.DataFrame({"cut": cut, "seen": seen, "y": [0, 1, 0, 1], "x": [1.0, 2, 3, 4]})
+    table = build_table(frame, target="y", cutoff_time="cut")
+    settings = Settings(time_tolerance="0d", share_tolerance=0.0)
+    evidence, _ = Timing().run(table, settings)
+    lags = evidence[0].detail["lag_days_vs_cutoff"]
+    reference = ((seen - cut) / pd.Timedelta(days=1)).to_numpy()   # reference: pandas arithmetic
+    assert lags["q00"] == pytest.approx(reference.min())
+    assert lags["q100"] == pytest.approx(reference.max())
+    assert reference[0] == pytest.approx(23 / 24) and reference[2] == pytest.approx(25 / 24)
+    assert evidence[0].detail["rows_after_cutoff"] == int((reference > 0).sum())
+
+
+def test_zone_aware_value_against_naive_cutoff_is_compared_in_utc():
+    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-06-01 10:00"] * 4),
+                          "seen": pd.to_datetime(["2025-06-01 11:30"] * 4).tz_localize(
+                              "Europe/Berlin"), "y": [0, 1, 0, 1]})
+    table = build_table(frame, target="y", cutoff_time="cut")
+    evidence, _ = Timing().run(table, Settings(time_tolerance="0d"))
+    # 11:30 in Berlin (UTC+2 in June) is 09:30 UTC: before the 10:00 UTC cutoff
+    assert evidence[0].detail["lag_days_vs_cutoff"]["q50"] == pytest.approx(-0.5 / 24)
+
+
+def test_duration_known_at_against_a_horizon():
+    n = 200
+    label = pd.Timestamp("2025-01-01") + pd.to_timedelta(np.arange(n), "D")
+    frame = pd.DataFrame({"decided": label, "late_fee": np.arange(n) % 7,
+                          "score": 1.0 * np.arange(n), "y": np.arange(n) % 2})
+    d = parse_dictionary("column,known_at\nlate_fee,-5d\nscore,-40d\n", source="d.csv")
+    result = fa.audit(frame, target="y", label_time="decided", horizon="30d", dictionary=d,
+                      probes=["timing"])
+    levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
+    assert levels["late_fee"] in HIGH and levels["score"] == "none"
+    ev = result.columns.set_index("column").loc["late_fee", "evidence"][0]
+    assert "d.csv" in ev["detail"]["basis"] and "-5d" in ev["detail"]["basis"]
+
+
+def test_missing_times_are_counted_not_dropped():
+    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-01-01"] * 6),
+                          "seen": pd.to_datetime(["2025-02-01", None, None, "2024-12-01",
+                                                  "2024-12-02", "2024-12-03"]),
+                          "y": [0, 1] * 3})
+    evidence, _ = Timing().run(build_table(frame, target="y", cutoff_time="cut"), Settings())
+    detail = evidence[0].detail
+    assert detail["rows_missing_time"] == 2 and detail["rows_checked"] == 4
+    assert detail["share_after_cutoff"] == pytest.approx(0.25)
+
+
+def test_small_shares_and_small_lags_stay_within_tolerance():
+    n = 1000
+    cut = pd.Timestamp("2025-01-01") + pd.to_timedelta(np.arange(n), "D")
+    seen = cut + pd.Timedelta(hours=20)              # same-day recording: within 1 day
+    seen_rare = cut - pd.Timedelta(days=3)
+    seen_rare = seen_rare.where(np.arange(n) % 200 != 0, cut + pd.Timedelta(days=9))  # 0.5 %
+    frame = pd.DataFrame({"cut": cut, "seen": seen, "rare": seen_rare, "y": np.arange(n) % 2})
+    result = fa.audit(frame, target="y", cutoff_time="cut", probes=["timing"])
+    levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
+    assert levels["seen"] == "none" and levels["rare"] == "none"
+
+
+def test_unparseable_feature_dates_are_skipped_with_the_column_named():
+    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-01-01"] * 20),
+                          "noted": ["2025-01-02T10:00:00+01:00"] * 10 + ["2025-01-02T10:00"] * 10,
+                          "y": [0, 1] * 10})
+    _, skipped = Timing().run(build_table(frame, target="y", cutoff_time="cut"), Settings())
+    assert any(s.column == "noted" and "'noted'" in s.reason for s in skipped)
+
+
+def test_no_time_information_is_skipped_with_a_reason():
+    frame = pd.DataFrame({"x": np.arange(20.0), "y": [0, 1] * 10})
+    result = fa.audit(frame, target="y", probes=["timing"])
+    assert result.document["skipped"][0]["probe"] == "timing"
+    assert "label time" in result.document["skipped"][0]["reason"]
+
+
+def test_demo_after_the_fact_columns_are_found_and_honest_dates_are_not():
+    table, dictionary = demo_paths()
+    result = fa.audit(table, dictionary=dictionary, probes=["timing"])
+    levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
+    for leak in ("reminders_sent", "in_collections", "last_contact_at"):
+        assert levels[leak] in HIGH, leak
+    for honest in ("due_date", "customer_since", "customer_tenure_days", "prior_late_share"):
+        assert levels[honest] == "none", honest
+    assert _overlap(result)["level"] in HIGH
+
+
+def test_demo_without_dictionary_still_flags_the_late_timestamp():
+    table, _ = demo_paths()
+    result = fa.audit(table, target="late_over_30d", split_column="split",
+                      cutoff_time="issued_at", probes=["timing"])
+    levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
+    assert levels["last_contact_at"] in HIGH
+    assert levels["customer_since"] == "none"
