@@ -1,0 +1,71 @@
+"""Adversarial validation on real bundled data: random splits, a split by a feature, and KS."""
+
+import numpy as np
+import pytest
+from scipy.stats import ks_2samp
+
+import featureaudit as fa
+
+
+def _finding(result):
+    found = [f for f in result.document["dataset_findings"] if f["kind"] == "split_shift"]
+    return found
+
+
+def test_random_split_of_breast_cancer_is_near_chance(breast_cancer):
+    # Real data: scikit-learn's breast-cancer set, split at random.
+    rng = np.random.default_rng(0)
+    frame = breast_cancer.assign(split=np.where(rng.random(len(breast_cancer)) < 0.3, "test",
+                                                "train"))
+    found = _finding(fa.audit(frame, target="malignant", split_column="split",
+                              probes=["separability"]))[0]
+    assert 0.4 <= found["value"] <= 0.6
+    assert found["level"] in ("none", "low")
+
+
+def test_split_by_a_feature_quantile_is_separable_and_named(breast_cancer):
+    cut = breast_cancer["mean texture"].quantile(0.7)
+    frame = breast_cancer.assign(split=np.where(breast_cancer["mean texture"] > cut, "test",
+                                                "train"))
+    found = _finding(fa.audit(frame, target="malignant", split_column="split",
+                              probes=["separability"]))[0]
+    assert found["value"] > 0.9 and found["level"] in ("high", "critical")
+    top = found["detail"]["drivers"][0]["column"]
+    assert top == "mean texture"
+    assert found["detail"]["auc_without_top"] < found["value"]
+    # reference: scipy.stats.ks_2samp — the top driver differs most between the sides
+    train, test = frame[frame.split == "train"], frame[frame.split == "test"]
+    ks = {c: ks_2samp(train[c], test[c]).statistic for c in breast_cancer.columns
+          if c != "malignant"}
+    assert max(ks, key=ks.get) == top
+
+
+def test_identifier_that_separates_is_named(breast_cancer):
+    frame = breast_cancer.copy()
+    frame.insert(0, "record_id", np.arange(len(frame)))
+    frame["split"] = np.where(frame["record_id"] >= 450, "test", "train")
+    found = _finding(fa.audit(frame, split_column="split", probes=["separability"]))[0]
+    assert "record_id is an identifier" in found["summary"]
+
+
+def test_without_a_split_the_random_and_time_splits_are_simulated(breast_cancer):
+    frame = breast_cancer.copy()
+    frame["decided"] = np.datetime64("2024-01-01") + np.argsort(
+        np.argsort(frame["mean radius"].to_numpy())).astype("timedelta64[D]")
+    found = _finding(fa.audit(frame, target="malignant", label_time="decided",
+                              probes=["separability"]))
+    kinds = {f["detail"]["simulated_split"]: f for f in found}
+    assert set(kinds) == {"random", "time"}
+    assert 0.4 <= kinds["random"]["value"] <= 0.6 and kinds["random"]["level"] == "none"
+    assert kinds["time"]["value"] > 0.8 and kinds["time"]["level"] in ("none", "low")
+
+
+@pytest.mark.parametrize("seed", [0, 1])
+def test_sample_size_setting_is_honoured_and_reported(breast_cancer, seed):
+    from featureaudit.settings import Settings
+    rng = np.random.default_rng(seed)
+    frame = breast_cancer.assign(split=np.where(rng.random(len(breast_cancer)) < 0.3, "test",
+                                                "train"))
+    result = fa.audit(frame, split_column="split", probes=["separability"],
+                      settings=Settings(seed=seed, reference_rows=300))
+    assert _finding(result)[0]["detail"]["sample_rows"] == pytest.approx(300, abs=2)

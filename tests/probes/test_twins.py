@@ -1,0 +1,117 @@
+"""The twins probe: copies and shared entities across the split, on real bundled data."""
+
+import numpy as np
+import pandas as pd
+import pytest
+from sklearn.datasets import load_digits, load_iris
+
+import featureaudit as fa
+from featureaudit.demo import demo_paths
+from featureaudit.hashing import row_hashes
+
+HIGH = ("high", "critical")
+
+
+def _finding(result, kind):
+    found = [f for f in result.document["dataset_findings"] if f["kind"] == kind]
+    assert len(found) == 1, found
+    return found[0]
+
+
+@pytest.fixture(scope="module")
+def digits():
+    # Real data: scikit-learn's bundled handwritten digits (8x8 pixel counts), no duplicates.
+    data = load_digits(as_frame=True)
+    frame = data.data.copy()
+    frame["digit"] = data.target.to_numpy()
+    return frame
+
+
+def _plant_copies(frame, target, share, noise, seed, heldout_share=0.3):
+    rng = np.random.default_rng(seed)
+    frame = frame.sample(frac=1, random_state=seed).reset_index(drop=True)
+    split = np.where(rng.random(len(frame)) < heldout_share, "test", "train")
+    held, train = np.flatnonzero(split == "test"), np.flatnonzero(split == "train")
+    k = int(round(share * held.size))
+    dst = rng.choice(held, k, replace=False)
+    src = rng.choice(train, k, replace=False)
+    features = [c for c in frame.columns if c != target]
+    copies = frame.loc[src, features + [target]].to_numpy(dtype=float)
+    if noise:
+        sd = frame[features].std().to_numpy()
+        copies[:, :-1] += rng.normal(0, 0.01, copies[:, :-1].shape) * sd
+    frame.loc[dst, features + [target]] = copies
+    return frame.assign(split=split), k
+
+
+def test_exact_duplicates_agree_with_pandas_on_iris():
+    # Real data: scikit-learn's iris; the reference count is pandas.DataFrame.duplicated.
+    frame = load_iris(as_frame=True).data
+    result = fa.audit(frame, probes=["twins"])
+    found = _finding(result, "duplicate_rows_across_split")
+    reference = int(frame.duplicated(keep=False).sum())  # reference: pandas duplicated
+    assert reference >= 2
+    assert found["detail"]["rows_with_copy"] == reference
+    assert found["detail"]["extra_copies"] == int(frame.duplicated().sum())
+
+
+def test_row_hashes_match_pandas_duplicates_with_missing_values_and_text():
+    rng = np.random.default_rng(0)
+    frame = pd.DataFrame({"a": rng.integers(0, 3, 500).astype(float),
+                          "b": rng.choice(["x", "y", None], 500),
+                          "c": rng.integers(0, 2, 500)})
+    frame.loc[::7, "a"] = np.nan
+    dup = pd.Series(row_hashes(frame, ["a", "b", "c"])).duplicated(keep=False).to_numpy()
+    assert (dup == frame.duplicated(keep=False).to_numpy()).all()  # reference: pandas
+
+
+@pytest.mark.parametrize("share", [0.02, 0.05, 0.15])
+@pytest.mark.parametrize("noise", [False, True])
+@pytest.mark.parametrize("dataset", ["breast_cancer", "digits"])
+def test_planted_copies_are_found_at_high(request, dataset, share, noise):
+    frame = request.getfixturevalue(dataset)
+    target = "malignant" if dataset == "breast_cancer" else "digit"
+    planted, k = _plant_copies(frame, target, share, noise, seed=1,
+                               heldout_share=0.5 if dataset == "breast_cancer" else 0.3)
+    result = fa.audit(planted, target=target, split_column="split", train_value="train",
+                      probes=["twins"])
+    found = _finding(result, "duplicate_rows_across_split")
+    assert found["level"] in HIGH, found["summary"]
+    counted = found["detail"]["heldout_rows_with_exact_twin"] + \
+        found["detail"]["heldout_rows_with_near_twin"]
+    assert counted >= 0.9 * k
+    if not noise:
+        assert found["detail"]["label_agreement"] == 1.0
+
+
+@pytest.mark.parametrize("dataset", ["breast_cancer", "digits", "wine", "diabetes"])
+def test_clean_random_splits_are_not_flagged(request, dataset):
+    frame = request.getfixturevalue(dataset)
+    rng = np.random.default_rng(2)
+    frame = frame.assign(split=np.where(rng.random(len(frame)) < 0.25, "test", "train"))
+    result = fa.audit(frame, split_column="split", probes=["twins"])
+    found = _finding(result, "duplicate_rows_across_split")
+    assert found["level"] == "none", found["summary"]
+    assert found["detail"]["calibration"]["threshold"] > 0
+
+
+def test_shared_entities_on_a_random_split():
+    rng = np.random.default_rng(3)
+    n = 2000
+    frame = pd.DataFrame({"patient": rng.integers(0, 150, n), "x": rng.normal(size=n),
+                          "split": np.where(rng.random(n) < 0.2, "test", "train")})
+    result = fa.audit(frame, split_column="split", entity="patient", probes=["twins"])
+    found = _finding(result, "shared_entities_across_split")
+    assert found["level"] == "critical" and found["detail"]["share_entities"] > 0.9
+    by_patient = frame.assign(split=np.where(frame["patient"] < 30, "test", "train"))
+    clean = fa.audit(by_patient, split_column="split", entity="patient", probes=["twins"])
+    assert _finding(clean, "shared_entities_across_split")["level"] == "none"
+
+
+def test_demo_reissued_invoices_and_shared_customers_are_found():
+    table, dictionary = demo_paths()
+    result = fa.audit(table, dictionary=dictionary, probes=["twins"])
+    dup = _finding(result, "duplicate_rows_across_split")
+    assert dup["level"] in HIGH and dup["detail"]["label_agreement"] > 0.95
+    assert dup["detail"]["examples"] and len(dup["detail"]["examples"][0]) == 2
+    assert _finding(result, "shared_entities_across_split")["level"] in HIGH
