@@ -90,7 +90,8 @@ def plant(kind: str, frame: pd.DataFrame, target: str, rng: np.random.Generator
     out = frame.copy()
     if kind == "noisy_copy":
         if numeric:
-            out["leak"] = y + rng.normal(0, 0.3 * y.std(), len(y))
+            robust_sd = float(np.subtract(*np.percentile(y, [75, 25]))) / 1.349
+            out["leak"] = y + rng.normal(0, 0.3 * robust_sd, len(y))
         else:
             k = _classes(frame[target])
             codes = pd.factorize(y, sort=True)[0]

@@ -1,5 +1,8 @@
 """Out-of-fold binned encoding: a row is scored by its bin's target statistics in the other folds.
 
+A numeric target is scored on its rank-based normal scores, so one extreme value cannot
+decide a column's R²; the bins still show the target's own means.
+
 All the work is one ``bincount`` per column into (fold, bin, class) cells; scores, AUCs,
 R² and Spearman's rho then follow exactly from the cells, never from a per-row model.
 """
@@ -9,6 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.special import ndtri
 from scipy.stats import rankdata
 
 from featureaudit.stats import (
@@ -28,7 +32,7 @@ class Target:
     """The labelled rows' target, prepared once: folds, classes or ranks."""
 
     task: str
-    y: np.ndarray            # class codes (int) or floats, labelled rows only
+    y: np.ndarray            # class codes, or a numeric target's normal scores (labelled rows)
     rows: np.ndarray         # positions of the labelled rows in the table
     fold: np.ndarray         # fold id per labelled row
     n_folds: int
@@ -37,6 +41,7 @@ class Target:
     ranks: np.ndarray | None  # average ranks of y (numeric task)
     y_bins: np.ndarray        # class codes, or decile codes of a numeric target
     n_y_bins: int
+    raw: np.ndarray | None = None  # a numeric target as given, for the per-bin means shown
 
 
 def make_target(y_all: np.ndarray, labelled: np.ndarray, task: str, n_classes: int,
@@ -51,10 +56,12 @@ def make_target(y_all: np.ndarray, labelled: np.ndarray, task: str, n_classes: i
         blocks = np.arange(len(rows)) // folds
         perm = np.lexsort((rng.random(len(rows)), blocks))  # shuffle within blocks of `folds`
         fold[order[perm]] = np.arange(len(rows)) % folds
-        prior = np.array([float(np.mean(y))])
         ranks = rankdata(y)
+        scores = ndtri((ranks - 0.5) / len(rows))     # robust to heavy tails and outliers
+        prior = np.array([float(np.mean(scores))])
         deciles = np.minimum((ranks - 1) * 10 // len(rows), 9).astype(np.int64)
-        return Target(task, y.astype(np.float64), rows, fold, folds, 1, prior, ranks, deciles, 10)
+        return Target(task, scores, rows, fold, folds, 1, prior, ranks, deciles, 10,
+                      raw=y.astype(np.float64))
     for k in range(n_classes):
         idx = np.flatnonzero(y == k)
         fold[rng.permutation(idx)] = np.arange(idx.size) % folds
@@ -152,8 +159,9 @@ def _numeric(codes: np.ndarray, F: int, B: int, t: Target) -> CellScore:
         folds = 1 - sse.sum(1) / sst_f
     rho = _spearman_cells(codes, pred, n, t, F, B)
     bin_rows = n.sum(0)
+    raw = t.raw if t.raw is not None else t.y
     with np.errstate(invalid="ignore", divide="ignore"):
-        bin_mean = s.sum(0) / bin_rows
+        bin_mean = np.bincount(codes, weights=raw, minlength=B) / bin_rows
     joint = np.bincount(codes * t.n_y_bins + t.y_bins, minlength=B * t.n_y_bins)
     return CellScore("oof_r2", r2, max(0.0, r2), folds,
                      float(np.nanstd(folds, ddof=1) / np.sqrt(F)), 1.0 / np.sqrt(len(t.y)),

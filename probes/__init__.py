@@ -1,3 +1,3 @@
 """The probes. Importing this package registers every finished probe."""
 
-from featureaudit.probes import separability, solo, timing, twins  # noqa: F401
+from featureaudit.probes import fitscope, separability, solo, timing, twins  # noqa: F401

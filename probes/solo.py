@@ -97,12 +97,14 @@ class Solo(Probe):
 
 
 def _power_text(score: CellScore) -> str:
-    label = {"oof_auc": "AUC", "oof_macro_auc": "macro AUC", "oof_r2": "R²"}[score.statistic]
+    label = {"oof_auc": "AUC", "oof_macro_auc": "macro AUC",
+             "oof_r2": "R² (target's normal scores)"}[score.statistic]
     return f"out-of-fold {label} {score.value:.3f}"
 
 
 def _bin_detail(score: CellScore, b: Bins, t: Target) -> dict:
-    prior = float(t.prior[0] if t.task == "numeric" else t.prior[-1] if t.n_classes == 2 else 0)
+    prior = float(np.mean(t.raw) if t.raw is not None else t.prior[-1] if t.n_classes == 2
+                  else 0)
     rows = score.bin_rows
     stat = np.nan_to_num(score.bin_stat, nan=prior)
     weight = rows * (stat - prior) ** 2 if t.n_classes <= 2 else rows * stat

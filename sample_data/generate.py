@@ -68,7 +68,7 @@ def generate(n_invoices: int = 20_000, n_customers: int = 900, seed: int = 7) ->
     frame["prior_late_share"], frame["open_balance_at_issue"] = _history(
         cust, issued, known, settled, late, amount)
     credit = np.round(2000 + 9000 * size[cust] * np.exp(-0.35 * risk[cust])
-                      + rng.normal(0, 800, n_invoices), -2)
+                      + rng.normal(0, 800, n_invoices), -1)
     frame["credit_limit"] = credit
     # --- planted leaks -------------------------------------------------------------
     # recorded after the due date: reminders sent and the collections flag

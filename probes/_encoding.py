@@ -1,0 +1,123 @@
+"""Target encodings among the columns: a number constant within each category of another column
+that equals the category's target statistic.
+
+Each candidate pair is compared with scikit-learn's ``TargetEncoder`` at common smoothing
+settings (and plain category means), fitted on all labelled rows versus on the training
+rows. A match with all rows means held-out targets went into training features
+(``fit_on_all_rows``, critical). A match with the training rows fitted in sample means each
+training row's value includes its own target (``target_proxy``, high): scikit-learn warns
+that ``fit(X, y).transform(X)`` on training data leaks, and cross fitting avoids it.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from featureaudit.evidence import Evidence
+from featureaudit.io import numeric_view
+from featureaudit.table import AuditTable
+
+SMOOTHING = ("auto", 0.0, 1.0, 10.0, 20.0)
+MAX_LEVELS = 5000
+MAX_PAIRS = 50
+
+
+def _codes(s: pd.Series) -> tuple[np.ndarray, int] | None:
+    if pd.api.types.is_float_dtype(s.dtype) or pd.api.types.is_datetime64_any_dtype(s.dtype):
+        return None
+    codes, uniques = pd.factorize(s, use_na_sentinel=True)
+    if not 2 <= len(uniques) <= MAX_LEVELS:
+        return None
+    return codes.astype(np.int64), len(uniques)
+
+
+def _constant_within(x: np.ndarray, codes: np.ndarray, k: int) -> np.ndarray | None:
+    """Per-category value of x if x is constant within every category, else None."""
+    ok = (codes >= 0) & np.isfinite(x)
+    if ok.sum() < 2:
+        return None
+    lo = np.full(k, np.inf)
+    hi = np.full(k, -np.inf)
+    np.minimum.at(lo, codes[ok], x[ok])
+    np.maximum.at(hi, codes[ok], x[ok])
+    seen = np.isfinite(lo)
+    if not np.all(lo[seen] == hi[seen]) or np.unique(lo[seen]).size < 2:
+        return None
+    return np.where(seen, lo, np.nan)
+
+
+def _candidates(table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray
+                ) -> list[tuple[str, np.ndarray]]:
+    """Per-category encodings an encoder would produce when fitted on ``rows``."""
+    from sklearn.preprocessing import TargetEncoder
+    y = table.y[rows]
+    cats = codes[rows][:, None]
+    target_type = {"numeric": "continuous", "binary": "binary"}.get(table.task or "",
+                                                                   "multiclass")
+    out = []
+    grid = np.arange(k)[:, None]
+    for smooth in SMOOTHING:
+        enc = TargetEncoder(smooth=smooth, target_type=target_type)   # fit, not fit_transform
+        enc.fit(cats, y)
+        values = enc.transform(grid)
+        for j in range(values.shape[1]):
+            out.append((f"TargetEncoder(smooth={smooth!r})" + (f", class {j}"
+                        if values.shape[1] > 1 else ""), values[:, j]))
+    return out
+
+
+def encoding_evidence(table: AuditTable, train: np.ndarray) -> list[Evidence]:
+    labelled = table.labelled
+    cat_cols = []
+    for name in table.features + table.id_columns:
+        got = _codes(table.frame[name])
+        if got is not None:
+            cat_cols.append((name, *got))
+    evidence: list[Evidence] = []
+    pairs = 0
+    for name in table.features:
+        x = numeric_view(table.frame[name])
+        if x is None or not pd.api.types.is_float_dtype(table.frame[name].dtype):
+            continue
+        n_unique = np.unique(x[np.isfinite(x)]).size
+        for cat, codes, k in cat_cols:
+            if cat == name or n_unique > k or pairs >= MAX_PAIRS:
+                continue
+            per_cat = _constant_within(x, codes, k)
+            if per_cat is None:
+                continue
+            pairs += 1
+            found = _match(table, name, cat, per_cat, codes, k, x, labelled, train)
+            if found is not None:
+                evidence.append(found)
+                break
+    return evidence
+
+
+def _match(table: AuditTable, name: str, cat: str, per_cat: np.ndarray, codes: np.ndarray,
+           k: int, x: np.ndarray, labelled: np.ndarray, train: np.ndarray) -> Evidence | None:
+    seen = np.isfinite(per_cat)
+    scale = np.nanmax(np.abs(per_cat)) or 1.0
+    tol = 1e-6 * scale + 1e-9 if table.frame[name].dtype != np.float32 else 1e-6 * scale
+    fits = {"all rows": labelled & (codes >= 0), "training rows": labelled & train & (codes >= 0)}
+    for fitted_on, rows in fits.items():
+        if rows.sum() < 2:
+            continue
+        for label, enc in _candidates(table, codes, k, rows):
+            gap = float(np.max(np.abs(enc[seen] - per_cat[seen])))
+            if gap > tol:
+                continue
+            detail = {"category_column": cat, "encoder": label, "fitted_on": fitted_on,
+                      "categories": int(seen.sum()), "max_abs_gap": gap}
+            if fitted_on == "all rows":
+                return Evidence("fitscope", "fit_on_all_rows", "max_abs_gap_to_all_rows_encoding",
+                                gap, tol, "critical", column=name, severity=0.9, detail=detail,
+                                summary=f"target encoding of {cat!r} fitted with held-out "
+                                        f"targets: equals {label} on all labelled rows")
+            return Evidence("fitscope", "target_proxy", "max_abs_gap_to_in_sample_encoding",
+                            gap, tol, "high", column=name, severity=0.7, detail=detail,
+                            summary=f"target encoding of {cat!r} fitted in sample: each "
+                                    "training row's value includes its own target; encode "
+                                    "out of fold (cross fitting)")
+    return None

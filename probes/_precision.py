@@ -1,0 +1,74 @@
+"""How precisely a column's values are stored, so rounding is never taken for evidence.
+
+A value that went through CSV with six significant digits, a float32 array, or a float64
+array each carry a different rounding error; the tolerances of the fingerprint tests in
+``fitscope`` are built from this per-value error bound.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["value_error", "mean_tolerance", "sd_tolerance"]
+
+_EPS64 = np.finfo(np.float64).eps
+_EPS32 = float(np.finfo(np.float32).eps)
+
+
+def value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> np.ndarray:
+    """Half the rounding quantum of each value: the largest error its storage allows."""
+    finite = values[np.isfinite(values)]
+    if s.dtype == np.float32:
+        return 0.5 * _EPS32 * np.abs(values) + 1e-45
+    probe = finite[:: max(1, finite.size // sample)]
+    sig = _significant_digits(probe)
+    dec = _decimals(probe)
+    mag = np.floor(np.log10(np.where(values == 0, 1.0, np.abs(values))))
+    err_sig = 0.5 * 10.0 ** (mag - sig + 1) if sig is not None else np.full(values.shape, np.inf)
+    err_dec = np.full(values.shape, 0.5 * 10.0 ** -dec) if dec is not None else \
+        np.full(values.shape, np.inf)
+    # Values that fit both spellings may have gone through either rounding: take the larger.
+    candidates = [e for e in (err_sig, err_dec) if np.all(np.isfinite(e))]
+    floor = 4 * _EPS64 * np.abs(values) + 1e-300
+    if not candidates:
+        return floor
+    return np.maximum(np.maximum.reduce(candidates), floor)
+
+
+def _significant_digits(values: np.ndarray) -> int | None:
+    """The fewest significant digits that reproduce every value, if fewer than 15."""
+    if values.size == 0:
+        return None
+    for digits in range(1, 15):
+        if all(float(f"{v:.{digits}g}") == v for v in values):
+            return digits
+    return None
+
+
+def _decimals(values: np.ndarray) -> int | None:
+    """The fewest decimals that reproduce every value, if fewer than 12."""
+    if values.size == 0:
+        return None
+    for k in range(0, 12):
+        if np.all(np.round(values, k) == values):
+            return k
+    return None
+
+
+def mean_tolerance(values: np.ndarray, err: np.ndarray) -> float:
+    """How far a mean of exactly 0 can move through storage rounding (5 SDs of uniform error)."""
+    n = values.size
+    if n == 0:
+        return np.inf
+    spread = np.sqrt(np.sum(err ** 2) / 3.0) / n
+    return float(5 * spread + 16 * _EPS64 * np.max(np.abs(values)))
+
+
+def sd_tolerance(values: np.ndarray, err: np.ndarray) -> float:
+    """How far a standard deviation of exactly 1 can move through storage rounding."""
+    n = values.size
+    if n == 0:
+        return np.inf
+    spread = np.sqrt(np.sum((values * err) ** 2) / 3.0) / n
+    return float(5 * spread + 16 * _EPS64 * np.max(np.abs(values)) + 1.0 / max(n, 1) ** 2)

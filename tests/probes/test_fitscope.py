@@ -1,0 +1,212 @@
+"""The fitscope probe against preprocessing done by scikit-learn itself (and numpy clipping),
+fitted on all rows versus on training rows, on two real bundled datasets, in float64, float32
+and through a CSV round trip with six decimals."""
+
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+import statsmodels.api as sm
+from sklearn.datasets import load_breast_cancer
+from sklearn.impute import SimpleImputer
+from sklearn.preprocessing import MinMaxScaler, QuantileTransformer, StandardScaler, TargetEncoder
+
+import featureaudit as fa
+from featureaudit.demo import demo_paths
+
+HIGH = ("high", "critical")
+
+
+def _breast_cancer():
+    # Real data: scikit-learn's bundled breast-cancer set.
+    data = load_breast_cancer(as_frame=True)
+    frame = data.data[["mean radius", "mean texture", "mean smoothness", "worst area"]].copy()
+    frame["y"] = 1 - data.target.to_numpy()
+    return frame, "mean radius", "mean texture"
+
+
+def _star98():
+    # Real data: statsmodels' bundled star98 school data (303 districts).
+    frame = sm.datasets.star98.load_pandas().data[["LOWINC", "PERASIAN", "PTRATIO",
+                                                   "AVSALK"]].copy()
+    frame["y"] = (sm.datasets.star98.load_pandas().data["NBELOW"] > 200).astype(int)
+    return frame, "LOWINC", "PTRATIO"
+
+
+DATASETS = {"breast_cancer": _breast_cancer, "star98": _star98}
+
+
+def _encoder():
+    """A seeded TargetEncoder on any supported scikit-learn (cv splitters arrived in 1.9)."""
+    import sklearn
+    from sklearn.model_selection import StratifiedKFold
+    if tuple(int(p) for p in sklearn.__version__.split(".")[:2]) >= (1, 9):
+        return TargetEncoder(target_type="binary",
+                             cv=StratifiedKFold(5, shuffle=True, random_state=0))
+    return TargetEncoder(target_type="binary", random_state=0)
+
+
+def _split(frame, column, seed, hold_extremes):
+    rng = np.random.default_rng(seed)
+    held = rng.random(len(frame)) < 0.25
+    if hold_extremes:          # the fingerprint of a min-max or most-extreme fit needs it
+        held[int(frame[column].idxmax())] = True
+    return held
+
+
+def _prepare(variant, frame, column, other, held, leaky, clip_at=1.0):
+    """The column as the data team would have made it; fitted on all rows if leaky."""
+    x = frame[[column]].to_numpy()
+    fit_rows = np.ones(len(frame), bool) if leaky else ~held
+    out = frame.copy()
+    if variant in ("standard", "minmax", "quantile"):
+        model = {"standard": StandardScaler(), "minmax": MinMaxScaler(),
+                 "quantile": QuantileTransformer(n_quantiles=1000, random_state=0)}[variant]
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            out[column] = model.fit(x[fit_rows]).transform(x)[:, 0]
+    elif variant in ("impute_mean", "impute_median"):
+        rng = np.random.default_rng(9)
+        gaps = x.copy()
+        gaps[rng.random(len(frame)) < 0.12] = np.nan
+        imputer = SimpleImputer(strategy=variant.split("_")[1])
+        out[column] = imputer.fit(gaps[fit_rows]).transform(gaps)[:, 0]
+    elif variant == "clip":
+        lo, hi = np.percentile(x[fit_rows, 0], [clip_at, 100 - clip_at])
+        out[column] = np.clip(x[:, 0], lo, hi)
+    elif variant == "target_encoding":
+        cats = pd.qcut(frame[other], 12, labels=False).to_numpy()[:, None]
+        out["band"] = pd.Categorical([f"b{c}" for c in cats[:, 0]])
+        encoder = _encoder()
+        y = frame["y"].to_numpy()
+        if leaky:
+            out[column] = encoder.fit(cats, y).transform(cats)[:, 0]
+        else:   # cross-fitted on training rows, applied to held-out rows
+            enc = np.empty(len(frame))
+            enc[~held] = encoder.fit_transform(cats[~held], y[~held])[:, 0]
+            enc[held] = encoder.transform(cats[held])[:, 0]
+            out[column] = enc
+    return out
+
+
+def _store(frame, column, dtype, tmp_path):
+    if dtype == "float32":
+        return frame.assign(**{column: frame[column].astype(np.float32)})
+    if dtype == "csv":
+        path = tmp_path / "t.csv"
+        frame.to_csv(path, index=False, float_format="%.6f")
+        return str(path)
+    return frame
+
+
+def _decimals(values):
+    """Decimals the raw column is stored with (the data's own precision)."""
+    return next(k for k in range(12) if np.allclose(np.round(values, k), values, atol=1e-12))
+
+
+def _piles_fit_both(x, held):
+    """True when each pile's training count is within one row of what clipping the training
+    rows at one of the usual levels (0.5, 1, 2.5, 5 %) would leave (numpy's percentile)."""
+    n_tr = int((~held).sum())
+    expected = [n_tr - 1 - int(np.floor((1 - p) * (n_tr - 1))) for p in (.005, .01, .025, .05)]
+    return all(min(abs(int(((x == v) & ~held).sum()) - e) for e in expected) <= 1
+               for v in (x.max(), x.min()))
+
+
+VARIANTS = ["standard", "minmax", "impute_mean", "impute_median", "clip", "quantile",
+            "target_encoding"]
+
+
+@pytest.mark.parametrize("dataset", list(DATASETS))
+@pytest.mark.parametrize("variant", VARIANTS)
+@pytest.mark.parametrize("dtype", ["float64", "float32", "csv"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_fingerprints(dataset, variant, dtype, leaky, tmp_path):
+    frame, column, other = DATASETS[dataset]()
+    held = _split(frame, column, seed=4, hold_extremes=variant in ("minmax", "clip"))
+    prepared = _prepare(variant, frame, column, other, held, leaky)
+    prepared["split"] = np.where(held, "test", "train")
+    table = _store(prepared, column, dtype, tmp_path)
+    result = fa.audit(table, target="y", split_column="split", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    found = [e for e in row["evidence"] if e["probe"] == "fitscope"]
+    twin = _prepare(variant, frame, column, other, held, not leaky)[column].to_numpy()
+    quantum = 10.0 ** -_decimals(frame[column].to_numpy())
+    same = np.allclose(twin, prepared[column].to_numpy(), rtol=0, atol=2 * quantum,
+                       equal_nan=True)
+    if leaky and variant == "clip" and _piles_fit_both(prepared[column].to_numpy(), held):
+        # numpy's clipping leaves piles whose sizes a training-row fit would also leave
+        assert row["level"] == "none" and "cannot tell" in row["summary"]
+    elif leaky and same:
+        # The training rows alone give the same fit to within the column's stored precision
+        # (its decimals): no data can tell the two apart, and the leak changes nothing.
+        assert row["level"] == "none"
+    elif leaky:
+        assert row["level"] in HIGH, (row["summary"], found)
+        assert found[0]["kind"] == "fit_on_all_rows"
+    else:
+        assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+def test_in_sample_target_encoding_is_a_target_proxy():
+    frame, column, other = _breast_cancer()
+    held = _split(frame, column, seed=1, hold_extremes=False)
+    cats = pd.qcut(frame[other], 10, labels=False).to_numpy()[:, None]
+    enc = _encoder().fit(cats[~held], frame["y"].to_numpy()[~held])
+    frame = frame.assign(**{column: enc.transform(cats)[:, 0],
+                            "band": pd.Categorical([f"b{c}" for c in cats[:, 0]]),
+                            "split": np.where(held, "test", "train")})
+    result = fa.audit(frame, target="y", split_column="split", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    assert row["level"] in HIGH and "target_proxy" in row["kinds"]
+
+
+def test_tiny_heldout_share_cannot_tell():
+    frame, column, _ = _breast_cancer()
+    held = np.zeros(len(frame), bool)
+    held[:3] = True
+    frame[column] = StandardScaler().fit_transform(frame[[column]])[:, 0]
+    frame["split"] = np.where(held, "test", "train")
+    result = fa.audit(frame, target="y", split_column="split", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    assert row["level"] == "none"
+    assert "cannot tell" in row["evidence"][0]["summary"]
+
+
+def test_without_a_split_it_is_skipped_and_lists_what_looks_preprocessed():
+    frame, column, _ = _breast_cancer()
+    frame[column] = StandardScaler().fit_transform(frame[[column]])[:, 0]
+    result = fa.audit(frame, target="y", probes=["fitscope"])
+    assert result.document["skipped"][0]["probe"] == "fitscope"
+    row = result.columns.set_index("column").loc[column]
+    assert row["level"] == "none" and "looks standardised" in row["evidence"][0]["summary"]
+
+
+def test_demo_standardised_amount_and_imputed_credit_limit():
+    table, dictionary = demo_paths()
+    result = fa.audit(table, dictionary=dictionary, probes=["fitscope"])
+    levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
+    assert levels["amount_scaled"] in HIGH and levels["credit_limit"] in HIGH
+    assert levels["amount"] == "none" and levels["prior_late_share"] == "none"
+
+
+@pytest.mark.parametrize("dataset", list(DATASETS))
+def test_capping_is_found_when_the_piles_can_tell(dataset):
+    # Small piles often fit both hypotheses; clip at 5 % and, among the first seeds, take
+    # splits whose piles separate them (by numpy's percentile arithmetic) and require the
+    # probe to see it.
+    frame, column, other = DATASETS[dataset]()
+    tested = 0
+    for seed in range(40):
+        held = _split(frame, column, seed=seed, hold_extremes=True)
+        leaky = _prepare("clip", frame, column, other, held, True, clip_at=5.0)
+        if _piles_fit_both(leaky[column].to_numpy(), held):
+            continue
+        leaky["split"] = np.where(held, "test", "train")
+        result = fa.audit(leaky, target="y", split_column="split", probes=["fitscope"])
+        assert result.columns.set_index("column").loc[column, "level"] in HIGH, seed
+        tested += 1
+        if tested == 3:
+            break
+    assert tested == 3
