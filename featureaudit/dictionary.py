@@ -144,10 +144,12 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
         return "split"
     if pd.api.types.is_datetime64_any_dtype(s.dtype):
         return "feature"
-    n = int(s.notna().sum())
-    unique_share = s.nunique(dropna=True) / n if n else 0.0
     is_integer_or_text = pd.api.types.is_integer_dtype(s.dtype) or not (
         pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype))
+    if not is_integer_or_text:
+        return "feature"          # floats, booleans: never identifiers
+    n = int(s.notna().sum())
+    unique_share = s.nunique(dropna=True) / n if n else 0.0
     id_name = (low == "id" or low.endswith(("_id", "_key", "_no", "_number"))
                or name.endswith(("Id", "ID")))
     if is_integer_or_text and id_name:

@@ -26,10 +26,12 @@ def column_codes(s: pd.Series) -> np.ndarray:
         bits = v.view(np.uint64).copy()
         bits[np.isnan(values)] = _NAN
         return bits
-    obj = s.astype(object).where(s.notna(), None).to_numpy()
-    hashed = pd.util.hash_array(np.array([("\x00NA" if x is None else str(x)) for x in obj],
-                                         dtype=object))
-    return hashed.astype(np.uint64)
+    if isinstance(s.dtype, pd.CategoricalDtype):
+        cats = pd.util.hash_array(np.asarray(s.cat.categories.astype(str), dtype=object))
+        table = np.r_[cats, np.uint64(_NAN)].astype(np.uint64)
+        return table[s.cat.codes.to_numpy()]          # code -1 (missing) takes the last entry
+    return pd.util.hash_pandas_object(s.astype(str).where(s.notna(), "\x00NA"),
+                                      index=False).to_numpy().astype(np.uint64)
 
 
 def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:

@@ -67,11 +67,13 @@ def _numeric_bins(values: np.ndarray, n_bins: int, *, sample: int, seed: int, da
         return Bins(codes, ["(missing)"], "values")
     rng = np.random.default_rng(seed)
     pool = present if present.size <= sample else rng.choice(present, sample, replace=False)
-    uniq = np.unique(pool)
     label = _date_label if datetime else _fmt
-    if uniq.size <= n_bins and np.isin(present, uniq).all():
-        codes[finite] = np.searchsorted(uniq, present) + 1
-        return Bins(codes, ["(missing)"] + [label(u) for u in uniq], "values")
+    few = np.unique(pool[:5000])
+    if few.size <= n_bins:
+        uniq = np.unique(present)
+        if uniq.size <= n_bins:
+            codes[finite] = np.searchsorted(uniq, present) + 1
+            return Bins(codes, ["(missing)"] + [label(u) for u in uniq], "values")
     edges = np.unique(np.quantile(pool, np.linspace(0, 1, n_bins + 1)))
     inner = edges[1:-1]
     codes[finite] = np.searchsorted(inner, present, side="right") + 1

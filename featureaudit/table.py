@@ -138,10 +138,11 @@ def build_table(
 
     if chosen["split"] is not None:
         col = chosen["split"]
-        values = frame[col].astype(object).where(frame[col].notna(), None)
-        is_train = np.array([v is not None and str(v) == str(train_value) for v in values])
+        codes, uniques = pd.factorize(frame[col], use_na_sentinel=True)
+        names = np.array([str(u) for u in uniques] + [""], dtype=object)
+        is_train = (codes >= 0) & (names[codes] == str(train_value))
         if not is_train.any():
-            seen = sorted({str(v) for v in values if v is not None})[:10]
+            seen = sorted(str(u) for u in uniques)[:10]
             raise SettingError(f"no row of split column {col!r} equals --train-value "
                                f"{train_value!r}; its values are {seen}. Pass --train-value "
                                "with the value that marks training rows.")
@@ -252,10 +253,12 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
                               "apply; drop --task or pass binary or multiclass.")
         table.y = pd.to_numeric(s, errors="coerce").astype("float64").to_numpy()
     else:
-        labels = s.astype(object).where(s.notna(), None)
-        classes = sorted({str(v) for v in labels if v is not None}, key=_natural)
+        codes, uniques = pd.factorize(s, use_na_sentinel=True)
+        names = [str(u) for u in uniques]
+        classes = sorted(set(names), key=_natural)
         lookup = {c: i for i, c in enumerate(classes)}
-        table.y = np.array([lookup[str(v)] if v is not None else -1 for v in labels], np.int64)
+        remap = np.array([lookup[n] for n in names] + [-1], dtype=np.int64)
+        table.y = remap[codes]          # code -1 (missing) picks the trailing -1
         table.classes = classes
         if table.task == "binary" and len(classes) > 2:
             raise TargetError(f"target column {target!r} has {len(classes)} values, so --task "

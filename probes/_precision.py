@@ -38,10 +38,13 @@ def value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> np.ndar
 
 def _significant_digits(values: np.ndarray) -> int | None:
     """The fewest significant digits that reproduce every value, if fewer than 15."""
-    if values.size == 0:
+    v = values[values != 0]
+    if v.size == 0:
         return None
+    mag = np.floor(np.log10(np.abs(v)))
     for digits in range(1, 15):
-        if all(float(f"{v:.{digits}g}") == v for v in values):
+        scaled = v / 10.0 ** (mag - digits + 1)
+        if np.all(np.abs(scaled - np.round(scaled)) <= 1e-6):
             return digits
     return None
 

@@ -78,13 +78,25 @@ def _check_column(name: str, s: pd.Series, values: np.ndarray, train: np.ndarray
     ok = np.isfinite(values)
     if ok.sum() < 2 * MIN_SIDE or np.unique(values[ok][:1000]).size < 3:
         return []
-    err = value_error(s, values)
+    err = _LazyError(s, values)
     out = []
     for check in (_standardised, _minmax, _imputed, _capped, _quantile):
         found = check(name, values, err, ok, train, split)
         if found is not None:
             out.append(found)
     return out
+
+
+class _LazyError:
+    """Per-value storage error, computed on first use (most columns never need it)."""
+
+    def __init__(self, s: pd.Series, values: np.ndarray) -> None:
+        self._s, self._values, self._err = s, values, None
+
+    def __getitem__(self, key):  # noqa: ANN001, ANN204
+        if self._err is None:
+            self._err = value_error(self._s, self._values)
+        return self._err[key]
 
 
 def _verdict(name: str, what: str, all_exact: bool, train_exact: bool, distinguishable: bool,
@@ -115,6 +127,10 @@ def _moments(v: np.ndarray, e: np.ndarray, ddof: int) -> tuple[float, float, flo
 
 
 def _standardised(name, values, err, ok, train, split):
+    near = [abs(np.mean(values[rows])) <= 1e-3 and abs(np.std(values[rows]) - 1) <= 1e-2
+            for rows in (ok, ok & train)]
+    if not any(near):
+        return None
     v_all, e_all = values[ok], err[ok]
     tr = ok & train
     v_tr, e_tr = values[tr], err[tr]
@@ -142,6 +158,8 @@ def _standardised(name, values, err, ok, train, split):
 def _minmax(name, values, err, ok, train, split):
     v = values[ok]
     lo, hi = float(v.min()), float(v.max())
+    if abs(lo) > 1e-3 or abs(hi - 1) > 1e-3:
+        return None
     tol = 4 * float(err[ok].max())
     if abs(lo) > tol or abs(hi - 1) > tol:
         return None
@@ -159,6 +177,10 @@ def _minmax(name, values, err, ok, train, split):
 
 def _spike(values: np.ndarray, ok: np.ndarray) -> tuple[float, int] | None:
     v = values[ok]
+    probe = v[:: max(1, v.size // 20_000)]
+    _, probe_counts = np.unique(probe, return_counts=True)
+    if probe_counts.max() < max(3, SPIKE_SHARE * probe.size):
+        return None
     uniq, counts = np.unique(v, return_counts=True)
     if uniq.size < 10:
         return None
@@ -230,6 +252,8 @@ def _capped(name, values, err, ok, train, split):
     (or of the training rows) leaves. Each pile must fit its hypothesis within one row; a pile
     that fits both is no evidence, so small piles often cannot tell."""
     v = values[ok]
+    if max(int((v == v.max()).sum()), int((v == v.min()).sum())) < 3:
+        return None
     uniq, counts = np.unique(v, return_counts=True)
     if uniq.size < 10:
         return None
@@ -288,11 +312,14 @@ def _looks_uniform(v: np.ndarray, v_tr: np.ndarray) -> bool:
     return all_exact or train_exact
 
 
+NORMAL_BOUND = 5.199337582605575   # scikit-learn's normal output clips at the 1e-7 quantile
+
+
 def _quantile(name, values, err, ok, train, split):
     v, v_tr = values[ok], values[ok & train]
     if v.min() >= 0 and v.max() <= 1:
         u, u_tr, what = v, v_tr, "rank- or quantile-transformed to uniform"
-    elif abs(np.mean(v)) < 0.1 and abs(np.std(v) - 1) < 0.1:
+    elif min(abs(v.min() + NORMAL_BOUND), abs(v.max() - NORMAL_BOUND)) < 1e-6:
         u, u_tr, what = ndtr(v), ndtr(v_tr), "quantile-transformed to normal"
     else:
         return None

@@ -52,9 +52,9 @@ def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3
 
     pred = np.zeros(len(side))
     gain = np.zeros(x.shape[1])
-    params = dict(n_estimators=60, learning_rate=0.1, num_leaves=31, min_child_samples=20,
+    params = dict(n_estimators=50, learning_rate=0.12, num_leaves=15, min_child_samples=20,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True,
+                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True, max_bin=63,
                   importance_type="gain")
     for tr, te in StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, side):
         model = lgb.LGBMClassifier(**params).fit(x[tr], side[tr])
@@ -104,7 +104,8 @@ class Separability(Probe):
         z = (auc - 0.5) / null
         top = np.argsort(-gain)[:TOP_LEFT_OUT]
         keep = np.setdiff1d(np.arange(len(columns)), top)
-        auc_without = adversarial_auc(xs[:, keep], side, settings.seed)[0] if keep.size else 0.5
+        auc_without = adversarial_auc(xs[:, keep], side, settings.seed)[0] \
+            if keep.size and auc >= 0.6 else None   # only worth a fit when there is a shift
         total = float(gain.sum()) or 1.0
         drivers = [{"column": columns[i], "gain_share": float(gain[i] / total),
                     "role": _role(table, columns[i])} for i in np.argsort(-gain)[:8]
