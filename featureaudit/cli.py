@@ -36,6 +36,10 @@ class _OneLineErrors(TyperGroup):
         except KeyboardInterrupt:
             print("featureaudit: interrupted; no report was written.", file=sys.stderr)
             sys.exit(130)
+        except Exception as exc:  # noqa: BLE001 — a bug: one line, no traceback, exit 3
+            print(f"featureaudit: internal error ({type(exc).__name__}: {exc}); no report was "
+                  "written. Please report it with the command you ran.", file=sys.stderr)
+            sys.exit(3)
         sys.exit(rv if isinstance(rv, int) else 0)
 
 

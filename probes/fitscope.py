@@ -37,7 +37,7 @@ MIN_SIDE = 20          # fewer held-out or training rows than this: cannot tell
 
 def _ev(name: str, statistic: str, value: float | None, level: str, summary: str,
         detail: dict, severity: float = 0.5) -> Evidence:
-    return Evidence("fitscope", "fit_on_all_rows", statistic, value, 1.0, level, column=name,
+    return Evidence("fitscope", "fit_on_all_rows", statistic, value, None, level, column=name,
                     summary=summary, severity=severity, detail=detail)
 
 

@@ -1,0 +1,74 @@
+"""The demo's dossier in a real browser: headless Chromium loads it, the planted leaks are in
+the ranked table, a screenshot and a PDF come out, and no request leaves the page."""
+
+import json
+import os
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from featureaudit.demo import run_demo
+
+BROWSER = shutil.which("chromium") or shutil.which("chromium-browser")
+if BROWSER is None and os.environ.get("CI"):
+    pytest.fail("Chromium is missing; .ci/run installs Debian's chromium", pytrace=False)
+pytestmark = pytest.mark.skipif(BROWSER is None, reason="Chromium is not installed")
+
+FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+         "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+
+
+def _chromium(tmp: Path, url: str, *extra: str) -> tuple[str, list[str]]:
+    """Run Chromium once; return stdout and the URLs the page itself asked for."""
+    profile, netlog = tmp / f"profile{len(list(tmp.iterdir()))}", tmp / "net.json"
+    out = subprocess.run([BROWSER, *FLAGS, f"--user-data-dir={profile}",
+                          f"--log-net-log={netlog}", *extra, url],
+                         capture_output=True, text=True, timeout=120, check=True).stdout
+    log = json.loads(netlog.read_text())
+    names = {v: k for k, v in log["constants"]["logEventTypes"].items()}
+    page_requests = [
+        e["params"]["url"] for e in log["events"]
+        if names.get(e["type"]) == "URL_REQUEST_START_JOB"
+        and str(e.get("params", {}).get("network_isolation_key", "")).startswith("file://")
+        and not str(e["params"].get("url", "")).startswith(("file:", "data:"))]
+    return out, page_requests
+
+
+@pytest.fixture(scope="module")
+def demo_report(tmp_path_factory):
+    out = tmp_path_factory.mktemp("demo")
+    run_demo(out)
+    return out
+
+
+def test_the_request_check_can_fail(tmp_path):
+    page = tmp_path / "control.html"
+    page.write_text('<html><body><img src="http://127.0.0.1:9/x.png"></body></html>')
+    _, requests = _chromium(tmp_path, page.as_uri(), "--dump-dom")
+    assert requests == ["http://127.0.0.1:9/x.png"]
+
+
+def test_dossier_in_chromium(demo_report, tmp_path):
+    dom, requests = _chromium(tmp_path, (demo_report / "dossier.html").as_uri(), "--dump-dom")
+    assert requests == []
+    ranked = re.search(r'<table class="ranked" id="ranked">(.*?)</table>', dom, re.S).group(1)
+    for leak in ("reminders_sent", "in_collections", "last_contact_at", "amount_scaled",
+                 "credit_limit"):
+        assert leak in ranked, leak
+    for honest in ("payment_terms_days", "region", "discount_pct"):
+        assert honest not in ranked, honest
+    for finding in ("duplicate rows across split", "shared entities across split",
+                    "time overlap across split"):
+        assert finding in dom
+
+
+def test_screenshot_and_pdf(demo_report, tmp_path):
+    url = (demo_report / "dossier.html").as_uri()
+    shot, pdf = tmp_path / "dossier.png", tmp_path / "dossier.pdf"
+    _chromium(tmp_path, url, "--window-size=1280,2400", f"--screenshot={shot}")
+    _chromium(tmp_path, url, f"--print-to-pdf={pdf}", "--no-pdf-header-footer")
+    assert shot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and shot.stat().st_size > 20_000
+    assert pdf.read_bytes()[:5] == b"%PDF-" and pdf.stat().st_size > 20_000

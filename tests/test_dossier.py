@@ -1,0 +1,119 @@
+"""The dossier, the review summary and the notebook view, rendered from findings fixtures."""
+
+import copy
+import json
+import re
+
+import numpy as np
+import pandas as pd
+import pytest
+from markupsafe import escape
+
+import featureaudit as fa
+from featureaudit.evidence import KINDS, LEVEL_RANK
+from featureaudit.findings import Findings
+from featureaudit.report import CAUTION, render_all, render_dossier, render_summary
+
+LEVELS = list(LEVEL_RANK)
+
+
+def _doc(columns=(), dataset=(), skipped=(), warnings=()):
+    return Findings({
+        "schema": "featureaudit.findings/1", "tool_version": "0.1.0",
+        "created": "2026-12-01T12:00:00Z",
+        "dataset": {"source": "t.csv", "rows": 10, "train_rows": 8, "heldout_rows": 2,
+                    "columns": 3, "target": "y", "task": "binary", "split": "column:split"},
+        "settings": {"seed": 0}, "columns": list(columns), "dataset_findings": list(dataset),
+        "skipped": list(skipped), "warnings": list(warnings)})
+
+
+def _column(name, level, kind="target_proxy", probe="solo", detail=None):
+    return {"column": name, "score": LEVELS.index(level) / 5, "level": level, "kinds": [kind],
+            "summary": f"{name} summary", "role": "feature", "description": "",
+            "evidence": [{"probe": probe, "kind": kind, "statistic": "s", "value": 0.5,
+                          "threshold": 0.4, "level": level, "summary": "e",
+                          "detail": detail or {}}]}
+
+
+@pytest.mark.parametrize("kind", KINDS)
+@pytest.mark.parametrize("level", LEVELS)
+def test_every_kind_and_level_renders(kind, level):
+    doc = _doc([_column("c1", level, kind)],
+               [{"probe": "twins", "kind": kind, "statistic": "s", "value": 0.2,
+                 "threshold": 0.1, "level": level, "summary": "split summary", "detail": {}}])
+    page = render_dossier(doc)
+    assert "split summary" in page and str(escape(CAUTION)) in page
+    if level != "none":
+        assert 'class="l-' + level in page and "c1 summary" in page
+
+
+def test_empty_findings_and_every_probe_skipped():
+    doc = _doc(skipped=[{"probe": p, "column": None, "reason": f"{p} had nothing"}
+                        for p in ("solo", "timing", "fitscope", "twins", "separability")])
+    page = render_dossier(doc)
+    assert "No column reached level low" in page and "No finding about the split" in page
+    assert page.count("had nothing") == 5
+    summary = render_summary(doc)
+    assert "None at level medium or above" in summary and "(empty)" in summary
+
+
+def test_hostile_names_values_and_descriptions_are_escaped():
+    rng = np.random.default_rng(0)
+    n = 400
+    y = rng.integers(0, 2, n)
+    evil = '<script>alert("x")</script>&"\'\x07\x1b'
+    frame = pd.DataFrame({evil: np.where(rng.random(n) < 0.97, y, 1 - y) + 0.0,
+                          "note": np.where((y == 1) ^ (rng.random(n) < 0.05), "<b>bold</b>",
+                                           'a&b"q"'),
+                          "x": rng.normal(size=n), "w": rng.normal(size=n),
+                          "v": rng.normal(size=n), "y": y})
+    import csv
+    import io
+    buf = io.StringIO()
+    csv.writer(buf).writerows([["column", "role", "description"],
+                               [evil, "feature", "<img src=x onerror=alert(1)>"],
+                               ["note", "feature", "</td></tr><script>x()</script>"]])
+    from featureaudit.dictionary import parse_dictionary
+    result = fa.audit(frame, target="y", dictionary=parse_dictionary(buf.getvalue()),
+                      source="<t>&.csv")
+    files = render_all(result.findings)
+    page = files["dossier.html"]
+    assert "<script>alert" not in page and "<img src=x" not in page and "<b>bold" not in page
+    assert "&lt;b&gt;bold&lt;/b&gt;" in page and "<script>x()" not in page
+    assert "&lt;script&gt;" in page and "&lt;img src=x" in page
+    assert "\x07" not in page and "\x1b" not in page and "\\x07" in page
+    assert "<t>&.csv" not in page and "&lt;t&gt;&amp;.csv" in page
+    scripts = re.findall(r"<script>(.*?)</script>", page, re.S)
+    assert len(scripts) == 1 and "alert" not in scripts[0]
+    assert "\x07" not in files["summary.md"]
+    json.loads(files["findings.json"])
+    assert "<script>" not in result._repr_html_()
+
+
+def test_dossier_is_self_contained():
+    result = fa.audit(pd.DataFrame({"a": np.arange(50.0), "y": [0, 1] * 25}), target="y")
+    page = render_dossier(result.findings)
+    urls = set(re.findall(r"(?:src|href)\s*=\s*\"([^\"]*)\"", page))
+    assert all(u.startswith("#") for u in urls), urls
+    assert "@import" not in page and "url(" not in page
+
+
+def test_a_thousand_column_dossier_stays_small():
+    detail = {"bins": [{"bin": f"[{i}, {i + 1})", "rows": 50, "stat": 0.1 + i / 100}
+                       for i in range(20)], "prior": 0.2, "bin_stat": "target rate",
+              "oof_value": 0.7, "ci95": [0.6, 0.8], "fold_values": [0.7] * 5}
+    cols = [_column(f"col_{i:04d}", LEVELS[i % 5], detail=copy.deepcopy(detail))
+            for i in range(1000)]
+    page = render_dossier(_doc(cols))
+    assert len(page.encode()) < 5_000_000
+    assert page.count("<svg") <= 60 + 5
+
+
+def test_summary_markdown_lists_suspects_and_droplist(tmp_path):
+    doc = _doc([_column("late_fee", "critical"), _column("amount", "none")],
+               [{"probe": "twins", "kind": "duplicate_rows_across_split", "statistic": "s",
+                 "value": 0.2, "threshold": 0.1, "level": "high", "summary": "copies|here",
+                 "detail": {}}])
+    md = render_summary(doc)
+    assert "| critical |" in md and "`late_fee`" in md and "copies\\|here" in md
+    assert "```\nlate_fee\n```" in md and CAUTION in md
