@@ -11,7 +11,7 @@ import pandas as pd
 
 from featureaudit.io import numeric_view
 
-__all__ = ["row_hashes", "column_codes", "robust_scale"]
+__all__ = ["row_hashes", "column_codes", "robust_params"]
 
 _MULT = np.uint64(0x9E3779B97F4A7C15)
 _NAN = np.uint64(0x7FF8DEADBEEF0001)
@@ -49,12 +49,15 @@ def row_hashes(frame: pd.DataFrame, columns: list[str]) -> np.ndarray:
     return h
 
 
-def robust_scale(values: np.ndarray, train: np.ndarray) -> np.ndarray:
-    """(x - median) / IQR with training-row statistics (MAD or SD when the IQR is zero)."""
+def robust_params(values: np.ndarray, train: np.ndarray, sample: int = 50_000
+                  ) -> tuple[float, float]:
+    """Median and IQR of the training rows (MAD or SD when the IQR is zero), estimated on an
+    evenly spaced sample of at most ``sample`` training values."""
     ref = values[train & np.isfinite(values)]
     if ref.size == 0:
-        return np.zeros_like(values)
+        return 0.0, 1.0
+    ref = ref[:: max(1, ref.size // sample)]
     med = float(np.median(ref))
     q25, q75 = np.percentile(ref, [25, 75])
     scale = float(q75 - q25) or float(np.median(np.abs(ref - med))) * 1.4826 or float(ref.std())
-    return (values - med) / (scale or 1.0)
+    return med, (scale or 1.0)

@@ -30,7 +30,7 @@ def _fmt(x: float) -> str:
     return f"{x:.4g}"
 
 
-def bin_codes(s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 200_000,
+def bin_codes(s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 50_000,
               seed: int = 0) -> Bins:
     """Code a column into at most ``n_bins`` quantile bins (numbers, datetimes) or its categories.
 
@@ -66,7 +66,7 @@ def _numeric_bins(values: np.ndarray, n_bins: int, *, sample: int, seed: int, da
     if present.size == 0:
         return Bins(codes, ["(missing)"], "values")
     rng = np.random.default_rng(seed)
-    pool = present if present.size <= sample else rng.choice(present, sample, replace=False)
+    pool = present if present.size <= sample else present[rng.integers(0, present.size, sample)]
     label = _date_label if datetime else _fmt
     few = np.unique(pool[:5000])
     if few.size <= n_bins:
@@ -76,7 +76,10 @@ def _numeric_bins(values: np.ndarray, n_bins: int, *, sample: int, seed: int, da
             return Bins(codes, ["(missing)"] + [label(u) for u in uniq], "values")
     edges = np.unique(np.quantile(pool, np.linspace(0, 1, n_bins + 1)))
     inner = edges[1:-1]
-    codes[finite] = np.searchsorted(inner, present, side="right") + 1
+    if present.size == values.size:
+        codes = np.searchsorted(inner, values, side="right") + 1
+    else:
+        codes[finite] = np.searchsorted(inner, present, side="right") + 1
     bounds = np.r_[-np.inf, inner, np.inf]
     labels = ["(missing)"] + [f"[{label(lo)}, {label(hi)})" if np.isfinite(lo) and np.isfinite(hi)
                               else (f"< {label(hi)}" if np.isfinite(hi) else f">= {label(lo)}")

@@ -31,7 +31,8 @@ LOW_Z = 2.0
 TOP_LEFT_OUT = 3
 
 
-def _matrix(table: AuditTable, columns: list[str]) -> np.ndarray:
+def _matrix(table: AuditTable, columns: list[str], rows: np.ndarray) -> np.ndarray:
+    """The sampled rows as floats: numbers and times as they are, categories as codes."""
     out = []
     for name in columns:
         s = table.frame[name]
@@ -39,8 +40,8 @@ def _matrix(table: AuditTable, columns: list[str]) -> np.ndarray:
         if v is None:
             codes, _ = pd.factorize(s, use_na_sentinel=True)
             v = np.where(codes < 0, np.nan, codes).astype(np.float64)
-        out.append(v)
-    return np.column_stack(out) if out else np.zeros((table.n_rows, 0))
+        out.append(v[rows])
+    return np.column_stack(out) if out else np.zeros((rows.size, 0))
 
 
 def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3
@@ -77,23 +78,22 @@ class Separability(Probe):
         if not columns:
             return [], [Skip(self.name, "no column with values to compare the sides on")]
         rng = np.random.default_rng(settings.seed)
-        x = _matrix(table, columns)
         if table.heldout is not None:
-            return [self._measure(table, x, columns, table.heldout, rng, settings, None)], []
-        evidence = [self._measure(table, x, columns, rng.random(table.n_rows) < 0.2, rng,
+            return [self._measure(table, columns, table.heldout, rng, settings, None)], []
+        evidence = [self._measure(table, columns, rng.random(table.n_rows) < 0.2, rng,
                                   settings, "random")]
         base = table.cutoff_time if table.cutoff_time is not None else table.label_time
         if base is not None:
             order = base.rank(method="first").to_numpy()
             late = order > np.nanquantile(order, 0.8)
-            evidence.append(self._measure(table, x, columns, late, rng, settings, "time"))
+            evidence.append(self._measure(table, columns, late, rng, settings, "time"))
         return evidence, []
 
-    def _measure(self, table: AuditTable, x: np.ndarray, columns: list[str],
-                 heldout: np.ndarray, rng: np.random.Generator, settings: Settings,
-                 simulated: str | None) -> Evidence:
+    def _measure(self, table: AuditTable, columns: list[str], heldout: np.ndarray,
+                 rng: np.random.Generator, settings: Settings, simulated: str | None
+                 ) -> Evidence:
         rows = _sample(heldout, settings.reference_rows, rng)
-        xs, side = x[rows], heldout[rows].astype(int)
+        xs, side = _matrix(table, columns, rows), heldout[rows].astype(int)
         if min(side.sum(), (1 - side).sum()) < 10:
             return Evidence(self.name, "split_shift", "adversarial_auc", None, LEVELS[1][1],
                             "none", summary="too few rows on one side to compare",

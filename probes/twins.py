@@ -21,7 +21,7 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
-from featureaudit.hashing import column_codes, robust_scale, row_hashes
+from featureaudit.hashing import column_codes, robust_params, row_hashes
 from featureaudit.io import numeric_view
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
@@ -100,19 +100,20 @@ class Twins(Probe):
         near, calib = _near_copies(table, cols, heldout, exact, rng)
         twin = exact | near
         n_held = int(heldout.sum())
+        near_rows = float((near & ~exact).sum()) / calib["searched_share"]   # sampled search
         share_exact = float(exact.sum() / n_held)
-        share = float(twin.sum() / n_held)
+        share = float((exact.sum() + near_rows) / n_held)
         agree, base = _agreement(table, h, exact, train)
         level = _level(share, COPY_LEVELS)
         notes = []
-        if twin.sum() < MIN_TWINS and level != "none":
+        if exact.sum() + near_rows < MIN_TWINS and level != "none":
             level, _ = _down(level), notes.append(f"only {int(twin.sum())} twin rows")
         if agree is not None and base is not None and exact.sum() >= MIN_TWINS \
                 and agree <= base + 0.05 and level != "none":
             level, _ = _down(level), notes.append("twins agree on the target no more than chance")
         detail = {"heldout_rows": n_held, "heldout_rows_with_exact_twin": int(exact.sum()),
-                  "heldout_rows_with_near_twin": int((near & ~exact).sum()),
-                  "share_exact": share_exact, "share_near": float((near & ~exact).sum() / n_held),
+                  "heldout_rows_with_near_twin": int(round(near_rows)),
+                  "share_exact": share_exact, "share_near": near_rows / n_held,
                   "label_agreement": agree, "label_agreement_by_chance": base,
                   "examples": _pairs(table, h, exact, train), "near_examples": calib.pop("pairs"),
                   "calibration": calib, "columns": len(cols), "notes": notes}
@@ -185,65 +186,90 @@ def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.nd
 
 def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, train: np.ndarray,
            k: int = 5) -> list[list[str]]:
-    ids = table.frame[table.id_columns[0]].astype(str).to_numpy() if table.id_columns \
-        else np.array([f"row {i}" for i in range(table.n_rows)])
     t_idx = np.flatnonzero(train)
     first = pd.Series(t_idx, index=h[t_idx])
     first = first[~first.index.duplicated()]
-    out = []
+    found: list[tuple[int, int]] = []
     for i in np.flatnonzero(rows):
         j = first.get(h[i])
         if j is not None and j != i:
-            out.append([ids[j], ids[i]])
-        if len(out) >= k:
+            found.append((int(j), int(i)))
+        if len(found) >= k:
             break
-    return out
+    left = _row_labels(table, np.array([a for a, _ in found], dtype=np.int64))
+    right = _row_labels(table, np.array([b for _, b in found], dtype=np.int64))
+    return [[a, b] for a, b in zip(left, right, strict=True)]
+
+
+class _Scaled:
+    """Numeric columns with robust training-row scales, scaled only where needed."""
+
+    def __init__(self, raw: list[np.ndarray], train: np.ndarray) -> None:
+        self.raw = raw
+        self.params = [robust_params(v, train) for v in raw]
+
+    def __len__(self) -> int:
+        return len(self.raw)
+
+    def column(self, j: int, rows: np.ndarray | slice = slice(None)) -> np.ndarray:
+        med, scale = self.params[j]
+        z = (self.raw[j][rows] - med) / scale
+        return np.nan_to_num(z, nan=-99.0, posinf=99.0, neginf=-99.0)
+
+    def distance(self, q: np.ndarray, t: np.ndarray) -> np.ndarray:
+        """Root mean squared scaled difference over all numeric columns."""
+        total = np.zeros(q.size)
+        for j in range(len(self.raw)):
+            total += (self.column(j, q) - self.column(j, t)) ** 2
+        return np.sqrt(total / len(self.raw))
 
 
 def _near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: np.ndarray,
                  rng: np.random.Generator) -> tuple[np.ndarray, dict]:
-    """Held-out rows with a near copy among training rows (banded hashing, then distance)."""
+    """Held-out rows with a near copy among training rows (banded hashing, then distance).
+
+    At most 50,000 held-out rows are searched; ``calib["searched_share"]`` says which share
+    of the candidates that is, so the caller can scale the count honestly.
+    """
     train = ~heldout
-    numeric, cats = [], []
+    raw, cats = [], []
     for c in cols:
         v = numeric_view(table.frame[c])
-        if v is not None and np.unique(v[np.isfinite(v)][:5000]).size > 10:
-            numeric.append(np.nan_to_num(robust_scale(v, train), nan=-99.0))
+        head = v[:20_000] if v is not None else None
+        if v is not None and np.unique(head[np.isfinite(head)]).size > 10:
+            raw.append(v)
         else:
             cats.append(column_codes(table.frame[c]))
     near = np.zeros(table.n_rows, dtype=bool)
-    if not numeric:
-        return near, {"method": "no continuous columns: exact copies only", "pairs": []}
-    x = np.column_stack(numeric).astype(np.float64)
+    if not raw:
+        return near, {"method": "no continuous columns: exact copies only", "pairs": [],
+                      "searched_share": 1.0}
+    numeric = _Scaled(raw, train)
     cat_key = np.zeros(table.n_rows, dtype=np.uint64)
     with np.errstate(over="ignore"):
         for c in cats:
             cat_key = cat_key * np.uint64(1099511628211) ^ c
-    threshold, calib = _calibrate(x, cat_key, train, rng)
-    queries = np.flatnonzero(heldout & ~exact)
-    if queries.size > 50_000:
-        queries = np.sort(rng.choice(queries, 50_000, replace=False))
+    threshold, calib = _calibrate(numeric, cat_key, train, rng)
+    candidates = np.flatnonzero(heldout & ~exact)
+    queries = candidates if candidates.size <= 50_000 else \
+        np.sort(rng.choice(candidates, 50_000, replace=False))
+    calib["searched_share"] = float(queries.size / max(candidates.size, 1))
     t_idx = np.flatnonzero(train)
     best = np.full(table.n_rows, np.inf)
     partner = np.full(table.n_rows, -1)
-    d = x.shape[1]
+    d = len(numeric)
     for _ in range(BANDS):
         dims = rng.choice(d, min(d, BAND_DIMS), replace=False)
         offset = rng.uniform(0, CELL)
-        cells = np.floor((x[:, dims] + offset) / CELL).astype(np.int64)
         key = cat_key.copy()
-        with np.errstate(over="ignore"):
-            for j in range(cells.shape[1]):
-                key = key * np.uint64(0x100000001B3) ^ cells[:, j].astype(np.uint64)
-        tk = pd.Series(t_idx, index=key[t_idx])
-        counts = tk.index.value_counts()
-        tk = tk[tk.index.isin(counts.index[counts <= MAX_BUCKET])]
-        qk = pd.DataFrame({"q": queries, "key": key[queries]})
-        pairs = qk.merge(pd.DataFrame({"key": tk.index, "t": tk.to_numpy()}), on="key")
-        if pairs.empty:
+        with np.errstate(over="ignore", invalid="ignore"):
+            for j in dims:
+                cell = np.floor((numeric.column(j) + offset) / CELL).astype(np.int64)
+                key = key * np.uint64(0x100000001B3) ^ cell.astype(np.uint64)
+        q, t = _band_pairs(key, t_idx, queries)
+        if q.size == 0:
             continue
-        q, t = pairs["q"].to_numpy(), pairs["t"].to_numpy()
-        dist = np.sqrt(np.mean((x[q] - x[t]) ** 2, axis=1))
+        dist = numeric.distance(q, t)
         order = np.lexsort((dist, q))
         q, t, dist = q[order], t[order], dist[order]
         first = np.r_[True, q[1:] != q[:-1]]
@@ -251,28 +277,56 @@ def _near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact:
         best[q[first][better]] = dist[first][better]
         partner[q[first][better]] = t[first][better]
     near[queries] = best[queries] <= threshold
-    if queries.size and queries.size < int((heldout & ~exact).sum()):
-        # estimate from the sample: mark a proportional share honestly in the figures
-        calib["sampled_queries"] = int(queries.size)
-    ids = table.frame[table.id_columns[0]].astype(str).to_numpy() if table.id_columns \
-        else np.array([f"row {i}" for i in range(table.n_rows)])
     hits = np.flatnonzero(near)[:5]
-    calib["pairs"] = [[ids[partner[i]], ids[i], float(best[i])] for i in hits]
+    left, right = _row_labels(table, partner[hits]), _row_labels(table, hits)
+    calib["pairs"] = [[a, b, float(best[i])] for a, b, i in zip(left, right, hits, strict=True)]
     calib["threshold"] = threshold
     calib["near_twin_distances"] = [float(v) for v in np.sort(best[near])[:50]]
     return near, calib
 
 
-def _calibrate(x: np.ndarray, cat_key: np.ndarray, train: np.ndarray,
+def _band_pairs(key: np.ndarray, t_idx: np.ndarray, queries: np.ndarray
+                ) -> tuple[np.ndarray, np.ndarray]:
+    """(query, training row) pairs that share a band key; keys held by more than MAX_BUCKET
+    training rows are dropped, since a crowded cell is no evidence of a copy."""
+    tk = key[t_idx]
+    order = np.argsort(tk, kind="stable")
+    tk, tr = tk[order], t_idx[order]
+    starts = np.r_[0, np.flatnonzero(tk[1:] != tk[:-1]) + 1]
+    sizes = np.diff(np.r_[starts, tk.size])
+    keep = np.repeat(sizes <= MAX_BUCKET, sizes)
+    tk, tr = tk[keep], tr[keep]
+    qk = key[queries]
+    lo = np.searchsorted(tk, qk, side="left")
+    hi = np.searchsorted(tk, qk, side="right")
+    n = hi - lo
+    total = int(n.sum())
+    if total == 0:
+        return np.zeros(0, np.int64), np.zeros(0, np.int64)
+    q = np.repeat(queries, n)
+    offsets = np.arange(total) - np.repeat(np.cumsum(n) - n, n)
+    return q, tr[np.repeat(lo, n) + offsets]
+
+
+def _row_labels(table: AuditTable, rows: np.ndarray) -> list[str]:
+    """The first identifier column's values for ``rows``, or their row numbers."""
+    if table.id_columns:
+        ids = table.frame[table.id_columns[0]].to_numpy()
+        return [str(ids[i]) for i in rows]
+    return [f"row {i}" for i in rows]
+
+
+def _calibrate(numeric: _Scaled, cat_key: np.ndarray, train: np.ndarray,
                rng: np.random.Generator) -> tuple[float, dict]:
     """Threshold from training-to-training nearest-neighbour distances on a sample."""
     from sklearn.neighbors import NearestNeighbors
     t_idx = np.flatnonzero(train)
     sample = rng.choice(t_idx, min(t_idx.size, 3000), replace=False)
-    xs = x[sample] + (cat_key[sample] % np.uint64(9973)).astype(np.float64)[:, None] * 1e6
+    xs = np.column_stack([numeric.column(j, sample) for j in range(len(numeric))])
+    xs += (cat_key[sample] % np.uint64(9973)).astype(np.float64)[:, None] * 1e6
     nn = NearestNeighbors(n_neighbors=2).fit(xs)
     dist, _ = nn.kneighbors(xs)
-    d = dist[:, 1] / np.sqrt(x.shape[1])
+    d = dist[:, 1] / np.sqrt(len(numeric))
     d = d[d < 1e5]
     positive = d[d > 0]
     median = float(np.median(positive)) if positive.size else 0.0
