@@ -21,11 +21,12 @@ import numpy as np
 import pandas as pd
 
 
-def make_table(path: Path, rows: int, cols: int, seed: int = 0) -> None:
+def make_table(path: Path, rows: int, cols: int, seed: int = 0, dates: int | None = None
+               ) -> None:
     rng = np.random.default_rng(seed)
     data: dict[str, np.ndarray] = {}
     latent = rng.normal(size=rows)
-    n_cat, n_date = max(1, cols // 20), max(1, cols // 20)
+    n_cat, n_date = max(1, cols // 20), dates if dates is not None else max(1, cols // 20)
     for i in range(cols - n_cat - n_date):
         data[f"num_{i:03d}"] = (0.2 * latent + rng.normal(size=rows)).astype(np.float64)
     for i in range(n_cat):
@@ -68,11 +69,12 @@ def main() -> None:
     parser.add_argument("--rows", type=int, default=200_000)
     parser.add_argument("--cols", type=int, default=50)
     parser.add_argument("--probes", default="")
+    parser.add_argument("--dates", type=int, default=None, help="dated columns (default F/20)")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
         path = Path(tmp) / "bench.parquet"
         t = time.perf_counter()
-        make_table(path, args.rows, args.cols)
+        make_table(path, args.rows, args.cols, dates=args.dates)
         print(f"table: {args.rows:,} rows x {args.cols} columns, "
               f"{path.stat().st_size / 1e6:.0f} MB on disk (written in "
               f"{time.perf_counter() - t:.1f} s)")

@@ -42,10 +42,11 @@ def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
 
 def row_hashes(frame: pd.DataFrame, columns: list[str]) -> np.ndarray:
     """One uint64 per row over ``columns``; rows equal in every column get equal hashes."""
+    from concurrent.futures import ThreadPoolExecutor
     h = np.full(len(frame), np.uint64(0xCBF29CE484222325), dtype=np.uint64)
-    with np.errstate(over="ignore"):
-        for name in columns:
-            h = _mix(h, column_codes(frame[name]))
+    with ThreadPoolExecutor(max_workers=2) as pool, np.errstate(over="ignore"):
+        for codes in pool.map(lambda name: column_codes(frame[name]), columns):
+            h = _mix(h, codes)
     return h
 
 

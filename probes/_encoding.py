@@ -75,11 +75,17 @@ def encoding_evidence(table: AuditTable, train: np.ndarray) -> list[Evidence]:
         if got is not None:
             cat_cols.append((name, *got))
     evidence: list[Evidence] = []
+    if not cat_cols:
+        return evidence
+    most_levels = max(k for _, _, k in cat_cols)
     pairs = 0
     for name in table.features:
         x = numeric_view(table.frame[name])
         if x is None or not pd.api.types.is_float_dtype(table.frame[name].dtype):
             continue
+        head = x[:20_000]
+        if np.unique(head[np.isfinite(head)]).size > most_levels:
+            continue            # more distinct values than any category column has levels
         n_unique = np.unique(x[np.isfinite(x)]).size
         for cat, codes, k in cat_cols:
             if cat == name or n_unique > k or pairs >= MAX_PAIRS:

@@ -17,6 +17,8 @@ sure the fingerprint is, not how large the bias is.
 
 from __future__ import annotations
 
+from concurrent.futures import ThreadPoolExecutor
+
 import numpy as np
 import pandas as pd
 from scipy.special import ndtr
@@ -58,16 +60,17 @@ class Fitscope(Probe):
                                            "probe cannot tell which rows a fit used; columns "
                                            "that look preprocessed are listed as information"))
         train = ~table.heldout if split else np.ones(table.n_rows, bool)
-        evidence: list[Evidence] = []
-        for name in table.features:
+        def one(name: str) -> list[Evidence]:
             s = table.frame[name]
             if pd.api.types.is_datetime64_any_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
-                continue
+                return []
             values = numeric_view(s)
-            if values is None:
-                continue
-            found = _check_column(name, s, values, train, split)
-            evidence.extend(found)
+            return [] if values is None else _check_column(name, s, values, train, split)
+
+        evidence: list[Evidence] = []
+        with ThreadPoolExecutor(max_workers=2) as pool:   # numpy releases the GIL
+            for found in pool.map(one, table.features):
+                evidence.extend(found)
         if split and table.y is not None and table.target_problem is None:
             evidence.extend(_encodings(table, train))
         return evidence, skipped
@@ -76,15 +79,33 @@ class Fitscope(Probe):
 def _check_column(name: str, s: pd.Series, values: np.ndarray, train: np.ndarray,
                   split: bool) -> list[Evidence]:
     ok = np.isfinite(values)
-    if ok.sum() < 2 * MIN_SIDE or np.unique(values[ok][:1000]).size < 3:
+    v = values if ok.all() else values[ok]
+    if v.size < 2 * MIN_SIDE or np.unique(v[:1000]).size < 3:
         return []
     err = _LazyError(s, values)
     out = []
-    for check in (_standardised, _minmax, _imputed, _capped, _quantile):
+    for check in _plausible(v, values[ok & train]):
         found = check(name, values, err, ok, train, split)
         if found is not None:
             out.append(found)
     return out
+
+
+def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
+    """The checks whose fingerprint a few cheap statistics do not already rule out."""
+    lo, hi = float(v.min()), float(v.max())
+    checks: list = []
+    if any(abs(float(np.mean(x))) <= 1e-3 and abs(float(np.std(x)) - 1) <= 1e-2
+           for x in (v, v_tr) if x.size):
+        checks.append(_standardised)
+    if abs(lo) <= 1e-3 and abs(hi - 1) <= 1e-3:
+        checks.append(_minmax)
+    checks.append(_imputed)                       # its own sampled pre-check is cheap
+    if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
+        checks.append(_capped)
+    if (lo >= 0 and hi <= 1) or min(abs(lo + NORMAL_BOUND), abs(hi - NORMAL_BOUND)) < 1e-6:
+        checks.append(_quantile)
+    return checks
 
 
 class _LazyError:

@@ -22,6 +22,8 @@ the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tes
 
 from __future__ import annotations
 
+from concurrent.futures import ThreadPoolExecutor
+
 import numpy as np
 
 from featureaudit.evidence import Evidence, Skip
@@ -72,13 +74,20 @@ class Solo(Probe):
         skipped: list[Skip] = []
         scores: dict[str, CellScore] = {}
         bins: dict[str, Bins] = {}
-        for name in table.id_columns + table.features:
+        def one(name: str) -> tuple[str, Bins, CellScore | None]:
             b = bin_codes(table.frame[name], settings.bins, order=name in table.id_columns,
                           seed=settings.seed)
             if not (b.codes[t.rows] > 0).any():
-                skipped.append(Skip(self.name, "no values in the labelled rows", name))
-                continue
-            bins[name], scores[name] = b, score_bins(b.codes, b.n_bins, t)
+                return name, b, None
+            return name, b, score_bins(b.codes, b.n_bins, t)
+
+        # numpy releases the GIL in its sorting and searching loops: two threads, two cores
+        with ThreadPoolExecutor(max_workers=2) as pool:
+            for name, b, score in pool.map(one, table.id_columns + table.features):
+                if score is None:
+                    skipped.append(Skip(self.name, "no values in the labelled rows", name))
+                else:
+                    bins[name], scores[name] = b, score
         features = [c for c in table.features if c in scores]
         peers, ref = _peer_figures(table, t, features, scores, bins, settings)
         evidence = [_order_evidence(name, scores[name], bins[name], t, small, "identifier")

@@ -228,7 +228,7 @@ def _datetime_like(s: pd.Series) -> bool:
         return True
     if pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
         return False
-    sample = s.dropna().astype(str).head(200)
+    sample = s.iloc[:2000].dropna().head(200).astype(str)
     return bool(len(sample)) and sample.str.match(r"^\d{4}-\d{2}-\d{2}").mean() > 0.9
 
 
