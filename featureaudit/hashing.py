@@ -11,10 +11,11 @@ import pandas as pd
 
 from featureaudit.io import numeric_view
 
-__all__ = ["row_hashes", "column_codes", "robust_params"]
+__all__ = ["row_hashes", "column_codes", "robust_params", "member"]
 
 _MULT = np.uint64(0x9E3779B97F4A7C15)
 _NAN = np.uint64(0x7FF8DEADBEEF0001)
+_M1 = np.uint64(0xBF58476D1CE4E5B9)
 
 
 def column_codes(s: pd.Series) -> np.ndarray:
@@ -35,8 +36,13 @@ def column_codes(s: pd.Series) -> np.ndarray:
 
 
 def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
-    h ^= c + np.uint64(0x9E3779B97F4A7C15) + (h << np.uint64(6)) + (h >> np.uint64(2))
-    h *= _MULT
+    """h = h * odd constant xor scramble(c), in place. The scramble (an xor-shift and an odd
+    multiplier, both one-to-one) folds the high bits of c, where float patterns differ, into
+    the low bits, so the next multiplication cannot push them out. ``c`` is overwritten."""
+    np.bitwise_xor(c, c >> np.uint64(32), out=c)
+    np.multiply(c, _M1, out=c)
+    np.multiply(h, _MULT, out=h)
+    np.bitwise_xor(h, c, out=h)
     return h
 
 
@@ -50,15 +56,23 @@ def row_hashes(frame: pd.DataFrame, columns: list[str]) -> np.ndarray:
     return h
 
 
-def robust_params(values: np.ndarray, train: np.ndarray, sample: int = 50_000
-                  ) -> tuple[float, float]:
-    """Median and IQR of the training rows (MAD or SD when the IQR is zero), estimated on an
-    evenly spaced sample of at most ``sample`` training values."""
-    ref = values[train & np.isfinite(values)]
+def robust_params(values: np.ndarray, rows: np.ndarray) -> tuple[float, float]:
+    """Median and IQR over ``rows`` (a sample of training rows; MAD or SD when the IQR is
+    zero)."""
+    ref = values[rows]
+    ref = ref[np.isfinite(ref)]
     if ref.size == 0:
         return 0.0, 1.0
-    ref = ref[:: max(1, ref.size // sample)]
     med = float(np.median(ref))
     q25, q75 = np.percentile(ref, [25, 75])
     scale = float(q75 - q25) or float(np.median(np.abs(ref - med))) * 1.4826 or float(ref.std())
     return med, (scale or 1.0)
+
+
+def member(keys: np.ndarray, pool: np.ndarray) -> np.ndarray:
+    """``np.isin(keys, pool)`` for uint64 hashes by sorting and binary search."""
+    ref = np.sort(pool)
+    if ref.size == 0:
+        return np.zeros(keys.shape, dtype=bool)
+    pos = np.minimum(np.searchsorted(ref, keys), ref.size - 1)
+    return ref[pos] == keys

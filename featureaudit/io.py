@@ -175,6 +175,8 @@ def numeric_view(s: pd.Series) -> np.ndarray | None:
         out = values.astype("int64").astype("float64") / 1e9
         out[np.isnat(values)] = np.nan
         return out
+    if s.dtype == np.float64:
+        return s.to_numpy()
     if pd.api.types.is_numeric_dtype(s.dtype):
         return pd.to_numeric(s, errors="coerce").astype("float64").to_numpy()
     return None

@@ -144,9 +144,9 @@ def reference_power(inp: PeerInput, columns: np.ndarray, task: str, n_classes: i
         return 0.0
     x = inp.z_tree[:, columns]
     y = inp.y_codes
-    params = dict(n_estimators=60, learning_rate=0.12, num_leaves=15, min_child_samples=10,
+    params = dict(n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True, max_bin=63)
+                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True, max_bin=31)
     if task == "numeric":
         split = KFold(folds, shuffle=True, random_state=seed).split(x)
         pred = np.zeros(len(y))

@@ -21,7 +21,7 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
-from featureaudit.hashing import column_codes, robust_params, row_hashes
+from featureaudit.hashing import column_codes, member, robust_params, row_hashes
 from featureaudit.io import numeric_view
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
@@ -31,7 +31,7 @@ COPY_LEVELS = (("critical", 0.10), ("high", 0.015), ("medium", 0.005))
 ENTITY_LEVELS = (("critical", 0.5), ("high", 0.10), ("medium", 0.02))
 MIN_TWINS = 5
 NEAR_FRACTION = 0.1   # a near copy lies closer than 10 % of the median train-train NN distance
-BANDS, BAND_DIMS, CELL = 8, 6, 0.5
+BANDS, BAND_DIMS, CELL = 6, 6, 0.5
 MAX_BUCKET = 50       # a band cell shared by more training rows than this is not evidence
 LEVELS = ("none", "low", "medium", "high", "critical")
 
@@ -95,8 +95,8 @@ class Twins(Probe):
                 rng: np.random.Generator, settings: Settings) -> Evidence:
         train = ~heldout
         h = row_hashes(table.frame, cols)
-        train_set = np.unique(h[train])
-        exact = heldout & np.isin(h, train_set)
+        exact = np.zeros(table.n_rows, dtype=bool)
+        exact[heldout] = member(h[heldout], h[train])
         near, calib = _near_copies(table, cols, heldout, exact, rng)
         twin = exact | near
         n_held = int(heldout.sum())
@@ -204,9 +204,11 @@ def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, train: np.ndarray
 class _Scaled:
     """Numeric columns with robust training-row scales, scaled only where needed."""
 
-    def __init__(self, raw: list[np.ndarray], train: np.ndarray) -> None:
+    def __init__(self, raw: list[np.ndarray], train: np.ndarray, sample: int = 50_000) -> None:
         self.raw = raw
-        self.params = [robust_params(v, train) for v in raw]
+        t_idx = np.flatnonzero(train)
+        rows = t_idx[:: max(1, t_idx.size // sample)]       # evenly spaced training rows
+        self.params = [robust_params(v, rows) for v in raw]
 
     def __len__(self) -> int:
         return len(self.raw)
@@ -235,7 +237,7 @@ def _near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact:
     raw, cats = [], []
     for c in cols:
         v = numeric_view(table.frame[c])
-        head = v[:20_000] if v is not None else None
+        head = v[:2_000] if v is not None else None
         if v is not None and np.unique(head[np.isfinite(head)]).size > 10:
             raw.append(v)
         else:
