@@ -79,7 +79,10 @@ class Solo(Probe):
                           seed=settings.seed)
             if not (b.codes[t.rows] > 0).any():
                 return name, b, None
-            return name, b, score_bins(b.codes, b.n_bins, t)
+            score = score_bins(b.codes, b.n_bins, t)
+            if not _encoded_in_peer_test(table.frame[name], t):
+                b.codes = None          # only encoded columns need their codes again
+            return name, b, score
 
         # numpy releases the GIL in its sorting and searching loops: two threads, two cores
         with ThreadPoolExecutor(max_workers=2) as pool:
@@ -103,6 +106,14 @@ class Solo(Probe):
         row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
         evidence.append(row)
         return evidence, skipped
+
+
+def _encoded_in_peer_test(s, t: Target) -> bool:  # noqa: ANN001
+    """Whether the peer test represents this column by its out-of-fold encoding."""
+    values = numeric_view(s)
+    if values is None:
+        return True
+    return float(np.mean(~np.isfinite(values[t.rows]))) >= MISSING_AS_ENCODING
 
 
 def _power_text(score: CellScore) -> str:
@@ -291,8 +302,7 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     cols, trees = [], []
     for name in features:
         values = numeric_view(table.frame[name])
-        missing = float(np.mean(~np.isfinite(values[t.rows]))) if values is not None else 0.0
-        if values is not None and missing < MISSING_AS_ENCODING:
+        if not _encoded_in_peer_test(table.frame[name], t):
             raw = normal_scores(values[t.rows][pick])
         else:
             pred = scores[name].row_scores(t, bins[name].codes)[pick]
