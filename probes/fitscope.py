@@ -284,8 +284,8 @@ def _capped(name, values, err, ok, train, split):
     for side, value in (("upper", float(v.max())), ("lower", float(v.min()))):
         pile = ok & (values == value)
         count_all, count_tr = int(pile.sum()), int((pile & train).sum())
-        if count_all < max(3, interior + 1):
-            continue
+        if count_all < max(3, interior + 1) or value == round(value):
+            continue      # whole numbers (0, 1, 100) are natural floors; quantiles rarely are
         fits_all = [p for p in CAP_LEVELS if abs(count_all - _pile(n_all, p)) <= 1]
         fits_tr = [p for p in CAP_LEVELS if abs(count_tr - _pile(n_tr, p)) <= 1]
         if fits_all or fits_tr:

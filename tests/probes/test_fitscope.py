@@ -210,3 +210,15 @@ def test_capping_is_found_when_the_piles_can_tell(dataset):
         if tested == 3:
             break
     assert tested == 3
+
+
+def test_natural_floor_at_zero_is_not_taken_for_capping():
+    # Real data: star98's PCTAF has schools at exactly 0 %, a natural floor.
+    frame = sm.datasets.star98.load_pandas().data[["PCTAF", "LOWINC", "PERASIAN"]].copy()
+    assert (frame["PCTAF"] == 0).sum() >= 3
+    frame["y"] = (sm.datasets.star98.load_pandas().data["NBELOW"] > 200).astype(int)
+    for seed in range(5):
+        held = np.random.default_rng(seed).random(len(frame)) < 0.25
+        split = frame.assign(split=np.where(held, "test", "train"))
+        result = fa.audit(split, target="y", split_column="split", probes=["fitscope"])
+        assert result.columns.set_index("column").loc["PCTAF", "level"] == "none"
