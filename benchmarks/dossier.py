@@ -65,6 +65,19 @@ def main() -> None:
         page = _render(browser, (out / "dossier.html").as_uri(), Path(tmp))
         print(f"render (dump-dom): {page:.2f} s with browser start, {page - base:.2f} s beyond "
               f"an empty page")
+        # the worst case: every one of 1,000 columns a suspect with binned evidence
+        doc = dict(result.document)
+        template = next(c for c in doc["columns"] if c["level"] != "none")
+        levels = ["critical", "high", "medium", "low"]
+        doc["columns"] = [{**template, "column": f"suspect_{i:04d}", "level": levels[i % 4],
+                           "score": 0.9 - i * 0.0008} for i in range(args.cols)]
+        from featureaudit.findings import Findings
+        from featureaudit.report import render_dossier
+        worst = Path(tmp) / "worst.html"
+        worst.write_text(render_dossier(Findings(doc)), encoding="utf-8")
+        page = _render(browser, worst.as_uri(), Path(tmp))
+        print(f"{args.cols} suspects: dossier {worst.stat().st_size / 1e6:.2f} MB, render "
+              f"{page:.2f} s with browser start, {page - base:.2f} s beyond an empty page")
 
 
 if __name__ == "__main__":

@@ -84,11 +84,10 @@ class ColumnVerdict:
     description: str = ""
 
     def to_dict(self) -> dict[str, Any]:
-        return clean_json({"column": self.column, "score": round(self.score, 4),
-                           "level": self.level, "kinds": list(self.kinds),
-                           "summary": self.summary, "role": self.role,
-                           "description": self.description,
-                           "evidence": [e.to_dict() for e in self.evidence]})
+        return {"column": self.column, "score": round(float(self.score), 4),
+                "level": self.level, "kinds": list(self.kinds), "summary": self.summary,
+                "role": self.role, "description": self.description,
+                "evidence": [e.to_dict() for e in self.evidence]}   # each already clean
 
 
 @dataclass(frozen=True)

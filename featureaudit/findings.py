@@ -38,12 +38,14 @@ def build_document(*, tool_version: str, dataset: dict[str, Any], settings: dict
                    columns: list[dict[str, Any]], dataset_findings: list[dict[str, Any]],
                    skipped: list[dict[str, Any]], warnings: list[str],
                    created: datetime | None = None) -> Findings:
-    """Assemble the document in the contract's key order."""
+    """Assemble the document in the contract's key order (columns and findings arrive as
+    plain JSON data from ``to_dict``; the rest is cleaned here)."""
     stamp = (created or datetime.now(UTC)).strftime("%Y-%m-%dT%H:%M:%SZ")
-    return Findings(clean_json({
+    return Findings({
         "schema": SCHEMA, "tool_version": tool_version, "created": stamp,
-        "dataset": dataset, "settings": settings, "columns": columns,
-        "dataset_findings": dataset_findings, "skipped": skipped, "warnings": warnings}))
+        "dataset": clean_json(dataset), "settings": clean_json(settings), "columns": columns,
+        "dataset_findings": dataset_findings, "skipped": clean_json(skipped),
+        "warnings": [str(w) for w in warnings]})
 
 
 def load_findings(path: str | Path) -> Findings:

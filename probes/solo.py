@@ -45,6 +45,7 @@ MIN_PEERS = 3              # fewer peers than this cannot tell a leak from a str
 BEYOND_MAX = 0.10          # an effect of the outcome: peers add at most this beyond the target
 PEER_SIGNAL = 0.08         # under that reading the peers must explain this much of the column
 MISSING_AS_ENCODING = 0.01  # numeric columns missing this often enter the peer test encoded
+MAX_REFERENCE = 200        # columns in the reference model of a wide table
 ORDER_POWER = {"critical": 0.6, "high": 0.2, "medium": 0.1}
 ORDER_Z = {"high": 4.0, "medium": 3.0, "low": 2.0}
 LEVELS = ("none", "low", "medium", "high", "critical")
@@ -323,7 +324,8 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     shares = dependence_shares(inp, flag_share=SHARE["high"], flag_power=SHARE_POWER["high"],
                                min_power=0.0, flag_beyond=BEYOND_MAX)
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
-    keep = np.array([i for i, c in enumerate(features) if c not in flagged], dtype=np.int64)
+    keep = np.array([i for i in np.argsort(-power) if features[i] not in flagged][:MAX_REFERENCE],
+                    dtype=np.int64)   # the strongest non-suspect columns serve as reference
     ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed),
            "rows": int(take), "columns": int(keep.size)}
     strong = [i for i in np.argsort(-power) if features[i] not in flagged and power[i] >= 0.6][:2]
