@@ -26,21 +26,15 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.probes._fingerprint import verdict as _verdict
+from featureaudit.probes._piles import capped as _capped
+from featureaudit.probes._piles import imputed as _imputed
 from featureaudit.probes._precision import mean_tolerance, sd_tolerance, value_error
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 
-CAP_LEVELS = (0.005, 0.01, 0.025, 0.05)
-SPIKE_SHARE = 0.005    # an imputation spike holds at least 0.5 % of rows ...
-SPIKE_RATIO = 10.0     # ... and ten times the next most frequent value
 MIN_SIDE = 20          # fewer held-out or training rows than this: cannot tell
-
-
-def _ev(name: str, statistic: str, value: float | None, level: str, summary: str,
-        detail: dict, severity: float = 0.5) -> Evidence:
-    return Evidence("fitscope", "fit_on_all_rows", statistic, value, None, level, column=name,
-                    summary=summary, severity=severity, detail=detail)
 
 
 @register
@@ -120,28 +114,6 @@ class _LazyError:
         return self._err[key]
 
 
-def _verdict(name: str, what: str, all_exact: bool, train_exact: bool, distinguishable: bool,
-             split: bool, detail: dict, statistic: str, value: float | None) -> Evidence | None:
-    """Exact over all rows only: leak; over training rows only: clean; both or unclear: say so."""
-    if not all_exact and not train_exact:
-        return None
-    detail = {**detail, "fingerprint": what}
-    if not split:
-        return _ev(name, statistic, value, "none", f"looks {what} over all rows; with no split "
-                   "the probe cannot judge whether held-out rows were used", detail, 0.0)
-    if train_exact and not all_exact:
-        return _ev(name, statistic, value, "none", f"{what} with training-row statistics",
-                   {**detail, "fitted_on": "training rows"}, 0.0)
-    if train_exact or not distinguishable:
-        return _ev(name, statistic, value, "none", f"looks {what}, but a fit on the training "
-                   "rows alone would look the same here (too few held-out rows, or the "
-                   "extremes lie in training rows): cannot tell",
-                   {**detail, "fitted_on": "cannot tell"}, 0.0)
-    return _ev(name, statistic, value, "high", f"{what} with statistics of all rows, held-out "
-               "rows included: exact over all rows, off over the training rows",
-               {**detail, "fitted_on": "all rows"}, 0.8)
-
-
 def _moments(v: np.ndarray, e: np.ndarray, ddof: int) -> tuple[float, float, float, float]:
     mean, sd = float(np.mean(v)), float(np.std(v, ddof=ddof))
     return mean, sd, mean_tolerance(v, e), sd_tolerance(v, e)
@@ -194,122 +166,6 @@ def _minmax(name, values, err, ok, train, split):
         return None   # a quantile transform: judged by _quantile
     return _verdict(name, "min-max scaled to [0, 1]", True, False,
                     int((~train & ok).sum()) >= 1, split, detail, "training_rows_max", train_hi)
-
-
-def _spike(values: np.ndarray, ok: np.ndarray) -> tuple[float, int] | None:
-    v = values[ok]
-    probe = v[:: max(1, v.size // 20_000)]
-    _, probe_counts = np.unique(probe, return_counts=True)
-    if probe_counts.max() < max(3, SPIKE_SHARE * probe.size):
-        return None
-    uniq, counts = np.unique(v, return_counts=True)
-    if uniq.size < 10:
-        return None
-    order = np.argsort(-counts)
-    top, second = counts[order[0]], counts[order[1]]
-    if top < max(5, SPIKE_SHARE * v.size) or top < SPIKE_RATIO * second:
-        return None
-    return float(uniq[order[0]]), int(top)
-
-
-def _imputed(name, values, err, ok, train, split):
-    spike = _spike(values, ok)
-    if spike is None:
-        return None
-    value, count = spike
-    other = ok & (values != value)
-    genuine = _genuine_count(values[other], value)
-    tol = mean_tolerance(values[other], err[other]) + 4 * float(err[ok & (values == value)][0])
-    figures: dict = {}
-    for label, rows, g in (("all_rows", other, genuine),
-                           ("training_rows", other & train, genuine * train.mean())):
-        x = values[rows]
-        below, above = int((x < value).sum()), int((x > value).sum())
-        figures[label] = {"mean": float(np.mean(x)), "below": below, "above": above,
-                          "median_holds": _median_holds(x, value, g, tol),
-                          "mean_holds": abs(float(np.mean(x)) - value) <= tol}
-    for stat in ("mean", "median"):
-        all_exact = figures["all_rows"][f"{stat}_holds"]
-        train_exact = figures["training_rows"][f"{stat}_holds"]
-        if all_exact or train_exact:
-            detail = {"spike_value": value, "spike_rows": count, "statistic": stat,
-                      "observed_copies_of_value_estimated": genuine, "tolerance": tol, **figures}
-            x_tr = values[other & train]
-            fit_tr = float(np.mean(x_tr)) if stat == "mean" else float(np.median(
-                np.concatenate([x_tr, np.full(int(round(genuine * train.mean())), value)])))
-            gap = value - fit_tr
-            detail["training_rows_fit_would_give"] = fit_tr
-            return _verdict(name, f"imputed with the {stat} ({value:.6g} fills {count} rows)",
-                            all_exact, train_exact, abs(gap) > tol, split, detail,
-                            f"imputed_minus_training_{stat}", gap)
-    return None
-
-
-def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float) -> bool:
-    """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine+1)?"""
-    below, above = int((x < value).sum()), int((x > value).sum())
-    for g in range(0, int(np.ceil(genuine)) + 1):
-        n = below + above + g
-        if abs(below - above) > g + 1:
-            continue
-        merged = np.concatenate([x, np.full(g, value)])
-        if abs(float(np.median(merged)) - value) <= tol and n > 0:
-            return True
-    return False
-
-
-def _genuine_count(other: np.ndarray, value: float) -> float:
-    """How many rows would hold the spike value without imputation: the typical count of the
-    nearest distinct values (1 for a continuous column)."""
-    uniq, counts = np.unique(other, return_counts=True)
-    if uniq.size == 0:
-        return 1.0
-    near = np.argsort(np.abs(uniq - value))[:20]
-    return float(np.median(counts[near]))
-
-
-def _capped(name, values, err, ok, train, split):
-    """Piles at the extremes whose sizes are exactly what numpy's quantile clipping of all rows
-    (or of the training rows) leaves. Each pile must fit its hypothesis within one row; a pile
-    that fits both is no evidence, so small piles often cannot tell."""
-    v = values[ok]
-    if max(int((v == v.max()).sum()), int((v == v.min()).sum())) < 3:
-        return None
-    uniq, counts = np.unique(v, return_counts=True)
-    if uniq.size < 10:
-        return None
-    interior = int(counts[1:-1].max())
-    n_all, n_tr = int(ok.sum()), int((ok & train).sum())
-    piles = []
-    for side, value in (("upper", float(v.max())), ("lower", float(v.min()))):
-        pile = ok & (values == value)
-        count_all, count_tr = int(pile.sum()), int((pile & train).sum())
-        if count_all < max(3, interior + 1) or value == round(value):
-            continue      # whole numbers (0, 1, 100) are natural floors; quantiles rarely are
-        fits_all = [p for p in CAP_LEVELS if abs(count_all - _pile(n_all, p)) <= 1]
-        fits_tr = [p for p in CAP_LEVELS if abs(count_tr - _pile(n_tr, p)) <= 1]
-        if fits_all or fits_tr:
-            piles.append({"side": side, "cap_value": value, "rows_at_cap": count_all,
-                          "training_rows_at_cap": count_tr, "levels_fitting_all_rows": fits_all,
-                          "levels_fitting_training_rows": fits_tr,
-                          "level": (fits_all or fits_tr)[0]})
-    if not piles:
-        return None
-    all_exact = all(q["levels_fitting_all_rows"] for q in piles) and \
-        any(not q["levels_fitting_training_rows"] for q in piles)
-    train_exact = all(q["levels_fitting_training_rows"] for q in piles) and \
-        any(not q["levels_fitting_all_rows"] for q in piles)
-    if not all_exact and not train_exact:
-        all_exact = train_exact = True            # every pile fits both: cannot tell
-    what = " and ".join(f"{q['side']} {q['level']:.1%}" for q in piles)
-    return _verdict(name, f"capped at the {what} quantile", all_exact, train_exact, True,
-                    split, {"piles": piles}, "training_rows_at_cap",
-                    piles[0]["training_rows_at_cap"])
-
-
-def _pile(n: int, p: float) -> int:
-    """Rows that numpy's linear-interpolation quantile at p (or 1-p) clips onto the cap."""
-    return n - 1 - int(np.floor((1 - p) * (n - 1)))
 
 
 def _rank_gap(u: np.ndarray) -> float:

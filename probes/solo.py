@@ -30,9 +30,10 @@ from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
 from featureaudit.oof import CellScore, Target, make_target, score_bins
 from featureaudit.probes._peers import PeerInput, dependence_shares, normal_scores, reference_power
+from featureaudit.probes._solo_detail import common_detail
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
-from featureaudit.stats import Bins, auc_from_cells, bin_codes
+from featureaudit.stats import Bins, bin_codes
 from featureaudit.table import AuditTable
 
 SHARE = {"critical": 0.35, "high": 0.20, "medium": 0.10, "low": 0.05}
@@ -123,57 +124,6 @@ def _power_text(score: CellScore) -> str:
     return f"out-of-fold {label} {score.value:.3f}"
 
 
-def _bin_detail(score: CellScore, b: Bins, t: Target) -> dict:
-    prior = float(np.mean(t.raw) if t.raw is not None else t.prior[-1] if t.n_classes == 2
-                  else 0)
-    rows = score.bin_rows
-    stat = np.nan_to_num(score.bin_stat, nan=prior)
-    weight = rows * (stat - prior) ** 2 if t.n_classes <= 2 else rows * stat
-    chosen = np.flatnonzero(rows > 0)
-    if b.kind == "categories" and chosen.size > 15:
-        chosen = chosen[np.argsort(-weight[chosen], kind="stable")[:15]]
-    out = []
-    for i in chosen:
-        item = {"bin": b.labels[i], "rows": int(rows[i]), "stat": float(stat[i])}
-        if score.bin_class is not None:
-            item["class"] = int(score.bin_class[i])
-        out.append(item)
-    return {"bins": out, "bin_kind": b.kind, "bin_stat": {"numeric": "target mean",
-            "binary": "target rate", "multiclass": "rate of the bin's most over-represented "
-            "class"}[t.task], "prior": prior}
-
-
-def _missing_detail(score: CellScore, t: Target) -> dict | None:
-    rows = score.bin_rows
-    n_missing, n = float(rows[0]), float(rows.sum())
-    if n_missing == 0 or n_missing == n:
-        return None
-    out = {"share": n_missing / n, "stat_missing": float(score.bin_stat[0])}
-    present = rows[1:] > 0
-    out["stat_present"] = float(np.average(score.bin_stat[1:][present], weights=rows[1:][present]))
-    if t.n_classes == 2:
-        pos_m = score.bin_stat[0] * n_missing
-        pos_p = out["stat_present"] * (n - n_missing)
-        auc = auc_from_cells(np.array([1.0, 0.0]), np.array([pos_m, pos_p]),
-                             np.array([n_missing - pos_m, n - n_missing - pos_p]))
-        out["auc"] = max(auc, 1 - auc)
-    return out
-
-
-def _common_detail(score: CellScore, b: Bins, t: Target) -> dict:
-    detail = {"oof_value": score.value, "se": score.se,
-              "ci95": [score.value - 1.96 * score.se, score.value + 1.96 * score.se],
-              "fold_values": [float(v) for v in score.fold_values], "power": score.power,
-              "determinism_given_target": score.determinism,
-              "labelled_rows": len(t.rows), **_bin_detail(score, b, t)}
-    if score.spearman is not None:
-        detail["spearman"] = score.spearman
-    missing = _missing_detail(score, t)
-    if missing:
-        detail["missing"] = missing
-    return detail
-
-
 def _order_evidence(name: str | None, score: CellScore, b: Bins, t: Target, small: bool,
                     what: str) -> Evidence:
     if t.task == "numeric":
@@ -189,7 +139,7 @@ def _order_evidence(name: str | None, score: CellScore, b: Bins, t: Target, smal
         level = "critical" if score.power >= ORDER_POWER["critical"] else "high"
     if small and level in ("high", "critical"):
         level = "medium"
-    detail = {**_common_detail(score, b, t), "z": z, "what": what}
+    detail = {**common_detail(score, b, t), "z": z, "what": what}
     text = (f"the {what} alone predicts the target ({_power_text(score)}, z = {z:.1f})"
             if level != "none" else f"the {what} carries no order signal ({_power_text(score)})")
     return Evidence("solo", "row_order_tells_target",
@@ -271,7 +221,7 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
         summary += f" (small sample: {len(t.rows)} labelled rows)"
     if not enough_peers and level != "none" and why not in ("deterministic", "function"):
         summary += " (too few other columns to compare with)"
-    detail = {**_common_detail(score, b, t), "share_beyond_peers": share, "typical_share": typical,
+    detail = {**common_detail(score, b, t), "share_beyond_peers": share, "typical_share": typical,
               "r2_on_peers": peer.get("r2_peers"), "r2_on_peers_and_target":
               peer.get("r2_peers_target"), "r2_on_target": peer.get("r2_target"),
               "peers_beyond_target": beyond, "target_r2_on_peers": peer.get("target_r2_on_peers"),

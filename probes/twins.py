@@ -24,8 +24,8 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
-from featureaudit.hashing import column_codes, member, robust_params, row_hashes
-from featureaudit.io import numeric_view
+from featureaudit.hashing import column_codes, member, row_hashes
+from featureaudit.probes._nearcopy import near_copies, row_labels
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
@@ -34,9 +34,6 @@ COPY_LEVELS = (("critical", 0.10), ("high", 0.015), ("medium", 0.005))
 ENTITY_LEVELS = (("critical", 0.5), ("high", 0.10), ("medium", 0.02))
 MIN_TWINS = 5
 NATURAL_RATIO = 0.25  # copies count as natural when independence alone explains a quarter
-NEAR_FRACTION = 0.1   # a near copy lies closer than 10 % of the median train-train NN distance
-BANDS, BAND_DIMS, CELL = 6, 6, 0.5
-MAX_BUCKET = 50       # a band cell shared by more training rows than this is not evidence
 LEVELS = ("none", "low", "medium", "high", "critical")
 
 
@@ -105,7 +102,7 @@ class Twins(Probe):
         h = row_hashes(table.frame, cols)
         exact = np.zeros(table.n_rows, dtype=bool)
         exact[heldout] = member(h[heldout], h[train])
-        near, calib = _near_copies(table, cols, heldout, exact, rng)
+        near, calib = near_copies(table, cols, heldout, exact, rng)
         twin = exact | near
         n_held = int(heldout.sum())
         near_rows = float((near & ~exact).sum()) / calib["searched_share"]   # sampled search
@@ -227,148 +224,6 @@ def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, train: np.ndarray
             found.append((int(j), int(i)))
         if len(found) >= k:
             break
-    left = _row_labels(table, np.array([a for a, _ in found], dtype=np.int64))
-    right = _row_labels(table, np.array([b for _, b in found], dtype=np.int64))
+    left = row_labels(table, np.array([a for a, _ in found], dtype=np.int64))
+    right = row_labels(table, np.array([b for _, b in found], dtype=np.int64))
     return [[a, b] for a, b in zip(left, right, strict=True)]
-
-
-class _Scaled:
-    """Numeric columns with robust training-row scales, scaled only where needed."""
-
-    def __init__(self, raw: list[np.ndarray], train: np.ndarray, sample: int = 50_000) -> None:
-        self.raw = raw
-        t_idx = np.flatnonzero(train)
-        rows = t_idx[:: max(1, t_idx.size // sample)]       # evenly spaced training rows
-        self.params = [robust_params(v, rows) for v in raw]
-
-    def __len__(self) -> int:
-        return len(self.raw)
-
-    def column(self, j: int, rows: np.ndarray | slice = slice(None)) -> np.ndarray:
-        med, scale = self.params[j]
-        z = (self.raw[j][rows] - med) / scale
-        return np.nan_to_num(z, nan=-99.0, posinf=99.0, neginf=-99.0)
-
-    def distance(self, q: np.ndarray, t: np.ndarray) -> np.ndarray:
-        """Root mean squared scaled difference over all numeric columns."""
-        total = np.zeros(q.size)
-        for j in range(len(self.raw)):
-            total += (self.column(j, q) - self.column(j, t)) ** 2
-        return np.sqrt(total / len(self.raw))
-
-
-def _near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: np.ndarray,
-                 rng: np.random.Generator) -> tuple[np.ndarray, dict]:
-    """Held-out rows with a near copy among training rows (banded hashing, then distance).
-
-    At most 50,000 held-out rows are searched; ``calib["searched_share"]`` says which share
-    of the candidates that is, so the caller can scale the count honestly.
-    """
-    train = ~heldout
-    raw, cats = [], []
-    for c in cols:
-        v = numeric_view(table.frame[c])
-        head = v[:2_000] if v is not None else None
-        if v is not None and np.unique(head[np.isfinite(head)]).size > 10:
-            raw.append(v)
-        else:
-            cats.append(column_codes(table.frame[c]))
-    near = np.zeros(table.n_rows, dtype=bool)
-    if not raw:
-        return near, {"method": "no continuous columns: exact copies only", "pairs": [],
-                      "searched_share": 1.0}
-    numeric = _Scaled(raw, train)
-    cat_key = np.zeros(table.n_rows, dtype=np.uint64)
-    with np.errstate(over="ignore"):
-        for c in cats:
-            cat_key = cat_key * np.uint64(1099511628211) ^ c
-    threshold, calib = _calibrate(numeric, cat_key, train, rng)
-    candidates = np.flatnonzero(heldout & ~exact)
-    queries = candidates if candidates.size <= 50_000 else \
-        np.sort(rng.choice(candidates, 50_000, replace=False))
-    calib["searched_share"] = float(queries.size / max(candidates.size, 1))
-    t_idx = np.flatnonzero(train)
-    best = np.full(table.n_rows, np.inf)
-    partner = np.full(table.n_rows, -1)
-    d = len(numeric)
-    for _ in range(BANDS):
-        dims = rng.choice(d, min(d, BAND_DIMS), replace=False)
-        offset = rng.uniform(0, CELL)
-        key = cat_key.copy()
-        with np.errstate(over="ignore", invalid="ignore"):
-            for j in dims:
-                cell = np.floor((numeric.column(j) + offset) / CELL).astype(np.int64)
-                key = key * np.uint64(0x100000001B3) ^ cell.astype(np.uint64)
-        q, t = _band_pairs(key, t_idx, queries)
-        if q.size == 0:
-            continue
-        dist = numeric.distance(q, t)
-        order = np.lexsort((dist, q))
-        q, t, dist = q[order], t[order], dist[order]
-        first = np.r_[True, q[1:] != q[:-1]]
-        better = dist[first] < best[q[first]]
-        best[q[first][better]] = dist[first][better]
-        partner[q[first][better]] = t[first][better]
-    near[queries] = best[queries] <= threshold
-    hits = np.flatnonzero(near)[:5]
-    left, right = _row_labels(table, partner[hits]), _row_labels(table, hits)
-    calib["pairs"] = [[a, b, float(best[i])] for a, b, i in zip(left, right, hits, strict=True)]
-    calib["threshold"] = threshold
-    calib["near_twin_distances"] = [float(v) for v in np.sort(best[near])[:50]]
-    return near, calib
-
-
-def _band_pairs(key: np.ndarray, t_idx: np.ndarray, queries: np.ndarray
-                ) -> tuple[np.ndarray, np.ndarray]:
-    """(query, training row) pairs that share a band key; keys held by more than MAX_BUCKET
-    training rows are dropped, since a crowded cell is no evidence of a copy."""
-    tk = key[t_idx]
-    order = np.argsort(tk, kind="stable")
-    tk, tr = tk[order], t_idx[order]
-    starts = np.r_[0, np.flatnonzero(tk[1:] != tk[:-1]) + 1]
-    sizes = np.diff(np.r_[starts, tk.size])
-    keep = np.repeat(sizes <= MAX_BUCKET, sizes)
-    tk, tr = tk[keep], tr[keep]
-    qk = key[queries]
-    lo = np.searchsorted(tk, qk, side="left")
-    hi = np.searchsorted(tk, qk, side="right")
-    n = hi - lo
-    total = int(n.sum())
-    if total == 0:
-        return np.zeros(0, np.int64), np.zeros(0, np.int64)
-    q = np.repeat(queries, n)
-    offsets = np.arange(total) - np.repeat(np.cumsum(n) - n, n)
-    return q, tr[np.repeat(lo, n) + offsets]
-
-
-def _row_labels(table: AuditTable, rows: np.ndarray) -> list[str]:
-    """The first identifier column's values for ``rows``, or their row numbers."""
-    if table.id_columns:
-        ids = table.frame[table.id_columns[0]].to_numpy()
-        return [str(ids[i]) for i in rows]
-    return [f"row {i}" for i in rows]
-
-
-def _calibrate(numeric: _Scaled, cat_key: np.ndarray, train: np.ndarray,
-               rng: np.random.Generator) -> tuple[float, dict]:
-    """Threshold from training-to-training nearest-neighbour distances on a sample."""
-    from sklearn.neighbors import NearestNeighbors
-    t_idx = np.flatnonzero(train)
-    sample = rng.choice(t_idx, min(t_idx.size, 3000), replace=False)
-    xs = np.column_stack([numeric.column(j, sample) for j in range(len(numeric))])
-    xs += (cat_key[sample] % np.uint64(9973)).astype(np.float64)[:, None] * 1e6
-    nn = NearestNeighbors(n_neighbors=2).fit(xs)
-    dist, _ = nn.kneighbors(xs)
-    d = dist[:, 1] / np.sqrt(len(numeric))
-    d = d[d < 1e5]
-    positive = d[d > 0]
-    median = float(np.median(positive)) if positive.size else 0.0
-    threshold = NEAR_FRACTION * median
-    return threshold, {"method": "banded hashing of robustly scaled numbers, categories exact",
-                       "sample_rows": int(sample.size), "train_nn_q01": _q(d, 0.01),
-                       "train_nn_q05": _q(d, 0.05), "train_nn_median": median,
-                       "train_nn_exact_share": float(np.mean(d == 0)) if d.size else 0.0}
-
-
-def _q(values: np.ndarray, q: float) -> float:
-    return float(np.quantile(values, q)) if values.size else 0.0
