@@ -152,14 +152,14 @@ class Twins(Probe):
         level = _level(share_rows, ENTITY_LEVELS)
         if simulated:
             level = "low" if level != "none" else "none"
-        what = "a random 80/20 split would put" if simulated else "the split puts"
         examples = [str(v) for v in pd.unique(table.frame[table.entity][shared_rows])[:5]]
+        lead = "under a random 80/20 split, " if simulated else ""
+        summary = (f"{lead}{share_ent:.0%} of held-out {table.entity} values also have training "
+                   f"rows; they hold {share_rows:.0%} of held-out rows") if share_rows else \
+            f"no {table.entity} has rows on both sides of the split"
         return Evidence(
             self.name, "shared_entities_across_split", "heldout_row_share_with_shared_entity",
-            share_rows, ENTITY_LEVELS[1][1], level,
-            summary=(f"{what} {share_ent:.0%} of held-out {table.entity} values on both sides, "
-                     f"holding {share_rows:.0%} of held-out rows") if share_rows else
-            f"no {table.entity} appears on both sides of the split",
+            share_rows, ENTITY_LEVELS[1][1], level, summary=summary,
             severity=min(1.0, share_rows), detail={
                 "entity": table.entity, "heldout_entities": int(held_entities.size),
                 "shared_entities": int(len(shared_entities)), "share_entities": share_ent,
