@@ -101,29 +101,42 @@ def encoding_evidence(table: AuditTable, train: np.ndarray) -> list[Evidence]:
     return evidence
 
 
+def _best_gap(table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray,
+              per_cat: np.ndarray, seen: np.ndarray) -> tuple[float, str]:
+    """The closest encoder fitted on ``rows``: its largest gap to the column, and its name."""
+    if rows.sum() < 2:
+        return np.inf, ""
+    return min(((float(np.max(np.abs(enc[seen] - per_cat[seen]))), label)
+                for label, enc in _candidates(table, codes, k, rows)), key=lambda g: g[0])
+
+
 def _match(table: AuditTable, name: str, cat: str, per_cat: np.ndarray, codes: np.ndarray,
            k: int, x: np.ndarray, labelled: np.ndarray, train: np.ndarray) -> Evidence | None:
+    """Which fit the column equals: all labelled rows (held-out targets used) or the training
+    rows in sample. When both fit, or no held-out row has a target, the held-out targets
+    cannot be blamed and the in-sample reading is the one reported."""
     seen = np.isfinite(per_cat)
     scale = np.nanmax(np.abs(per_cat)) or 1.0
     tol = 1e-6 * scale + 1e-9 if table.frame[name].dtype != np.float32 else 1e-6 * scale
-    fits = {"all rows": labelled & (codes >= 0), "training rows": labelled & train & (codes >= 0)}
-    for fitted_on, rows in fits.items():
-        if rows.sum() < 2:
-            continue
-        for label, enc in _candidates(table, codes, k, rows):
-            gap = float(np.max(np.abs(enc[seen] - per_cat[seen])))
-            if gap > tol:
-                continue
-            detail = {"category_column": cat, "encoder": label, "fitted_on": fitted_on,
-                      "categories": int(seen.sum()), "max_abs_gap": gap}
-            if fitted_on == "all rows":
-                return Evidence("fitscope", "fit_on_all_rows", "max_abs_gap_to_all_rows_encoding",
-                                gap, tol, "critical", column=name, severity=0.9, detail=detail,
-                                summary=f"target encoding of {cat!r} fitted with held-out "
-                                        f"targets: equals {label} on all labelled rows")
-            return Evidence("fitscope", "target_proxy", "max_abs_gap_to_in_sample_encoding",
-                            gap, tol, "high", column=name, severity=0.7, detail=detail,
-                            summary=f"target encoding of {cat!r} fitted in sample: each "
-                                    "training row's value includes its own target; encode "
-                                    "out of fold (cross fitting)")
+    fit_rows = labelled & train & (codes >= 0)
+    gap_tr, label_tr = _best_gap(table, codes, k, fit_rows, per_cat, seen)
+    held_labelled = bool((labelled & ~train & (codes >= 0)).any())
+    gap_all, label_all = _best_gap(table, codes, k, labelled & (codes >= 0), per_cat, seen) \
+        if held_labelled else (np.inf, "")
+    if gap_all <= tol and gap_tr > tol:
+        detail = {"category_column": cat, "encoder": label_all, "fitted_on": "all rows",
+                  "categories": int(seen.sum()), "max_abs_gap": gap_all,
+                  "gap_to_training_fit": gap_tr}
+        return Evidence("fitscope", "fit_on_all_rows", "max_abs_gap_to_all_rows_encoding",
+                        gap_all, tol, "critical", column=name, severity=0.9, detail=detail,
+                        summary=f"target encoding of {cat!r} fitted with held-out targets: "
+                                f"equals {label_all} on all labelled rows")
+    if gap_tr <= tol:
+        detail = {"category_column": cat, "encoder": label_tr, "fitted_on": "training rows",
+                  "categories": int(seen.sum()), "max_abs_gap": gap_tr}
+        return Evidence("fitscope", "target_proxy", "max_abs_gap_to_in_sample_encoding",
+                        gap_tr, tol, "high", column=name, severity=0.7, detail=detail,
+                        summary=f"target encoding of {cat!r} fitted in sample: each training "
+                                "row's value includes its own target; encode out of fold "
+                                "(cross fitting)")
     return None

@@ -222,3 +222,18 @@ def test_natural_floor_at_zero_is_not_taken_for_capping():
         split = frame.assign(split=np.where(held, "test", "train"))
         result = fa.audit(split, target="y", split_column="split", probes=["fitscope"])
         assert result.columns.set_index("column").loc["PCTAF", "level"] == "none"
+
+
+def test_encoding_with_unlabelled_heldout_rows_cannot_blame_heldout_targets():
+    # The held-out table has no target: an all-rows fit equals a training fit, so the
+    # in-sample reading (target_proxy) is reported, never fit_on_all_rows.
+    frame, column, other = _breast_cancer()
+    cats = pd.qcut(frame[other], 10, labels=False).to_numpy()[:, None]
+    held = _split(frame, column, seed=2, hold_extremes=False)
+    y = frame["y"].to_numpy()
+    enc = _encoder().fit(cats[~held], y[~held]).transform(cats)[:, 0]
+    frame = frame.assign(**{column: enc, "band": pd.Categorical([f"b{c}" for c in cats[:, 0]])})
+    train, test = frame[~held], frame[held].drop(columns="y")
+    result = fa.audit(train, test=test, target="y", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    assert "fit_on_all_rows" not in row["kinds"] and "target_proxy" in row["kinds"]
