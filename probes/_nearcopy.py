@@ -82,7 +82,7 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
     candidates = np.flatnonzero(heldout & ~exact)
     queries = candidates if candidates.size <= MAX_QUERIES else \
         np.sort(rng.choice(candidates, MAX_QUERIES, replace=False))
-    calib["searched_share"] = float(queries.size / max(candidates.size, 1))
+    calib["searched_share"] = float(queries.size / candidates.size) if candidates.size else 1.0
     t_idx = np.flatnonzero(train)
     best = np.full(table.n_rows, np.inf)
     partner = np.full(table.n_rows, -1)

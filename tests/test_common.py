@@ -104,3 +104,11 @@ def test_registry_rejects_bad_declarations():
                 return [], []
     unregister("nodoc")
     unregister("badkind")
+
+
+def test_no_probe_fails_through_the_pipeline():
+    import featureaudit as fa
+    result = fa.audit(_awkward_table(), target="y", split_column="split",
+                      label_time="decided_at", entity="customer")
+    assert not [s for s in result.document["skipped"] if "failed" in s["reason"]]
+    assert not [w for w in result.document["warnings"] if "failed" in w]

@@ -127,3 +127,15 @@ def test_natural_copies_of_discrete_survey_data_are_not_shouted():
     found = _finding(fa.audit(frame, probes=["twins"]), "duplicate_rows_across_split")
     assert found["level"] not in HIGH
     assert found["detail"]["expected_share_if_columns_independent"] > 0.1
+
+
+def test_every_heldout_row_an_exact_copy():
+    # No held-out row is left for the near-copy search; the share must still be computed.
+    rng = np.random.default_rng(5)
+    train = pd.DataFrame({"x": rng.normal(size=300), "w": rng.normal(size=300),
+                          "y": rng.integers(0, 2, 300)})
+    result = fa.audit(train, test=train.sample(40, random_state=1), target="y",
+                      probes=["twins"])
+    found = _finding(result, "duplicate_rows_across_split")
+    assert found["value"] == 1.0 and found["level"] == "critical"
+    assert not result.document["skipped"]
