@@ -135,7 +135,8 @@ def audit(
     table = build_table(data, test=test, split_column=split_column, train_value=train_value,
                         target=target, task=task, dictionary=dictionary, label_time=label_time,
                         cutoff_time=cutoff_time, horizon=horizon, entity=entity, source=source)
-    settings = settings or Settings(seed=seed)
-    if settings.seed != seed and seed != 0:
+    if settings is None:
+        settings = Settings(seed=seed)
+    elif seed != 0 and seed != settings.seed:      # an explicit seed wins over the settings'
         settings = Settings(**{**settings.to_dict(), "seed": seed})
     return AuditResult(run_audit(table, settings, probes=probes))

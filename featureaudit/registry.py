@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from typing import ClassVar
 
 from featureaudit.evidence import KINDS, Evidence, Skip
@@ -60,5 +59,3 @@ def unregister(name: str) -> None:
     """Remove a probe (for tests that register throwaway probes)."""
     _REGISTRY.pop(name, None)
 
-
-Factory = Callable[[], Probe]

@@ -13,7 +13,7 @@ import pandas as pd
 
 from featureaudit.errors import SettingError
 
-__all__ = ["as_datetime", "looks_like_datetime"]
+__all__ = ["as_datetime"]
 
 _EPOCH_S = (1e8, 5e9)     # 1973 .. 2128 in seconds
 _EPOCH_MS = (1e11, 5e12)  # the same span in milliseconds
@@ -62,8 +62,3 @@ def as_datetime(s: pd.Series, *, column: str, what: str = "column") -> pd.Series
     if zoned.all():
         parsed = parsed.dt.tz_convert("UTC").dt.tz_localize(None)
     return parsed.astype("datetime64[ns]")
-
-
-def looks_like_datetime(s: pd.Series) -> bool:
-    """True for datetime dtypes (what the loader already parsed)."""
-    return pd.api.types.is_datetime64_any_dtype(s.dtype)
