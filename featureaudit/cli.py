@@ -139,6 +139,8 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     for f in doc["dataset_findings"]:
         if LEVEL_RANK[f["level"]] >= LEVEL_RANK["medium"]:
             print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
+    for warning in doc["warnings"]:
+        print(f"featureaudit: warning: {warning}", file=sys.stderr)
     print(f"dossier: {out_dir / 'dossier.html'}")
 
 

@@ -152,3 +152,11 @@ def test_every_command_has_an_example_in_its_help():
         result = run(command, "--help")
         assert result.exit_code == 0 and "Example: featureaudit " + command in \
             " ".join(result.stdout.split()), command
+
+
+def test_dictionary_warnings_reach_stderr(leaky_csv, tmp_path):
+    d = tmp_path / "d.csv"
+    d.write_text("column,role\nghost,feature\ny,target\n")
+    result = run("scan", leaky_csv, "--dictionary", d, "--out", tmp_path / "r")
+    assert result.exit_code == 0
+    assert "warning" in result.stderr and "'ghost'" in result.stderr
