@@ -160,3 +160,40 @@ def test_dictionary_warnings_reach_stderr(leaky_csv, tmp_path):
     result = run("scan", leaky_csv, "--dictionary", d, "--out", tmp_path / "r")
     assert result.exit_code == 0
     assert "warning" in result.stderr and "'ghost'" in result.stderr
+
+
+def test_config_settings_and_their_validation(leaky_csv, tmp_path):
+    cfg = tmp_path / "s.toml"
+    cfg.write_text('target = "y"\nbins = 12\nfolds = 4\ntime_tolerance = "2d"\n')
+    result = run("scan", leaky_csv, "--config", cfg, "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    settings = json.loads((tmp_path / "r" / "findings.json").read_text())["settings"]
+    assert (settings["bins"], settings["folds"], settings["time_tolerance"]) == (12, 4, "2d")
+    cfg.write_text('target = "y"\nbins = 1\n')
+    assert_bad = run("scan", leaky_csv, "--config", cfg, "--out", tmp_path / "r2")
+    assert assert_bad.exit_code == 2 and "bins" in assert_bad.stderr
+    cfg.write_text('target = "y"\ntime_tolerance = "soon"\n')
+    bad = run("scan", leaky_csv, "--config", cfg, "--out", tmp_path / "r3")
+    assert bad.exit_code == 2 and "time_tolerance" in bad.stderr
+    cfg.write_text('target = "y"\nbins = "many"\n')
+    bad = run("scan", leaky_csv, "--config", cfg, "--out", tmp_path / "r4")
+    assert bad.exit_code == 2 and bad.stderr.count("\n") == 1
+
+
+def test_scan_with_a_heldout_file_and_a_horizon(tmp_path):
+    rng = np.random.default_rng(3)
+    n = 600
+    frame = pd.DataFrame({"x": rng.normal(size=n), "w": rng.normal(size=n),
+                          "decided": pd.date_range("2024-01-01", periods=n, freq="D"),
+                          "y": rng.integers(0, 2, n)})
+    frame.iloc[:480].to_csv(tmp_path / "train.csv", index=False)
+    frame.iloc[480:].drop(columns="y").to_parquet(tmp_path / "later.parquet")
+    result = run("scan", tmp_path / "train.csv", "--test", tmp_path / "later.parquet",
+                 "--target", "y", "--label-time", "decided", "--horizon", "30 days",
+                 "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    doc = json.loads((tmp_path / "r" / "findings.json").read_text())
+    assert doc["dataset"]["split"] == "test:later.parquet"
+    assert doc["dataset"]["heldout_rows"] == 120 and doc["dataset"]["cutoff"] == "horizon:30 days"
+    overlap = [f for f in doc["dataset_findings"] if f["kind"] == "time_overlap_across_split"]
+    assert overlap and overlap[0]["level"] == "none"
