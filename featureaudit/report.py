@@ -8,6 +8,7 @@ from typing import Any
 
 import jinja2
 
+from featureaudit.evidence import LEVEL_RANK
 from featureaudit.findings import Findings, droplist
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
@@ -37,7 +38,7 @@ def _env() -> jinja2.Environment:
     from featureaudit import charts
     for name in charts.__all__:
         env.globals[name] = getattr(charts, name)
-    env.globals["rank"] = {"none": 0, "low": 1, "medium": 2, "high": 3, "critical": 4}
+    env.globals["rank"] = LEVEL_RANK
     return env
 
 

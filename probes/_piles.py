@@ -96,8 +96,6 @@ def capped(name, values, err, ok, train, split):
     (or of the training rows) leaves. Each pile must fit its hypothesis within one row; a pile
     that fits both is no evidence, so small piles often cannot tell."""
     v = values[ok]
-    if max(int((v == v.max()).sum()), int((v == v.min()).sum())) < 3:
-        return None
     uniq, counts = np.unique(v, return_counts=True)
     if uniq.size < 10:
         return None

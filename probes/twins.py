@@ -87,8 +87,7 @@ class Twins(Probe):
         detail = {"rows_with_copy": int(dup.sum()), "rows": table.n_rows,
                   "expected_share_if_columns_independent": natural,
                   "extra_copies": int(pd.Series(h).duplicated().sum()), "columns": len(cols),
-                  "examples": _pairs(table, h, np.ones(table.n_rows, bool),
-                                     np.ones(table.n_rows, bool)), "simulated_split": True}
+                  "examples": _pairs(table, h, dup, _first_row(h, dup)), "simulated_split": True}
         return Evidence(self.name, "duplicate_rows_across_split", "share_rows_with_copy", share,
                         COPY_LEVELS[1][1], level,
                         summary=(f"{share:.1%} of rows have an exact copy in the table: a random "
@@ -108,7 +107,8 @@ class Twins(Probe):
         near_rows = float((near & ~exact).sum()) / calib["searched_share"]   # sampled search
         share_exact = float(exact.sum() / n_held)
         share = float((exact.sum() + near_rows) / n_held)
-        agree, base = _agreement(table, h, exact, train)
+        first_train = _first_row(h, train)
+        agree, base = _agreement(table, h, exact, train, first_train)
         level = _level(share, COPY_LEVELS)
         notes = []
         if exact.sum() + near_rows < MIN_TWINS and level != "none":
@@ -125,7 +125,8 @@ class Twins(Probe):
                   "heldout_rows_with_near_twin": int(round(near_rows)),
                   "share_exact": share_exact, "share_near": near_rows / n_held,
                   "label_agreement": agree, "label_agreement_by_chance": base,
-                  "examples": _pairs(table, h, exact, train), "near_examples": calib.pop("pairs"),
+                  "examples": _pairs(table, h, exact, first_train),
+                  "near_examples": calib.pop("pairs"),
                   "calibration": calib, "columns": len(cols), "notes": notes,
                   "expected_share_if_columns_independent": natural}
         text = (f"{share:.1%} of held-out rows have a copy among the training rows "
@@ -184,15 +185,17 @@ def _natural_share(table: AuditTable, cols: list[str], partners: int, sample: in
     return float(-np.expm1(-partners * np.exp(log_p)))
 
 
-def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.ndarray
-               ) -> tuple[float | None, float | None]:
-    """How often a held-out twin's target equals its training copy's, and by chance."""
+def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.ndarray,
+               first_train: pd.Series) -> tuple[float | None, float | None]:
+    """How often a held-out twin's target equals its training copy's, and by chance.
+
+    ``first_train`` maps each training hash to its first row; it serves as it is when every
+    training row is labelled."""
     if table.y is None or not exact.any():
         return None, None
     labelled = table.labelled
     t_idx = np.flatnonzero(train & labelled)
-    first = pd.Series(t_idx, index=h[t_idx])
-    first = first[~first.index.duplicated()]
+    first = first_train if labelled[train].all() else _first_row(h, train & labelled)
     rows = np.flatnonzero(exact & labelled)
     if rows.size == 0:
         return None, None
@@ -212,11 +215,16 @@ def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.nd
     return float(np.mean(y[rows] == y[match])), float(np.sum(share ** 2))
 
 
-def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, train: np.ndarray,
+def _first_row(h: np.ndarray, mask: np.ndarray) -> pd.Series:
+    """The first row under ``mask`` for each row hash: hash -> row position."""
+    idx = np.flatnonzero(mask)
+    first = pd.Series(idx, index=h[idx])
+    return first[~first.index.duplicated()]
+
+
+def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, first: pd.Series,
            k: int = 5) -> list[list[str]]:
-    t_idx = np.flatnonzero(train)
-    first = pd.Series(t_idx, index=h[t_idx])
-    first = first[~first.index.duplicated()]
+    """Up to ``k`` (copy, row) label pairs; ``first`` maps a hash to its first partner row."""
     found: list[tuple[int, int]] = []
     for i in np.flatnonzero(rows):
         j = first.get(h[i])

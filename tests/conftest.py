@@ -22,31 +22,31 @@ def noisy_copy():
     return _noisy_copy
 
 
+def _bundled(loader, target: str, flip: bool = False) -> pd.DataFrame:
+    """A scikit-learn bundled dataset as one frame, its target in column ``target``."""
+    data = loader(as_frame=True)
+    frame = data.data.copy()
+    y = data.target.to_numpy()
+    frame[target] = 1 - y if flip else y
+    return frame
+
+
 @pytest.fixture(scope="session")
 def breast_cancer() -> pd.DataFrame:
     """scikit-learn's bundled breast-cancer data (real), target 'malignant' (1 = malignant)."""
-    data = load_breast_cancer(as_frame=True)
-    frame = data.data.copy()
-    frame["malignant"] = 1 - data.target.to_numpy()
-    return frame
+    return _bundled(load_breast_cancer, "malignant", flip=True)
 
 
 @pytest.fixture(scope="session")
 def wine() -> pd.DataFrame:
     """scikit-learn's bundled wine data (real): three cultivars, target 'cultivar'."""
-    data = load_wine(as_frame=True)
-    frame = data.data.copy()
-    frame["cultivar"] = data.target.to_numpy()
-    return frame
+    return _bundled(load_wine, "cultivar")
 
 
 @pytest.fixture(scope="session")
 def diabetes() -> pd.DataFrame:
     """scikit-learn's bundled diabetes data (real): numeric target 'progression'."""
-    data = load_diabetes(as_frame=True)
-    frame = data.data.copy()
-    frame["progression"] = data.target.to_numpy()
-    return frame
+    return _bundled(load_diabetes, "progression")
 
 
 @pytest.fixture()
