@@ -252,9 +252,8 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     pick = np.sort(pick)
     cols, trees = [], []
     for name in features:
-        values = numeric_view(table.frame[name])
-        if not _encoded_in_peer_test(table.frame[name], t):
-            raw = normal_scores(values[t.rows][pick])
+        if bins[name].codes is None:     # run() kept codes only for encoded columns
+            raw = normal_scores(numeric_view(table.frame[name])[t.rows][pick])
         else:
             pred = scores[name].row_scores(t, bins[name].codes)[pick]
             if pred.ndim == 2:
