@@ -12,8 +12,8 @@ from typer.core import TyperGroup
 
 from featureaudit import __version__
 from featureaudit.errors import FeatureAuditError, SettingError
-from featureaudit.evidence import LEVEL_RANK
 from featureaudit.findings import diff_findings, droplist, load_findings
+from featureaudit.levels import Level
 from featureaudit.settings import Settings, check_level, read_config
 
 __all__ = ["app", "main"]
@@ -54,10 +54,10 @@ def _fail(exc: BaseException) -> None:
 
 
 def _reached(doc: dict[str, Any], level: str) -> list[str]:
-    floor = LEVEL_RANK[level]
-    hits = [c["column"] for c in doc["columns"] if LEVEL_RANK[c["level"]] >= floor]
+    floor = Level.parse(level)
+    hits = [c["column"] for c in doc["columns"] if Level.parse(c["level"]) >= floor]
     hits += [f"{f['kind']} (split)" for f in doc["dataset_findings"]
-             if LEVEL_RANK[f["level"]] >= floor]
+             if Level.parse(f["level"]) >= floor]
     return hits
 
 
@@ -133,11 +133,11 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     print(f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
           f"{d['heldout_rows']} held out), target {d['target']} ({d['task']})")
     print(verdict_line(Findings(doc)))
-    top = [c for c in doc["columns"] if LEVEL_RANK[c["level"]] >= LEVEL_RANK["medium"]][:8]
+    top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
         print(f"  {c['level']:<8} {c['score']:.2f}  {c['column']}: {c['summary']}")
     for f in doc["dataset_findings"]:
-        if LEVEL_RANK[f["level"]] >= LEVEL_RANK["medium"]:
+        if Level.parse(f["level"]) >= Level.MEDIUM:
             print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
@@ -185,7 +185,7 @@ def diff(
     for line in lines:
         print(line.text())
     if level and any(d.change in ("new", "raised") and d.new_level
-                     and LEVEL_RANK[d.new_level] >= LEVEL_RANK[level] for d in lines):
+                     and Level.parse(d.new_level) >= Level.parse(level) for d in lines):
         return 1
     return 0
 

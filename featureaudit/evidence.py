@@ -12,12 +12,13 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["KINDS", "LEVEL_RANK", "Evidence", "ColumnVerdict", "Skip", "clean_json"]
+from featureaudit.levels import LEVEL_NAMES, Level
+
+__all__ = ["KINDS", "Evidence", "ColumnVerdict", "Skip", "clean_json"]
 
 KINDS = ("target_proxy", "recorded_after_cutoff", "fit_on_all_rows", "row_order_tells_target",
          "duplicate_rows_across_split", "shared_entities_across_split",
          "time_overlap_across_split", "split_shift")
-LEVEL_RANK = {"none": 0, "low": 1, "medium": 2, "high": 3, "critical": 4}
 
 
 def clean_json(value: Any) -> Any:
@@ -60,8 +61,15 @@ class Evidence:
     def __post_init__(self) -> None:
         if self.kind not in KINDS:
             raise ValueError(f"evidence kind {self.kind!r} is not one of {KINDS}")
-        if self.level not in LEVEL_RANK:
-            raise ValueError(f"evidence level {self.level!r} is not one of {tuple(LEVEL_RANK)}")
+        if isinstance(self.level, Level):
+            object.__setattr__(self, "level", self.level.label)
+        if self.level not in LEVEL_NAMES:
+            raise ValueError(f"evidence level {self.level!r} is not one of {LEVEL_NAMES}")
+
+    @property
+    def rank(self) -> Level:
+        """The level as an ordered :class:`Level`."""
+        return Level.parse(self.level)
 
     def to_dict(self) -> dict[str, Any]:
         return clean_json({"probe": self.probe, "kind": self.kind, "statistic": self.statistic,

@@ -9,7 +9,8 @@ from pathlib import Path
 from typing import Any
 
 from featureaudit.errors import InputFileError
-from featureaudit.evidence import LEVEL_RANK, clean_json
+from featureaudit.evidence import clean_json
+from featureaudit.levels import Level
 
 __all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
 
@@ -72,8 +73,8 @@ def load_findings(path: str | Path) -> Findings:
 
 def droplist(findings: Findings, at_least: str = "high") -> list[str]:
     """Columns at ``at_least`` or above, most suspect first (the file lists them by score)."""
-    floor = LEVEL_RANK[at_least]
-    cols = [c for c in findings.columns if LEVEL_RANK.get(c.get("level", "none"), 0) >= floor]
+    floor = Level.parse(at_least)
+    cols = [c for c in findings.columns if Level.parse(c.get("level", "none")) >= floor]
     cols.sort(key=lambda c: -float(c.get("score") or 0.0))
     return [c["column"] for c in cols]
 
@@ -118,12 +119,12 @@ def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
                 continue
             was = before[name].get("level", "none")
             if was != level:
-                change = "raised" if LEVEL_RANK[level] > LEVEL_RANK[was] else "lowered"
+                change = "raised" if Level.parse(level) > Level.parse(was) else "lowered"
                 lines.append(DiffLine(change, scope, name, was, level, item.get("summary", "")))
         for name, item in before.items():
             if name not in after:
                 lines.append(DiffLine("gone", scope, name, item.get("level", "none"), None))
     order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
-    lines.sort(key=lambda d: (order[d.change], -LEVEL_RANK[d.new_level or d.old_level or "none"],
+    lines.sort(key=lambda d: (order[d.change], -Level.parse(d.new_level or d.old_level or "none"),
                               d.scope, d.name))
     return lines

@@ -7,16 +7,15 @@ level band (none 0–0.2, low 0.2–0.4, …, critical 0.8–1) by the strongest
 
 from __future__ import annotations
 
-from featureaudit.evidence import LEVEL_RANK, ColumnVerdict, Evidence
+from featureaudit.evidence import ColumnVerdict, Evidence
+from featureaudit.levels import Level
 from featureaudit.table import AuditTable
 
 __all__ = ["rank"]
 
-_LEVELS = tuple(LEVEL_RANK)
 
-
-def _strength(e: Evidence) -> tuple[int, float]:
-    return LEVEL_RANK[e.level], min(max(e.severity, 0.0), 0.999)
+def _strength(e: Evidence) -> tuple[Level, float]:
+    return e.rank, min(max(e.severity, 0.0), 0.999)
 
 
 def rank(table: AuditTable, evidence: list[Evidence]
@@ -45,18 +44,18 @@ def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdi
                              role, description)
     top = items[0]
     rank_, sev = _strength(top)
-    strong_kinds = {e.kind for e in items if LEVEL_RANK[e.level] >= LEVEL_RANK["high"]}
-    if rank_ == LEVEL_RANK["high"] and len(strong_kinds) >= 2:
-        rank_, sev = LEVEL_RANK["critical"], 0.0
-    level = _LEVELS[rank_]
+    strong_kinds = {e.kind for e in items if e.rank >= Level.HIGH}
+    if rank_ == Level.HIGH and len(strong_kinds) >= 2:
+        rank_, sev = Level.CRITICAL, 0.0
+    level = rank_.label
     kinds: list[str] = []
     for e in items:
-        if LEVEL_RANK[e.level] >= LEVEL_RANK["low"] and e.kind not in kinds:
+        if e.rank >= Level.LOW and e.kind not in kinds:
             kinds.append(e.kind)
     summary = top.summary or f"{top.statistic} = {top.value}"
     others = [k for k in kinds if k != top.kind]
     if others:
         summary += "; also " + ", ".join(k.replace("_", " ") for k in others)
-    score = (rank_ + sev) / len(_LEVELS)
+    score = (int(rank_) + sev) / len(Level)
     return ColumnVerdict(name, score, level, tuple(kinds), summary, tuple(items), role,
                          description)

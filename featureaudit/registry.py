@@ -49,9 +49,36 @@ def register(cls: type[Probe]) -> type[Probe]:
     return cls
 
 
+ENTRY_POINT_GROUP = "featureaudit.probes"
+_plugins_loaded = False
+
+
+def _load_plugins() -> None:
+    """Register third-party probes named in the ``featureaudit.probes`` entry-point group.
+
+    An entry point names a probe class (registered here) or a module whose ``@register``
+    decorators run on import. A plugin is checked exactly as a built-in probe is.
+    """
+    global _plugins_loaded
+    if _plugins_loaded:
+        return
+    _plugins_loaded = True
+    from importlib.metadata import entry_points
+    for ep in sorted(entry_points(group=ENTRY_POINT_GROUP), key=lambda e: e.name):
+        try:
+            obj = ep.load()
+        except Exception as exc:
+            raise TypeError(f"probe plugin {ep.name!r} ({ep.value}) failed to import: "
+                            f"{type(exc).__name__}: {exc}") from exc
+        if isinstance(obj, type) and issubclass(obj, Probe) and _REGISTRY.get(obj.name) is not obj:
+            register(obj)
+
+
 def registered() -> dict[str, type[Probe]]:
-    """Every registered probe by name (importing featureaudit.probes registers them)."""
+    """Every registered probe by name: the built-in ones (importing featureaudit.probes
+    registers them) and those of installed plugins."""
     import featureaudit.probes  # noqa: F401  (registers on import)
+    _load_plugins()
     return dict(_REGISTRY)
 
 

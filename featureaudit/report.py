@@ -8,8 +8,8 @@ from typing import Any
 
 import jinja2
 
-from featureaudit.evidence import LEVEL_RANK
 from featureaudit.findings import Findings, droplist
+from featureaudit.levels import Level
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
 
@@ -38,7 +38,7 @@ def _env() -> jinja2.Environment:
     from featureaudit import charts
     for name in charts.__all__:
         env.globals[name] = getattr(charts, name)
-    env.globals["rank"] = LEVEL_RANK
+    env.globals["rank"] = {lv.label: int(lv) for lv in Level}
     return env
 
 

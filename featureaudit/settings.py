@@ -10,10 +10,10 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.errors import InputFileError, SettingError
+from featureaudit.levels import LEVEL_NAMES, Level
 
-__all__ = ["Settings", "LEVELS", "read_config", "CONFIG_KEYS"]
+__all__ = ["Settings", "read_config", "CONFIG_KEYS"]
 
-LEVELS = ("none", "low", "medium", "high", "critical")
 TASKS = ("binary", "multiclass", "numeric")
 
 # Keys of the config file: every scan flag, with '-' written as '_'.
@@ -73,7 +73,8 @@ def read_config(path: str | Path) -> dict[str, Any]:
 
 def check_level(value: str, *, flag: str) -> str:
     """Validate a level name given to ``flag``."""
-    low = str(value).strip().lower()
-    if low not in LEVELS:
-        raise SettingError(f"{flag} {value!r} is not a level; use one of {', '.join(LEVELS)}.")
-    return low
+    try:
+        return Level.parse(value).label
+    except ValueError:
+        raise SettingError(f"{flag} {value!r} is not a level; use one of "
+                           f"{', '.join(LEVEL_NAMES)}.") from None

@@ -7,7 +7,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from featureaudit.evidence import KINDS, LEVEL_RANK, Evidence, Skip
+from featureaudit.evidence import KINDS, Evidence, Skip
+from featureaudit.levels import LEVEL_NAMES
 from featureaudit.registry import Probe, register, registered, unregister
 from featureaudit.settings import Settings
 from featureaudit.table import build_table
@@ -48,7 +49,7 @@ def test_probe_returns_valid_evidence_and_survives_awkward_columns(name, table):
     evidence, skipped = registered()[name]().run(table, Settings())
     for e in evidence:
         assert isinstance(e, Evidence) and e.probe == name and e.kind in registered()[name].kinds
-        assert e.level in LEVEL_RANK
+        assert e.level in LEVEL_NAMES
         assert e.column is None or e.column in table.frame.columns
         json.dumps(e.to_dict(), allow_nan=False)
     assert all(isinstance(s, Skip) and s.reason for s in skipped)

@@ -10,11 +10,12 @@ import pytest
 from markupsafe import escape
 
 import featureaudit as fa
-from featureaudit.evidence import KINDS, LEVEL_RANK
+from featureaudit.evidence import KINDS
 from featureaudit.findings import Findings
+from featureaudit.levels import LEVEL_NAMES
 from featureaudit.report import CAUTION, render_all, render_dossier, render_summary
 
-LEVELS = list(LEVEL_RANK)
+LEVELS = list(LEVEL_NAMES)
 
 
 def _doc(columns=(), dataset=(), skipped=(), warnings=()):

@@ -22,7 +22,9 @@ def test_wheel_has_one_top_level_package(wheel):
     names = zipfile.ZipFile(wheel).namelist()
     tops = {n.split("/")[0] for n in names if not n.split("/")[0].endswith(".dist-info")}
     assert tops == {"featureaudit"}
-    for needed in ("featureaudit/probes/solo.py", "featureaudit/reports/templates/dossier.html.j2",
+    for needed in ("featureaudit/probes/solo/__init__.py",
+                   "featureaudit/probes/solo/_peers.py", "featureaudit/probes/twins/hashing.py",
+                   "featureaudit/reports/templates/dossier.html.j2",
                    "featureaudit/sample_data/invoices.csv",
                    "featureaudit/sample_data/dictionary.csv"):
         assert needed in names, needed

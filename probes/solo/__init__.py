@@ -28,9 +28,15 @@ import numpy as np
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.levels import Level
 from featureaudit.oof import CellScore, Target, make_target, score_bins
-from featureaudit.probes._peers import PeerInput, dependence_shares, normal_scores, reference_power
-from featureaudit.probes._solo_detail import common_detail
+from featureaudit.probes.solo._detail import common_detail
+from featureaudit.probes.solo._peers import (
+    PeerInput,
+    dependence_shares,
+    normal_scores,
+    reference_power,
+)
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
@@ -49,7 +55,6 @@ MISSING_AS_ENCODING = 0.01  # numeric columns missing this often enter the peer 
 MAX_REFERENCE = 200        # columns in the reference model of a wide table
 ORDER_POWER = {"critical": 0.6, "high": 0.2, "medium": 0.1}
 ORDER_Z = {"high": 4.0, "medium": 3.0, "low": 2.0}
-LEVELS = ("none", "low", "medium", "high", "critical")
 
 
 @register
@@ -171,15 +176,15 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
             level, why = lv, "share"
     if why == "share" and level in ("high", "critical") and not (effect_like and tellable):
         level, why = "medium", "share_untold"
-    if power >= STRONG_ALONE and LEVELS.index(level) < LEVELS.index("low"):
+    if power >= STRONG_ALONE and Level.parse(level) < Level.LOW:
         level, why = "low", "strong"
     if (enough_peers and others is not None and power >= 0.6 and power >= others - MATCH_MARGIN
-            and effect_like and tellable and LEVELS.index(level) < LEVELS.index("high")):
+            and effect_like and tellable and Level.parse(level) < Level.HIGH):
         level, why = "high", "match"
     for lv in ("high", "critical"):
         u_min, p_min = FUNCTION_OF_TARGET[lv]
         if (score.determinism >= u_min and power >= p_min
-                and LEVELS.index(level) <= LEVELS.index(lv)):
+                and Level.parse(level) <= Level.parse(lv)):
             level, why = lv, "function"
     if power >= DETERMINISTIC:
         explained = enough_peers and not effect_like and share < typical + SHARE["low"]

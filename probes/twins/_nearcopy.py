@@ -10,8 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from featureaudit.hashing import column_codes, robust_params
 from featureaudit.io import numeric_view
+from featureaudit.probes.twins.hashing import column_codes, robust_params
 from featureaudit.table import AuditTable
 
 NEAR_FRACTION = 0.1   # a near copy lies closer than 10 % of the median train-train NN distance

@@ -11,8 +11,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from featureaudit.probes._fingerprint import verdict as _verdict
-from featureaudit.probes._precision import mean_tolerance
+from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+from featureaudit.probes.fitscope._precision import mean_tolerance
 
 CAP_LEVELS = (0.005, 0.01, 0.025, 0.05)
 SPIKE_SHARE = 0.005    # an imputation spike holds at least 0.5 % of rows ...

@@ -24,8 +24,9 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
-from featureaudit.hashing import column_codes, member, row_hashes
-from featureaudit.probes._nearcopy import near_copies, row_labels
+from featureaudit.levels import Level
+from featureaudit.probes.twins._nearcopy import near_copies, row_labels
+from featureaudit.probes.twins.hashing import column_codes, member, row_hashes
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
@@ -34,7 +35,6 @@ COPY_LEVELS = (("critical", 0.10), ("high", 0.015), ("medium", 0.005))
 ENTITY_LEVELS = (("critical", 0.5), ("high", 0.10), ("medium", 0.02))
 MIN_TWINS = 5
 NATURAL_RATIO = 0.25  # copies count as natural when independence alone explains a quarter
-LEVELS = ("none", "low", "medium", "high", "critical")
 
 
 def _level(share: float, levels: tuple) -> str:
@@ -45,7 +45,7 @@ def _level(share: float, levels: tuple) -> str:
 
 
 def _down(level: str) -> str:
-    return LEVELS[max(0, LEVELS.index(level) - 1)]
+    return Level.parse(level).down().label
 
 
 @register

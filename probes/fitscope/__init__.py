@@ -26,10 +26,10 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
-from featureaudit.probes._fingerprint import verdict as _verdict
-from featureaudit.probes._piles import capped as _capped
-from featureaudit.probes._piles import imputed as _imputed
-from featureaudit.probes._precision import mean_tolerance, sd_tolerance, value_error
+from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+from featureaudit.probes.fitscope._piles import capped as _capped
+from featureaudit.probes.fitscope._piles import imputed as _imputed
+from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
@@ -202,5 +202,5 @@ def _quantile(name, values, err, ok, train, split):
 
 def _encodings(table: AuditTable, train: np.ndarray) -> list[Evidence]:
     """Target encodings fitted with held-out targets, or in sample (see ``_encoding``)."""
-    from featureaudit.probes._encoding import encoding_evidence
+    from featureaudit.probes.fitscope._encoding import encoding_evidence
     return encoding_evidence(table, train)
