@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import ClassVar
+from typing import Any, ClassVar
 
 from featureaudit.evidence import KINDS, Evidence, Skip
 from featureaudit.settings import Settings
@@ -24,6 +24,15 @@ class Probe:
     name: ClassVar[str] = ""
     scope: ClassVar[str] = "column"    # "column" or "table"
     kinds: ClassVar[tuple[str, ...]] = ()
+    # The probe's thresholds: an instance of a frozen dataclass whose fields are the numbers
+    # its level decisions use, each with its source in the class docstring. Recorded in
+    # findings.json and quoted by ``describe``.
+    thresholds: ClassVar[Any] = None
+
+    @classmethod
+    def describe(cls, settings: Settings) -> str:
+        """The method and its thresholds in one paragraph, with the settings in force."""
+        raise NotImplementedError
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         raise NotImplementedError

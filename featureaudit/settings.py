@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import tomllib
-from dataclasses import asdict, dataclass, fields
+from dataclasses import asdict, dataclass, field, fields
 from pathlib import Path
 from typing import Any
 
@@ -21,6 +21,11 @@ CONFIG_KEYS = ("test", "split_column", "train_value", "target", "task", "diction
                "label_time", "cutoff_time", "horizon", "entity", "out", "fail_at", "seed")
 
 
+def _default_jobs() -> int:
+    from featureaudit.threads import available_cpus
+    return available_cpus()
+
+
 @dataclass(frozen=True)
 class Settings:
     """Knobs of the probes; every one is recorded in findings.json under ``settings``."""
@@ -32,6 +37,7 @@ class Settings:
     min_rows: int = 100            # below this, levels are capped at medium (small sample)
     time_tolerance: str = "1d"     # clock skew and same-day recording (see probes/timing.py)
     share_tolerance: float = 0.01  # shares of rows below this are not flagged
+    n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
 
     def __post_init__(self) -> None:
         if self.folds < 2:
@@ -43,6 +49,8 @@ class Settings:
         from featureaudit.durations import parse_duration
         if parse_duration(self.time_tolerance, what="time_tolerance") < pd.Timedelta(0):
             raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
+        if self.n_jobs < 1:
+            raise SettingError(f"n_jobs must be at least 1; got {self.n_jobs}.")
         if self.reference_rows < 100:
             raise SettingError(f"reference_rows must be at least 100; got {self.reference_rows}.")
 

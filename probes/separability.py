@@ -25,6 +25,7 @@ from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.stats import hanley_mcneil_se, null_auc_se
 from featureaudit.table import AuditTable
+from featureaudit.threads import limited_blas, model_threads
 
 LEVELS = (("critical", 0.85, 4.0), ("high", 0.70, 4.0), ("medium", 0.60, 3.0))
 LOW_Z = 2.0
@@ -44,8 +45,8 @@ def _matrix(table: AuditTable, columns: list[str], rows: np.ndarray) -> np.ndarr
     return np.column_stack(out) if out else np.zeros((rows.size, 0))
 
 
-def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3
-                    ) -> tuple[float, np.ndarray]:
+def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3,
+                    n_jobs: int = 1) -> tuple[float, np.ndarray]:
     """Out-of-fold AUC of LightGBM telling side 1 from side 0, and total gain per column."""
     import lightgbm as lgb
     from sklearn.metrics import roc_auc_score
@@ -55,12 +56,14 @@ def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3
     gain = np.zeros(x.shape[1])
     params = dict(n_estimators=50, learning_rate=0.12, num_leaves=15, min_child_samples=20,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True, max_bin=63,
+                  n_jobs=model_threads(n_jobs, len(side)), verbose=-1, deterministic=True,
+                  force_row_wise=True, max_bin=63,
                   importance_type="gain")
-    for tr, te in StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, side):
-        model = lgb.LGBMClassifier(**params).fit(x[tr], side[tr])
-        pred[te] = model.predict_proba(x[te])[:, 1]
-        gain += model.feature_importances_
+    with limited_blas():
+        for tr, te in StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, side):
+            model = lgb.LGBMClassifier(**params).fit(x[tr], side[tr])
+            pred[te] = model.predict_proba(x[te])[:, 1]
+            gain += model.feature_importances_
     return float(roc_auc_score(side, pred)), gain
 
 
@@ -98,13 +101,14 @@ class Separability(Probe):
             return Evidence(self.name, "split_shift", "adversarial_auc", None, LEVELS[1][1],
                             "none", summary="too few rows on one side to compare",
                             detail={"sample_rows": int(rows.size)})
-        auc, gain = adversarial_auc(xs, side, settings.seed)
+        auc, gain = adversarial_auc(xs, side, settings.seed, n_jobs=settings.n_jobs)
         n1, n0 = int(side.sum()), int((1 - side).sum())
         null = null_auc_se(n1, n0)
         z = (auc - 0.5) / null
         top = np.argsort(-gain)[:TOP_LEFT_OUT]
         keep = np.setdiff1d(np.arange(len(columns)), top)
-        auc_without = adversarial_auc(xs[:, keep], side, settings.seed)[0] \
+        auc_without = adversarial_auc(xs[:, keep], side, settings.seed,
+                                      n_jobs=settings.n_jobs)[0] \
             if keep.size and auc >= 0.6 else None   # only worth a fit when there is a shift
         total = float(gain.sum()) or 1.0
         drivers = [{"column": columns[i], "gain_share": float(gain[i] / total),

@@ -17,8 +17,6 @@ sure the fingerprint is, not how large the bias is.
 
 from __future__ import annotations
 
-from concurrent.futures import ThreadPoolExecutor
-
 import numpy as np
 import pandas as pd
 from scipy.special import ndtr
@@ -33,6 +31,7 @@ from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
+from featureaudit.threads import column_map
 
 MIN_SIDE = 20          # fewer held-out or training rows than this: cannot tell
 
@@ -62,9 +61,8 @@ class Fitscope(Probe):
             return [] if values is None else _check_column(name, s, values, train, split)
 
         evidence: list[Evidence] = []
-        with ThreadPoolExecutor(max_workers=2) as pool:   # numpy releases the GIL
-            for found in pool.map(one, table.features):
-                evidence.extend(found)
+        for found in column_map(one, table.features, settings.n_jobs):  # numpy frees the GIL
+            evidence.extend(found)
         if split and table.y is not None and table.target_problem is None:
             evidence.extend(_encodings(table, train))
         return evidence, skipped

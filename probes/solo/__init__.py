@@ -22,8 +22,6 @@ the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tes
 
 from __future__ import annotations
 
-from concurrent.futures import ThreadPoolExecutor
-
 import numpy as np
 
 from featureaudit.evidence import Evidence, Skip
@@ -41,6 +39,7 @@ from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
 from featureaudit.table import AuditTable
+from featureaudit.threads import column_map
 
 SHARE = {"critical": 0.35, "high": 0.20, "medium": 0.10, "low": 0.05}
 SHARE_POWER = {"critical": 0.5, "high": 0.3, "medium": 0.2, "low": 0.1}
@@ -91,13 +90,13 @@ class Solo(Probe):
                 b.codes = None          # only encoded columns need their codes again
             return name, b, score
 
-        # numpy releases the GIL in its sorting and searching loops: two threads, two cores
-        with ThreadPoolExecutor(max_workers=2) as pool:
-            for name, b, score in pool.map(one, table.id_columns + table.features):
-                if score is None:
-                    skipped.append(Skip(self.name, "no values in the labelled rows", name))
-                else:
-                    bins[name], scores[name] = b, score
+        # numpy releases the GIL in its sorting and searching loops: one thread per CPU
+        for name, b, score in column_map(one, table.id_columns + table.features,
+                                         settings.n_jobs):
+            if score is None:
+                skipped.append(Skip(self.name, "no values in the labelled rows", name))
+            else:
+                bins[name], scores[name] = b, score
         features = [c for c in table.features if c in scores]
         peers, ref = _peer_figures(table, t, features, scores, bins, settings)
         evidence = [_order_evidence(name, scores[name], bins[name], t, small, "identifier")
@@ -280,11 +279,13 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
     keep = np.array([i for i in np.argsort(-power) if features[i] not in flagged][:MAX_REFERENCE],
                     dtype=np.int64)   # the strongest non-suspect columns serve as reference
-    ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed),
+    ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed,
+                                     n_jobs=settings.n_jobs),
            "rows": int(take), "columns": int(keep.size)}
     strong = [i for i in np.argsort(-power) if features[i] not in flagged and power[i] >= 0.6][:2]
     for i in strong:
         rest = keep[keep != i]
         shares[features[i]]["others_power"] = reference_power(inp, rest, t.task, t.n_classes,
-                                                              settings.seed)
+                                                              settings.seed,
+                                                              n_jobs=settings.n_jobs)
     return shares, ref

@@ -14,6 +14,8 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.special import ndtri
 
+from featureaudit.threads import limited_blas, model_threads
+
 __all__ = ["PeerInput", "dependence_shares", "reference_power", "normal_scores"]
 
 RIDGE = 1e-3          # on correlations; keeps near-collinear peers invertible
@@ -134,19 +136,26 @@ def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
 
 
 def reference_power(inp: PeerInput, columns: np.ndarray, task: str, n_classes: int,
-                    seed: int, folds: int = 3) -> float:
+                    seed: int, folds: int = 3, n_jobs: int = 1) -> float:
     """Out-of-fold LightGBM on the given columns of the sample: Gini of its AUC, or its R²."""
-    import lightgbm as lgb
-    from sklearn.metrics import r2_score, roc_auc_score
-    from sklearn.model_selection import KFold, StratifiedKFold
-
     if columns.size == 0:
         return 0.0
     x = inp.z_tree[:, columns]
     y = inp.y_codes
     params = dict(n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=2, verbose=-1, deterministic=True, force_row_wise=True, max_bin=31)
+                  n_jobs=model_threads(n_jobs, len(inp.y_codes)), verbose=-1, deterministic=True,
+                  force_row_wise=True, max_bin=31)
+    with limited_blas():
+        return _reference_fit(x, y, params, task, n_classes, seed, folds)
+
+
+def _reference_fit(x: np.ndarray, y: np.ndarray, params: dict, task: str, n_classes: int,
+                   seed: int, folds: int) -> float:
+    import lightgbm as lgb
+    from sklearn.metrics import r2_score, roc_auc_score
+    from sklearn.model_selection import KFold, StratifiedKFold
+
     if task == "numeric":
         split = KFold(folds, shuffle=True, random_state=seed).split(x)
         pred = np.zeros(len(y))

@@ -67,15 +67,15 @@ class Twins(Probe):
         if not cols:
             skipped.append(Skip(self.name, "no feature column has values"))
         elif simulated:
-            evidence.append(self._within(table, cols))
+            evidence.append(self._within(table, cols, settings))
         else:
             evidence.append(self._across(table, cols, heldout, rng, settings))
         if table.entity is not None:
             evidence.append(self._entities(table, heldout, simulated))
         return evidence, skipped
 
-    def _within(self, table: AuditTable, cols: list[str]) -> Evidence:
-        h = row_hashes(table.frame, cols)
+    def _within(self, table: AuditTable, cols: list[str], settings: Settings) -> Evidence:
+        h = row_hashes(table.frame, cols, settings.n_jobs)
         dup = pd.Series(h).duplicated(keep=False).to_numpy()
         share = float(dup.mean())
         level = _level(share, COPY_LEVELS)
@@ -98,7 +98,7 @@ class Twins(Probe):
     def _across(self, table: AuditTable, cols: list[str], heldout: np.ndarray,
                 rng: np.random.Generator, settings: Settings) -> Evidence:
         train = ~heldout
-        h = row_hashes(table.frame, cols)
+        h = row_hashes(table.frame, cols, settings.n_jobs)
         exact = np.zeros(table.n_rows, dtype=bool)
         exact[heldout] = member(h[heldout], h[train])
         near, calib = near_copies(table, cols, heldout, exact, rng)

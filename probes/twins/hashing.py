@@ -46,12 +46,12 @@ def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
     return h
 
 
-def row_hashes(frame: pd.DataFrame, columns: list[str]) -> np.ndarray:
+def row_hashes(frame: pd.DataFrame, columns: list[str], n_jobs: int = 1) -> np.ndarray:
     """One uint64 per row over ``columns``; rows equal in every column get equal hashes."""
-    from concurrent.futures import ThreadPoolExecutor
+    from featureaudit.threads import column_map
     h = np.full(len(frame), np.uint64(0xCBF29CE484222325), dtype=np.uint64)
-    with ThreadPoolExecutor(max_workers=2) as pool, np.errstate(over="ignore"):
-        for codes in pool.map(lambda name: column_codes(frame[name]), columns):
+    with np.errstate(over="ignore"):
+        for codes in column_map(lambda name: column_codes(frame[name]), columns, n_jobs):
             h = _mix(h, codes)
     return h
 
