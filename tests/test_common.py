@@ -1,79 +1,85 @@
-"""Every registered probe: valid evidence, the same result for the same seed, its input
-untouched, and no crash on empty, constant, all-missing or one-class columns."""
+"""Every registered probe through the named common checks of ``tests/probe_checks.py``
+(valid evidence, the same result for the same seed, its input untouched, skips with a reason
+without a target, a split or enough rows, and no level it cannot support on clean,
+awkward, one-class, numeric or multiclass data), plus the registry's own rules."""
 
-import json
+import importlib.metadata
+import sys
 
-import numpy as np
-import pandas as pd
 import pytest
 
-from featureaudit.evidence import KINDS, Evidence, Skip
-from featureaudit.levels import LEVEL_NAMES
+from featureaudit import registry
 from featureaudit.registry import Probe, register, registered, unregister
-from featureaudit.settings import Settings
-from featureaudit.table import build_table
+
+sys.path.insert(0, str(__import__("pathlib").Path(__file__).parent))
+from probe_checks import awkward_frame, yield_checks  # noqa: E402
 
 PROBES = sorted(registered())
-
-
-def _awkward_table():
-    rng = np.random.default_rng(0)
-    n = 300
-    y = rng.integers(0, 2, n)
-    frame = pd.DataFrame({
-        "good": rng.normal(size=n) + y, "constant": 1.0, "all_missing": np.nan,
-        "one_value_text": "same", "mostly_missing": np.where(rng.random(n) < 0.97, np.nan, 1.0),
-        "mixed": [str(v) if i % 3 else "n/a" for i, v in enumerate(rng.integers(0, 9, n))],
-        "when": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 200, n), "D"),
-        "customer": rng.integers(0, 40, n), "split": np.where(rng.random(n) < 0.8, "train", "test"),
-        "decided_at": pd.Timestamp("2025-03-01") + pd.to_timedelta(rng.integers(0, 200, n), "D"),
-        "y": y})
-    return frame
+CASES = [pytest.param(name, check, id=f"{name}-{check_name}")
+         for name in PROBES for check_name, check in yield_checks(registered()[name])]
 
 
 @pytest.fixture()
-def table():
-    return build_table(_awkward_table(), target="y", split_column="split",
-                       label_time="decided_at", entity="customer")
+def fresh_registry(monkeypatch):
+    """The registry as the package builds it, restored after the test."""
+    monkeypatch.setattr(registry, "_REGISTRY", dict(registry._REGISTRY))
+    return registry._REGISTRY
 
 
-@pytest.mark.parametrize("name", PROBES)
-def test_probe_declares_itself(name):
-    cls = registered()[name]
-    assert cls.scope in ("column", "table") and set(cls.kinds) <= set(KINDS)
-    assert len((cls.__doc__ or "").strip()) > 40
+@pytest.mark.parametrize(("name", "check"), CASES)
+def test_common_check(name, check, fresh_registry):
+    check(fresh_registry[name])
 
 
-@pytest.mark.parametrize("name", PROBES)
-def test_probe_returns_valid_evidence_and_survives_awkward_columns(name, table):
-    evidence, skipped = registered()[name]().run(table, Settings())
-    for e in evidence:
-        assert isinstance(e, Evidence) and e.probe == name and e.kind in registered()[name].kinds
-        assert e.level in LEVEL_NAMES
-        assert e.column is None or e.column in table.frame.columns
-        json.dumps(e.to_dict(), allow_nan=False)
-    assert all(isinstance(s, Skip) and s.reason for s in skipped)
-    for e in evidence:
-        if e.column in ("constant", "all_missing", "one_value_text"):
-            assert e.level == "none"
+def test_every_probe_module_in_the_package_is_registered():
+    import pkgutil
+
+    import featureaudit.probes as package
+    modules = {m.name for m in pkgutil.iter_modules(package.__path__) if not m.name.startswith("_")}
+    assert modules == {cls.__module__.rsplit(".", 1)[-1] for cls in registered().values()
+                       if cls.__module__.startswith("featureaudit.probes.")}
 
 
-@pytest.mark.parametrize("name", PROBES)
-def test_probe_is_deterministic_for_a_seed_and_does_not_mutate(name, table):
-    before = table.frame.copy()
-    first = registered()[name]().run(table, Settings(seed=3))
-    second = registered()[name]().run(table, Settings(seed=3))
-    assert [e.to_dict() for e in first[0]] == [e.to_dict() for e in second[0]]
-    pd.testing.assert_frame_equal(table.frame, before)
+def test_a_plugin_registers_through_its_entry_point(fresh_registry, monkeypatch):
+    class Plugin(Probe):
+        """A third-party probe that finds nothing, registered through an entry point."""
+        name = "plugin_probe"
+        kinds = ("target_proxy",)
+
+        def run(self, table, settings):
+            return [], []
+
+    class FakeEntryPoint:
+        name, value = "plugin_probe", "plugin_package:Plugin"
+
+        def load(self):
+            return Plugin
+
+    monkeypatch.setattr(importlib.metadata, "entry_points",
+                        lambda group: [FakeEntryPoint()] if group == "featureaudit.probes" else [])
+    monkeypatch.setattr(registry, "_plugins_loaded", False)
+    assert registered()["plugin_probe"] is Plugin
 
 
-@pytest.mark.parametrize("name", PROBES)
-def test_probe_with_a_one_class_target_skips_or_stays_quiet(name):
-    frame = _awkward_table()
-    frame["y"] = 1
-    t = build_table(frame, target="y", split_column="split")
-    evidence, skipped = registered()[name]().run(t, Settings())
-    assert all(e.level in ("none", "low") or e.column is None for e in evidence)
+def test_a_plugin_with_a_bad_declaration_is_rejected_when_it_registers(fresh_registry,
+                                                                      monkeypatch):
+    class NoKinds(Probe):
+        """A third-party probe that declares no kinds."""
+        name = "no_kinds"
+
+        def run(self, table, settings):
+            return [], []
+
+    class FakeEntryPoint:
+        name, value = "no_kinds", "plugin_package:NoKinds"
+
+        def load(self):
+            return NoKinds
+
+    monkeypatch.setattr(importlib.metadata, "entry_points", lambda group: [FakeEntryPoint()])
+    monkeypatch.setattr(registry, "_plugins_loaded", False)
+    with pytest.raises(TypeError, match="kinds"):
+        registered()
 
 
 def test_registry_rejects_bad_declarations():
@@ -109,7 +115,7 @@ def test_registry_rejects_bad_declarations():
 
 def test_no_probe_fails_through_the_pipeline():
     import featureaudit as fa
-    result = fa.audit(_awkward_table(), target="y", split_column="split",
+    result = fa.audit(awkward_frame(), target="y", split_column="split",
                       label_time="decided_at", entity="customer")
     assert not [s for s in result.document["skipped"] if "failed" in s["reason"]]
     assert not [w for w in result.document["warnings"] if "failed" in w]
