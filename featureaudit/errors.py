@@ -14,6 +14,7 @@ __all__ = [
     "DurationError",
     "SettingError",
     "TargetError",
+    "ProbeFailed",
 ]
 
 
@@ -46,3 +47,16 @@ class SettingError(FeatureAuditError, ValueError):
 
 class TargetError(FeatureAuditError, ValueError):
     """A target that cannot be audited: all missing, a single class, or the wrong task."""
+
+
+class ProbeFailed(RuntimeError):
+    """A probe raised an unexpected error: a bug in featureaudit (or a plugin), not bad input.
+
+    Not a :class:`FeatureAuditError`: the run must fail (exit 3) rather than report an audit
+    with a probe missing, and nothing is written over an earlier report.
+    """
+
+    def __init__(self, probe: str, error: BaseException) -> None:
+        super().__init__(f"probe {probe!r} failed with {type(error).__name__}: {error}")
+        self.probe = probe
+        self.error = error

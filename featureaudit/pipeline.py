@@ -7,7 +7,7 @@ import time
 from collections.abc import Iterable
 
 from featureaudit import __version__
-from featureaudit.errors import FeatureAuditError
+from featureaudit.errors import FeatureAuditError, ProbeFailed
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
@@ -22,8 +22,8 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
               progress: bool | None = None) -> Findings:
     """Run each registered probe (or those named), rank the evidence and build the findings.
 
-    A probe that fails unexpectedly does not sink the audit: it is listed under ``skipped``
-    with the error, and a warning says the report is incomplete.
+    A probe that raises anything but a :class:`FeatureAuditError` is a bug: the audit stops
+    with :class:`ProbeFailed`, so no run reports findings with a probe missing.
     """
     available = registered()
     names = list(available) if probes is None else list(probes)
@@ -43,11 +43,8 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
             found, skips = available[name]().run(table, settings)
         except FeatureAuditError:
             raise
-        except Exception as exc:  # noqa: BLE001 — one broken probe must not lose the report
-            skipped.append(Skip(name, f"the probe failed: {type(exc).__name__}: {exc}"))
-            warnings.append(f"probe {name!r} failed, so this report is incomplete; please report "
-                            f"it with the error: {type(exc).__name__}: {exc}")
-            continue
+        except Exception as exc:
+            raise ProbeFailed(name, exc) from exc
         timings[name] = round(time.perf_counter() - start, 3)
         evidence.extend(found)
         skipped.extend(skips)

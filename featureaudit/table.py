@@ -15,7 +15,7 @@ import pandas as pd
 
 from featureaudit.dictionary import DataDictionary, guess_role, read_dictionary
 from featureaudit.durations import parse_duration
-from featureaudit.errors import ColumnNotFound, SettingError, TargetError
+from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
 from featureaudit.io import as_frame, normalise_frame
 from featureaudit.settings import TASKS
 from featureaudit.times import as_datetime
@@ -177,6 +177,9 @@ def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
 def _append_test(frame: pd.DataFrame, test: pd.DataFrame, src: str, tsrc: str,
                  target: str | None, ddict: DataDictionary | None, warnings: list[str]
                  ) -> tuple[pd.DataFrame, np.ndarray]:
+    if len(test) == 0:
+        raise InputFileError(f"held-out table {tsrc!r} has no rows; pass a held-out table with "
+                             "rows, or leave --test out to audit the table as one pool.")
     targets = {target} if target else set()
     if ddict is not None:
         targets |= set(ddict.columns_with_role("target"))

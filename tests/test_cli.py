@@ -197,3 +197,38 @@ def test_scan_with_a_heldout_file_and_a_horizon(tmp_path):
     assert doc["dataset"]["heldout_rows"] == 120 and doc["dataset"]["cutoff"] == "horizon:30 days"
     overlap = [f for f in doc["dataset_findings"] if f["kind"] == "time_overlap_across_split"]
     assert overlap and overlap[0]["level"] == "none"
+
+
+def test_a_probe_that_fails_fails_the_run_with_exit_3_and_keeps_the_report(leaky_csv, report):
+    # A probe that raises is a bug: the contract's exit 3, one line, the earlier report kept.
+    from featureaudit.registry import Probe, register, unregister
+
+    @register
+    class Broken(Probe):
+        """A probe that always raises, to stand for a bug in a real probe."""
+        name = "broken_for_test"
+        kinds = ("target_proxy",)
+
+        def run(self, table, settings):
+            raise ZeroDivisionError("planted bug")
+
+    before = {p.name: p.read_bytes() for p in report.iterdir()}
+    try:
+        result = run("scan", leaky_csv, "--target", "y", "--split-column", "split",
+                     "--out", report, "--fail-at", "critical")
+    finally:
+        unregister("broken_for_test")
+    assert result.exit_code == 3, result.stderr
+    assert result.stderr.count("\n") == 1 and "broken_for_test" in result.stderr
+    assert {p.name: p.read_bytes() for p in report.iterdir()} == before
+
+
+def test_a_heldout_file_with_no_rows_exits_2(leaky_csv, tmp_path):
+    empty = tmp_path / "empty_test.csv"
+    pd.read_csv(leaky_csv).drop(columns=["split"]).head(0).to_csv(empty, index=False)
+    train = tmp_path / "train.csv"
+    pd.read_csv(leaky_csv).drop(columns=["split"]).to_csv(train, index=False)
+    result = run("scan", train, "--target", "y", "--test", empty, "--out", tmp_path / "r")
+    assert result.exit_code == 2 and result.stderr.count("\n") == 1
+    assert "empty_test.csv" in result.stderr and "no rows" in result.stderr
+    assert not (tmp_path / "r").exists()
