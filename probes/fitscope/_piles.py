@@ -16,7 +16,7 @@ import numpy as np
 from scipy.stats import poisson
 
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
-from featureaudit.probes.fitscope._precision import mean_tolerance
+from featureaudit.probes.fitscope._precision import _decimals, mean_tolerance
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 
 CAP_LEVELS = THRESHOLDS.cap_levels
@@ -77,8 +77,10 @@ def imputed(name, values, err, ok, train, split):
 def _imputed_pile(name, values, err, ok, train, split, pile):
     value, count, expected = pile
     other = ok & (values != value)
-    genuine = expected if expected > 1.0 else _genuine_count(values[other], value)
-    natural = expected > 1.0
+    natural = expected > 1.0 and _on_grid(values[other], value)
+    genuine = expected if natural else _genuine_count(values[other], value)
+    if expected > 1.0 and not natural:
+        genuine = 0.0   # a value off the column's rounding grid has no natural copies
     tol = mean_tolerance(values[other], err[other]) + 4 * float(err[ok & (values == value)][0])
     figures: dict = {}
     for label, rows, g in (("all_rows", other, genuine),
@@ -88,9 +90,13 @@ def _imputed_pile(name, values, err, ok, train, split, pile):
         figures[label] = {"mean": float(np.mean(x)), "below": below, "above": above,
                           "median_holds": _median_holds(x, value, g, tol, natural),
                           "mean_holds": abs(float(np.mean(x)) - value) <= tol}
-    for stat in ("mean", "median"):
-        all_exact = figures["all_rows"][f"{stat}_holds"]
-        train_exact = figures["training_rows"][f"{stat}_holds"]
+    holds = {stat: (figures["all_rows"][f"{stat}_holds"], figures["training_rows"][f"{stat}_holds"])
+             for stat in ("mean", "median")}
+    # A statistic of the training rows that explains the pile wins: a leak needs every
+    # training-row explanation to fail.
+    order = sorted(holds, key=lambda st: (not holds[st][1], not holds[st][0]))
+    for stat in order:
+        all_exact, train_exact = holds[stat]
         if all_exact or train_exact:
             detail = {"spike_value": value, "spike_rows": count, "statistic": stat,
                       "neighbours_expected_rows": expected,
@@ -104,6 +110,14 @@ def _imputed_pile(name, values, err, ok, train, split, pile):
                             all_exact, train_exact, abs(gap) > tol, split, detail,
                             f"imputed_minus_training_{stat}", gap)
     return None
+
+
+def _on_grid(other: np.ndarray, value: float) -> bool:
+    """Is ``value`` written with no more decimals than the column's other values (so that
+    natural ties of it can exist)?"""
+    sample = other[:: max(1, other.size // 2000)]
+    dec = _decimals(sample)
+    return dec is None or bool(np.round(value, dec) == value)
 
 
 def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float,
