@@ -36,7 +36,8 @@ def piles(values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLD
 
     A pile needs ``pile_share`` of the rows, ``pile_min_rows`` rows, and a Poisson excess
     over the median count of the ``neighbours`` nearest distinct values on each side below
-    ``pile_alpha`` after a Bonferroni correction over the distinct values. Largest first,
+    ``pile_alpha`` after a Bonferroni correction over the distinct values, and the same
+    excess over the column's largest other tie where the column ties naturally. Largest first,
     ties by value, so the order of rows never matters."""
     v = values[ok]
     probe = v[:: max(1, v.size // 20_000)]
@@ -51,9 +52,16 @@ def piles(values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLD
     candidates = candidates[np.lexsort((uniq[candidates], -counts[candidates]))]
     k = th.neighbours
     out = []
+    top_two = np.sort(counts)[-2:]
     for i in candidates[: 10 * th.max_piles]:
         near = np.r_[counts[max(0, i - k):i], counts[i + 1:i + 1 + k]]
         p, expected = pile_excess_p(int(counts[i]), near)
+        # ... and, where the column ties naturally, beyond its largest other tie: a mode
+        # among equal ties is no pile
+        largest_other = float(top_two[0] if counts[i] == top_two[-1] else top_two[-1])
+        if expected > 1.0 and largest_other > expected:
+            expected = largest_other
+            p = float(poisson.sf(int(counts[i]) - 1, expected))
         if p * uniq.size < th.pile_alpha:
             out.append((float(uniq[i]), int(counts[i]), expected))
         if len(out) == th.max_piles:
@@ -122,10 +130,10 @@ def _on_grid(other: np.ndarray, value: float) -> bool:
 
 def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float,
                   natural: bool = False) -> bool:
-    """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine+1,
-    or up to a Poisson bound where the column has natural ties)?"""
+    """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine,
+    one more where the column has natural ties)?"""
     below, above = int((x < value).sum()), int((x > value).sum())
-    top = _tie_allowance(genuine) if natural else int(np.ceil(genuine))
+    top = int(np.ceil(genuine)) + (1 if natural else 0)
     for g in range(0, top + 1):
         n = below + above + g
         if abs(below - above) > g + 1:

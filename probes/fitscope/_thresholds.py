@@ -17,9 +17,10 @@ class FitscopeThresholds:
     ``pile_share`` / ``pile_min_rows``: a pile of one value is examined from 0.5 %
     of the rows and 5 rows (common practice, no source). ``pile_alpha``: a pile is examined
     when a Poisson tail against the median count of its ``neighbours`` nearest distinct
-    values on each side, Bonferroni-corrected over the column's distinct values, is below
-    1e-4; on the clean columns of scikit-learn's and statsmodels' bundled tables (measured
-    with /tmp/timefit_fp.py, 3 seeds) no pile that passes it fits an all-rows statistic
+    values on each side (and against the count of the column's largest other tie),
+    Bonferroni-corrected over the column's distinct values, is below 1e-4; on the clean
+    columns of scikit-learn's and statsmodels' bundled tables (measured with
+    /tmp/timefit_fp.py, 3 seeds) no pile that passes it fits an all-rows statistic
     without also fitting the training rows. ``max_piles``: at most 3 piles per column are
     tested (cost bound). ``cap_levels``: the usual capping quantiles (0.5 %, 1 %, 2.5 %, 5 %;
     common practice, no source). ``leak`` is the level of a fingerprint exact over all rows
