@@ -18,10 +18,12 @@ class FitscopeThresholds:
     of the rows and 5 rows (common practice, no source). ``pile_alpha``: a pile is examined
     when a Poisson tail against the median count of its ``neighbours`` nearest distinct
     values on each side (and against the count of the column's largest other tie),
-    Bonferroni-corrected over the column's distinct values, is below 1e-4; on the clean
-    columns of scikit-learn's and statsmodels' bundled tables (measured with
-    /tmp/timefit_fp.py, 3 seeds) no pile that passes it fits an all-rows statistic
-    without also fitting the training rows. ``max_piles``: at most 3 piles per column are
+    Bonferroni-corrected over the column's distinct values, is below 1e-4. Measured over
+    3 seeds on 6 bundled tables (scikit-learn's diabetes, breast cancer, wine; statsmodels'
+    star98, fair, macrodata), with one column rounded to a few digits: 0 of 1,869 untouched
+    columns, 0 of 18 rounded columns and 0 of 36 training-only imputations or caps reach
+    high; the detection bench's 1,710 clean columns stay at 0. ``max_piles``: at most 3
+    piles per column are
     tested (cost bound). ``cap_levels``: the usual capping quantiles (0.5 %, 1 %, 2.5 %, 5 %;
     common practice, no source). ``leak`` is the level of a fingerprint exact over all rows
     and off over the training rows; ``encoding`` that of a target encoding using held-out
