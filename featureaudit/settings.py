@@ -35,7 +35,7 @@ class Settings:
     bins: int = 20                 # quantile bins per numeric column
     reference_rows: int = 20_000   # sample for the model-based reference (seeded, stratified)
     min_rows: int = 100            # below this, levels are capped at medium (small sample)
-    time_tolerance: str = "1d"     # clock skew and same-day recording (see probes/timing.py)
+    time_tolerance: str = "auto"   # "auto": follows the times' resolution (see probes/timing.py)
     share_tolerance: float = 0.01  # shares of rows below this are not flagged
     n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
 
@@ -47,7 +47,8 @@ class Settings:
         if not 0 <= self.share_tolerance < 1:
             raise SettingError(f"share_tolerance must be in [0, 1); got {self.share_tolerance}.")
         from featureaudit.durations import parse_duration
-        if parse_duration(self.time_tolerance, what="time_tolerance") < pd.Timedelta(0):
+        if self.time_tolerance != "auto" and parse_duration(
+                self.time_tolerance, what="time_tolerance") < pd.Timedelta(0):
             raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
         if self.n_jobs < 1:
             raise SettingError(f"n_jobs must be at least 1; got {self.n_jobs}.")

@@ -45,6 +45,7 @@ class AuditTable:
     cutoff_time: pd.Series | None = None
     label_time_column: str | None = None
     cutoff_source: str | None = None       # "column:X", "horizon:30 days", "label time"
+    horizon: pd.Timedelta | None = None    # --horizon, kept for durations compared without times
     entity: str | None = None
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
@@ -289,6 +290,10 @@ def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon
         table.cutoff_source = f"column:{cutoff}"
     elif horizon is not None:
         delta = parse_duration(horizon, what="--horizon")
+        table.horizon = delta
+        if table.label_time is None and _has_relative_known_at(table):
+            table.cutoff_source = f"horizon:{horizon}"   # durations are compared with -horizon
+            return
         if table.label_time is None:
             raise SettingError("--horizon needs a label time to count back from; pass "
                                "--label-time or give a column the role label_time.")
@@ -297,3 +302,10 @@ def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon
     elif table.label_time is not None:
         table.cutoff_time = table.label_time
         table.cutoff_source = "label time"
+
+
+def _has_relative_known_at(table: AuditTable) -> bool:
+    """Does the dictionary give some feature a known_at relative to the label time?"""
+    return table.dictionary is not None and any(
+        e.known_at_offset is not None for c, e in table.dictionary.entries.items()
+        if c in table.frame.columns)

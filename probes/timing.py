@@ -4,20 +4,24 @@ forward in time.
 Per column, a row's value becomes known at the dictionary's ``known_at`` (a datetime column,
 or a duration from the label time) or, for a datetime feature without one, at its own value.
 The share of rows known after the cutoff (and, stronger, after the label time) is the
-evidence. For the split, the share of held-out rows earlier than the end of the training
-period, overall and within each entity.
+evidence. A ``known_at`` duration is evidence even without any time column: durations are
+compared with each other, the cutoff being the label time (0) or ``-horizon``. A ``known_at``
+column with no label or cutoff time is reported as "cannot compare", with the reason. For the
+split, the share of held-out rows earlier than the end of the training period, overall and
+within each entity.
 
-Tolerances: ``time_tolerance`` (default 1 day) absorbs clock skew and same-day recording: a
-cutoff stored as a date sits at midnight, so a value recorded later that day looks up to
-24 h "late". ``share_tolerance`` (default 1 %) is the share of rows below which nothing is
-flagged (common practice, no source: a few mistyped dates are data errors, not a design).
-Levels (common practice, no source): a share of 2 % is medium, 10 % high; half the rows,
-or 10 % known only after the outcome itself, critical. A random split of time-ordered rows
-puts about half the held-out rows before the training period's end, a forward split none.
+Tolerances: ``time_tolerance`` absorbs clock skew and the rounding of times. Left at ``auto``
+it follows the resolution of the data: the coarser of the cutoff's and the value's finest
+non-zero unit (a cutoff stored as a date sits at midnight, so a value recorded later that
+day looks up to 24 h "late"; a cutoff with minutes does not), never below one minute of clock
+skew; durations from the dictionary are exact and compared with no tolerance. A duration the
+user sets (e.g. ``3d``) is used everywhere instead. ``share_tolerance`` (default 1 %) is the
+share of rows below which nothing is flagged. All numbers are in :class:`TimingThresholds`.
 """
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -26,22 +30,108 @@ import pandas as pd
 from featureaudit.durations import parse_duration
 from featureaudit.errors import SettingError
 from featureaudit.evidence import Evidence, Skip
+from featureaudit.levels import Ladder, Level
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.times import as_datetime
 
-SHARE_LEVELS = (("critical", 0.5), ("high", 0.10), ("medium", 0.02))
-AFTER_LABEL_CRITICAL = 0.10
 QUANTILES = (0.0, 0.05, 0.25, 0.5, 0.75, 0.95, 1.0)
-_DAY = 86400e9
+_SECOND = 1e9
+_MINUTE = 60 * _SECOND
+_HOUR = 60 * _MINUTE
+_DAY = 24 * _HOUR
+# The units a time column can be resolved to, coarsest first: (name, nanoseconds).
+UNITS = (("day", _DAY), ("hour", _HOUR), ("minute", _MINUTE), ("second", _SECOND))
 
 
-def _level(share: float, tolerance: float) -> str:
-    for level, floor in SHARE_LEVELS:
-        if share >= floor:
-            return level
-    return "low" if share >= max(tolerance, 1e-12) else "none"
+@dataclass(frozen=True)
+class TimingThresholds:
+    """The numbers behind the timing levels.
+
+    ``share``: the share of rows known after the cutoff; medium from 2 %, high from 10 %,
+    critical from half the rows (common practice, no source: a few mistyped dates are data
+    errors, a tenth of the rows is a design). On the detection bench's clean columns with
+    times (``benchmarks/detection.py --seeds 3``) no honest column exceeds 0 %.
+    ``after_label_critical``: a share of 10 % known only after the outcome itself is critical
+    (common practice, no source). ``clock_skew_floor``: the smallest automatic tolerance, one
+    minute of clock skew between systems (common practice, no source). A random split of
+    time-ordered rows puts about half the held-out rows before the training period's end, a
+    forward split none; the split uses the same ``share`` ladder.
+    """
+
+    share: Ladder = Ladder("share_after_cutoff", ((Level.CRITICAL, 0.5), (Level.HIGH, 0.10),
+                                                  (Level.MEDIUM, 0.02)),
+                           above_zero=Level.LOW, unit="%")
+    after_label_critical: float = 0.10
+    clock_skew_floor: str = "1min"
+
+
+THRESHOLDS = TimingThresholds()
+
+
+def share_level(share: float, share_tolerance: float,
+                th: TimingThresholds = THRESHOLDS) -> Level:
+    """The level of a share of late rows; below ``share_tolerance`` it is nothing."""
+    level = th.share.level(share)
+    if level == Level.LOW and share < max(share_tolerance, 1e-12):
+        return Level.NONE
+    return level
+
+
+def column_level(share_after_cutoff: float, share_after_label: float | None,
+                 share_tolerance: float, th: TimingThresholds = THRESHOLDS) -> Level:
+    """A column's level: the cutoff share's level, critical when enough rows are known only
+    after the outcome itself."""
+    level = share_level(share_after_cutoff, share_tolerance, th)
+    if share_after_label is not None and share_after_label >= th.after_label_critical:
+        return Level.CRITICAL
+    return level
+
+
+def resolution(ns: np.ndarray) -> tuple[str, float]:
+    """The finest non-zero unit the times carry: ``day`` when every value sits at midnight,
+    ``hour`` when on the hour, and so on; ``second`` for anything finer."""
+    t = ns[np.isfinite(ns)]
+    if t.size == 0:
+        return UNITS[0]
+    whole = t.astype(np.int64)
+    for name, unit in UNITS[:-1]:
+        if np.all(whole % int(unit) == 0):
+            return name, unit
+    return UNITS[-1]
+
+
+@dataclass(frozen=True)
+class Tolerance:
+    """The time tolerance in force for one comparison, and why."""
+
+    ns: float
+    reason: str
+
+    @property
+    def unit(self) -> tuple[str, float]:
+        """The unit the lags are best shown in: days, hours or minutes."""
+        for name, unit in UNITS[:-1]:
+            if self.ns >= unit:
+                return name + "s", unit
+        return "minutes", _MINUTE
+
+
+def tolerance(settings: Settings, *times: np.ndarray,
+              th: TimingThresholds = THRESHOLDS) -> Tolerance:
+    """The user's ``time_tolerance``, or under ``auto`` the coarsest resolution of ``times``
+    (never below the clock-skew floor)."""
+    if settings.time_tolerance != "auto":
+        return Tolerance(float(parse_duration(settings.time_tolerance).value),
+                         f"time_tolerance = {settings.time_tolerance!r} as set")
+    floor = float(parse_duration(th.clock_skew_floor).value)
+    found = [resolution(t) for t in times]
+    name, unit = max(found, key=lambda r: r[1]) if found else UNITS[0]
+    ns = max(unit, floor)
+    what = " and ".join(f"{n}s" for n in dict.fromkeys(r[0] for r in found))
+    return Tolerance(ns, f"automatic: the times carry {what}, so one {name}"
+                     + (f" (clock-skew floor {th.clock_skew_floor})" if ns > unit else ""))
 
 
 def _ns(times: pd.Series) -> np.ndarray:
@@ -52,13 +142,17 @@ def _ns(times: pd.Series) -> np.ndarray:
     return out
 
 
-def _quantiles_days(lag_ns: np.ndarray) -> dict[str, float]:
+def _quantiles(lag_ns: np.ndarray, unit: float = _DAY) -> dict[str, float]:
     lag = lag_ns[np.isfinite(lag_ns)]
     if lag.size == 0:
         return {}
     values = np.quantile(lag, QUANTILES)          # one partition for all seven quantiles
-    return {f"q{int(q * 100):02d}": float(v / _DAY) for q, v in zip(QUANTILES, values,
-                                                                     strict=True)}
+    return {f"q{int(q * 100):02d}": float(v / unit) for q, v in zip(QUANTILES, values,
+                                                                    strict=True)}
+
+
+def _quantiles_days(lag_ns: np.ndarray) -> dict[str, float]:
+    return _quantiles(lag_ns, _DAY)
 
 
 def _examples(table: AuditTable, mask: np.ndarray, k: int = 5) -> list[str]:
@@ -72,41 +166,111 @@ def _examples(table: AuditTable, mask: np.ndarray, k: int = 5) -> list[str]:
 @register
 class Timing(Probe):
     """Columns known only after the moment of prediction, and held-out periods that overlap
-    training. Thresholds and tolerances: see the module docstring."""
+    training. Thresholds: :class:`TimingThresholds`; tolerances: the module docstring."""
 
     name = "timing"
     scope = "column"
     kinds = ("recorded_after_cutoff", "time_overlap_across_split")
+    thresholds = THRESHOLDS
+
+    @classmethod
+    def describe(cls, settings: Settings) -> str:
+        th = cls.thresholds
+        if settings.time_tolerance == "auto":
+            tol = ("a tolerance that follows the resolution of the times (the coarser of the "
+                   "cutoff's and the value's finest unit: one day for dates, one hour or one "
+                   f"minute for times of day, never below {th.clock_skew_floor} of clock skew; "
+                   "durations from the dictionary are compared exactly)")
+        else:
+            tol = f"a tolerance of {settings.time_tolerance} (set by time_tolerance)"
+        return (f"A value is known at its dictionary known_at (a datetime column, or a duration "
+                f"from the label time) or, for a datetime feature, at its own value; durations "
+                f"are compared with each other when no time column is given (cutoff 0, or "
+                f"minus the horizon). The share of rows known after the cutoff, past {tol} "
+                f"and {settings.share_tolerance:.0%} of rows, is {th.share.describe()}, and "
+                f"critical when {th.after_label_critical:.0%} of rows are known only after the "
+                f"outcome itself. For the split: the share of held-out rows earlier than the "
+                f"end of training, on the same ladder.")
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
-        tol_ns = parse_duration(settings.time_tolerance).value
         evidence: list[Evidence] = []
         skipped: list[Skip] = []
         if table.cutoff_time is None:
-            skipped.append(Skip(self.name, "no label time or cutoff time given: pass "
-                                           "--label-time (and --cutoff-time or --horizon)"))
+            skipped.append(Skip(self.name, "no label time or cutoff time given: datetime "
+                                           "columns are not compared; pass --label-time (and "
+                                           "--cutoff-time or --horizon)"))
+            for name in table.features:
+                found = self._without_times(table, name, settings)
+                if found is not None:
+                    evidence.append(found)
         else:
             cutoff = _ns(table.cutoff_time)
             label = _ns(table.label_time) if table.label_time is not None else None
             for name in table.features:
-                found = self._column(table, name, cutoff, label, tol_ns, settings, skipped)
+                found = self._column(table, name, cutoff, label, settings, skipped)
                 if found is not None:
                     evidence.append(found)
-        evidence += self._split(table, tol_ns, settings, skipped)
+        evidence += self._split(table, settings, skipped)
         return evidence, skipped
 
-    def _known_times(self, table: AuditTable, name: str, label: np.ndarray | None,
-                     skipped: list[Skip]) -> tuple[np.ndarray, str] | None:
+    def _where(self, table: AuditTable, name: str):  # noqa: ANN202
         entry = table.dictionary.entries.get(name) if table.dictionary else None
         source = Path(table.dictionary.source).name if table.dictionary else ""
-        where = f"dictionary {source!r} line {entry.line}" if entry else ""
+        return entry, (f"dictionary {source!r} line {entry.line}" if entry else "")
+
+    def _without_times(self, table: AuditTable, name: str, settings: Settings
+                       ) -> Evidence | None:
+        """No label or cutoff time: durations against the cutoff's own offset, columns not."""
+        entry, where = self._where(table, name)
+        if entry is None or not entry.known_at:
+            return None
+        if entry.known_at_offset is None:
+            return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", None,
+                            self.thresholds.share.floor(), Level.NONE, column=name,
+                            summary=f"cannot compare: known_at names column "
+                                    f"{entry.known_at!r}, and no label time or cutoff time is "
+                                    "given (pass --label-time or --cutoff-time)",
+                            detail={"basis": f"{where}: known_at = {entry.known_at!r}",
+                                    "compared": False, "reason": "no label or cutoff time"})
+        offset = float(entry.known_at_offset.value)
+        cut = -float(table.horizon.value) if table.horizon is not None else 0.0
+        tol = 0.0 if settings.time_tolerance == "auto" else \
+            float(parse_duration(settings.time_tolerance).value)
+        late, after_label = offset - cut > tol, offset > tol
+        share, share_l = float(late), float(after_label)
+        level = column_level(share, share_l, settings.share_tolerance, self.thresholds)
+        cut_text = f"-{table.cutoff_source.split(':', 1)[1]}" if table.horizon is not None \
+            else "the label time"
+        text = (f"known {entry.known_at} from the label time, after the cutoff "
+                f"({cut_text}) for every row" if late else
+                f"known {entry.known_at} from the label time, by the cutoff ({cut_text})")
+        if after_label:
+            text += ", and after the outcome itself"
+        unit_name, unit = Tolerance(max(abs(offset - cut), _MINUTE), "").unit
+        detail = {"basis": f"{where}: known_at = {entry.known_at!r} (relative to the label "
+                           "time; no time column, durations compared)",
+                  "compared": "durations", "cutoff": table.cutoff_source or "label time",
+                  "known_after_cutoff": f"{(offset - cut) / unit:g} {unit_name}",
+                  "share_after_cutoff": share, "share_after_label": share_l,
+                  "tolerance": settings.time_tolerance,
+                  "tolerance_used": "none (durations are exact)" if tol == 0 else
+                  settings.time_tolerance}
+        return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", share,
+                        self.thresholds.share.floor(), level, column=name, summary=text,
+                        severity=share, detail=detail)
+
+    def _known_times(self, table: AuditTable, name: str, label: np.ndarray | None,
+                     skipped: list[Skip]) -> tuple[np.ndarray, str, bool] | None:
+        """The times a column's values become known, the basis, and whether they come from a
+        dictionary duration (exact, compared without a resolution tolerance)."""
+        entry, where = self._where(table, name)
         if entry is not None and entry.known_at_offset is not None:
             if label is None:
                 skipped.append(Skip(self.name, f"known_at {entry.known_at!r} counts from the "
                                                "label time, and no label time is given", name))
                 return None
             return label + float(entry.known_at_offset.value), f"{where}: known_at = " \
-                f"{entry.known_at!r} (relative to the label time)"
+                f"{entry.known_at!r} (relative to the label time)", True
         source_col = entry.known_at_column if entry is not None and entry.known_at_column \
             else None
         if source_col is not None and source_col not in table.frame.columns:
@@ -122,50 +286,49 @@ class Timing(Probe):
             return None
         basis = f"{where}: known_at = {source_col!r}" if source_col else \
             "the column's own datetime values (no known_at in the dictionary)"
-        return _ns(times), basis
+        return _ns(times), basis, False
 
     def _column(self, table: AuditTable, name: str, cutoff: np.ndarray,
-                label: np.ndarray | None, tol_ns: int, settings: Settings,
+                label: np.ndarray | None, settings: Settings,
                 skipped: list[Skip]) -> Evidence | None:
         known = self._known_times(table, name, label, skipped)
         if known is None:
             return None
-        times, basis = known
+        times, basis, from_duration = known
         ok = np.isfinite(times) & np.isfinite(cutoff)
         if not ok.any():
             skipped.append(Skip(self.name, "no row has both a known time and a cutoff", name))
             return None
+        tol = tolerance(settings, cutoff[ok], *(() if from_duration else (times[ok],)),
+                        th=self.thresholds)
+        unit_name, unit = tol.unit
         lag = np.where(ok, times - cutoff, np.nan)
-        after = ok & (lag > tol_ns)
+        after = ok & (lag > tol.ns)
         share = float(after.sum() / ok.sum())
         detail: dict = {"basis": basis, "rows_checked": int(ok.sum()),
                         "rows_missing_time": int((~ok).sum()),
                         "rows_after_cutoff": int(after.sum()), "share_after_cutoff": share,
                         "lag_days_vs_cutoff": _quantiles_days(lag),
+                        "lag_unit": unit_name, f"lag_{unit_name}_vs_cutoff": _quantiles(lag, unit),
                         "examples_after_cutoff": _examples(table, after),
-                        "cutoff": table.cutoff_source, "tolerance": settings.time_tolerance}
-        level = _level(share, settings.share_tolerance)
-        text = f"known after the moment of prediction for {share:.0%} of rows"
+                        "cutoff": table.cutoff_source, "tolerance": settings.time_tolerance,
+                        "tolerance_used": f"{tol.ns / unit:g} {unit_name}",
+                        "tolerance_reason": tol.reason}
+        share_l = None
         if label is not None:
             ok_l = np.isfinite(times) & np.isfinite(label)
-            after_l = ok_l & (times - label > tol_ns)
+            after_l = ok_l & (times - label > tol.ns)
             share_l = float(after_l.sum() / ok_l.sum()) if ok_l.any() else 0.0
             detail.update(share_after_label=share_l, rows_after_label=int(after_l.sum()),
                           lag_days_vs_label=_quantiles_days(np.where(ok_l, times - label,
                                                                      np.nan)))
-            if share_l >= AFTER_LABEL_CRITICAL:
-                level = "critical"
-                text += f", and after the outcome itself for {share_l:.0%}"
-        if level == "none":
-            text = "known by the moment of prediction" + (
-                f" (after it for {share:.1%} of rows, within tolerance)" if share else "")
-        text += f"; {detail['rows_missing_time']} rows lack a time" \
-            if detail["rows_missing_time"] else ""
+        level = column_level(share, share_l, settings.share_tolerance, self.thresholds)
         return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", share,
-                        SHARE_LEVELS[1][1], level, column=name, summary=text,
+                        self.thresholds.share.floor(), level, column=name,
+                        summary=_column_sentence(level, share, share_l, detail, tol),
                         severity=min(1.0, share), detail=detail)
 
-    def _split(self, table: AuditTable, tol_ns: int, settings: Settings,
+    def _split(self, table: AuditTable, settings: Settings,
                skipped: list[Skip]) -> list[Evidence]:
         base = table.cutoff_time if table.cutoff_time is not None else table.label_time
         if base is None:
@@ -180,6 +343,8 @@ class Timing(Probe):
         if not train.any() or not held.any():
             skipped.append(Skip(self.name, "one side of the split has no time values"))
             return []
+        tol = tolerance(settings, t[ok], th=self.thresholds)
+        tol_ns = tol.ns
         end = float(np.max(t[train]))
         before = held & (t < end - tol_ns)
         share = float(before.sum() / held.sum())
@@ -192,7 +357,9 @@ class Timing(Probe):
             "heldout_rows_before_train_end": int(before.sum()), "heldout_rows": int(held.sum()),
             "rows_missing_time": int((~ok).sum()),
             "heldout_days_vs_train_end": _quantiles_days(t[held] - end),
-            "examples": _examples(table, before), "tolerance": settings.time_tolerance}
+            "examples": _examples(table, before), "tolerance": settings.time_tolerance,
+            "tolerance_used": f"{tol.ns / tol.unit[1]:g} {tol.unit[0]}",
+            "tolerance_reason": tol.reason}
         if table.label_time is not None and table.cutoff_time is not None:
             lab = _ns(table.label_time)
             lab_end = float(np.nanmax(np.where(train, lab, np.nan)))
@@ -200,13 +367,32 @@ class Timing(Probe):
                 (held & (t < lab_end - tol_ns)).sum() / held.sum())
         if table.entity is not None:
             detail.update(_per_entity(table.frame[table.entity], t, train, held, tol_ns))
-        level = _level(share, settings.share_tolerance)
+        level = share_level(share, settings.share_tolerance, self.thresholds)
         summary = (f"{share:.0%} of held-out rows are earlier than the end of the training "
-                   f"period (overlap {detail['overlap_days']:.0f} days)" if level != "none"
+                   f"period (overlap {detail['overlap_days']:.0f} days)" if level != Level.NONE
                    else "the held-out period starts after the training period ends")
         return [Evidence(self.name, "time_overlap_across_split", "heldout_share_before_train_end",
-                         share, SHARE_LEVELS[1][1], level, summary=summary,
+                         share, self.thresholds.share.floor(), level, summary=summary,
                          severity=min(1.0, share), detail=detail)]
+
+
+def _column_sentence(level: Level, share: float, share_l: float | None, detail: dict,
+                     tol: Tolerance) -> str:
+    """The sentence that explains a column's level (the level is decided elsewhere)."""
+    unit_name = detail["lag_unit"]
+    median = detail[f"lag_{unit_name}_vs_cutoff"].get("q50", 0.0)
+    if level == Level.NONE:
+        text = "known by the moment of prediction" + (
+            f" (after it for {share:.1%} of rows, within tolerance)" if share else "")
+    else:
+        text = f"known after the moment of prediction for {share:.0%} of rows"
+        if share_l is not None and share_l > 0 and level == Level.CRITICAL:
+            text += f", and after the outcome itself for {share_l:.0%}"
+        text += f" (median lag {median:.3g} {unit_name})"
+    text += f"; tolerance {detail['tolerance_used']} ({tol.reason})"
+    text += f"; {detail['rows_missing_time']} rows lack a time" \
+        if detail["rows_missing_time"] else ""
+    return text
 
 
 def _per_entity(entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.ndarray,

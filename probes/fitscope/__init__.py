@@ -8,11 +8,13 @@ or values written with a few digits), so rounding is never evidence. A fit on th
 rows leaves the opposite fingerprint and is reported as clean. Where the held-out share is
 so small that a training-only fit would look the same, the probe says it cannot tell.
 
-Levels: a fingerprint that holds over all rows and is off over the training rows by more
-than 5 rounding SDs and than the sampling spread allows is ``high``; target encodings that
+Levels (numbers in :class:`FitscopeThresholds`): a fingerprint that holds over all rows and is
+off over the training rows by more than 5 rounding SDs and than the sampling spread allows is
+``high``; target encodings that
 used held-out targets are ``critical``, since they carry the outcome itself. Preprocessing
 leakage biases validation in either direction (Moscovich & Rosset 2022); the level says how
-sure the fingerprint is, not how large the bias is.
+sure the fingerprint is, not how large the bias is. Every numeric column examined without a
+fingerprint, or too short to judge, carries a ``none`` evidence saying what was checked.
 """
 
 from __future__ import annotations
@@ -24,26 +26,47 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._piles import capped as _capped
 from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
+from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
-MIN_SIDE = 20          # fewer held-out or training rows than this: cannot tell
+MIN_SIDE = THRESHOLDS.min_side   # fewer held-out or training rows than this: cannot tell
+__all__ = ["Fitscope", "FitscopeThresholds"]
 
 
 @register
 class Fitscope(Probe):
     """Fingerprints of scaling, imputation, capping, rank transforms and target encodings
-    fitted on all rows. Thresholds: see the module docstring."""
+    fitted on all rows. Thresholds: :class:`FitscopeThresholds`; method: the module
+    docstring."""
 
     name = "fitscope"
     scope = "column"
     kinds = ("fit_on_all_rows", "target_proxy")
+    thresholds = THRESHOLDS
+
+    @classmethod
+    def describe(cls, settings: Settings) -> str:
+        th = cls.thresholds
+        caps = ", ".join(f"{p:.1%}" for p in th.cap_levels)
+        return ("Scaling, imputation, capping, rank transforms and target encodings leave "
+                "statistics that are exact over the rows they were fitted on. Exact over all rows "
+                "but not over the training rows, within 5 SDs of the column's storage rounding "
+                f"and beyond the sampling spread, is {th.leak.label}; target encodings that used "
+                f"held-out targets are {th.encoding.label}. A pile of one value is examined from "
+                f"{th.pile_share:.1%} of rows and {th.pile_min_rows} rows when it exceeds what "
+                f"its {th.neighbours} nearest values on each side predict (Poisson tail below "
+                f"{th.pile_alpha:g}, Bonferroni over the distinct values), so natural ties are "
+                f"no evidence; caps are tested at the {caps} quantiles. With fewer than "
+                f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
+                "cannot tell; every numeric column examined carries what was checked.")
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         skipped: list[Skip] = []
@@ -72,15 +95,35 @@ def _check_column(name: str, s: pd.Series, values: np.ndarray, train: np.ndarray
                   split: bool) -> list[Evidence]:
     ok = np.isfinite(values)
     v = values if ok.all() else values[ok]
-    if v.size < 2 * MIN_SIDE or np.unique(v[:1000]).size < 3:
-        return []
+    if v.size < 2 * MIN_SIDE or np.unique(v).size < 3:
+        return [_coverage(name, None, f"could not judge: {v.size} values, "
+                          f"{np.unique(v).size} distinct (a fit needs {2 * MIN_SIDE} values "
+                          "and 3 distinct)")]
     err = _LazyError(s, values)
     out = []
-    for check in _plausible(v, values[ok & train]):
+    checks = _plausible(v, values[ok & train])
+    for check in checks:
         found = check(name, values, err, ok, train, split)
         if found is not None:
             out.append(found)
+    if not out:
+        tried = ", ".join(CHECK_NAMES[c.__name__] for c in checks)
+        out.append(_coverage(name, tried, "no fingerprint of a fit on all rows"
+                             + ("" if split else " (audited as one pool)")))
     return out
+
+
+CHECK_NAMES = {"_standardised": "standardisation", "_minmax": "min-max scaling",
+               "imputed": "imputation piles", "capped": "quantile caps",
+               "_quantile": "rank or quantile transform"}
+
+
+def _coverage(name: str, tried: str | None, reason: str) -> Evidence:
+    """A none-level note: what fitscope checked on a column and why it found nothing."""
+    summary = reason + (f"; checked {tried}" if tried else "")
+    return _evidence(name, "fingerprint_checks", None, "none", summary,
+                     {"checked": tried.split(", ") if tried else [],
+                      "fitted_on": "cannot tell" if tried is None else "no fingerprint"}, 0.0)
 
 
 def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:

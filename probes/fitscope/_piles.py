@@ -1,47 +1,94 @@
 """Piles of one value: imputation spikes and quantile caps, and whether all rows or only
 the training rows explain them exactly.
 
-Imputation: a value far more frequent than its neighbours that equals the mean or median of
-the other values (allowing for the few genuine copies of it that continuous data has).
-Capping: piles at the extremes whose sizes are exactly what numpy's linear-interpolation
-quantile clipping leaves; small piles often fit both hypotheses and then cannot tell.
+Imputation: a value far more frequent than its neighbouring values predict (a Poisson
+excess over their median count, so natural ties of rounded measurements are not piles) that
+equals the mean or median of the other values, allowing for the genuine copies of it the
+column's own ties predict. Capping: piles at the extremes more frequent than every interior
+value or than their inner neighbours predict, whose sizes are what numpy's
+linear-interpolation quantile clipping leaves (plus the cap value's own natural ties); small
+piles often fit both hypotheses and then cannot tell.
 """
 
 from __future__ import annotations
 
 import numpy as np
+from scipy.stats import poisson
 
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
-from featureaudit.probes.fitscope._precision import mean_tolerance
+from featureaudit.probes.fitscope._precision import _decimals, mean_tolerance
+from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 
-CAP_LEVELS = (0.005, 0.01, 0.025, 0.05)
-SPIKE_SHARE = 0.005    # an imputation spike holds at least 0.5 % of rows ...
-SPIKE_RATIO = 10.0     # ... and ten times the next most frequent value
+CAP_LEVELS = THRESHOLDS.cap_levels
 
 
-def _spike(values: np.ndarray, ok: np.ndarray) -> tuple[float, int] | None:
+def pile_excess_p(count: int, neighbour_counts: np.ndarray) -> tuple[float, float]:
+    """The Poisson tail P(X >= count) of a pile against the median count of its neighbouring
+    distinct values (at least 1), and that expected count. Natural ties of a rounded
+    measurement set the neighbours' counts, so they are not piles."""
+    expected = max(float(np.median(neighbour_counts)), 1.0) if neighbour_counts.size else 1.0
+    return float(poisson.sf(count - 1, expected)), expected
+
+
+def piles(values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLDS
+          ) -> list[tuple[float, int, float]]:
+    """Values held by far more rows than their neighbours predict: (value, rows, expected).
+
+    A pile needs ``pile_share`` of the rows, ``pile_min_rows`` rows, and a Poisson excess
+    over the median count of the ``neighbours`` nearest distinct values on each side below
+    ``pile_alpha`` after a Bonferroni correction over the distinct values, and the same
+    excess over the column's largest other tie where the column ties naturally. Largest first,
+    ties by value, so the order of rows never matters."""
     v = values[ok]
     probe = v[:: max(1, v.size // 20_000)]
     _, probe_counts = np.unique(probe, return_counts=True)
-    if probe_counts.max() < max(3, SPIKE_SHARE * probe.size):
-        return None
+    if probe_counts.max() < max(3, th.pile_share * probe.size):
+        return []
     uniq, counts = np.unique(v, return_counts=True)
     if uniq.size < 10:
-        return None
-    order = np.argsort(-counts)
-    top, second = counts[order[0]], counts[order[1]]
-    if top < max(5, SPIKE_SHARE * v.size) or top < SPIKE_RATIO * second:
-        return None
-    return float(uniq[order[0]]), int(top)
+        return []
+    floor = max(th.pile_min_rows, th.pile_share * v.size)
+    candidates = np.flatnonzero(counts >= floor)
+    candidates = candidates[np.lexsort((uniq[candidates], -counts[candidates]))]
+    k = th.neighbours
+    out = []
+    top_two = np.sort(counts)[-2:]
+    for i in candidates[: 10 * th.max_piles]:
+        near = np.r_[counts[max(0, i - k):i], counts[i + 1:i + 1 + k]]
+        p, expected = pile_excess_p(int(counts[i]), near)
+        # ... and, where the column ties naturally, beyond its largest other tie: a mode
+        # among equal ties is no pile
+        largest_other = float(top_two[0] if counts[i] == top_two[-1] else top_two[-1])
+        if expected > 1.0 and largest_other > expected:
+            expected = largest_other
+            p = float(poisson.sf(int(counts[i]) - 1, expected))
+        if p * uniq.size < th.pile_alpha:
+            out.append((float(uniq[i]), int(counts[i]), expected))
+        if len(out) == th.max_piles:
+            break
+    return out
+
+
+def _tie_allowance(expected: float) -> int:
+    """Copies of a value its natural ties may hold: none for a continuous column, else up to
+    a Poisson upper bound (mean + 3 SD)."""
+    return 0 if expected <= 1.0 else int(np.ceil(expected + 3 * np.sqrt(expected)))
 
 
 def imputed(name, values, err, ok, train, split):
-    spike = _spike(values, ok)
-    if spike is None:
-        return None
-    value, count = spike
+    """The strongest imputation fingerprint among the column's piles (a leak first)."""
+    found = [e for e in (_imputed_pile(name, values, err, ok, train, split, pile)
+                         for pile in piles(values, ok)) if e is not None]
+    return max(found, key=lambda e: e.rank) if found else None
+
+
+def _imputed_pile(name, values, err, ok, train, split, pile):
+    value, count, expected = pile
     other = ok & (values != value)
-    genuine = _genuine_count(values[other], value)
+    natural = expected > 1.0 and _on_grid(values[other], value)
+    genuine = expected if natural else _genuine_count(values[other], value)
+    if expected > 1.0 and not natural:
+        genuine = 0.0   # a value off the column's rounding grid has no natural copies
     tol = mean_tolerance(values[other], err[other]) + 4 * float(err[ok & (values == value)][0])
     figures: dict = {}
     for label, rows, g in (("all_rows", other, genuine),
@@ -49,13 +96,18 @@ def imputed(name, values, err, ok, train, split):
         x = values[rows]
         below, above = int((x < value).sum()), int((x > value).sum())
         figures[label] = {"mean": float(np.mean(x)), "below": below, "above": above,
-                          "median_holds": _median_holds(x, value, g, tol),
+                          "median_holds": _median_holds(x, value, g, tol, natural),
                           "mean_holds": abs(float(np.mean(x)) - value) <= tol}
-    for stat in ("mean", "median"):
-        all_exact = figures["all_rows"][f"{stat}_holds"]
-        train_exact = figures["training_rows"][f"{stat}_holds"]
+    holds = {stat: (figures["all_rows"][f"{stat}_holds"], figures["training_rows"][f"{stat}_holds"])
+             for stat in ("mean", "median")}
+    # A statistic of the training rows that explains the pile wins: a leak needs every
+    # training-row explanation to fail.
+    order = sorted(holds, key=lambda st: (not holds[st][1], not holds[st][0]))
+    for stat in order:
+        all_exact, train_exact = holds[stat]
         if all_exact or train_exact:
             detail = {"spike_value": value, "spike_rows": count, "statistic": stat,
+                      "neighbours_expected_rows": expected,
                       "observed_copies_of_value_estimated": genuine, "tolerance": tol, **figures}
             x_tr = values[other & train]
             fit_tr = float(np.mean(x_tr)) if stat == "mean" else float(np.median(
@@ -68,10 +120,21 @@ def imputed(name, values, err, ok, train, split):
     return None
 
 
-def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float) -> bool:
-    """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine+1)?"""
+def _on_grid(other: np.ndarray, value: float) -> bool:
+    """Is ``value`` written with no more decimals than the column's other values (so that
+    natural ties of it can exist)?"""
+    sample = other[:: max(1, other.size // 2000)]
+    dec = _decimals(sample)
+    return dec is None or bool(np.round(value, dec) == value)
+
+
+def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float,
+                  natural: bool = False) -> bool:
+    """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine,
+    one more where the column has natural ties)?"""
     below, above = int((x < value).sum()), int((x > value).sum())
-    for g in range(0, int(np.ceil(genuine)) + 1):
+    top = int(np.ceil(genuine)) + (1 if natural else 0)
+    for g in range(0, top + 1):
         n = below + above + g
         if abs(below - above) > g + 1:
             continue
@@ -99,18 +162,26 @@ def capped(name, values, err, ok, train, split):
     uniq, counts = np.unique(v, return_counts=True)
     if uniq.size < 10:
         return None
-    interior = int(counts[1:-1].max())
     n_all, n_tr = int(ok.sum()), int((ok & train).sum())
+    share_tr = n_tr / max(n_all, 1)
+    k = THRESHOLDS.neighbours
     piles = []
-    for side, value in (("upper", float(v.max())), ("lower", float(v.min()))):
+    for side, value, inner in (("upper", float(v.max()), counts[-1 - k:-1]),
+                               ("lower", float(v.min()), counts[1:1 + k])):
         pile = ok & (values == value)
         count_all, count_tr = int(pile.sum()), int((pile & train).sum())
-        if count_all < max(3, interior + 1) or value == round(value):
+        p_excess, expected = pile_excess_p(count_all, inner)
+        interior = int(counts[1:-1].max())
+        examined = count_all >= max(3, interior + 1) or (
+            count_all >= 3 and p_excess * 2 < THRESHOLDS.pile_alpha)
+        if not examined or value == round(value):
             continue      # whole numbers (0, 1, 100) are natural floors; quantiles rarely are
-        fits_all = [p for p in CAP_LEVELS if abs(count_all - _pile(n_all, p)) <= 1]
-        fits_tr = [p for p in CAP_LEVELS if abs(count_tr - _pile(n_tr, p)) <= 1]
+        allow_all, allow_tr = _tie_allowance(expected), _tie_allowance(expected * share_tr)
+        fits_all = [p for p in CAP_LEVELS if _cap_fits(n_all, count_all, p, allow_all)]
+        fits_tr = [p for p in CAP_LEVELS if _cap_fits(n_tr, count_tr, p, allow_tr)]
         if fits_all or fits_tr:
             piles.append({"side": side, "cap_value": value, "rows_at_cap": count_all,
+                          "neighbours_expected_rows": expected,
                           "training_rows_at_cap": count_tr, "levels_fitting_all_rows": fits_all,
                           "levels_fitting_training_rows": fits_tr,
                           "level": (fits_all or fits_tr)[0]})
@@ -126,6 +197,14 @@ def capped(name, values, err, ok, train, split):
     return _verdict(name, f"capped at the {what} quantile", all_exact, train_exact, True,
                     split, {"piles": piles}, "training_rows_at_cap",
                     piles[0]["training_rows_at_cap"])
+
+
+def _cap_fits(n: int, count: int, p: float, allow: int) -> bool:
+    """Does a pile of ``count`` rows fit clipping ``n`` rows at the p quantile? Within one row
+    of what the clip leaves, plus up to ``allow`` natural ties of the cap value itself (when
+    the quantile lands on a value the data already holds)."""
+    gap = count - _pile(n, p)
+    return -1 <= gap <= 1 + allow
 
 
 def _pile(n: int, p: float) -> int:

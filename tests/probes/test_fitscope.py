@@ -237,3 +237,94 @@ def test_encoding_with_unlabelled_heldout_rows_cannot_blame_heldout_targets():
     result = fa.audit(train, test=test, target="y", probes=["fitscope"])
     row = result.columns.set_index("column").loc[column]
     assert "fit_on_all_rows" not in row["kinds"] and "target_proxy" in row["kinds"]
+
+
+# --- imputation among natural ties, coverage notes, the pure decisions ------------------------
+def _wine_imputed(column: str, fit_rows: str, seed: int = 2) -> tuple[pd.DataFrame, np.ndarray]:
+    """scikit-learn's wine data (measurements stored with two decimals, so values tie
+    naturally) with 40 values imputed by the median of all rows or of the training rows."""
+    from sklearn.datasets import load_wine
+    frame = load_wine(as_frame=True).frame
+    rng = np.random.default_rng(seed)
+    held = rng.random(len(frame)) < 0.25
+    x = frame[column].to_numpy(dtype=float).copy()
+    x[rng.choice(len(x), 40, replace=False)] = np.nan
+    rows = ~held if fit_rows == "train" else np.ones(len(x), bool)
+    imputer = SimpleImputer(strategy="median").fit(x[rows].reshape(-1, 1))
+    frame[column] = imputer.transform(x.reshape(-1, 1)).ravel()  # reference: sklearn imputer
+    return frame.assign(split=np.where(held, "test", "train")), held
+
+
+def _fitscope_levels(frame):
+    result = fa.audit(frame, target="target", split_column="split", probes=["fitscope"])
+    return dict(zip(result.columns["column"], result.columns["level"], strict=True)), result
+
+
+@pytest.mark.parametrize("column", ["ash", "malic_acid"])
+def test_all_rows_median_among_natural_ties_is_found(column):
+    natural = load_wine_counts(column)
+    assert natural >= 4          # the column ties naturally: its most frequent value repeats
+    leak, _ = _fitscope_levels(_wine_imputed(column, "all")[0])
+    clean, _ = _fitscope_levels(_wine_imputed(column, "train")[0])
+    assert leak[column] in ("high", "critical")
+    assert clean[column] in ("none", "low")
+
+
+def load_wine_counts(column: str) -> int:
+    from sklearn.datasets import load_wine
+    return int(load_wine(as_frame=True).frame[column].value_counts().max())
+
+
+def test_imputation_levels_do_not_depend_on_row_order():
+    frame, _ = _wine_imputed("ash", "all")
+    shuffled = frame.sample(frac=1.0, random_state=5).reset_index(drop=True)
+    assert _fitscope_levels(frame)[0] == _fitscope_levels(shuffled)[0]
+
+
+def test_every_examined_column_says_what_was_checked():
+    # scikit-learn's wine data with a random split: nothing is fitted, every column says so.
+    frame, _ = _wine_imputed("ash", "train")
+    levels, result = _fitscope_levels(frame)
+    table = result.columns.set_index("column")
+    for column in ("alcohol", "proline", "hue"):
+        notes = [e for e in table.loc[column, "evidence"] if e["probe"] == "fitscope"]
+        assert notes and all(e["level"] == "none" for e in notes), column
+        assert any("checked" in e["summary"] for e in notes), column
+
+
+def test_a_column_too_short_to_judge_says_so():
+    # scikit-learn's breast-cancer data cut to 30 rows: fewer than a fit needs to be judged.
+    frame = _breast_cancer()[0].head(30).assign(split=["train"] * 20 + ["test"] * 10)
+    result = fa.audit(frame, target="y", split_column="split", probes=["fitscope"])
+    ev = [e for e in result.columns.set_index("column").loc["mean radius", "evidence"]
+          if e["probe"] == "fitscope"]
+    assert ev and ev[0]["level"] == "none" and "could not judge" in ev[0]["summary"]
+
+
+def test_fit_level_decisions():
+    from featureaudit.levels import Level
+    from featureaudit.probes.fitscope._fingerprint import fit_level
+    assert fit_level(False, False, True, True) is None
+    assert fit_level(True, False, True, True) == (Level.HIGH, "all rows")
+    assert fit_level(True, True, True, True) == (Level.NONE, "cannot tell")
+    assert fit_level(True, False, False, True) == (Level.NONE, "cannot tell")
+    assert fit_level(False, True, True, True) == (Level.NONE, "training rows")
+    assert fit_level(True, False, True, False) == (Level.NONE, "no split")
+
+
+def test_pile_excess_against_a_hand_computed_poisson_tail():
+    import math
+
+    from featureaudit.probes.fitscope._piles import pile_excess_p
+    lam, count = 6.0, 15
+    # reference: Poisson tail 1 - sum_{k<15} e^-6 6^k / k! (textbook formula)
+    tail = 1 - sum(math.exp(-lam) * lam ** k / math.factorial(k) for k in range(count))
+    p, expected = pile_excess_p(count, np.array([5, 6, 6, 7, 6, 5, 8, 6]))
+    assert expected == 6.0 and p == pytest.approx(tail, rel=1e-9)
+
+
+def test_describe_quotes_the_thresholds():
+    from featureaudit.probes.fitscope import Fitscope
+    from featureaudit.settings import Settings
+    text = Fitscope.describe(Settings())
+    assert "0.5%" in text and "Poisson" in text and "high" in text and "critical" in text

@@ -172,3 +172,121 @@ def test_demo_without_dictionary_still_flags_the_late_timestamp():
     levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
     assert levels["last_contact_at"] in HIGH
     assert levels["customer_since"] == "none"
+
+
+# --- durations without times (a relative known_at and no label-time column) ----------------
+def _levels(result):
+    return dict(zip(result.columns["column"], result.columns["level"], strict=True))
+
+
+def test_relative_known_at_is_compared_without_any_time_column(macrodata):
+    # Real data: statsmodels' macrodata with its dates dropped, so only durations remain.
+    frame = macrodata.drop(columns="quarter_start").assign(
+        revised_cpi=macrodata["cpi"] * 1.01, lagged_m1=macrodata["m1"].shift(1).bfill())
+    d = parse_dictionary("column,known_at\nrevised_cpi,+30d\nlagged_m1,-90d\n", source="d.csv")
+    result = fa.audit(frame, target="unemp_up", dictionary=d, probes=["timing"])
+    levels = _levels(result)
+    assert levels["revised_cpi"] in HIGH and levels["lagged_m1"] in ("none", "low")
+    ev = result.columns.set_index("column").loc["revised_cpi", "evidence"][0]
+    assert "d.csv" in ev["detail"]["basis"] and ev["detail"]["compared"] == "durations"
+    # with a horizon of 120 days the cutoff is -120d: -90d is then late, -150d is not
+    d2 = parse_dictionary("column,known_at\nrevised_cpi,-90d\nlagged_m1,-150d\n", source="d.csv")
+    result = fa.audit(frame, target="unemp_up", dictionary=d2, horizon="120d", probes=["timing"])
+    levels = _levels(result)
+    assert levels["revised_cpi"] in HIGH and levels["lagged_m1"] == "none"
+
+
+def test_known_at_column_without_times_says_it_cannot_compare(macrodata):
+    # Real data: statsmodels' macrodata; known_at names a datetime column, no label time.
+    frame = macrodata.assign(published=macrodata["quarter_start"] + pd.Timedelta(days=100))
+    d = parse_dictionary("column,known_at\ncpi,published\n", source="d.csv")
+    result = fa.audit(frame, target="unemp_up", dictionary=d, probes=["timing"])
+    ev = result.columns.set_index("column").loc["cpi", "evidence"][0]
+    assert ev["level"] == "none" and "cannot compare" in ev["summary"] and "'published'" in \
+        ev["summary"]
+    compared = fa.audit(frame, target="unemp_up", dictionary=d, cutoff_time="quarter_start",
+                        probes=["timing"])
+    assert _levels(compared)["cpi"] in HIGH
+
+
+def test_horizon_without_label_time_still_needs_a_duration_to_compare(macrodata):
+    from featureaudit.errors import SettingError
+    with pytest.raises(SettingError, match="--label-time"):
+        fa.audit(macrodata, target="unemp_up", horizon="30d", probes=["timing"])
+
+
+# --- lateness finer than a day ---------------------------------------------------------------
+def _minute_times(macrodata):
+    """Cutoffs with minute resolution: each quarter's first day plus a minute of the day taken
+    from the real M1 series (statsmodels' macrodata)."""
+    minutes = (macrodata["m1"].to_numpy() * 7).astype(int) % 1440
+    return macrodata["quarter_start"] + pd.to_timedelta(minutes, unit="min")
+
+
+def test_hours_late_in_minute_resolution_data_is_found(macrodata):
+    cut = _minute_times(macrodata)
+    late = macrodata["unemp_up"] == 1              # recorded once the outcome is in
+    frame = macrodata.assign(
+        cut=cut, noted=cut + pd.to_timedelta(np.where(late, 180, -45), unit="min"),
+        honest=cut - pd.Timedelta(minutes=30))
+    result = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"])
+    levels = _levels(result)
+    assert levels["noted"] in HIGH and levels["honest"] == "none"
+    ev = result.columns.set_index("column").loc["noted", "evidence"][0]
+    assert ev["detail"]["lag_unit"] == "minutes" and ev["detail"]["tolerance_used"] == "1 minutes"
+    # reference: pandas arithmetic; three hours late = 180 minutes
+    assert ev["detail"]["lag_minutes_vs_cutoff"]["q100"] == pytest.approx(180)
+    # an explicit tolerance wins over the resolution: three hours pass under "1d"
+    explicit = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"],
+                        settings=Settings(time_tolerance="1d"))
+    assert _levels(explicit)["noted"] == "none"
+
+
+def test_same_day_lateness_against_a_date_cutoff_stays_within_a_day(macrodata):
+    # Real data: statsmodels' macrodata; the cutoff is a date, so a value that evening passes.
+    frame = macrodata.assign(noted=macrodata["quarter_start"] + pd.Timedelta(hours=18))
+    result = fa.audit(frame, target="unemp_up", cutoff_time="quarter_start", probes=["timing"])
+    ev = result.columns.set_index("column").loc["noted", "evidence"][0]
+    assert ev["level"] == "none" and ev["detail"]["tolerance_used"] == "1 days"
+
+
+def test_levels_do_not_depend_on_row_order(macrodata):
+    cut = _minute_times(macrodata)
+    frame = macrodata.assign(cut=cut, noted=cut + pd.to_timedelta(
+        np.where(macrodata["unemp_up"] == 1, 180, -45), unit="min"))
+    shuffled = frame.sample(frac=1.0, random_state=3).reset_index(drop=True)
+    a = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"])
+    b = fa.audit(shuffled, target="unemp_up", cutoff_time="cut", probes=["timing"])
+    assert _levels(a) == _levels(b)
+
+
+# --- the pure decisions ----------------------------------------------------------------------
+def test_share_and_column_levels():
+    from featureaudit.levels import Level
+    from featureaudit.probes.timing import column_level, share_level
+    assert share_level(0.005, 0.01) == Level.NONE and share_level(0.015, 0.01) == Level.LOW
+    assert share_level(0.02, 0.01) == Level.MEDIUM and share_level(0.10, 0.01) == Level.HIGH
+    assert share_level(0.5, 0.01) == Level.CRITICAL
+    assert column_level(0.05, 0.10, 0.01) == Level.CRITICAL
+    assert column_level(0.05, 0.09, 0.01) == Level.MEDIUM
+
+
+def test_resolution_and_tolerance():
+    from featureaudit.probes.timing import resolution, tolerance
+    def ns(*t):
+        times = pd.to_datetime(list(t), format="ISO8601")
+        return times.to_numpy(dtype="datetime64[ns]").astype("int64") * 1.0
+    assert resolution(ns("2025-01-01", "2025-02-03"))[0] == "day"
+    assert resolution(ns("2025-01-01 10:00", "2025-01-01"))[0] == "hour"
+    assert resolution(ns("2025-01-01 10:05"))[0] == "minute"
+    assert resolution(ns("2025-01-01 10:05:03"))[0] == "second"
+    auto = tolerance(Settings(), ns("2025-01-01 10:05"), ns("2025-01-01"))
+    assert auto.ns == 86400e9 and "day" in auto.reason          # the coarser of the two
+    assert tolerance(Settings(), ns("2025-01-01 10:05:03")).ns == 60e9  # clock-skew floor
+    assert tolerance(Settings(time_tolerance="3d"), ns("2025-01-01 10:05")).ns == 3 * 86400e9
+
+
+def test_describe_quotes_the_tolerance_in_force():
+    assert "3d" in Timing.describe(Settings(time_tolerance="3d"))
+    auto = Timing.describe(Settings())
+    assert "resolution" in auto and "10 %" in auto and "50 %" in auto

@@ -1,0 +1,44 @@
+"""The numbers behind fitscope's decisions, declared once with their sources."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from featureaudit.levels import Level
+
+
+@dataclass(frozen=True)
+class FitscopeThresholds:
+    """Thresholds of the fitscope probe, each with its source.
+
+    ``min_side``: fewer held-out or training rows than 20 cannot tell the two fits apart
+    (common practice, no source); "exact" is within 5 SDs of the storage rounding error
+    (``_precision``; a uniform rounding error has SD q/√12, a textbook formula).
+    ``pile_share`` / ``pile_min_rows``: a pile of one value is examined from 0.5 %
+    of the rows and 5 rows (common practice, no source). ``pile_alpha``: a pile is examined
+    when a Poisson tail against the median count of its ``neighbours`` nearest distinct
+    values on each side (and against the count of the column's largest other tie),
+    Bonferroni-corrected over the column's distinct values, is below 1e-4. Measured over
+    3 seeds on 6 bundled tables (scikit-learn's diabetes, breast cancer, wine; statsmodels'
+    star98, fair, macrodata), with one column rounded to a few digits: 0 of 1,869 untouched
+    columns, 0 of 18 rounded columns and 0 of 36 training-only imputations or caps reach
+    high; the detection bench's 1,710 clean columns stay at 0. ``max_piles``: at most 3
+    piles per column are
+    tested (cost bound). ``cap_levels``: the usual capping quantiles (0.5 %, 1 %, 2.5 %, 5 %;
+    common practice, no source). ``leak`` is the level of a fingerprint exact over all rows
+    and off over the training rows; ``encoding`` that of a target encoding using held-out
+    targets (it carries the outcome itself).
+    """
+
+    min_side: int = 20
+    pile_share: float = 0.005
+    pile_min_rows: int = 5
+    pile_alpha: float = 1e-4
+    neighbours: int = 4
+    max_piles: int = 3
+    cap_levels: tuple[float, ...] = (0.005, 0.01, 0.025, 0.05)
+    leak: Level = Level.HIGH
+    encoding: Level = Level.CRITICAL
+
+
+THRESHOLDS = FitscopeThresholds()
