@@ -47,15 +47,15 @@ class TwinsThresholds:
     data over 3 seeds (see the branch note for the figures): no clean split reached high.
     ``ci_z``: the one-sided normal quantile of the bound below which an exact-copy excess
     counts as none (1.645, a 95 % one-sided bound; common practice, no source).
-    ``baseline_draws``: random halves of the training rows averaged for the natural rate
-    (common practice, no source). ``min_twins``: fewer twin rows lower the level a step;
-    ``chance_margin``: twins whose labels agree no more than chance plus this lower it a step
-    (both common practice, no source). ``natural_ratio``: without a split, copies count as
-    natural when independent columns alone would explain this share of them (statsmodels'
-    ``fair`` survey: 13 % expected against 38 % seen), two steps down. ``entities``: the
-    share of held-out rows whose entity also has training rows; high from 10 %, critical
-    from 50 % (common practice, no source; record-wise splits of subject data overstate
-    accuracy, Saeb et al. 2016).
+    ``baseline_draws``: random parts of the training rows averaged for the natural rate
+    (common practice, no source). ``min_twins``: fewer twin rows (beyond natural ones)
+    give low at most; ``chance_margin``: twins whose labels agree no more than chance plus
+    this lower it a step (both common practice, no source). ``natural_ratio``: without a
+    split, copies count as natural when independent columns alone would explain this
+    share of them (statsmodels' ``fair`` survey: 13 % expected against 38 % seen), two
+    steps down. ``entities``: the share of held-out rows whose entity also has training
+    rows; high from 10 %, critical from 50 % (common practice, no source; record-wise
+    splits of subject data overstate accuracy, Saeb et al. 2016).
     """
 
     copies: Ladder = field(default=Ladder("excess_heldout_share_with_twin", (
@@ -81,8 +81,8 @@ def copy_level(excess: float, twin_rows: float, agreement: float | None,
     lowered: ``twin_rows`` twins in all, whose labels agree ``agreement`` (chance
     ``chance``; None without a target)."""
     level, notes = t.copies.level(excess), []
-    if level > Level.NONE and twin_rows < t.min_twins:
-        level, _ = level.down(), notes.append(f"only {twin_rows:.0f} twin rows")
+    if level > Level.LOW and twin_rows < t.min_twins:
+        level, _ = Level.LOW, notes.append(f"only {twin_rows:.0f} twin rows")
     if level > Level.NONE and agreement is not None and chance is not None \
             and twin_rows >= t.min_twins and agreement <= chance + t.chance_margin:
         level, _ = level.down(), notes.append("twins agree on the target no more than chance")
@@ -156,10 +156,11 @@ class Twins(Probe):
             f"{t.baseline_draws} seeded (seed {settings.seed}) random splits of the training "
             "rows in the proportion of the real split; the held-out share with a twin beyond "
             f"it (exact excess counted when its {t.ci_z:g}-SE lower bound is above zero, plus "
-            f"near copies) is {t.copies.describe()}; fewer than {t.min_twins} twin rows, or "
-            f"twins agreeing on the target within {t.chance_margin:g} of chance, lower it one "
-            "step. Without a split, copies within the table are judged on their share, two "
-            f"steps lower when independent columns explain {t.natural_ratio:.0%} of them. "
+            f"near copies) is {t.copies.describe()}; fewer than {t.min_twins} twin rows give "
+            f"low at most, and twins agreeing on the target within {t.chance_margin:g} of "
+            "chance lower it one step. Without a split, copies within the table are judged "
+            "on their share, two steps lower when independent columns explain "
+            f"{t.natural_ratio:.0%} of them. "
             "Held-out rows whose entity also has training rows: "
             f"{t.entities.describe()} of held-out rows; under a simulated random split "
             f"holding out {SIMULATED_HELDOUT_SHARE:.0%} of the rows, at most low.")
