@@ -7,15 +7,16 @@ Mann–Whitney null; a classifier two-sample test, Lopez-Paz & Oquab 2017). The 
 drive it are named by gain and by the AUC lost when the top three are left out.
 
 The model sees the features only, and each in a form that does not depend on the order of
-rows in the file (rows are sampled and folded in an order set by their content):
-numbers and times as they are, categories as codes of their sorted values (codes in
-order of first appearance would hand the model the row position, and a split given as
-``--test`` files or a file sorted by date would look separable). Identifier columns stay out of the model: an identifier whose values differ between the sides (ids
-issued in order, a split on an id range) is reported on its own, as that, at a modest
-level. Thresholds are in :class:`SeparabilityThresholds`. Without a split, the split the
-user is about to make is simulated: a random split holding out
-``SIMULATED_HELDOUT_SHARE`` of the rows (expect about 0.5) and, when a time is known, a
-time-ordered one (the last rows in time), reported as information.
+rows in the file (rows are sampled and folded in an order set by their content): numbers and
+times as they are, categories as codes of their sorted values (codes in order of first
+appearance would hand the model the row position, and a split given as ``--test`` files or a
+file sorted by date would look separable). Identifier columns stay out of the model: an
+identifier whose values differ between the sides (ids issued in order, a split on an id
+range) is reported on its own, as that, at a modest level. Thresholds are in
+:class:`SeparabilityThresholds`. Without a split, the split the user is about to make is
+simulated: a random split holding out ``SIMULATED_HELDOUT_SHARE`` of the rows (expect about
+0.5) and, when a time is known, a time-ordered one (the last rows in time), reported as
+information.
 """
 
 from __future__ import annotations
