@@ -54,13 +54,17 @@ class _Scaled:
 
 
 def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: np.ndarray,
-                 rng: np.random.Generator) -> tuple[np.ndarray, dict]:
+                 rng: np.random.Generator, train: np.ndarray | None = None
+                 ) -> tuple[np.ndarray, dict]:
     """Held-out rows with a near copy among training rows (banded hashing, then distance).
+
+    ``train`` are the rows searched as partners (default: every row not held out); a
+    subset serves to measure the natural near-copy rate between parts of the training rows.
 
     At most 50,000 held-out rows are searched; ``calib["searched_share"]`` says which share
     of the candidates that is, so the caller can scale the count honestly.
     """
-    train = ~heldout
+    train = ~heldout if train is None else train
     raw, cats = [], []
     for c in cols:
         v = numeric_view(table.frame[c])
@@ -110,6 +114,7 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
     left, right = row_labels(table, partner[hits]), row_labels(table, hits)
     calib["pairs"] = [[a, b, float(best[i])] for a, b, i in zip(left, right, hits, strict=True)]
     calib["threshold"] = threshold
+    calib["partner"] = partner            # the nearest training row per query (popped)
     calib["near_twin_distances"] = [float(v) for v in np.sort(best[near])[:50]]
     return near, calib
 

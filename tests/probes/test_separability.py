@@ -69,3 +69,40 @@ def test_sample_size_setting_is_honoured_and_reported(breast_cancer, seed):
     result = fa.audit(frame, split_column="split", probes=["separability"],
                       settings=Settings(seed=seed, reference_rows=300))
     assert _finding(result)[0]["detail"]["sample_rows"] == pytest.approx(300, abs=2)
+
+
+def test_verdict_does_not_depend_on_row_order_or_on_test_files(breast_cancer):
+    # Real data: scikit-learn's breast-cancer set with a text record id and a random split.
+    # The same rows and split given with --split-column, as a --test frame (held-out rows
+    # last), and sorted by a date: one level, below medium (the split is random).
+    rng = np.random.default_rng(4)
+    frame = breast_cancer.copy()
+    frame.insert(0, "record_id", [f"r{i:05d}" for i in range(len(frame))])
+    frame["seen"] = np.datetime64("2024-01-01") + rng.permutation(len(frame)).astype(
+        "timedelta64[D]")
+    split = np.where(rng.random(len(frame)) < 0.3, "test", "train")
+    by_column = _finding(fa.audit(frame.assign(split=split), target="malignant",
+                                  split_column="split", probes=["separability"]))[0]
+    as_files = _finding(fa.audit(frame[split == "train"], test=frame[split == "test"],
+                                 target="malignant", probes=["separability"]))[0]
+    by_date = frame.assign(split=split).sort_values("seen")
+    by_date = _finding(fa.audit(by_date, target="malignant", split_column="split",
+                                probes=["separability"]))[0]
+    levels = {by_column["level"], as_files["level"], by_date["level"]}
+    assert len(levels) == 1 and levels <= {"none", "low"}, levels
+    assert all("record_id" not in [d["column"] for d in f["detail"]["drivers"]]
+               for f in (by_column, as_files, by_date))
+
+
+def test_level_functions_are_pure():
+    from featureaudit.levels import Level
+    from featureaudit.probes.separability import identifier_level, simulated_level, split_level
+    # floors: common practice, no source (declared in SeparabilityThresholds)
+    assert split_level(0.90, 10.0) == Level.CRITICAL
+    assert split_level(0.75, 10.0) == Level.HIGH
+    assert split_level(0.75, 3.5) == Level.MEDIUM       # not 4 null SEs from 0.5
+    assert split_level(0.55, 2.5) == Level.LOW
+    assert split_level(0.51, 0.5) == Level.NONE
+    assert identifier_level(1.0, 20.0) == Level.LOW
+    assert simulated_level(Level.CRITICAL, "time") == Level.LOW
+    assert simulated_level(Level.CRITICAL, "random") == Level.NONE

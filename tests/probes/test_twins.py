@@ -139,3 +139,55 @@ def test_every_heldout_row_an_exact_copy():
     found = _finding(result, "duplicate_rows_across_split")
     assert found["value"] == 1.0 and found["level"] == "critical"
     assert not result.document["skipped"]
+
+
+def _modechoice():
+    # Real data: statsmodels' bundled modechoice (travel choices of 210 people, four
+    # alternatives each; few-valued columns such as psize, hinc and ttme).
+    import statsmodels.api as sm
+    frame = sm.datasets.modechoice.load_pandas().data.copy()
+    frame["y"] = frame.pop("choice").astype(int)
+    return frame
+
+
+def test_natural_copies_of_a_group_split_stay_below_medium_and_planted_copies_are_high():
+    frame = _modechoice()
+    rng = np.random.default_rng(0)
+    people = frame["individual"].unique()
+    held = rng.choice(people, people.size // 4, replace=False)
+    grouped = frame.assign(split=np.where(frame["individual"].isin(held), "test", "train"))
+    clean = _finding(fa.audit(grouped, target="y", split_column="split", probes=["twins"]),
+                     "duplicate_rows_across_split")
+    assert clean["level"] in ("none", "low"), clean["summary"]
+    assert clean["detail"]["exact_copy_baseline"]["natural_share"] >= 0
+    # 5 % of held-out rows copied from training rows (features and label)
+    split = np.where(rng.random(len(frame)) < 0.25, "test", "train")
+    test_rows, train_rows = np.flatnonzero(split == "test"), np.flatnonzero(split == "train")
+    k = int(round(0.05 * test_rows.size))
+    planted = frame.copy()
+    planted.iloc[rng.choice(test_rows, k, replace=False)] = \
+        frame.iloc[rng.choice(train_rows, k)].to_numpy()
+    found = _finding(fa.audit(planted.assign(split=split), target="y", split_column="split",
+                              probes=["twins"]), "duplicate_rows_across_split")
+    assert found["level"] in HIGH, found["summary"]
+    assert found["detail"]["label_agreement"] == 1.0
+
+
+def test_copy_excess_matches_a_hand_count_and_levels_are_pure():
+    from featureaudit.levels import Level
+    from featureaudit.probes.twins import THRESHOLDS, copy_excess, copy_level, entity_level
+    # 100 training rows, all distinct; 20 held-out rows of which 10 copy a training row:
+    # random parts of the training rows never find a copy, so the excess is 10/20 exactly
+    # (reference: hand count).
+    h = np.r_[np.arange(100), np.arange(10), np.arange(1000, 1010)].astype(np.uint64)
+    heldout = np.r_[np.zeros(100, bool), np.ones(20, bool)]
+    base = copy_excess(h, heldout, np.random.default_rng(0))
+    assert base["natural_share"] == 0.0
+    assert base["excess"] == pytest.approx(0.5, abs=0.15)
+    assert copy_level(0.02, 10, 1.0, 0.5) == (Level.HIGH, [])
+    assert copy_level(0.02, 3, 1.0, 0.5)[0] == Level.LOW           # too few twins
+    assert copy_level(0.02, 10, 0.52, 0.5)[0] == Level.MEDIUM      # labels agree by chance
+    assert copy_level(0.0, 0, None, None)[0] == Level.NONE
+    assert entity_level(0.6, simulated=True) == Level.LOW
+    assert entity_level(0.6, simulated=False) == Level.CRITICAL
+    assert THRESHOLDS.copies.floor(Level.HIGH) == 0.015
