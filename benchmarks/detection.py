@@ -4,12 +4,19 @@ Prints, per case, the level and kinds featureaudit gave the planted column (or s
 finding), then recall at level high, kind accuracy, and false positives at level high on
 the original (clean) columns and on clean controls.
 
-    python benchmarks/detection.py [--seeds 3]
+    python benchmarks/detection.py [--seeds 3] [--only PATTERN]
+
+The cases of benchmarks/detection_cases.py (one or more per failure class, planted and
+clean, on data the rest of the bench does not use) follow, with figures per class and kind
+for the "tune" and "check" sets, and a ranking figure: the share of runs in which every
+planted column scores above every clean one. Runs are sequential, one line per run.
 """
 
 from __future__ import annotations
 
 import argparse
+import fnmatch
+import sys
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -20,6 +27,9 @@ import statsmodels.api as sm
 from sklearn.datasets import load_breast_cancer, load_diabetes, load_iris, load_wine
 
 import featureaudit as fa
+
+sys.path.insert(0, str(__import__('pathlib').Path(__file__).parent))
+import detection_cases as dc  # noqa: E402
 
 HIGH = ("high", "critical")
 
@@ -158,15 +168,14 @@ def run_control(name: str, seed: int) -> tuple[list[str], list[str]]:
     return cols, split
 
 
-def main() -> None:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--seeds", type=int, default=2)
-    args = parser.parse_args()
-    start = time.perf_counter()
+def old_cases(seeds: int, only: str | None) -> None:
+    """The original planted cases and clean controls."""
     outcomes: list[Outcome] = []
     for name in DATASETS:
         for kind in EXPECTED:
-            for seed in range(args.seeds):
+            if only and not fnmatch.fnmatch(f"{name} / {kind}", f"*{only}*"):
+                continue
+            for seed in range(seeds):
                 o = run_case(name, kind, seed)
                 outcomes.append(o)
                 mark = "ok " if o.found and o.kind_right else "MISS"
@@ -174,7 +183,7 @@ def main() -> None:
                       + (f"  clean at high: {o.clean_high}" if o.clean_high else ""))
     controls = []
     for name in DATASETS:
-        for seed in range(args.seeds):
+        for seed in range(seeds):
             cols, split = run_control(name, seed)
             controls.append((name, seed, cols, split))
             if cols or split:
@@ -189,6 +198,175 @@ def main() -> None:
           f"({found / len(outcomes):.0%}); with the right kind: {kind_ok}/{len(outcomes)}")
     print(f"clean columns at high or above in planted runs: {clean_fp}/{clean_total}")
     print(f"clean controls with any finding at high or above: {ctrl_fp}/{len(controls)}")
+
+
+@dataclass
+class Run:
+    """One new-style case over one seed, scored against the expectation written beforehand."""
+
+    case: dc.Case
+    seed: int
+    planted: dict[str, tuple[str, tuple[str, ...], float]]   # column -> level, kinds, score
+    split: tuple[str, str] | None                            # planted kind -> level found
+    clean_high: list[str]
+    clean_total: int
+    any_high: list[str]
+    ranked: bool | None
+    covered: list[bool]
+    expected: dict[str, str]
+    ill_posed: str = ""
+
+
+RANK = {"none": 0, "low": 1, "medium": 2, "high": 3, "critical": 4}
+
+
+def _ok(level: str, kinds: tuple[str, ...], kind: str, at: str) -> bool:
+    return RANK.get(level, 0) >= RANK[at] and kind in kinds
+
+
+def run_new(case: dc.Case, seed: int) -> Run:
+    frame, target = dc.DATASETS[case.dataset]()
+    frame = frame.sample(frac=1, random_state=seed).reset_index(drop=True)
+    originals = [c for c in frame.columns if c != target]
+    built = case.build(frame, target, np.random.default_rng(seed))
+    if built.ill_posed:
+        dc.cleanup(built)
+        return Run(case, seed, {}, None, [], 0, [], None, [], {}, built.ill_posed)
+    try:
+        result = fa.audit(built.frame, seed=seed, **built.args)
+    finally:
+        dc.cleanup(built)
+    doc = result.document
+    cols = {c["column"]: c for c in doc["columns"]}
+    planted = {c: (cols[c]["level"], tuple(cols[c]["kinds"]), float(cols[c]["score"]))
+               if c in cols else ("none", (), 0.0) for c in built.planted}
+    split = None
+    if built.split_kind:
+        levels = [f["level"] for f in doc["dataset_findings"] if f["kind"] == built.split_kind]
+        split = (built.split_kind, max(levels, key=lambda v: RANK.get(v, 0), default="none"))
+    clean = [c for c in dict.fromkeys(originals + built.clean)
+             if c in cols and c not in built.planted and c != "split"]
+    clean_high = [c for c in clean if cols[c]["level"] in HIGH]
+    any_high = [c for c, v in cols.items() if v["level"] in HIGH]
+    any_high += [f"*{f['kind']}*" for f in doc["dataset_findings"] if f["level"] in HIGH]
+    ranked = None
+    if planted and clean:
+        ranked = min(p[2] for p in planted.values()) > max(float(cols[c]["score"]) for c in clean)
+    covered = [any(e.get("probe") == "fitscope" for e in cols[c].get("evidence", []))
+               for c in built.coverage if c in cols]
+    return Run(case, seed, planted, split, clean_high, len(clean), any_high, ranked, covered,
+               dict(built.planted))
+
+
+def _line(r: Run) -> str:
+    head = f"{r.case.set:<5} c{r.case.klass:<2} {r.case.dataset:<12} {r.case.name:<28} " \
+           f"s{r.seed} {r.case.status:<7}"
+    if r.ill_posed:
+        return f"N/A  {head} ill-posed: {r.ill_posed}"
+    parts, good = [], True
+    for col, (level, kinds, score) in sorted(r.planted.items()):
+        parts.append(f"{col}={level}:{','.join(kinds) or '-'}:{score:.2f}")
+    for col, (level, kinds, _score) in r.planted.items():
+        good &= _ok(level, kinds, r.expected[col], "high")
+    if r.split:
+        parts.append(f"*{r.split[0]}*={r.split[1]}")
+        good &= r.split[1] in HIGH
+    if r.case.status == "clean":
+        good = not r.any_high
+        parts.append("high: " + (",".join(r.any_high) or "-"))
+    elif r.clean_high:
+        parts.append("clean at high: " + ",".join(r.clean_high))
+    if r.ranked is not None:
+        parts.append(f"ranked={'yes' if r.ranked else 'no'}")
+    if r.covered:
+        parts.append(f"fitscope evidence={'yes' if all(r.covered) else 'no'}")
+    return f"{'ok ' if good else 'BAD'}  {head} " + " ".join(parts)
+
+
+def _figures(runs: list[Run], expected: dict[tuple[str, str], str], label: str) -> str:
+    """Recall at high/medium, clean-column FPs at high, clean cases at high, ranking share."""
+    hits_h = hits_m = n_planted = 0
+    for r in runs:
+        for col, (level, kinds, _s) in r.planted.items():
+            kind = expected[(r.case.name + "|" + r.case.dataset, col)]
+            n_planted += 1
+            hits_h += _ok(level, kinds, kind, "high")
+            hits_m += _ok(level, kinds, kind, "medium")
+        if r.split:
+            n_planted += 1
+            hits_h += r.split[1] in HIGH
+            hits_m += RANK.get(r.split[1], 0) >= RANK["medium"]
+    fp = sum(len(r.clean_high) for r in runs)
+    cols = sum(r.clean_total for r in runs)
+    clean_runs = [r for r in runs if r.case.status == "clean"]
+    clean_bad = sum(bool(r.any_high) for r in clean_runs)
+    ranked = [r.ranked for r in runs if r.ranked is not None]
+
+    def frac(a: int, b: int) -> str:
+        return f"{a}/{b}" + (f" ({a / b:.2f})" if b else "")
+    return (f"{label:<34} recall@high {frac(hits_h, n_planted):<14} "
+            f"recall@medium {frac(hits_m, n_planted):<14} clean cols@high {frac(fp, cols):<14} "
+            f"clean cases@high {frac(clean_bad, len(clean_runs)):<14} "
+            f"ranked {frac(sum(ranked), len(ranked))}")
+
+
+def new_cases(seeds: int, only: str | None) -> None:
+    cases = [c for c in dc.CASES if not only
+             or fnmatch.fnmatch(f"c{c.klass} {c.dataset} {c.name}", f"*{only}*")]
+    runs: list[Run] = []
+    expected: dict[tuple[str, str], str] = {}
+    print("# new cases (set, class, dataset, case, seed, status: what was found)")
+    for case in cases:
+        for seed in range(seeds):
+            r = run_new(case, seed)
+            for col, kind in r.expected.items():   # as the case wrote them before the audit
+                expected[(case.name + "|" + case.dataset, col)] = kind
+            print(_line(r), flush=True)
+            if not r.ill_posed:
+                runs.append(r)
+    print()
+    print("# figures per class and set (planted columns and planted split findings)")
+    for klass in sorted({r.case.klass for r in runs}):
+        for part in ("tune", "check"):
+            sel = [r for r in runs if r.case.klass == klass and r.case.set == part]
+            if sel:
+                print(_figures(sel, expected, f"class {klass} {part}"))
+    print()
+    print("# figures per expected kind")
+    kinds = sorted(set(expected.values()) | {r.split[0] for r in runs if r.split})
+    for kind in kinds:
+        for part in ("tune", "check"):
+            sel = [r for r in runs if r.case.set == part and (
+                any(expected[(r.case.name + "|" + r.case.dataset, c)] == kind for c in r.planted)
+                or (r.split and r.split[0] == kind))]
+            if sel:
+                print(_figures(sel, expected, f"{kind} {part}"))
+    print()
+    print("# overall (clean cases included)")
+    for part in ("tune", "check"):
+        print(_figures([r for r in runs if r.case.set == part], expected, f"all {part}"))
+    print(_figures(runs, expected, "all"))
+    cov = [all(r.covered) for r in runs if r.covered]
+    print(f"coverage: clean fitscope-examined columns with fitscope evidence: "
+          f"{sum(cov)}/{len(cov)}")
+    ranked = [r.ranked for r in runs if r.ranked is not None]
+    print(f"ranking: runs where every planted column outranks every clean one: "
+          f"{sum(ranked)}/{len(ranked)}")
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--seeds", type=int, default=3)
+    parser.add_argument("--only", default=None,
+                        help="run only cases whose 'c<class> <dataset> <case>' or "
+                             "'<dataset> / <kind>' contains PATTERN (shell wildcards allowed)")
+    parser.add_argument("--skip-old", action="store_true",
+                        help="run only the new cases")
+    args = parser.parse_args()
+    start = time.perf_counter()
+    if not args.skip_old:
+        old_cases(args.seeds, args.only)
+    new_cases(args.seeds, args.only)
     print(f"wall time: {time.perf_counter() - start:.1f} s")
 
 
