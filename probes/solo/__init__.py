@@ -8,8 +8,8 @@ tell a leak from a strong honest feature, so three more figures decide the level
 - ``share``: how much of what a column's peers leave unexplained in it the target
   explains (``_peers``). On scikit-learn's breast-cancer data a copy of the target with
   5 % of labels flipped reaches 0.49 and no honest column more than 0.05 (measured;
-  ``tests/probes/test_solo.py``); the levels of ``SHARE`` sit between, and were checked
-  on wine, diabetes and the demo scenario;
+  ``tests/probes/test_solo.py``); the share floors of ``SoloThresholds`` sit between,
+  and were checked on wine, diabetes and the demo scenario;
 - ``reference``: an out-of-fold LightGBM on the columns that are not suspects; a column
   that alone matches what all of them reach together is suspect;
 - near-determinism: an out-of-fold Gini of 0.98 (AUC 0.99) or R² of 0.98 alone is
@@ -21,6 +21,8 @@ the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tes
 """
 
 from __future__ import annotations
+
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -41,19 +43,130 @@ from featureaudit.stats import Bins, bin_codes
 from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
-SHARE = {"critical": 0.35, "high": 0.20, "medium": 0.10, "low": 0.05}
-SHARE_POWER = {"critical": 0.5, "high": 0.3, "medium": 0.2, "low": 0.1}
-DETERMINISTIC = 0.98       # power alone that is critical
-FUNCTION_OF_TARGET = {"critical": (0.7, 0.8), "high": (0.5, 0.5)}  # (Theil's U, power)
-STRONG_ALONE = 0.8         # power alone that is worth a look (low) even when explained
-MATCH_MARGIN = 0.02        # alone within this of all the other columns together
-MIN_PEERS = 3              # fewer peers than this cannot tell a leak from a strong feature
-BEYOND_MAX = 0.10          # an effect of the outcome: peers add at most this beyond the target
-PEER_SIGNAL = 0.08         # under that reading the peers must explain this much of the column
-MISSING_AS_ENCODING = 0.01  # numeric columns missing this often enter the peer test encoded
-MAX_REFERENCE = 200        # columns in the reference model of a wide table
-ORDER_POWER = {"critical": 0.6, "high": 0.2, "medium": 0.1}
-ORDER_Z = {"high": 4.0, "medium": 3.0, "low": 2.0}
+
+@dataclass(frozen=True)
+class SoloThresholds:
+    """The numbers the ``solo`` levels use, with their sources.
+
+    - ``share_floors`` / ``share_power``: target share beyond peers (above the table's typical
+      share) and power per level. Breast cancer: a 5 %-flipped copy of the target reaches
+      0.49, no honest column more than 0.05 (measured, ``tests/probes/test_solo.py``); the
+      floors sit between, checked on wine, diabetes and the demo scenario. On the detection
+      bench (3 seeds, 7 datasets) no clean column reached high (0 false positives).
+    - ``deterministic``: power alone that is critical; ``function_of_target``: (Theil's U,
+      power) per level; ``strong_alone``: power worth a ``low`` even when explained; common
+      practice, no source.
+    - ``match_margin`` / ``match_power``: alone within this of all other columns together,
+      with at least this power; common practice, no source.
+    - ``min_peers``: fewer other columns cannot tell a leak from a strong feature; common
+      practice, no source.
+    - ``beyond_max`` / ``peer_signal``: an effect of the outcome leaves the peers at most
+      ``beyond_max`` beyond the target, and the peers must then explain ``peer_signal`` of
+      the column; set on breast cancer and wine (measured), no other source.
+    - ``missing_as_encoding``: numeric columns missing this often enter the peer test encoded;
+      common practice, no source.
+    - ``max_reference`` / ``strong_reference_fits``: columns in the reference model of a wide
+      table, and how many strong columns get their own leave-one-out reference fit (cost).
+    - ``order_power`` / ``order_z``: identifiers and row position; z against the Mann–Whitney
+      null (z >= 4 for high is common practice for many parallel tests, no source).
+    """
+
+    share_floors: tuple[tuple[Level, float], ...] = (
+        (Level.CRITICAL, 0.35), (Level.HIGH, 0.20), (Level.MEDIUM, 0.10), (Level.LOW, 0.05))
+    share_power: tuple[tuple[Level, float], ...] = (
+        (Level.CRITICAL, 0.5), (Level.HIGH, 0.3), (Level.MEDIUM, 0.2), (Level.LOW, 0.1))
+    deterministic: float = 0.98
+    function_of_target: tuple[tuple[Level, float, float], ...] = (
+        (Level.CRITICAL, 0.7, 0.8), (Level.HIGH, 0.5, 0.5))
+    strong_alone: float = 0.8
+    match_margin: float = 0.02
+    match_power: float = 0.6
+    min_peers: int = 3
+    beyond_max: float = 0.10
+    peer_signal: float = 0.08
+    missing_as_encoding: float = 0.01
+    max_reference: int = 200
+    strong_reference_fits: int = 2
+    order_power: tuple[tuple[Level, float], ...] = (
+        (Level.CRITICAL, 0.6), (Level.HIGH, 0.2), (Level.MEDIUM, 0.1))
+    order_z: tuple[tuple[Level, float], ...] = (
+        (Level.HIGH, 4.0), (Level.MEDIUM, 3.0), (Level.LOW, 2.0))
+
+    def share(self, level: Level) -> float:
+        return dict(self.share_floors)[level]
+
+    def share_min_power(self, level: Level) -> float:
+        return dict(self.share_power)[level]
+
+    def order(self, table: tuple[tuple[Level, float], ...], level: Level) -> float:
+        return dict(table)[level]
+
+
+THRESHOLDS = SoloThresholds()
+
+
+@dataclass(frozen=True)
+class ProxyFigures:
+    """What the level of a ``target_proxy`` follows from: the column's figures only."""
+
+    power: float
+    determinism: float
+    share: float | None = None
+    typical_share: float = 0.0
+    others_power: float | None = None
+    peers_beyond_target: float | None = None
+    expected_r2_if_effect: float = 0.0
+    n_peers: int = 0
+    small: bool = False
+
+
+def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Level, str]:
+    """The level of a ``target_proxy`` and the rule that set it (a pure function)."""
+    power, share, typical = f.power, f.share, f.typical_share
+    enough_peers = f.n_peers >= th.min_peers and share is not None
+    effect_like = f.peers_beyond_target is not None and f.peers_beyond_target <= th.beyond_max
+    tellable = f.expected_r2_if_effect >= th.peer_signal
+    level, why = Level.NONE, "explained"
+    for lv in (Level.LOW, Level.MEDIUM, Level.HIGH, Level.CRITICAL):
+        if enough_peers and share >= typical + th.share(lv) and power >= th.share_min_power(lv):
+            level, why = lv, "share"
+    if why == "share" and level >= Level.HIGH and not (effect_like and tellable):
+        level, why = Level.MEDIUM, "share_untold"
+    if power >= th.strong_alone and level < Level.LOW:
+        level, why = Level.LOW, "strong"
+    if (enough_peers and f.others_power is not None and power >= th.match_power
+            and power >= f.others_power - th.match_margin and effect_like and tellable
+            and level < Level.HIGH):
+        level, why = Level.HIGH, "match"
+    for lv, u_min, p_min in sorted(th.function_of_target):
+        if f.determinism >= u_min and power >= p_min and level <= lv:
+            level, why = lv, "function"
+    if power >= th.deterministic:
+        explained = (enough_peers and not effect_like
+                     and share < typical + th.share(Level.LOW))
+        level, why = (Level.HIGH if explained else Level.CRITICAL), "deterministic"
+    if f.small and level >= Level.HIGH:
+        level = Level.MEDIUM
+    if not enough_peers and level >= Level.HIGH and why not in ("deterministic", "function"):
+        level = Level.MEDIUM
+    return level, why
+
+
+def decide_order(z: float, power: float, small: bool,
+                 th: SoloThresholds = THRESHOLDS) -> Level:
+    """The level of ``row_order_tells_target`` from its z and power (a pure function)."""
+    level = Level.NONE
+    if z >= th.order(th.order_z, Level.LOW):
+        level = Level.LOW
+    if z >= th.order(th.order_z, Level.MEDIUM) and power >= th.order(th.order_power,
+                                                                      Level.MEDIUM):
+        level = Level.MEDIUM
+    if z >= th.order(th.order_z, Level.HIGH) and power >= th.order(th.order_power, Level.HIGH):
+        critical = power >= th.order(th.order_power, Level.CRITICAL)
+        level = Level.CRITICAL if critical else Level.HIGH
+    if small and level >= Level.HIGH:
+        level = Level.MEDIUM
+    return level
 
 
 @register
@@ -64,6 +177,30 @@ class Solo(Probe):
     name = "solo"
     scope = "column"
     kinds = ("target_proxy", "row_order_tells_target")
+    thresholds = THRESHOLDS
+
+    @classmethod
+    def describe(cls, settings: Settings) -> str:
+        """The method and its thresholds in one paragraph, with the settings in force."""
+        th = cls.thresholds
+        shares = ", ".join(f"{lv.label} from the typical share + {f:g} with power "
+                           f"{th.share_min_power(lv):g}" for lv, f in reversed(th.share_floors))
+        func = ", ".join(f"{lv.label} from U {u:g} with power {p:g}"
+                         for lv, u, p in sorted(th.function_of_target))
+        order = ", ".join(f"{lv.label} from z {z:g}" for lv, z in reversed(th.order_z))
+        return (f"Each column alone, strictly out of fold ({settings.folds} folds, numbers in "
+                f"{settings.bins} quantile bins, categories as they are, a bin for missing "
+                f"values): its power is the Gini of its AUC or its R². The share of what its "
+                f"peers leave unexplained in it that the target explains (on a seeded sample of "
+                f"at most {settings.reference_rows} rows, at least {th.min_peers} peers) sets "
+                f"the level: {shares}; high needs the peers to add at most {th.beyond_max:g} "
+                f"beyond the target and to explain {th.peer_signal:g} of the column. A column "
+                f"alone within {th.match_margin:g} of an out-of-fold LightGBM on the other "
+                f"columns (power {th.match_power:g} or more) is high; almost a function of the "
+                f"target (Theil's U): {func}; power {th.deterministic:g} alone is critical. "
+                f"Identifiers and the row position tell the target when the Mann–Whitney z "
+                f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
+                f"Under {settings.min_rows} labelled rows levels stop at medium.")
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         if table.target is None or table.y is None:
@@ -119,7 +256,7 @@ def _encoded_in_peer_test(s, t: Target) -> bool:  # noqa: ANN001
     values = numeric_view(s)
     if values is None:
         return True
-    return float(np.mean(~np.isfinite(values[t.rows]))) >= MISSING_AS_ENCODING
+    return float(np.mean(~np.isfinite(values[t.rows]))) >= THRESHOLDS.missing_as_encoding
 
 
 def _power_text(score: CellScore) -> str:
@@ -134,21 +271,15 @@ def _order_evidence(name: str | None, score: CellScore, b: Bins, t: Target, smal
         z = (score.spearman or 0.0) / score.null_se
     else:
         z = (score.value - 0.5) / score.null_se if score.null_se > 0 else 0.0
-    level = "none"
-    if z >= ORDER_Z["low"]:
-        level = "low"
-    if z >= ORDER_Z["medium"] and score.power >= ORDER_POWER["medium"]:
-        level = "medium"
-    if z >= ORDER_Z["high"] and score.power >= ORDER_POWER["high"]:
-        level = "critical" if score.power >= ORDER_POWER["critical"] else "high"
-    if small and level in ("high", "critical"):
-        level = "medium"
+    level = decide_order(z, score.power, small).label
     detail = {**common_detail(score, b, t), "z": z, "what": what}
     text = (f"the {what} alone predicts the target ({_power_text(score)}, z = {z:.1f})"
             if level != "none" else f"the {what} carries no order signal ({_power_text(score)})")
     return Evidence("solo", "row_order_tells_target",
                     score.statistic if name else f"row_position_{score.statistic}",
-                    score.value, _threshold(t, ORDER_POWER["high"]), level, column=name,
+                    score.value,
+                    _threshold(t, THRESHOLDS.order(THRESHOLDS.order_power, Level.HIGH)),
+                    level, column=name,
                     summary=text + (" (small sample)" if small and level != "none" else ""),
                     severity=min(1.0, score.power), detail=detail)
 
@@ -159,62 +290,44 @@ def _threshold(t: Target, power: float) -> float:
 
 def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
                     ref: dict, small: bool, n_peers: int) -> Evidence:
+    th = THRESHOLDS
     power = score.power
     share = peer.get("share")
     typical = peer.get("typical_share") or 0.0
     others = peer.get("others_power", ref.get("power"))
-    enough_peers = n_peers >= MIN_PEERS and share is not None
     beyond = peer.get("peers_beyond_target")
-    effect_like = beyond is not None and beyond <= BEYOND_MAX
+    effect_like = beyond is not None and beyond <= th.beyond_max
     expected = (peer.get("r2_target") or 0.0) * (peer.get("target_r2_on_peers") or 0.0)
-    tellable = expected >= PEER_SIGNAL
-    level, statistic, value, threshold, why = "none", score.statistic, score.value, \
-        _threshold(t, SHARE_POWER["high"]), "explained"
-    for lv in ("low", "medium", "high", "critical"):
-        if enough_peers and share >= typical + SHARE[lv] and power >= SHARE_POWER[lv]:
-            level, why = lv, "share"
-    if why == "share" and level in ("high", "critical") and not (effect_like and tellable):
-        level, why = "medium", "share_untold"
-    if power >= STRONG_ALONE and Level.parse(level) < Level.LOW:
-        level, why = "low", "strong"
-    if (enough_peers and others is not None and power >= 0.6 and power >= others - MATCH_MARGIN
-            and effect_like and tellable and Level.parse(level) < Level.HIGH):
-        level, why = "high", "match"
-    for lv in ("high", "critical"):
-        u_min, p_min = FUNCTION_OF_TARGET[lv]
-        if (score.determinism >= u_min and power >= p_min
-                and Level.parse(level) <= Level.parse(lv)):
-            level, why = lv, "function"
-    if power >= DETERMINISTIC:
-        explained = enough_peers and not effect_like and share < typical + SHARE["low"]
-        level, why = ("high" if explained else "critical"), "deterministic"
-    if small and level in ("high", "critical"):
-        level = "medium"
-    if not enough_peers and level in ("high", "critical") and why not in ("deterministic",
-                                                                         "function"):
-        level = "medium"
+    figures = ProxyFigures(power, score.determinism, share, typical, others, beyond, expected,
+                           n_peers, small)
+    rank, why = decide_proxy(figures, th)
+    level = rank.label
+    enough_peers = n_peers >= th.min_peers and share is not None
+    statistic, value = score.statistic, score.value
+    threshold = _threshold(t, th.share_min_power(Level.HIGH))
     txt = _power_text(score)
     if why == "share":
-        statistic, value, threshold = "target_share_beyond_peers", share, typical + SHARE[level]
+        statistic, value, threshold = "target_share_beyond_peers", share, typical + th.share(rank)
         summary = (f"the target explains {share:.0%} of what the other columns leave "
                    f"unexplained in it ({txt}): it looks caused by the outcome")
     elif why == "share_untold":
-        statistic, value, threshold = "target_share_beyond_peers", share, typical + SHARE["high"]
+        statistic, value = "target_share_beyond_peers", share
+        threshold = typical + th.share(Level.HIGH)
         reason = ("the other columns explain it beyond the target, as they would an honest "
                   "feature" if not effect_like else "the other columns say too little about "
                   "the target to tell an effect of the outcome from a strong cause")
         summary = (f"the target explains {share:.0%} of what the other columns leave "
                    f"unexplained in it ({txt}), but {reason}")
     elif why == "deterministic":
-        threshold = _threshold(t, DETERMINISTIC)
+        threshold = _threshold(t, th.deterministic)
         summary = f"alone predicts the target almost exactly ({txt})"
     elif why == "function":
         statistic, value = "determinism_given_target", score.determinism
-        threshold = FUNCTION_OF_TARGET[level][0]
+        threshold = {lv: u for lv, u, _ in th.function_of_target}[rank]
         summary = (f"is almost a function of the target: the target accounts for "
                    f"{score.determinism:.0%} of its entropy ({txt})")
     elif why == "match":
-        threshold = _threshold(t, others - MATCH_MARGIN)
+        threshold = _threshold(t, others - th.match_margin)
         summary = (f"alone ({txt}) matches all the other columns together "
                    f"({_threshold(t, others):.3f})")
     else:
@@ -274,15 +387,17 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
         y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
     power = np.array([scores[c].power for c in features])
     inp = PeerInput(features, np.column_stack(cols), np.column_stack(trees), y_block, y, power)
-    shares = dependence_shares(inp, flag_share=SHARE["high"], flag_power=SHARE_POWER["high"],
-                               min_power=0.0, flag_beyond=BEYOND_MAX)
+    shares = dependence_shares(inp, flag_share=THRESHOLDS.share(Level.HIGH),
+                               flag_power=THRESHOLDS.share_min_power(Level.HIGH),
+                               min_power=0.0, flag_beyond=THRESHOLDS.beyond_max)
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
-    keep = np.array([i for i in np.argsort(-power) if features[i] not in flagged][:MAX_REFERENCE],
-                    dtype=np.int64)   # the strongest non-suspect columns serve as reference
+    keep = np.array([i for i in np.argsort(-power) if features[i] not in flagged]
+                    [:THRESHOLDS.max_reference], dtype=np.int64)  # the reference
     ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed,
                                      n_jobs=settings.n_jobs),
            "rows": int(take), "columns": int(keep.size)}
-    strong = [i for i in np.argsort(-power) if features[i] not in flagged and power[i] >= 0.6][:2]
+    strong = [i for i in np.argsort(-power) if features[i] not in flagged
+              and power[i] >= THRESHOLDS.match_power][:THRESHOLDS.strong_reference_fits]
     for i in strong:
         rest = keep[keep != i]
         shares[features[i]]["others_power"] = reference_power(inp, rest, t.task, t.n_classes,

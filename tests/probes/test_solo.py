@@ -136,3 +136,65 @@ def test_evidence_carries_what_a_reviewer_needs(breast_cancer):
         assert key in d, key
     assert d["ci95"][0] < d["oof_value"] < d["ci95"][1]
     assert len(d["fold_values"]) == 5 and 0 < d["reference_power"] <= 1
+
+
+# Pure decision functions: each case below is the rule in the probe's docstring applied by hand.
+from featureaudit.levels import Level  # noqa: E402
+from featureaudit.probes.solo import (  # noqa: E402
+    THRESHOLDS,
+    ProxyFigures,
+    Solo,
+    decide_order,
+    decide_proxy,
+)
+from featureaudit.settings import Settings  # noqa: E402
+
+
+def test_decide_proxy_share_rule_needs_an_effect_the_peers_can_tell():
+    base = dict(power=0.6, determinism=0.1, share=0.45, typical_share=0.02, others_power=0.9,
+                peers_beyond_target=0.05, expected_r2_if_effect=0.2, n_peers=10)
+    assert decide_proxy(ProxyFigures(**base)) == (Level.CRITICAL, "share")
+    # the peers add much beyond the target: an honest feature, held at medium
+    assert decide_proxy(ProxyFigures(**{**base, "peers_beyond_target": 0.5})) == (
+        Level.MEDIUM, "share_untold")
+    # too few peers to compare with: the share rule does not apply
+    assert decide_proxy(ProxyFigures(**{**base, "n_peers": 2}))[0] == Level.NONE
+    # a small sample caps at medium too
+    assert decide_proxy(ProxyFigures(**{**base, "small": True}))[0] == Level.MEDIUM
+
+
+def test_decide_proxy_power_rules():
+    explained = dict(share=0.0, typical_share=0.0, others_power=0.99,
+                     peers_beyond_target=0.6, expected_r2_if_effect=0.3, n_peers=10)
+    assert decide_proxy(ProxyFigures(0.85, 0.1, **explained)) == (Level.LOW, "strong")
+    assert decide_proxy(ProxyFigures(0.99, 0.1, **explained)) == (Level.HIGH, "deterministic")
+    assert decide_proxy(ProxyFigures(0.99, 0.1)) == (Level.CRITICAL, "deterministic")
+    assert decide_proxy(ProxyFigures(0.85, 0.75, **explained)) == (Level.CRITICAL, "function")
+    assert decide_proxy(ProxyFigures(0.1, 0.0, **explained)) == (Level.NONE, "explained")
+
+
+def test_decide_order_follows_z_and_power():
+    th = THRESHOLDS
+    assert decide_order(1.0, 0.9, False) == Level.NONE
+    assert decide_order(th.order(th.order_z, Level.HIGH), 0.3, False) == Level.HIGH
+    assert decide_order(10.0, 0.9, False) == Level.CRITICAL
+    assert decide_order(10.0, 0.9, True) == Level.MEDIUM
+    assert decide_order(3.5, 0.05, False) == Level.LOW
+
+
+def test_thresholds_are_declared_and_described():
+    assert Solo.thresholds is THRESHOLDS
+    with pytest.raises(AttributeError):
+        THRESHOLDS.deterministic = 0.5  # frozen
+    text = Solo.describe(Settings(folds=7, reference_rows=5000))
+    assert "7 folds" in text and "5000 rows" in text and f"{THRESHOLDS.deterministic:g}" in text
+
+
+def test_same_rows_in_another_file_order_give_the_same_levels(breast_cancer, noisy_copy):
+    # Real data: scikit-learn's bundled breast-cancer set with a planted 5 %-flipped copy.
+    frame = breast_cancer.copy()
+    frame["noisy_copy"] = noisy_copy(frame["malignant"].to_numpy(), 0.05, 0)
+    shuffled = frame.sample(frac=1, random_state=11).reset_index(drop=True)
+    first = _levels(fa.audit(frame, target="malignant", probes=["solo"]))
+    second = _levels(fa.audit(shuffled, target="malignant", probes=["solo"]))
+    assert first == second
