@@ -22,7 +22,8 @@ __all__ = ["Val", "Event", "Flow", "ALL", "TRAIN", "VALID", "TEST", "HELDOUT"]
 ALL, TRAIN, VALID, TEST = "all", "train", "valid", "test"
 HELDOUT = (VALID, TEST)
 READERS = re.compile(r"^(read_\w+|load_\w+|fetch_\w+|make_classification|make_regression|"
-                     r"make_blobs|make_moons|make_circles|loadtxt|genfromtxt)$")
+                     r"make_blobs|make_moons|make_circles|loadtxt|genfromtxt|"
+                     r"standard_normal|randn)$")
 REDUCTIONS = {"mean", "median", "std", "var", "quantile", "min", "max", "mode", "sum", "agg",
               "nanmean", "nanmedian", "nanstd", "percentile", "nanpercentile", "average",
               "describe"}

@@ -36,7 +36,8 @@ def sarif(result: CodeAudit) -> dict[str, Any]:
     """The findings as one SARIF 2.1.0 run (one rule per kind)."""
     ids = list(KINDS)
     rules = [{"id": k, "name": k, "shortDescription": {"text": KINDS[k]},
-              "help": {"text": REMEDY[k]}} for k in ids]
+              "help": {"text": "; or ".join(v for key, v in REMEDY.items()
+                                            if key.split("/")[0] == k)}} for k in ids]
     results = []
     for f in result.findings:
         region: dict[str, Any] = {"startLine": f.line, "snippet": {"text": f.code}}
