@@ -6,6 +6,6 @@ into it (see ``[tool.setuptools.package-dir]`` in pyproject.toml).
 
 from setuptools import find_packages, setup
 
-setup(packages=["featureaudit", "featureaudit.reports", "featureaudit.sample_data",
-                "featureaudit.probes",
+setup(packages=["featureaudit", "featureaudit.code", "featureaudit.reports",
+                "featureaudit.sample_data", "featureaudit.probes",
                 *(f"featureaudit.probes.{p}" for p in find_packages("probes"))])

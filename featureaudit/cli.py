@@ -231,6 +231,42 @@ def version() -> int:
     return 0
 
 
+# ---- featureaudit code: static audit of training scripts and notebooks ----------------------
+@app.command("code")
+def code_cmd(
+    paths: Annotated[list[Path], typer.Argument(help="Python scripts, .ipynb notebooks or "
+                                                      "folders of them.")],
+    out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
+    format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
+    fail_at: Annotated[str | None, typer.Option(help="Exit 1 when a finding reaches this "
+                                                     "level.")] = None,
+) -> int:
+    """Audit training code statically (nothing is run) for leakage the table cannot show.
+
+    Example: featureaudit code train.py notebooks/ --format sarif --fail-at high
+    """
+    from featureaudit.code import audit_code
+    from featureaudit.code.output import document, sarif, text_lines, write_outputs
+    if format not in ("text", "json", "sarif"):
+        raise SettingError(f"--format {format!r} is not one of text, json, sarif.")
+    level = check_level(fail_at, flag="--fail-at") if fail_at else None
+    result = audit_code(list(paths))
+    write_outputs(result, Path(out), with_sarif=format == "sarif")
+    if format == "json":
+        print(json.dumps(document(result), indent=2, ensure_ascii=False))
+    elif format == "sarif":
+        print(json.dumps(sarif(result), indent=2, ensure_ascii=False))
+    else:
+        print("\n".join(text_lines(result)))
+    for error in result.errors:
+        print(f"featureaudit: error: {error}", file=sys.stderr)
+    if result.errors:
+        return 2
+    if level and any(f.level >= Level.parse(level) for f in result.findings):
+        return 1
+    return 0
+
+
 def main() -> None:
     """Console entry point."""
     app()

@@ -1,0 +1,15 @@
+# expect: fit_on_heldout
+import pandas as pd
+import numpy as np
+from sklearn.model_selection import train_test_split, cross_val_score, KFold, StratifiedKFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler
+from sklearn.impute import SimpleImputer
+from sklearn.pipeline import make_pipeline, Pipeline
+from sklearn.linear_model import LogisticRegression
+from sklearn.feature_selection import SelectKBest, f_classif
+df = pd.read_csv("loans.csv")
+X = df.drop(columns=["late"])
+y = df["late"]
+train = pd.read_csv("train.csv")
+test = pd.read_csv("test.csv")
+enc = StandardScaler().fit(test[["income"]])

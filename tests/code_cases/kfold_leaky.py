@@ -1,0 +1,16 @@
+# expect: fit_before_split
+import pandas as pd
+import numpy as np
+from sklearn.model_selection import train_test_split, cross_val_score, KFold, StratifiedKFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler
+from sklearn.impute import SimpleImputer
+from sklearn.pipeline import make_pipeline, Pipeline
+from sklearn.linear_model import LogisticRegression
+from sklearn.feature_selection import SelectKBest, f_classif
+df = pd.read_csv("loans.csv")
+X = df.drop(columns=["late"])
+y = df["late"]
+Xs = StandardScaler().fit_transform(X)
+for tr, va in KFold(5).split(Xs):
+    m = LogisticRegression().fit(Xs[tr], y.iloc[tr])
+    print(m.score(Xs[va], y.iloc[va]))
