@@ -11,7 +11,7 @@ from featureaudit.errors import FeatureAuditError, ProbeFailed
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
-from featureaudit.registry import registered
+from featureaudit.registry import registered, thresholds_dict
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 
@@ -58,7 +58,9 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
     }
     return build_document(
         tool_version=__version__, dataset=dataset,
-        settings={**settings.to_dict(), "probes": names, "probe_seconds": timings},
+        settings={**settings.to_dict(), "probes": names, "probe_seconds": timings,
+                  "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
+                  "methods": {n: available[n].describe(settings) for n in names}},
         columns=[v.to_dict() for v in verdicts],
         dataset_findings=[e.to_dict() for e in dataset_findings],
         skipped=[s.to_dict() for s in skipped], warnings=warnings)

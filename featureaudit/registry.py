@@ -2,13 +2,15 @@
 
 from __future__ import annotations
 
+from dataclasses import fields, is_dataclass
+from enum import IntEnum
 from typing import Any, ClassVar
 
 from featureaudit.evidence import KINDS, Evidence, Skip
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 
-__all__ = ["Probe", "register", "registered", "ProbeOutput"]
+__all__ = ["Probe", "register", "registered", "ProbeOutput", "thresholds_dict"]
 
 ProbeOutput = tuple[list[Evidence], list[Skip]]
 _REGISTRY: dict[str, type[Probe]] = {}
@@ -54,6 +56,12 @@ def register(cls: type[Probe]) -> type[Probe]:
                         "its thresholds were chosen")
     if cls.run is Probe.run:
         raise TypeError(f"probe {cls.name!r} does not implement run()")
+    params = getattr(type(cls.thresholds), "__dataclass_params__", None)
+    if params is None or not params.frozen:
+        raise TypeError(f"probe {cls.name!r} needs thresholds: an instance of a frozen dataclass "
+                        "whose fields are the numbers its levels use")
+    if cls.describe.__func__ is Probe.describe.__func__:  # type: ignore[attr-defined]
+        raise TypeError(f"probe {cls.name!r} does not implement describe(settings)")
     _REGISTRY[cls.name] = cls
     return cls
 
@@ -81,6 +89,22 @@ def _load_plugins() -> None:
                             f"{type(exc).__name__}: {exc}") from exc
         if isinstance(obj, type) and issubclass(obj, Probe) and _REGISTRY.get(obj.name) is not obj:
             register(obj)
+
+
+def thresholds_dict(thresholds: Any) -> dict[str, Any]:
+    """A probe's thresholds as plain JSON values; a ladder as ``{level: floor}``."""
+    from featureaudit.levels import Ladder
+    out: dict[str, Any] = {}
+    for f in fields(thresholds):
+        value = getattr(thresholds, f.name)
+        if isinstance(value, Ladder):
+            value = value.to_dict()
+        elif is_dataclass(value) and not isinstance(value, type):
+            value = thresholds_dict(value)
+        elif isinstance(value, IntEnum):
+            value = str(value)
+        out[f.name] = value
+    return out
 
 
 def registered() -> dict[str, type[Probe]]:

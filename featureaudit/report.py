@@ -56,34 +56,6 @@ def _fmt(value: Any) -> str:
     return _visible(value)
 
 
-METHODS = (
-    ("solo", "Each column alone, strictly out of fold: its values are binned and every row is "
-     "scored by its bin's target statistics in the other folds (AUC, macro AUC, or R² on the "
-     "target's normal scores). A leak is told from a strong honest feature by how much of what "
-     "the other columns leave unexplained in it the target explains, whether the other columns "
-     "add anything beyond the target, Theil's uncertainty coefficient of the column given the "
-     "target, and an out-of-fold LightGBM on the other columns. Identifiers and the row position "
-     "are tested against the Mann–Whitney null (high at z ≥ 4)."),
-    ("timing", "A value is known at its dictionary known_at (a datetime column, or a duration "
-     "from the label time) or, for a datetime feature, at its own value. The share of rows "
-     "known after the cutoff is high from 10 % and critical from 50 % (or 10 % after the "
-     "outcome itself), past a tolerance of 1 day and 1 % of rows. For the split: the share of "
-     "held-out rows earlier than the end of training."),
-    ("fitscope", "Scaling, imputation, capping, rank transforms and target encodings leave "
-     "statistics that are exact over the rows they were fitted on. Exact over all rows but not "
-     "over the training rows, within the column's storage precision, is high; target encodings "
-     "that used held-out targets are critical. Where both fits would look alike it says so."),
-    ("twins", "Exact copies by hashing the feature columns; near copies by banded hashing of "
-     "robustly scaled numbers, verified against a distance threshold of 10 % of the typical "
-     "training-to-training neighbour distance. 1.5 % of held-out rows with a twin is high "
-     "(Barz & Denzler 2020: 3.3 % test duplicates mattered), 10 % critical; entities on both "
-     "sides: 10 % of held-out rows high, 50 % critical."),
-    ("separability", "Adversarial validation: an out-of-fold LightGBM on a seeded sample tells "
-     "held-out from training rows. AUC 0.70 at 4 null SEs is high, 0.85 critical; the drivers "
-     "are named by gain and by the AUC left when the top three are left out."),
-)
-
-
 def verdict_line(findings: Findings) -> str:
     """One plain sentence: how many suspects at which levels."""
     counts: dict[str, int] = {}
@@ -95,9 +67,10 @@ def verdict_line(findings: Findings) -> str:
     if serious == 0:
         return ("No column or split finding reached level high. Review the medium ones, "
                 "and remember what the audit cannot see.")
-    parts = [f"{counts[k]} {k}" for k in ("critical", "high", "medium") if counts.get(k)]
+    parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
+    medium = (f"; {counts['medium']} more at medium" if counts.get("medium") else "")
     return (f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
-            f"({', '.join(parts)}). Resolve them before trusting validation scores.")
+            f"({', '.join(parts)}){medium}. Resolve them before trusting validation scores.")
 
 
 MAX_CARDS = 60      # evidence cards beyond this many suspects stay in the ranked table
@@ -111,7 +84,8 @@ def render_dossier(findings: Findings) -> str:
     return _env().get_template("dossier.html.j2").render(
         doc=doc, verdict=verdict_line(findings), caution=CAUTION, suspects=suspects,
         cards=cards, clean=[c for c in doc["columns"] if c["level"] == "none"],
-        drops=droplist(findings, "high"), methods=METHODS)
+        drops=droplist(findings, "high"),
+        methods=list(doc.get("settings", {}).get("methods", {}).items()))
 
 
 def render_summary(findings: Findings) -> str:

@@ -201,13 +201,24 @@ def test_scan_with_a_heldout_file_and_a_horizon(tmp_path):
 
 def test_a_probe_that_fails_fails_the_run_with_exit_3_and_keeps_the_report(leaky_csv, report):
     # A probe that raises is a bug: the contract's exit 3, one line, the earlier report kept.
+    from dataclasses import dataclass
+
     from featureaudit.registry import Probe, register, unregister
+
+    @dataclass(frozen=True)
+    class NoNumbers:
+        """No thresholds."""
 
     @register
     class Broken(Probe):
         """A probe that always raises, to stand for a bug in a real probe."""
         name = "broken_for_test"
         kinds = ("target_proxy",)
+        thresholds = NoNumbers()
+
+        @classmethod
+        def describe(cls, settings):
+            return "Always raises."
 
         def run(self, table, settings):
             raise ZeroDivisionError("planted bug")

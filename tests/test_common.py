@@ -3,6 +3,7 @@
 without a target, a split or enough rows, and no level it cannot support on clean,
 awkward, one-class, numeric or multiclass data), plus the registry's own rules."""
 
+import dataclasses
 import importlib.metadata
 import sys
 
@@ -17,6 +18,11 @@ from probe_checks import awkward_frame, yield_checks  # noqa: E402
 PROBES = sorted(registered())
 CASES = [pytest.param(name, check, id=f"{name}-{check_name}")
          for name in PROBES for check_name, check in yield_checks(registered()[name])]
+
+
+@dataclasses.dataclass(frozen=True)
+class _NoThresholds:
+    """A probe whose level decisions use no numbers."""
 
 
 @pytest.fixture()
@@ -45,6 +51,11 @@ def test_a_plugin_registers_through_its_entry_point(fresh_registry, monkeypatch)
         """A third-party probe that finds nothing, registered through an entry point."""
         name = "plugin_probe"
         kinds = ("target_proxy",)
+        thresholds = _NoThresholds()
+
+        @classmethod
+        def describe(cls, settings):
+            return "Finds nothing; it has no thresholds."
 
         def run(self, table, settings):
             return [], []
@@ -109,8 +120,27 @@ def test_registry_rejects_bad_declarations():
 
             def run(self, table, settings):
                 return [], []
-    unregister("nodoc")
-    unregister("badkind")
+    with pytest.raises(TypeError, match="thresholds"):
+        @register
+        class NoThresholds(Probe):
+            """A probe that does not declare the numbers its levels use."""
+            name = "nothresholds"
+            kinds = ("target_proxy",)
+
+            def run(self, table, settings):
+                return [], []
+    with pytest.raises(TypeError, match="describe"):
+        @register
+        class NoDescribe(Probe):
+            """A probe that does not describe its method."""
+            name = "nodescribe"
+            kinds = ("target_proxy",)
+            thresholds = _NoThresholds()
+
+            def run(self, table, settings):
+                return [], []
+    for name in ("nodoc", "badkind", "nothresholds", "nodescribe"):
+        unregister(name)
 
 
 def test_no_probe_fails_through_the_pipeline():

@@ -118,3 +118,37 @@ def test_summary_markdown_lists_suspects_and_droplist(tmp_path):
     md = render_summary(doc)
     assert "| critical |" in md and "`late_fee`" in md and "copies\\|here" in md
     assert "```\nlate_fee\n```" in md and CAUTION in md
+
+
+def test_methods_and_thresholds_come_from_the_probes_and_the_settings_in_force():
+    # The methods section is each probe's describe() of the run's own settings, and
+    # findings.json records the thresholds in force (issue 9: a 3-day tolerance was misdescribed).
+    from featureaudit.registry import registered
+    from featureaudit.settings import Settings
+
+    rng = np.random.default_rng(0)
+    n = 300
+    frame = pd.DataFrame({"x": rng.normal(size=n), "y": rng.integers(0, 2, n),
+                          "split": np.where(rng.random(n) < 0.8, "train", "test")})
+    settings = Settings(time_tolerance="3d")
+    result = fa.audit(frame, target="y", split_column="split", settings=settings)
+    recorded = result.document["settings"]
+    assert set(recorded["thresholds"]) == set(recorded["methods"]) == set(registered())
+    for name, cls in registered().items():
+        assert recorded["methods"][name] == cls.describe(settings)
+        json.dumps(recorded["thresholds"][name], allow_nan=False)
+    assert "3" in recorded["methods"]["timing"] and "1 day" not in recorded["methods"]["timing"]
+    html = render_dossier(Findings(result.document))
+    for name in registered():
+        assert str(escape(recorded["methods"][name])) in html
+
+
+def test_headline_counts_only_high_and_above_in_its_parentheses():
+    doc = {"schema": "featureaudit.findings/1", "dataset": {}, "settings": {},
+           "columns": [{"column": c, "level": lv} for c, lv in
+                       [("a", "critical"), ("b", "high"), ("c", "high"), ("d", "medium")]],
+           "dataset_findings": [], "skipped": [], "warnings": []}
+    from featureaudit.report import verdict_line
+    line = verdict_line(Findings(doc))
+    assert line.startswith("3 findings at level high or above (1 critical, 2 high); "
+                           "1 more at medium.")
