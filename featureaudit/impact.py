@@ -21,7 +21,7 @@ from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas, model_threads
 
-__all__ = ["measure_impact", "column_change"]
+__all__ = ["measure_impact", "column_change", "largest_lift"]
 
 MAX_COLUMNS = 8       # column findings corrected one by one, strongest first
 BOOTSTRAP = 100       # resamples of the scored rows for each interval
@@ -299,3 +299,14 @@ def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict
         return None
     change = bench.value(base) - bench.value(s)
     return bench.value(s), how, {"change": round(change, 4), "ci95": _r(bench.interval(s, base))}
+
+
+def largest_lift(doc: dict[str, Any]) -> float | None:
+    """How far the as-given score exceeds the lowest corrected one (``--fail-at-impact``)."""
+    block = doc.get("impact")
+    if not block:
+        return None
+    scores = [block.get("without_suspects")] + [e.get("corrected")
+                                                for e in block.get("by_finding", [])]
+    scores = [s for s in scores if s is not None]
+    return max(0.0, block["as_given"] - min(scores)) if scores else None
