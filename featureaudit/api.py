@@ -46,7 +46,7 @@ class AuditResult:
 
     def suspects(self, at_least: str = "high") -> list[str]:
         """Column names at level ``at_least`` or above, most suspect first."""
-        return droplist(self.findings, check_level(at_least, flag="at_least"))
+        return droplist(self.findings, check_level(at_least, flag="at_least"), refit=True)
 
     def write(self, out: str | os.PathLike[str] = "featureaudit-report") -> list[Path]:
         """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``."""

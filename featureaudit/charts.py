@@ -12,7 +12,7 @@ from typing import Any
 from markupsafe import Markup
 
 __all__ = ["bin_bars", "lag_strip", "driver_bars", "auc_interval", "distance_dots",
-           "stat_pairs"]
+           "stat_pairs", "impact_bars"]
 
 INK, MUTED, GRID = "#1f2a44", "#8a93a6", "#d9dde5"
 W = 520
@@ -172,3 +172,37 @@ def stat_pairs(all_rows: dict | None, training_rows: dict | None) -> Markup | st
                     f"<td>{float(training_rows[k]):.6g}</td></tr>" for k in keys)
     return Markup('<table class="pairs"><thead><tr><th></th><th>all rows</th>'
                   f'<th>training rows</th></tr></thead><tbody>{cells}</tbody></table>')
+
+
+def impact_bars(block: dict | None) -> Markup | str:
+    """The corrected score per finding against the as-given score, largest effect first."""
+    if not block:
+        return ""
+    rows = [e for e in block.get("by_finding", []) if e.get("corrected") is not None][:12]
+    if not rows:
+        return ""
+    values = [float(block["as_given"])] + [float(e["corrected"]) for e in rows]
+    lo, hi = min(values + [0.5 if block.get("metric") != "r2" else 0.0]), max(values)
+    span = (hi - lo) or 1.0
+    left, right = 210, W - 50
+
+    def x(v: float) -> float:
+        return left + (v - lo) / span * (right - left)
+
+    h = 22 * len(rows) + 30
+    given = x(float(block["as_given"]))
+    body = [f'<line x1="{given:.1f}" y1="2" x2="{given:.1f}" y2="{h - 20}" stroke="{MUTED}" '
+            f'stroke-dasharray="4 3"/>']
+    for i, e in enumerate(rows):
+        y = 6 + i * 22
+        name = e.get("column") or str(e.get("kind", "")).replace("_", " ")
+        width = max(1.0, x(e["corrected"]) - left)
+        body.append(f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">{_t(str(name)[:30])}'
+                    f'</text><rect x="{left}" y="{y + 2}" width="{width:.1f}" '
+                    f'height="13" fill="{INK}"><title>{_t(e.get("how"))}</title></rect>'
+                    f'<text x="{x(e["corrected"]) + 4:.1f}" y="{y + 12}" font-size="10" '
+                    f'fill="{MUTED}">{_num(e["corrected"])}</text>')
+    body.append(f'<text x="{left}" y="{h - 6}" font-size="10" fill="{MUTED}">corrected '
+                f'{_t(block.get("metric"))} per finding; dashed: as given '
+                f'{_num(block["as_given"])}</text>')
+    return _svg(h, "".join(body), "corrected validation score per finding")

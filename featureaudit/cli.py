@@ -83,6 +83,9 @@ def scan(
                                                      "level.")] = None,
     seed: Annotated[int | None, typer.Option(help="Seed of folds and samples [default: "
                                                   "0].")] = None,
+    fail_at_impact: Annotated[float | None, typer.Option(
+        help="Exit 1 when the as-given validation score exceeds a corrected one by more than "
+             "this, e.g. 0.02.")] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
@@ -95,7 +98,7 @@ def scan(
     given = {"test": test, "split_column": split_column, "train_value": train_value,
              "target": target, "task": task, "dictionary": dictionary, "label_time": label_time,
              "cutoff_time": cutoff_time, "horizon": horizon, "entity": entity, "out": out,
-             "fail_at": fail_at, "seed": seed}
+             "fail_at": fail_at, "seed": seed, "fail_at_impact": fail_at_impact}
     opts = dict(read_config(config)) if config else {}
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
     opts.update({k: v for k, v in given.items() if v is not None})
@@ -116,6 +119,11 @@ def scan(
     _print_outcome(result.document, out_dir)
     if fail and _reached(result.document, fail):
         return 1
+    if opts.get("fail_at_impact") is not None:
+        from featureaudit.impact import largest_lift
+        lift = largest_lift(result.document)
+        if lift is not None and lift > float(opts["fail_at_impact"]):
+            return 1
     return 0
 
 

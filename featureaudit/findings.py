@@ -71,10 +71,15 @@ def load_findings(path: str | Path) -> Findings:
     return Findings(doc)
 
 
-def droplist(findings: Findings, at_least: str = "high") -> list[str]:
-    """Columns at ``at_least`` or above, most suspect first (the file lists them by score)."""
+def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False) -> list[str]:
+    """Columns at ``at_least`` or above, most suspect first (the file lists them by score).
+
+    Columns whose remedy is ``refit_on_training_rows`` are to be refitted, not dropped, so
+    they are left out unless ``refit`` is true.
+    """
     floor = Level.parse(at_least)
-    cols = [c for c in findings.columns if Level.parse(c.get("level", "none")) >= floor]
+    cols = [c for c in findings.columns if Level.parse(c.get("level", "none")) >= floor
+            and (refit or c.get("remedy") != "refit_on_training_rows")]
     cols.sort(key=lambda c: -float(c.get("score") or 0.0))
     return [c["column"] for c in cols]
 

@@ -56,11 +56,38 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
         "label_time": table.label_time_column, "cutoff": table.cutoff_source,
         "entity": table.entity, "audited_columns": len(verdicts),
     }
-    return build_document(
+    columns = [v.to_dict() for v in verdicts]
+    found = [e.to_dict() for e in dataset_findings]
+    # after the ranker: remedies and measured impact (never change what a probe measured)
+    impact_block, impact_seconds = _after_rank(table, settings, columns, found, warnings)
+    timings["impact"] = impact_seconds
+    findings = build_document(
         tool_version=__version__, dataset=dataset,
         settings={**settings.to_dict(), "probes": names, "probe_seconds": timings,
                   "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
                   "methods": {n: available[n].describe(settings) for n in names}},
-        columns=[v.to_dict() for v in verdicts],
-        dataset_findings=[e.to_dict() for e in dataset_findings],
+        columns=columns, dataset_findings=found,
         skipped=[s.to_dict() for s in skipped], warnings=warnings)
+    findings.document["impact"] = impact_block
+    return findings
+
+
+def _after_rank(table: AuditTable, settings: Settings, columns: list[dict],
+                found: list[dict], warnings: list[str]) -> tuple[dict | None, float]:
+    """Set each finding's ``remedy`` and each column's ``impact``; return the impact block."""
+    from featureaudit.evidence import clean_json
+    from featureaudit.impact import measure_impact
+    from featureaudit.remedy import column_remedy, dataset_remedy
+    start = time.perf_counter()
+    for c in columns:
+        c["remedy"] = column_remedy(c)
+    for f in found:
+        f["remedy"] = dataset_remedy(f)
+    try:
+        block, per_column = measure_impact(table, settings, columns, found)
+    except Exception as exc:  # noqa: BLE001 — impact is an addition; the findings stand
+        warnings.append(f"impact was not measured: {type(exc).__name__}: {exc}")
+        block, per_column = None, {}
+    for c in columns:
+        c["impact"] = clean_json(per_column.get(c["column"]))
+    return clean_json(block), round(time.perf_counter() - start, 3)

@@ -39,6 +39,9 @@ def _env() -> jinja2.Environment:
     for name in charts.__all__:
         env.globals[name] = getattr(charts, name)
     env.globals["rank"] = {lv.label: int(lv) for lv in Level}
+    from featureaudit.remedy import remedy_words
+    env.globals.update(impact_line=impact_line, impact_words=impact_words,
+                       remedy_words=remedy_words)
     return env
 
 
@@ -54,6 +57,32 @@ def _fmt(value: Any) -> str:
     if isinstance(value, float):
         return f"{value:.3g}" if abs(value) < 1e4 else f"{value:,.0f}"
     return _visible(value)
+
+
+def impact_line(doc: dict[str, Any]) -> str:
+    """"validation AUC 0.97 as given; 0.84 (0.82–0.86) without the suspects", or ""."""
+    block = doc.get("impact")
+    if not block:
+        return ""
+    name = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(block["metric"], "score")
+    lo, hi = (block.get("ci95") or [None, None])[:2]
+    ci = f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
+    if not block.get("suspects_removed"):
+        return f"validation {name} {block['as_given']:.2f} as given; no suspect at high or above"
+    return (f"validation {name} {block['as_given']:.2f} as given; "
+            f"{block['without_suspects']:.2f}{ci} without the suspects")
+
+
+def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
+    """A column's or finding's measured effect in words; negligible ones say so."""
+    if not entry or entry.get("change") is None:
+        return "not measured"
+    change = float(entry["change"])
+    lo, hi = (entry.get("ci95") or [None, None])[:2]
+    if abs(change) < negligible and (hi is None or hi < negligible):
+        return "negligible"
+    ci = f" ({lo:+.3f} to {hi:+.3f})" if lo is not None and hi is not None else ""
+    return f"{-change:+.3f}{ci}"
 
 
 def verdict_line(findings: Findings) -> str:
@@ -84,7 +113,7 @@ def render_dossier(findings: Findings) -> str:
     return _env().get_template("dossier.html.j2").render(
         doc=doc, verdict=verdict_line(findings), caution=CAUTION, suspects=suspects,
         cards=cards, clean=[c for c in doc["columns"] if c["level"] == "none"],
-        drops=droplist(findings, "high"),
+        drops=droplist(findings, "high"), refits=_refits(doc),
         methods=list(doc.get("settings", {}).get("methods", {}).items()))
 
 
@@ -93,7 +122,12 @@ def render_summary(findings: Findings) -> str:
     return _env().get_template("summary.md.j2").render(
         doc=doc, verdict=verdict_line(findings), caution=CAUTION,
         suspects=[c for c in doc["columns"] if c["level"] in ("critical", "high", "medium")][:20],
-        drops=droplist(findings, "high"))
+        drops=droplist(findings, "high"), refits=_refits(doc))
+
+
+def _refits(doc: dict[str, Any]) -> list[str]:
+    """Columns to refit on the training rows rather than drop."""
+    return [c["column"] for c in doc["columns"] if c.get("remedy") == "refit_on_training_rows"]
 
 
 def render_all(findings: Findings) -> dict[str, str]:

@@ -18,7 +18,8 @@ TASKS = ("binary", "multiclass", "numeric")
 
 # Keys of the config file: every scan flag, with '-' written as '_'.
 CONFIG_KEYS = ("test", "split_column", "train_value", "target", "task", "dictionary",
-               "label_time", "cutoff_time", "horizon", "entity", "out", "fail_at", "seed")
+               "label_time", "cutoff_time", "horizon", "entity", "out", "fail_at", "seed",
+               "fail_at_impact")
 
 
 def _default_jobs() -> int:
