@@ -19,17 +19,28 @@ from featureaudit.settings import Settings, check_level, read_config
 __all__ = ["app", "main"]
 
 
+def _click_exception() -> Any:
+    """The usage-error class that this typer raises: its own vendored click's (recent typer
+    releases) or click's (earlier ones)."""
+    import importlib
+    try:
+        module = importlib.import_module("typer._click.exceptions")
+    except ImportError:
+        module = importlib.import_module("click.exceptions")
+    return module.ClickException
+
+
 class _OneLineErrors(TyperGroup):
     """Print usage errors as one line on stderr (exit 2), never a usage box or a traceback."""
 
-    def main(self, *args: Any, **kwargs: Any) -> Any:  # type: ignore[override]
-        from typer._click.exceptions import ClickException  # vendored click of typer
+    def main(self, *args: Any, **kwargs: Any) -> Any:
+        usage_error = _click_exception()
         kwargs["standalone_mode"] = False
         try:
             rv = super().main(*args, **kwargs)
         except FeatureAuditError as exc:
             _fail(exc)
-        except ClickException as exc:
+        except usage_error as exc:
             hint = " Run `featureaudit --help` for the commands and their flags."
             print(f"featureaudit: error: {exc.format_message()}{hint}", file=sys.stderr)
             sys.exit(2)

@@ -52,7 +52,7 @@ class Evidence:
     statistic: str
     value: float | None
     threshold: float | None
-    level: str
+    level: str | Level
     column: str | None = None
     summary: str = ""
     severity: float = 0.0

@@ -48,7 +48,8 @@ def _fit_predict(x_tr, y_tr, x_te, task: str, n_classes: int, params: dict,
                  weight=None) -> np.ndarray:  # noqa: ANN001
     import lightgbm as lgb
     if task == "numeric":
-        return lgb.LGBMRegressor(**params).fit(x_tr, y_tr, sample_weight=weight).predict(x_te)
+        model = lgb.LGBMRegressor(**params).fit(x_tr, y_tr, sample_weight=weight)
+        return np.asarray(model.predict(x_te))
     model = lgb.LGBMClassifier(**params).fit(x_tr, y_tr, sample_weight=weight)
     out = np.zeros((len(x_te), n_classes))
     out[:, model.classes_] = model.predict_proba(x_te)
@@ -80,6 +81,7 @@ class _Bench:
         self.seed = settings.seed
         rng = np.random.default_rng(settings.seed + 12)
         lab = table.labelled
+        assert table.y is not None   # impact is measured only with a target
         held = table.heldout if table.heldout is not None else np.zeros(table.n_rows, bool)
         strata = held.astype(np.int64) * (self.k + 1) + (
             np.zeros(table.n_rows, np.int64) if self.task == "numeric"
@@ -135,11 +137,11 @@ class _Bench:
                 kb = b[base.keep[b]]
                 v = _metric(self.task, self.k, y[kb], base.pred[kb]) - v
             vals.append(v)
-        vals = np.asarray(vals)
-        vals = vals[np.isfinite(vals)]
-        if vals.size == 0:
+        arr = np.asarray(vals)
+        arr = arr[np.isfinite(arr)]
+        if arr.size == 0:
             return [float("nan"), float("nan")]
-        return [float(np.quantile(vals, 0.025)), float(np.quantile(vals, 0.975))]
+        return [float(np.quantile(arr, 0.025)), float(np.quantile(arr, 0.975))]
 
 
     def _binary_interval(self, y: np.ndarray, s: _Scored, base: _Scored | None) -> list[float]:

@@ -57,16 +57,17 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
         "entity": table.entity, "audited_columns": len(verdicts),
     }
     columns = [v.to_dict() for v in verdicts]
-    found = [e.to_dict() for e in dataset_findings]
+    split_findings = [e.to_dict() for e in dataset_findings]
     # after the ranker: remedies and measured impact (never change what a probe measured)
-    impact_block, impact_seconds = _after_rank(table, settings, columns, found, warnings)
+    impact_block, impact_seconds = _after_rank(table, settings, columns, split_findings,
+                                               warnings)
     timings["impact"] = impact_seconds
     findings = build_document(
         tool_version=__version__, dataset=dataset,
         settings={**settings.to_dict(), "probes": names, "probe_seconds": timings,
                   "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
                   "methods": {n: available[n].describe(settings) for n in names}},
-        columns=columns, dataset_findings=found,
+        columns=columns, dataset_findings=split_findings,
         skipped=[s.to_dict() for s in skipped], warnings=warnings)
     findings.document["impact"] = impact_block
     return findings

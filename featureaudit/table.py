@@ -102,7 +102,7 @@ def build_table(
         raise TargetError(f"table {src!r} has no rows; pass a table with data rows.")
     warnings: list[str] = []
 
-    ddict = read_dictionary(dictionary) if isinstance(dictionary, (str, os.PathLike)) \
+    ddict = read_dictionary(Path(dictionary)) if isinstance(dictionary, (str, os.PathLike)) \
         else dictionary
     heldout = None
     split_desc = "none"

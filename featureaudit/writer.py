@@ -22,18 +22,18 @@ def write_files(out_dir: str | os.PathLike[str], files: dict[str, str]) -> list[
     temps: list[tuple[Path, Path]] = []
     try:
         for name, text in files.items():
-            fd, tmp = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=out)
+            fd, tmp_name = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=out)
             with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
                 fh.write(text)
-            os.chmod(tmp, 0o644)
-            temps.append((Path(tmp), out / name))
+            os.chmod(tmp_name, 0o644)
+            temps.append((Path(tmp_name), out / name))
     except OSError as exc:
-        for tmp, _ in temps:
-            tmp.unlink(missing_ok=True)
+        for written_tmp, _ in temps:
+            written_tmp.unlink(missing_ok=True)
         raise InputFileError(f"cannot write the report into {str(out)!r}: {exc.strerror}; pass "
                              "--out with a folder you can write to.") from exc
     written = []
-    for tmp, final in temps:
-        os.replace(tmp, final)
+    for tmp_path, final in temps:
+        os.replace(tmp_path, final)
         written.append(final)
     return written

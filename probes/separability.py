@@ -22,6 +22,7 @@ information.
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -113,7 +114,8 @@ def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3,
 
     pred = np.zeros(len(side))
     gain = np.zeros(x.shape[1])
-    params = dict(n_estimators=50, learning_rate=0.12, num_leaves=15, min_child_samples=20,
+    params: dict[str, Any] = dict(
+                  n_estimators=50, learning_rate=0.12, num_leaves=15, min_child_samples=20,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
                   n_jobs=model_threads(n_jobs, len(side)), verbose=-1, deterministic=True,
                   force_row_wise=True, max_bin=63,
@@ -121,7 +123,7 @@ def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3,
     with limited_blas():
         for tr, te in StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, side):
             model = lgb.LGBMClassifier(**params).fit(x[tr], side[tr])
-            pred[te] = model.predict_proba(x[te])[:, 1]
+            pred[te] = np.asarray(model.predict_proba(x[te]))[:, 1]
             gain += model.feature_importances_
     return float(roc_auc_score(side, pred)), gain
 

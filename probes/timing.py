@@ -239,7 +239,7 @@ class Timing(Probe):
         late, after_label = offset - cut > tol, offset > tol
         share, share_l = float(late), float(after_label)
         level = column_level(share, share_l, settings.share_tolerance, self.thresholds)
-        cut_text = f"-{table.cutoff_source.split(':', 1)[1]}" if table.horizon is not None \
+        cut_text = f"-{str(table.cutoff_source).split(':', 1)[1]}" if table.horizon is not None \
             else "the label time"
         text = (f"known {entry.known_at} from the label time, after the cutoff "
                 f"({cut_text}) for every row" if late else
@@ -396,7 +396,7 @@ def _column_sentence(level: Level, share: float, share_l: float | None, detail: 
 
 
 def _per_entity(entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.ndarray,
-                tol_ns: int) -> dict:
+                tol_ns: float) -> dict:
     """Within each entity: held-out rows earlier than that entity's latest training row."""
     codes, _ = pd.factorize(entity, use_na_sentinel=True)
     valid = codes >= 0

@@ -429,10 +429,10 @@ class Flow:
             return Val("rows", _merge([v.role for v in parts]),
                        parts[0].trail) if parts else None
         if name == "resample" and not isinstance(func, ast.Attribute):
-            rows = args[0] if args else None
+            resampled = args[0] if args else None
             if self._replace_true(e):
-                self._event("resample", rows, e, cls="resample")
-            return rows
+                self._event("resample", resampled, e, cls="resample")
+            return resampled
         if READERS.match(name):
             return Val("rows", ALL, (f"{_dotted(func)}(...) at line {e.lineno}: all rows",))
         if isinstance(func, ast.Attribute):
@@ -442,11 +442,11 @@ class Flow:
             if owner is not None and owner.kind == "rows":
                 return self.rows_method(owner, name, args, kw, e)
             if owner is None and _dotted(func.value) in ("np", "numpy", "pd", "pandas"):
-                rows = next((a for a in args if a is not None and a.kind == "rows"), None)
-                if rows is not None and name in REDUCTIONS:
-                    return Val("stat", rows.role, rows.trail, columns=rows.columns)
+                source = next((a for a in args if a is not None and a.kind == "rows"), None)
+                if source is not None and name in REDUCTIONS:
+                    return Val("stat", source.role, source.trail, columns=source.columns)
                 self._stat_use(args, e.lineno, args)
-                return rows
+                return source
         return None
 
     def _is_value(self, node: ast.AST) -> bool:

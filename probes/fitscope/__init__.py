@@ -75,7 +75,8 @@ class Fitscope(Probe):
             skipped.append(Skip(self.name, "audited as one pool: without held-out rows the "
                                            "probe cannot tell which rows a fit used; columns "
                                            "that look preprocessed are listed as information"))
-        train = ~table.heldout if split else np.ones(table.n_rows, bool)
+        train = ~table.heldout if split and table.heldout is not None \
+            else np.ones(table.n_rows, bool)
         def one(name: str) -> list[Evidence]:
             s = table.frame[name]
             if pd.api.types.is_datetime64_any_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):

@@ -51,6 +51,7 @@ def _candidates(table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray
                 ) -> list[tuple[str, np.ndarray]]:
     """Per-category encodings an encoder would produce when fitted on ``rows``."""
     from sklearn.preprocessing import TargetEncoder
+    assert table.y is not None   # encodings are checked only with a target
     y = table.y[rows]
     cats = codes[rows][:, None]
     target_type = {"numeric": "continuous", "binary": "binary"}.get(table.task or "",

@@ -10,6 +10,7 @@ correlation for one target column, computed on a seeded sample from one correlat
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from scipy.special import ndtri
@@ -142,7 +143,8 @@ def reference_power(inp: PeerInput, columns: np.ndarray, task: str, n_classes: i
         return 0.0
     x = inp.z_tree[:, columns]
     y = inp.y_codes
-    params = dict(n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
+    params: dict[str, Any] = dict(
+                  n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
                   subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
                   n_jobs=model_threads(n_jobs, len(inp.y_codes)), verbose=-1, deterministic=True,
                   force_row_wise=True, max_bin=31)

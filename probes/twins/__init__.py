@@ -21,6 +21,7 @@ no more than chance lower it. Thresholds are in :class:`TwinsThresholds`.
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -84,10 +85,12 @@ def copy_level(excess: float, twin_rows: float, agreement: float | None,
     ``chance``; None without a target)."""
     level, notes = t.copies.level(excess), []
     if level > Level.LOW and twin_rows < t.min_twins:
-        level, _ = Level.LOW, notes.append(f"only {twin_rows:.0f} twin rows")
+        level = Level.LOW
+        notes.append(f"only {twin_rows:.0f} twin rows")
     if level > Level.NONE and agreement is not None and chance is not None \
             and twin_rows >= t.min_twins and agreement <= chance + t.chance_margin:
-        level, _ = level.down(), notes.append("twins agree on the target no more than chance")
+        level = level.down()
+        notes.append("twins agree on the target no more than chance")
     return level, notes
 
 
@@ -112,7 +115,7 @@ def entity_level(share_rows: float, simulated: bool, t: TwinsThresholds = THRESH
 
 
 def copy_excess(h: np.ndarray, heldout: np.ndarray, rng: np.random.Generator,
-                t: TwinsThresholds = THRESHOLDS) -> dict:
+                t: TwinsThresholds = THRESHOLDS) -> dict[str, Any]:
     """The held-out exact-copy rate beyond the natural one, from random parts of the
     training rows in the proportion of the split, queried against the same partners."""
     t_idx, h_idx = np.flatnonzero(~heldout), np.flatnonzero(heldout)
@@ -172,7 +175,7 @@ class Twins(Probe):
         skipped: list[Skip] = []
         rng = np.random.default_rng(settings.seed)
         simulated = table.heldout is None
-        heldout = table.heldout if not simulated else \
+        heldout: np.ndarray = table.heldout if table.heldout is not None else \
             rng.random(table.n_rows) < SIMULATED_HELDOUT_SHARE
         cols = [c for c in table.features if table.frame[c].notna().any()]
         if not cols:
@@ -220,7 +223,7 @@ class Twins(Probe):
         first_train = _first_row(h, train)
         agree, base = _agreement(table, h, exact, train, first_train, rng)
         near_agree = _near_agreement(table, only_near, partner)
-        baseline = copy_excess(h, heldout, rng, t) if exact.any() else \
+        baseline: dict[str, Any] = copy_excess(h, heldout, rng, t) if exact.any() else \
             {"excess": 0.0, "lower": 0.0, "natural_share": 0.0, "ci95": [0.0, 0.0]}
         exact_excess = max(baseline["excess"], 0.0) if baseline["lower"] > 0 else 0.0
         near_natural = _natural_near(table, cols, h, heldout, rng) if near_rows else 0.0

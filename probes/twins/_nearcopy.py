@@ -68,8 +68,10 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
     raw, cats = [], []
     for c in cols:
         v = numeric_view(table.frame[c])
-        head = v[:2_000] if v is not None else None
-        if v is not None and np.unique(head[np.isfinite(head)]).size > 10:
+        if v is None:
+            continue
+        head = v[:2_000]
+        if np.unique(head[np.isfinite(head)]).size > 10:
             raw.append(v)
         else:
             cats.append(column_codes(table.frame[c]))
