@@ -1,4 +1,4 @@
-"""findings.json (schema ``featureaudit.findings/1``): build, write, read back, drop list, diff."""
+"""findings.json (schema ``featureaudit.findings/2``; reads 1 and 2): build, read, drop, diff."""
 
 from __future__ import annotations
 
@@ -14,7 +14,8 @@ from featureaudit.levels import Level
 
 __all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
 
-SCHEMA = "featureaudit.findings/1"
+SCHEMA = "featureaudit.findings/2"
+READABLE = ("featureaudit.findings/1", SCHEMA)   # schema 2 keeps every field of 1
 
 
 @dataclass(frozen=True)
@@ -46,7 +47,7 @@ def build_document(*, tool_version: str, dataset: dict[str, Any], settings: dict
         "schema": SCHEMA, "tool_version": tool_version, "created": stamp,
         "dataset": clean_json(dataset), "settings": clean_json(settings), "columns": columns,
         "dataset_findings": dataset_findings, "skipped": clean_json(skipped),
-        "warnings": [str(w) for w in warnings]})
+        "warnings": [str(w) for w in warnings], "impact": None, "code_findings": []})
 
 
 def load_findings(path: str | Path) -> Findings:
@@ -60,10 +61,11 @@ def load_findings(path: str | Path) -> Findings:
     except (json.JSONDecodeError, UnicodeDecodeError) as exc:
         raise InputFileError(f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
                              "findings.json that `featureaudit scan` wrote.") from exc
-    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
+    if not isinstance(doc, dict) or doc.get("schema") not in READABLE:
         got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
         raise InputFileError(f"findings file {str(p)!r} has schema {got!r}; this version reads "
-                             f"{SCHEMA!r}. Re-run `featureaudit scan` to produce it.")
+                             f"{' and '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
+                             "to produce it.")
     for key in ("columns", "dataset_findings"):
         if not isinstance(doc.get(key), list):
             raise InputFileError(f"findings file {str(p)!r} has no {key!r} list; it is "

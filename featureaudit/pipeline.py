@@ -55,9 +55,13 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
         "target": table.target, "task": table.task, "split": table.split,
         "label_time": table.label_time_column, "cutoff": table.cutoff_source,
         "entity": table.entity, "audited_columns": len(verdicts),
+        "partitions": table.partitions or {"all rows": table.n_rows}, "folds": None,
     }
     columns = [v.to_dict() for v in verdicts]
-    split_findings = [e.to_dict() for e in dataset_findings]
+    pair = _compared_pair(table)
+    split_findings = [{**e.to_dict(), "partitions": pair} for e in dataset_findings]
+    for c in columns:
+        c.setdefault("accepted", None)
     # after the ranker: remedies and measured impact (never change what a probe measured)
     impact_block, impact_seconds = _after_rank(table, settings, columns, split_findings,
                                                warnings)
@@ -66,11 +70,21 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
         tool_version=__version__, dataset=dataset,
         settings={**settings.to_dict(), "probes": names, "probe_seconds": timings,
                   "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
-                  "methods": {n: available[n].describe(settings) for n in names}},
+                  "methods": {n: available[n].describe(settings) for n in names},
+                  "engine": "memory", "sample_rows": min(settings.reference_rows, table.n_rows)},
         columns=columns, dataset_findings=split_findings,
         skipped=[s.to_dict() for s in skipped], warnings=warnings)
     findings.document["impact"] = impact_block
     return findings
+
+
+def _compared_pair(table: AuditTable) -> list[str]:
+    """The two sides a split finding compares: training against the held-out partition(s),
+    or the two parts of the split the probes simulate when there is none."""
+    if table.heldout is None or not table.partitions:
+        return ["simulated training part", "simulated held-out part"]
+    train, *held = table.partitions
+    return [train, "+".join(held)]
 
 
 def _after_rank(table: AuditTable, settings: Settings, columns: list[dict],

@@ -50,6 +50,7 @@ class AuditTable:
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None      # why target-based probes cannot run
+    partitions: dict[str, int] = field(default_factory=dict)  # rows per partition (schema 2)
 
     @property
     def n_rows(self) -> int:
@@ -106,11 +107,13 @@ def build_table(
         else dictionary
     heldout = None
     split_desc = "none"
+    partitions: dict[str, int] = {}
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
         frame, heldout = _append_test(frame, as_frame(test, what=tsrc), src, tsrc, target, ddict,
                                       warnings)
         split_desc = f"test:{tsrc}"
+        partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
 
     roles = _resolve_roles(frame, ddict, warnings)
     flags = {"target": target, "split": split_column, "label_time": label_time,
@@ -153,10 +156,14 @@ def build_table(
         else:
             heldout = ~is_train
             split_desc = f"column:{col}"
+            partitions = {str(train_value): int(is_train.sum())}
+            held_names = np.where(codes >= 0, names[codes], "(missing)")[heldout]
+            values, counts = np.unique(held_names.astype(str), return_counts=True)
+            partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
 
     table = AuditTable(frame=frame, source=src, roles=roles, features=[], id_columns=[],
                        heldout=heldout, split=split_desc, dictionary=ddict, warnings=warnings,
-                       entity=chosen["entity"])
+                       entity=chosen["entity"], partitions=partitions)
     _set_target(table, chosen["target"], task)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
     for name in frame.columns:

@@ -97,3 +97,33 @@ def test_result_object(breast_cancer):
     assert html.startswith("<div>") and "<table>" in html
     with pytest.raises(fa.FeatureAuditError):
         result.suspects("severe")
+
+
+def test_schema_2_fields_are_written(tmp_path):
+    # The contract's "Schema 2": partitions, folds, per-finding pairs, impact, per-column impact
+    # and accepted, code_findings, and the engine with its sample size.
+    rng = np.random.default_rng(0)
+    n = 400
+    frame = pd.DataFrame({"x": rng.normal(size=n), "y": rng.integers(0, 2, n),
+                          "split": rng.choice(["train", "train", "train", "valid", "test"], n)})
+    frame.loc[frame.index[:40], "x2"] = 1.0
+    doc = fa.audit(frame, target="y", split_column="split").document
+    assert doc["schema"] == "featureaudit.findings/2"
+    parts = doc["dataset"]["partitions"]
+    assert parts["train"] == int((frame["split"] == "train").sum())
+    assert parts["valid"] + parts["test"] == doc["dataset"]["heldout_rows"]
+    assert doc["dataset"]["folds"] is None
+    assert all(f["partitions"][0] == "train" for f in doc["dataset_findings"])
+    assert all("impact" in c and c["accepted"] is None for c in doc["columns"])
+    assert doc["code_findings"] == []
+    assert doc["settings"]["engine"] == "memory" and doc["settings"]["sample_rows"] == n
+    assert "impact" in doc
+
+
+def test_schema_1_files_are_still_read(tmp_path):
+    old = {"schema": "featureaudit.findings/1", "columns": [
+        {"column": "leak", "level": "high", "score": 0.7}], "dataset_findings": []}
+    path = tmp_path / "old.json"
+    path.write_text(json.dumps(old))
+    from featureaudit.findings import load_findings
+    assert droplist(load_findings(path), "high") == ["leak"]
