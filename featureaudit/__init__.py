@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
 
 from featureaudit.api import AuditResult, audit  # noqa: E402
 from featureaudit.errors import FeatureAuditError  # noqa: E402
