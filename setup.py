@@ -6,6 +6,13 @@ into it (see ``[tool.setuptools.package-dir]`` in pyproject.toml).
 
 from setuptools import find_packages, setup
 
-setup(packages=["featureaudit", "featureaudit.code", "featureaudit.reports",
-                "featureaudit.sample_data", "featureaudit.probes",
-                *(f"featureaudit.probes.{p}" for p in find_packages("probes"))])
+setup(
+    packages=[
+        "featureaudit",
+        "featureaudit.code",
+        "featureaudit.reports",
+        "featureaudit.sample_data",
+        "featureaudit.probes",
+        *(f"featureaudit.probes.{p}" for p in find_packages("probes")),
+    ]
+)

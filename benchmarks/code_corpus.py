@@ -39,16 +39,24 @@ def score(cases: Path = CASES) -> dict[str, object]:
         clean_hits += 0 if want else len(got)
         if want != got:
             misses.append(f"{path.name}: expected {sorted(want)}, found {sorted(got)}")
-    return {"cases": len(list(cases.glob("*.p*"))) + len(list(cases.glob("*.ipynb"))),
-            "tp": tp, "fp": fp, "fn": fn, "clean_hits": clean_hits,
-            "precision": tp / (tp + fp) if tp + fp else 1.0,
-            "recall": tp / (tp + fn) if tp + fn else 1.0, "misses": misses}
+    return {
+        "cases": len(list(cases.glob("*.p*"))) + len(list(cases.glob("*.ipynb"))),
+        "tp": tp,
+        "fp": fp,
+        "fn": fn,
+        "clean_hits": clean_hits,
+        "precision": tp / (tp + fp) if tp + fp else 1.0,
+        "recall": tp / (tp + fn) if tp + fn else 1.0,
+        "misses": misses,
+    }
 
 
 if __name__ == "__main__":
     s = score()
     for m in s["misses"]:  # type: ignore[union-attr]
         print("  " + m)
-    print(f"tp {s['tp']} fp {s['fp']} fn {s['fn']}; findings on clean twins {s['clean_hits']}; "
-          f"precision {s['precision']:.3f} recall {s['recall']:.3f}")
+    print(
+        f"tp {s['tp']} fp {s['fp']} fn {s['fn']}; findings on clean twins {s['clean_hits']}; "
+        f"precision {s['precision']:.3f} recall {s['recall']:.3f}"
+    )
     sys.exit(0)

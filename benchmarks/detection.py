@@ -28,7 +28,7 @@ from sklearn.datasets import load_breast_cancer, load_diabetes, load_iris, load_
 
 import featureaudit as fa
 
-sys.path.insert(0, str(__import__('pathlib').Path(__file__).parent))
+sys.path.insert(0, str(__import__("pathlib").Path(__file__).parent))
 import detection_cases as dc  # noqa: E402
 
 HIGH = ("high", "critical")
@@ -40,6 +40,7 @@ def _sk(loader: Callable, target: str) -> Callable[[], tuple[pd.DataFrame, str]]
         frame = data.data.copy()
         frame[target] = data.target.to_numpy()
         return frame, target
+
     return load
 
 
@@ -63,9 +64,12 @@ def _anes96() -> tuple[pd.DataFrame, str]:
 
 
 DATASETS: dict[str, Callable[[], tuple[pd.DataFrame, str]]] = {
-    "breast_cancer": _sk(load_breast_cancer, "label"), "wine": _sk(load_wine, "cultivar"),
-    "iris": _sk(load_iris, "species"), "diabetes": _sk(load_diabetes, "progression"),
-    "fair (statsmodels)": _fair, "star98 (statsmodels)": _star98,
+    "breast_cancer": _sk(load_breast_cancer, "label"),
+    "wine": _sk(load_wine, "cultivar"),
+    "iris": _sk(load_iris, "species"),
+    "diabetes": _sk(load_diabetes, "progression"),
+    "fair (statsmodels)": _fair,
+    "star98 (statsmodels)": _star98,
     "anes96 (statsmodels)": _anes96,
 }
 
@@ -91,8 +95,9 @@ def _classes(y: pd.Series) -> int:
     return int(y.nunique())
 
 
-def plant(kind: str, frame: pd.DataFrame, target: str, rng: np.random.Generator
-          ) -> tuple[pd.DataFrame, dict]:
+def plant(
+    kind: str, frame: pd.DataFrame, target: str, rng: np.random.Generator
+) -> tuple[pd.DataFrame, dict]:
     """Add one leak; return the frame and the audit arguments that go with it."""
     y = frame[target].to_numpy()
     numeric = _classes(frame[target]) > 20
@@ -120,22 +125,28 @@ def plant(kind: str, frame: pd.DataFrame, target: str, rng: np.random.Generator
     elif kind == "recorded_after_cutoff":
         label = pd.Timestamp("2024-01-01") + pd.to_timedelta(rng.integers(0, 700, len(y)), "D")
         out["decided_at"] = label
-        lag = np.where(rng.random(len(y)) < 0.4, rng.uniform(1, 30, len(y)),
-                       -rng.uniform(1, 60, len(y)))
+        lag = np.where(
+            rng.random(len(y)) < 0.4, rng.uniform(1, 30, len(y)), -rng.uniform(1, 60, len(y))
+        )
         out["leak"] = label + pd.to_timedelta(lag * 86400, unit="s")
         args.update(label_time="decided_at")
     elif kind == "random_split_in_time":
         out["decided_at"] = pd.Timestamp("2024-01-01") + pd.to_timedelta(
-            np.sort(rng.integers(0, 700, len(y))), "D")
+            np.sort(rng.integers(0, 700, len(y))), "D"
+        )
         out["split"] = np.where(rng.random(len(y)) < 0.8, "train", "test")
         args.update(label_time="decided_at", split_column="split")
     return out, args
 
 
-EXPECTED = {"noisy_copy": "target_proxy", "after_outcome_count": "target_proxy",
-            "filled_when_positive": "target_proxy", "sorted_with_id": "row_order_tells_target",
-            "recorded_after_cutoff": "recorded_after_cutoff",
-            "random_split_in_time": "time_overlap_across_split"}
+EXPECTED = {
+    "noisy_copy": "target_proxy",
+    "after_outcome_count": "target_proxy",
+    "filled_when_positive": "target_proxy",
+    "sorted_with_id": "row_order_tells_target",
+    "recorded_after_cutoff": "recorded_after_cutoff",
+    "random_split_in_time": "time_overlap_across_split",
+}
 
 
 def run_case(name: str, kind: str, seed: int) -> Outcome:
@@ -179,8 +190,10 @@ def old_cases(seeds: int, only: str | None) -> None:
                 o = run_case(name, kind, seed)
                 outcomes.append(o)
                 mark = "ok " if o.found and o.kind_right else "MISS"
-                print(f"{mark} {o.case:<58} {o.level:<8} {','.join(o.kinds) or '-'}"
-                      + (f"  clean at high: {o.clean_high}" if o.clean_high else ""))
+                print(
+                    f"{mark} {o.case:<58} {o.level:<8} {','.join(o.kinds) or '-'}"
+                    + (f"  clean at high: {o.clean_high}" if o.clean_high else "")
+                )
     controls = []
     for name in DATASETS:
         for seed in range(seeds):
@@ -194,8 +207,10 @@ def old_cases(seeds: int, only: str | None) -> None:
     clean_total = sum(len(DATASETS[o.case.split(" / ")[0]]()[0].columns) - 1 for o in outcomes)
     ctrl_fp = sum(bool(c[2] or c[3]) for c in controls)
     print()
-    print(f"planted leaks found at high or above: {found}/{len(outcomes)} "
-          f"({found / len(outcomes):.0%}); with the right kind: {kind_ok}/{len(outcomes)}")
+    print(
+        f"planted leaks found at high or above: {found}/{len(outcomes)} "
+        f"({found / len(outcomes):.0%}); with the right kind: {kind_ok}/{len(outcomes)}"
+    )
     print(f"clean columns at high or above in planted runs: {clean_fp}/{clean_total}")
     print(f"clean controls with any finding at high or above: {ctrl_fp}/{len(controls)}")
 
@@ -206,8 +221,8 @@ class Run:
 
     case: dc.Case
     seed: int
-    planted: dict[str, tuple[str, tuple[str, ...], float]]   # column -> level, kinds, score
-    split: tuple[str, str] | None                            # planted kind -> level found
+    planted: dict[str, tuple[str, tuple[str, ...], float]]  # column -> level, kinds, score
+    split: tuple[str, str] | None  # planted kind -> level found
     clean_high: list[str]
     clean_total: int
     any_high: list[str]
@@ -238,29 +253,51 @@ def run_new(case: dc.Case, seed: int) -> Run:
         dc.cleanup(built)
     doc = result.document
     cols = {c["column"]: c for c in doc["columns"]}
-    planted = {c: (cols[c]["level"], tuple(cols[c]["kinds"]), float(cols[c]["score"]))
-               if c in cols else ("none", (), 0.0) for c in built.planted}
+    planted = {
+        c: (cols[c]["level"], tuple(cols[c]["kinds"]), float(cols[c]["score"]))
+        if c in cols
+        else ("none", (), 0.0)
+        for c in built.planted
+    }
     split = None
     if built.split_kind:
         levels = [f["level"] for f in doc["dataset_findings"] if f["kind"] == built.split_kind]
         split = (built.split_kind, max(levels, key=lambda v: RANK.get(v, 0), default="none"))
-    clean = [c for c in dict.fromkeys(originals + built.clean)
-             if c in cols and c not in built.planted and c != "split"]
+    clean = [
+        c
+        for c in dict.fromkeys(originals + built.clean)
+        if c in cols and c not in built.planted and c != "split"
+    ]
     clean_high = [c for c in clean if cols[c]["level"] in HIGH]
     any_high = [c for c, v in cols.items() if v["level"] in HIGH]
     any_high += [f"*{f['kind']}*" for f in doc["dataset_findings"] if f["level"] in HIGH]
     ranked = None
     if planted and clean:
         ranked = min(p[2] for p in planted.values()) > max(float(cols[c]["score"]) for c in clean)
-    covered = [any(e.get("probe") == "fitscope" for e in cols[c].get("evidence", []))
-               for c in built.coverage if c in cols]
-    return Run(case, seed, planted, split, clean_high, len(clean), any_high, ranked, covered,
-               dict(built.planted))
+    covered = [
+        any(e.get("probe") == "fitscope" for e in cols[c].get("evidence", []))
+        for c in built.coverage
+        if c in cols
+    ]
+    return Run(
+        case,
+        seed,
+        planted,
+        split,
+        clean_high,
+        len(clean),
+        any_high,
+        ranked,
+        covered,
+        dict(built.planted),
+    )
 
 
 def _line(r: Run) -> str:
-    head = f"{r.case.set:<5} c{r.case.klass:<2} {r.case.dataset:<12} {r.case.name:<28} " \
-           f"s{r.seed} {r.case.status:<7}"
+    head = (
+        f"{r.case.set:<5} c{r.case.klass:<2} {r.case.dataset:<12} {r.case.name:<28} "
+        f"s{r.seed} {r.case.status:<7}"
+    )
     if r.ill_posed:
         return f"N/A  {head} ill-posed: {r.ill_posed}"
     parts, good = [], True
@@ -304,22 +341,28 @@ def _figures(runs: list[Run], expected: dict[tuple[str, str], str], label: str) 
 
     def frac(a: int, b: int) -> str:
         return f"{a}/{b}" + (f" ({a / b:.2f})" if b else "")
-    return (f"{label:<34} recall@high {frac(hits_h, n_planted):<14} "
-            f"recall@medium {frac(hits_m, n_planted):<14} clean cols@high {frac(fp, cols):<14} "
-            f"clean cases@high {frac(clean_bad, len(clean_runs)):<14} "
-            f"ranked {frac(sum(ranked), len(ranked))}")
+
+    return (
+        f"{label:<34} recall@high {frac(hits_h, n_planted):<14} "
+        f"recall@medium {frac(hits_m, n_planted):<14} clean cols@high {frac(fp, cols):<14} "
+        f"clean cases@high {frac(clean_bad, len(clean_runs)):<14} "
+        f"ranked {frac(sum(ranked), len(ranked))}"
+    )
 
 
 def new_cases(seeds: int, only: str | None) -> None:
-    cases = [c for c in dc.CASES if not only
-             or fnmatch.fnmatch(f"c{c.klass} {c.dataset} {c.name}", f"*{only}*")]
+    cases = [
+        c
+        for c in dc.CASES
+        if not only or fnmatch.fnmatch(f"c{c.klass} {c.dataset} {c.name}", f"*{only}*")
+    ]
     runs: list[Run] = []
     expected: dict[tuple[str, str], str] = {}
     print("# new cases (set, class, dataset, case, seed, status: what was found)")
     for case in cases:
         for seed in range(seeds):
             r = run_new(case, seed)
-            for col, kind in r.expected.items():   # as the case wrote them before the audit
+            for col, kind in r.expected.items():  # as the case wrote them before the audit
                 expected[(case.name + "|" + case.dataset, col)] = kind
             print(_line(r), flush=True)
             if not r.ill_posed:
@@ -336,9 +379,17 @@ def new_cases(seeds: int, only: str | None) -> None:
     kinds = sorted(set(expected.values()) | {r.split[0] for r in runs if r.split})
     for kind in kinds:
         for part in ("tune", "check"):
-            sel = [r for r in runs if r.case.set == part and (
-                any(expected[(r.case.name + "|" + r.case.dataset, c)] == kind for c in r.planted)
-                or (r.split and r.split[0] == kind))]
+            sel = [
+                r
+                for r in runs
+                if r.case.set == part
+                and (
+                    any(
+                        expected[(r.case.name + "|" + r.case.dataset, c)] == kind for c in r.planted
+                    )
+                    or (r.split and r.split[0] == kind)
+                )
+            ]
             if sel:
                 print(_figures(sel, expected, f"{kind} {part}"))
     print()
@@ -347,21 +398,26 @@ def new_cases(seeds: int, only: str | None) -> None:
         print(_figures([r for r in runs if r.case.set == part], expected, f"all {part}"))
     print(_figures(runs, expected, "all"))
     cov = [all(r.covered) for r in runs if r.covered]
-    print(f"coverage: clean fitscope-examined columns with fitscope evidence: "
-          f"{sum(cov)}/{len(cov)}")
+    print(
+        f"coverage: clean fitscope-examined columns with fitscope evidence: {sum(cov)}/{len(cov)}"
+    )
     ranked = [r.ranked for r in runs if r.ranked is not None]
-    print(f"ranking: runs where every planted column outranks every clean one: "
-          f"{sum(ranked)}/{len(ranked)}")
+    print(
+        f"ranking: runs where every planted column outranks every clean one: "
+        f"{sum(ranked)}/{len(ranked)}"
+    )
 
 
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--seeds", type=int, default=3)
-    parser.add_argument("--only", default=None,
-                        help="run only cases whose 'c<class> <dataset> <case>' or "
-                             "'<dataset> / <kind>' contains PATTERN (shell wildcards allowed)")
-    parser.add_argument("--skip-old", action="store_true",
-                        help="run only the new cases")
+    parser.add_argument(
+        "--only",
+        default=None,
+        help="run only cases whose 'c<class> <dataset> <case>' or "
+        "'<dataset> / <kind>' contains PATTERN (shell wildcards allowed)",
+    )
+    parser.add_argument("--skip-old", action="store_true", help="run only the new cases")
     args = parser.parse_args()
     start = time.perf_counter()
     if not args.skip_old:

@@ -78,8 +78,12 @@ def _grunfeld() -> Frame:
 
 
 DATASETS: dict[str, Callable[[], Frame]] = {
-    "digits": _digits, "randhie": _randhie, "macrodata": _macrodata,
-    "penguins": _penguins, "penguins_sex": _penguins_sex, "modechoice": _modechoice,
+    "digits": _digits,
+    "randhie": _randhie,
+    "macrodata": _macrodata,
+    "penguins": _penguins,
+    "penguins_sex": _penguins_sex,
+    "modechoice": _modechoice,
     "grunfeld": _grunfeld,
 }
 CHECK = {"penguins", "penguins_sex", "modechoice", "grunfeld"}
@@ -91,10 +95,10 @@ class Built:
 
     frame: pd.DataFrame
     args: dict
-    planted: dict[str, str] = field(default_factory=dict)   # column -> expected kind
-    clean: list[str] = field(default_factory=list)          # extra clean columns
-    split_kind: str | None = None                           # planted dataset-level kind
-    coverage: list[str] = field(default_factory=list)       # columns fitscope should examine
+    planted: dict[str, str] = field(default_factory=dict)  # column -> expected kind
+    clean: list[str] = field(default_factory=list)  # extra clean columns
+    split_kind: str | None = None  # planted dataset-level kind
+    coverage: list[str] = field(default_factory=list)  # columns fitscope should examine
     ill_posed: str = ""
 
 
@@ -103,7 +107,7 @@ class Case:
     name: str
     klass: int
     dataset: str
-    status: str                     # "planted" or "clean"
+    status: str  # "planted" or "clean"
     build: Callable[[pd.DataFrame, str, np.random.Generator], Built]
 
     @property
@@ -133,11 +137,11 @@ def _known(offset: str, planted: bool) -> Callable:
         out = frame.copy()
         # a review score weakly related to the outcome; its dictionary line decides the case
         out["review_score"] = _positive(frame, target) * 0.5 + rng.normal(0, 1, len(out))
-        args = {"target": target,
-                "dictionary": _dictionary(out, target, {"review_score": offset})}
+        args = {"target": target, "dictionary": _dictionary(out, target, {"review_score": offset})}
         if planted:
             return Built(out, args, planted={"review_score": "recorded_after_cutoff"})
         return Built(out, args, clean=["review_score"])
+
     return build
 
 
@@ -182,6 +186,7 @@ def _near_copy(frame: pd.DataFrame, target: str, rng: np.random.Generator) -> Bu
 def _strong_honest(column: str) -> Callable:
     def build(frame: pd.DataFrame, target: str, rng: np.random.Generator) -> Built:
         return Built(frame.copy(), {"target": target}, clean=[column])
+
     return build
 
 
@@ -226,6 +231,7 @@ def _impute(column: str, dataset: str, all_rows: bool) -> Callable:
         if all_rows:
             return Built(out, args, planted={column: "fit_on_all_rows"}, ill_posed=ill)
         return Built(out, args, clean=[column], coverage=[column])
+
     return build
 
 
@@ -244,6 +250,7 @@ def _cap(column: str, dataset: str, all_rows: bool) -> Callable:
         if all_rows:
             return Built(out, args, planted={column: "fit_on_all_rows"}, ill_posed=ill)
         return Built(out, args, clean=[column], coverage=[column])
+
     return build
 
 
@@ -267,6 +274,7 @@ def _discrete_split(group: str | None, copies: bool) -> Callable:
         if copies:
             return Built(out, args, split_kind="duplicate_rows_across_split")
         return Built(out, args)
+
     return build
 
 
@@ -286,12 +294,13 @@ def _test_files(shift: str | None) -> Callable:
             test = rng.random(len(frame)) < 0.2
         ordered = pd.concat([frame[~test], frame[test]], ignore_index=True)
         ordered = _ids(ordered, rng)
-        train, held = ordered.iloc[: (~test).sum()], ordered.iloc[(~test).sum():]
+        train, held = ordered.iloc[: (~test).sum()], ordered.iloc[(~test).sum() :]
         args = {"target": target, "test": held.reset_index(drop=True)}
         built = Built(train.reset_index(drop=True), args, clean=["record_id"])
         if shift:
             built.split_kind = "split_shift"
         return built
+
     return build
 
 
@@ -299,7 +308,8 @@ def _sorted_by_date(frame: pd.DataFrame, target: str, rng: np.random.Generator) 
     """A random split; the file sorted by an entry date that is unrelated to the split."""
     out = frame.copy()
     out["entered"] = pd.Timestamp("2023-01-01") + pd.to_timedelta(
-        rng.integers(0, 365 * 24 * 60, len(out)), "min")
+        rng.integers(0, 365 * 24 * 60, len(out)), "min"
+    )
     out["split"] = np.where(rng.random(len(out)) < 0.2, "test", "train")
     out = _ids(out.sort_values("entered", kind="stable").reset_index(drop=True), rng)
     return Built(out, {"target": target, "split_column": "split"}, clean=["record_id"])
@@ -314,8 +324,12 @@ def _figure_and_share(frame: pd.DataFrame, target: str, rng: np.random.Generator
     out["income"] = income
     out["spend"] = spend
     out["spend_share"] = spend / (spend + income)
-    return Built(out, {"target": target}, clean=["income"],
-                 planted={"spend": "target_proxy", "spend_share": "target_proxy"})
+    return Built(
+        out,
+        {"target": target},
+        clean=["income"],
+        planted={"spend": "target_proxy", "spend_share": "target_proxy"},
+    )
 
 
 # 9 lateness finer than a day -----------------------------------------------------------------
@@ -324,18 +338,21 @@ def _minutes(late: bool) -> Callable:
         out = frame.copy()
         n = len(out)
         label = pd.Timestamp("2024-01-01") + pd.to_timedelta(
-            rng.integers(0, 300 * 24 * 60, n), "min")
+            rng.integers(0, 300 * 24 * 60, n), "min"
+        )
         out["decided_at"] = label
         if late:
-            lag = np.where(rng.random(n) < 0.4, rng.integers(2 * 60, 9 * 60, n),
-                           -rng.integers(1, 120, n))
+            lag = np.where(
+                rng.random(n) < 0.4, rng.integers(2 * 60, 9 * 60, n), -rng.integers(1, 120, n)
+            )
         else:
-            lag = -rng.integers(0, 50, n)          # within minutes before, or the same time
+            lag = -rng.integers(0, 50, n)  # within minutes before, or the same time
         out["logged_at"] = label + pd.to_timedelta(lag, "min")
         args = {"target": target, "label_time": "decided_at"}
         if late:
             return Built(out, args, planted={"logged_at": "recorded_after_cutoff"})
         return Built(out, args, clean=["logged_at"])
+
     return build
 
 
@@ -344,14 +361,16 @@ def _cases() -> list[Case]:
     for ds in ("randhie", "penguins"):
         c.append(Case("known_at_plus_30d", 1, ds, "planted", _known("+30d", True)))
         c.append(Case("known_at_minus_30d", 1, ds, "clean", _known("-30d", False)))
-    c += [Case("honest_cell_code", 2, "digits", "clean", _honest_cluster_code),
-          Case("island_real", 2, "penguins", "clean", _real_island),
-          Case("ward_from_outcome", 2, "randhie", "planted", _category_leak),
-          Case("ward_from_outcome", 2, "modechoice", "planted", _category_leak),
-          Case("near_copy_flips_jitter", 3, "digits", "planted", _near_copy),
-          Case("near_copy_flips_jitter", 3, "modechoice", "planted", _near_copy),
-          Case("strong_honest_realgdp", 3, "macrodata", "clean", _strong_honest("realgdp")),
-          Case("strong_honest_value", 3, "grunfeld", "clean", _strong_honest("value"))]
+    c += [
+        Case("honest_cell_code", 2, "digits", "clean", _honest_cluster_code),
+        Case("island_real", 2, "penguins", "clean", _real_island),
+        Case("ward_from_outcome", 2, "randhie", "planted", _category_leak),
+        Case("ward_from_outcome", 2, "modechoice", "planted", _category_leak),
+        Case("near_copy_flips_jitter", 3, "digits", "planted", _near_copy),
+        Case("near_copy_flips_jitter", 3, "modechoice", "planted", _near_copy),
+        Case("strong_honest_realgdp", 3, "macrodata", "clean", _strong_honest("realgdp")),
+        Case("strong_honest_value", 3, "grunfeld", "clean", _strong_honest("value")),
+    ]
     for ds in ("randhie", "penguins_sex"):
         c.append(Case("filled_when_positive", 4, ds, "planted", _filled_when))
         c.append(Case("missing_at_random", 4, ds, "clean", _honest_missing))
@@ -360,18 +379,24 @@ def _cases() -> list[Case]:
         c.append(Case(f"impute_train_{col}", 5, ds, "clean", _impute(col, ds, False)))
         c.append(Case(f"cap_all_rows_{col}", 5, ds, "planted", _cap(col, ds, True)))
         c.append(Case(f"cap_train_{col}", 5, ds, "clean", _cap(col, ds, False)))
-    c += [Case("random_split_discrete", 6, "digits", "clean", _discrete_split(None, False)),
-          Case("group_split_discrete", 6, "modechoice", "clean",
-               _discrete_split("individual", False)),
-          Case("copies_across_split", 6, "digits", "planted", _discrete_split(None, True)),
-          Case("copies_across_split", 6, "modechoice", "planted",
-               _discrete_split("individual", True))]
+    c += [
+        Case("random_split_discrete", 6, "digits", "clean", _discrete_split(None, False)),
+        Case(
+            "group_split_discrete", 6, "modechoice", "clean", _discrete_split("individual", False)
+        ),
+        Case("copies_across_split", 6, "digits", "planted", _discrete_split(None, True)),
+        Case(
+            "copies_across_split", 6, "modechoice", "planted", _discrete_split("individual", True)
+        ),
+    ]
     for ds, shift in (("randhie", "lpi"), ("penguins", "body_mass_g")):
         c.append(Case("test_files_text_id", 7, ds, "clean", _test_files(None)))
         c.append(Case("sorted_by_date_text_id", 7, ds, "clean", _sorted_by_date))
         c.append(Case(f"test_files_shift_{shift}", 7, ds, "planted", _test_files(shift)))
-    c += [Case("figure_and_share", 8, "randhie", "planted", _figure_and_share),
-          Case("figure_and_share", 8, "modechoice", "planted", _figure_and_share)]
+    c += [
+        Case("figure_and_share", 8, "randhie", "planted", _figure_and_share),
+        Case("figure_and_share", 8, "modechoice", "planted", _figure_and_share),
+    ]
     for ds in ("randhie", "modechoice"):
         c.append(Case("logged_hours_late", 9, ds, "planted", _minutes(True)))
         c.append(Case("logged_minutes_before", 9, ds, "clean", _minutes(False)))

@@ -20,16 +20,27 @@ import pandas as pd
 
 import featureaudit as fa
 
-FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-         "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+FLAGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+]
 
 
 def _render(browser: str, url: str, tmp: Path) -> float:
     best = float("inf")
     for i in range(5):
         t = time.perf_counter()
-        subprocess.run([browser, *FLAGS, f"--user-data-dir={tmp / f'p{i}'}", "--dump-dom", url],
-                       capture_output=True, check=True, timeout=120)
+        subprocess.run(
+            [browser, *FLAGS, f"--user-data-dir={tmp / f'p{i}'}", "--dump-dom", url],
+            capture_output=True,
+            check=True,
+            timeout=120,
+        )
         best = min(best, time.perf_counter() - t)
     return best
 
@@ -41,9 +52,11 @@ def main() -> None:
     args = parser.parse_args()
     rng = np.random.default_rng(0)
     y = rng.integers(0, 2, args.rows)
-    data = {f"c{i:04d}": rng.normal(size=args.rows) + (0.3 * y if i % 10 == 0 else 0)
-            for i in range(args.cols)}
-    for i in range(5):     # planted proxies so the dossier has cards and charts
+    data = {
+        f"c{i:04d}": rng.normal(size=args.rows) + (0.3 * y if i % 10 == 0 else 0)
+        for i in range(args.cols)
+    }
+    for i in range(5):  # planted proxies so the dossier has cards and charts
         data[f"c{i:04d}"] = np.where(rng.random(args.rows) < 0.95, y, 1 - y) + 0.0
     frame = pd.DataFrame(data).assign(y=y)
     t = time.perf_counter()
@@ -53,8 +66,10 @@ def main() -> None:
         out = Path(tmp) / "report"
         result.write(out)
         size = (out / "dossier.html").stat().st_size
-        print(f"{args.cols} columns x {args.rows} rows: audit {audit_s:.1f} s; dossier "
-              f"{size / 1e6:.2f} MB, {result.columns['level'].ne('none').sum()} suspects")
+        print(
+            f"{args.cols} columns x {args.rows} rows: audit {audit_s:.1f} s; dossier "
+            f"{size / 1e6:.2f} MB, {result.columns['level'].ne('none').sum()} suspects"
+        )
         browser = shutil.which("chromium") or shutil.which("chromium-browser")
         if browser is None:
             print("no Chromium: render time not measured")
@@ -63,21 +78,33 @@ def main() -> None:
         blank.write_text("<!DOCTYPE html><title>x</title>")
         base = _render(browser, blank.as_uri(), Path(tmp))
         page = _render(browser, (out / "dossier.html").as_uri(), Path(tmp))
-        print(f"render (dump-dom): {page:.2f} s with browser start, {page - base:.2f} s beyond "
-              f"an empty page")
+        print(
+            f"render (dump-dom): {page:.2f} s with browser start, {page - base:.2f} s beyond "
+            f"an empty page"
+        )
         # the worst case: every one of 1,000 columns a suspect with binned evidence
         doc = dict(result.document)
         template = next(c for c in doc["columns"] if c["level"] != "none")
         levels = ["critical", "high", "medium", "low"]
-        doc["columns"] = [{**template, "column": f"suspect_{i:04d}", "level": levels[i % 4],
-                           "score": 0.9 - i * 0.0008} for i in range(args.cols)]
+        doc["columns"] = [
+            {
+                **template,
+                "column": f"suspect_{i:04d}",
+                "level": levels[i % 4],
+                "score": 0.9 - i * 0.0008,
+            }
+            for i in range(args.cols)
+        ]
         from featureaudit.findings import Findings
         from featureaudit.report import render_dossier
+
         worst = Path(tmp) / "worst.html"
         worst.write_text(render_dossier(Findings(doc)), encoding="utf-8")
         page = _render(browser, worst.as_uri(), Path(tmp))
-        print(f"{args.cols} suspects: dossier {worst.stat().st_size / 1e6:.2f} MB, render "
-              f"{page:.2f} s with browser start, {page - base:.2f} s beyond an empty page")
+        print(
+            f"{args.cols} suspects: dossier {worst.stat().st_size / 1e6:.2f} MB, render "
+            f"{page:.2f} s with browser start, {page - base:.2f} s beyond an empty page"
+        )
 
 
 if __name__ == "__main__":

@@ -1,7 +1,7 @@
 """Impact figures on planted cases, and the time impact adds to the audit.
 
-    .venv/bin/python benchmarks/impact.py                   # planted cases on bundled data
-    .venv/bin/python benchmarks/impact.py --rows 200000 --cols 50   # time ratio at size
+.venv/bin/python benchmarks/impact.py                   # planted cases on bundled data
+.venv/bin/python benchmarks/impact.py --rows 200000 --cols 50   # time ratio at size
 """
 
 from __future__ import annotations
@@ -22,27 +22,36 @@ def _cases() -> dict[str, tuple[pd.DataFrame, dict]]:
     base["y"] = data.target.to_numpy()
     rng = np.random.default_rng(0)
     split = np.where(rng.random(len(base)) < 0.3, "test", "train")
-    leak = base.assign(leak=np.where(rng.random(len(base)) < 0.05, 1 - base.y, base.y),
-                       split=split)
+    leak = base.assign(leak=np.where(rng.random(len(base)) < 0.05, 1 - base.y, base.y), split=split)
     dup = base.assign(split=split)
-    dup = pd.concat([dup, dup[dup.split == "train"].sample(120, random_state=1)
-                     .assign(split="test")], ignore_index=True)
+    dup = pd.concat(
+        [dup, dup[dup.split == "train"].sample(120, random_state=1).assign(split="test")],
+        ignore_index=True,
+    )
     scaled = base.assign(split=split)
     v = scaled["mean radius"]
     scaled["mean radius"] = (v - v.mean()) / v.std(ddof=0)
     kw = {"target": "y", "split_column": "split"}
-    return {"noisy target copy": (leak, kw), "planted duplicates": (dup, kw),
-            "scaler on all rows": (scaled, kw), "clean": (base.assign(split=split), kw)}
+    return {
+        "noisy target copy": (leak, kw),
+        "planted duplicates": (dup, kw),
+        "scaler on all rows": (scaled, kw),
+        "clean": (base.assign(split=split), kw),
+    }
 
 
 def _planted() -> None:
     for name, (frame, kw) in _cases().items():
         imp = fa.audit(frame, **kw).document["impact"]
-        print(f"{name}: as given {imp['as_given']:.4f}, without suspects "
-              f"{imp['without_suspects']:.4f} {imp['ci95']} ({imp['how']})")
+        print(
+            f"{name}: as given {imp['as_given']:.4f}, without suspects "
+            f"{imp['without_suspects']:.4f} {imp['ci95']} ({imp['how']})"
+        )
         for e in imp["by_finding"]:
-            print(f"    {e['column'] or e['kind']}: corrected {e['corrected']} change "
-                  f"{e['change']} {e['ci95']} — {e['how']}")
+            print(
+                f"    {e['column'] or e['kind']}: corrected {e['corrected']} change "
+                f"{e['change']} {e['ci95']} — {e['how']}"
+            )
 
 
 def _timed(rows: int, cols: int) -> None:
@@ -56,8 +65,10 @@ def _timed(rows: int, cols: int) -> None:
     doc = fa.audit(frame, target="y", split_column="split").document
     total = time.perf_counter() - start
     spent = doc["settings"]["probe_seconds"]["impact"]
-    print(f"{rows} x {cols}: audit {total:.1f} s, impact {spent:.1f} s = "
-          f"{spent / (total - spent):.0%} of the rest of the audit")
+    print(
+        f"{rows} x {cols}: audit {total:.1f} s, impact {spent:.1f} s = "
+        f"{spent / (total - spent):.0%} of the rest of the audit"
+    )
 
 
 if __name__ == "__main__":

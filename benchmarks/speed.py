@@ -21,8 +21,7 @@ import numpy as np
 import pandas as pd
 
 
-def make_table(path: Path, rows: int, cols: int, seed: int = 0, dates: int | None = None
-               ) -> None:
+def make_table(path: Path, rows: int, cols: int, seed: int = 0, dates: int | None = None) -> None:
     rng = np.random.default_rng(seed)
     data: dict[str, np.ndarray] = {}
     latent = rng.normal(size=rows)
@@ -30,13 +29,11 @@ def make_table(path: Path, rows: int, cols: int, seed: int = 0, dates: int | Non
     for i in range(cols - n_cat - n_date):
         data[f"num_{i:03d}"] = (0.2 * latent + rng.normal(size=rows)).astype(np.float64)
     for i in range(n_cat):
-        data[f"cat_{i:02d}"] = pd.Categorical(rng.choice([f"level_{k}" for k in range(12)],
-                                                         rows))
+        data[f"cat_{i:02d}"] = pd.Categorical(rng.choice([f"level_{k}" for k in range(12)], rows))
     start = np.datetime64("2023-01-01T00:00:00")
     label = start + (rng.uniform(0, 730, rows) * 86400).astype("timedelta64[s]")
     for i in range(n_date):
-        data[f"date_{i:02d}"] = label - (rng.uniform(1, 90, rows) * 86400).astype(
-            "timedelta64[s]")
+        data[f"date_{i:02d}"] = label - (rng.uniform(1, 90, rows) * 86400).astype("timedelta64[s]")
     data["decided_at"] = label
     data["split"] = np.where(rng.random(rows) < 0.8, "train", "test")
     data["y"] = (latent + rng.normal(size=rows) > 1).astype(np.int8)
@@ -75,19 +72,33 @@ def main() -> None:
         path = Path(tmp) / "bench.parquet"
         t = time.perf_counter()
         make_table(path, args.rows, args.cols, dates=args.dates)
-        print(f"table: {args.rows:,} rows x {args.cols} columns, "
-              f"{path.stat().st_size / 1e6:.0f} MB on disk (written in "
-              f"{time.perf_counter() - t:.1f} s)")
-        read = subprocess.run([sys.executable, "-c", CHILD_READ, str(path)], check=True,
-                              capture_output=True, text=True).stdout.split()
+        print(
+            f"table: {args.rows:,} rows x {args.cols} columns, "
+            f"{path.stat().st_size / 1e6:.0f} MB on disk (written in "
+            f"{time.perf_counter() - t:.1f} s)"
+        )
+        read = subprocess.run(
+            [sys.executable, "-c", CHILD_READ, str(path)],
+            check=True,
+            capture_output=True,
+            text=True,
+        ).stdout.split()
         read_wall, read_rss, frame_bytes = float(read[0]), int(read[1]), int(read[2])
-        out = subprocess.run([sys.executable, "-c", CHILD_AUDIT, str(path), args.probes],
-                             check=True, capture_output=True, text=True).stdout
+        out = subprocess.run(
+            [sys.executable, "-c", CHILD_AUDIT, str(path), args.probes],
+            check=True,
+            capture_output=True,
+            text=True,
+        ).stdout
         audit = json.loads(out.strip().splitlines()[-1])
-    print(f"one read (read_table + to_pandas): {read_wall:.2f} s, peak RSS "
-          f"{read_rss / 1e9:.2f} GB, frame {frame_bytes / 1e9:.2f} GB in memory")
-    print(f"audit: {audit['wall']:.2f} s = {audit['wall'] / read_wall:.1f} x one read; peak RSS "
-          f"{audit['rss'] / 1e9:.2f} GB = {audit['rss'] / frame_bytes:.1f} x the frame")
+    print(
+        f"one read (read_table + to_pandas): {read_wall:.2f} s, peak RSS "
+        f"{read_rss / 1e9:.2f} GB, frame {frame_bytes / 1e9:.2f} GB in memory"
+    )
+    print(
+        f"audit: {audit['wall']:.2f} s = {audit['wall'] / read_wall:.1f} x one read; peak RSS "
+        f"{audit['rss'] / 1e9:.2f} GB = {audit['rss'] / frame_bytes:.1f} x the frame"
+    )
     for name, seconds in audit["probes"].items():
         print(f"  {name:<13} {seconds:7.2f} s = {seconds / read_wall:5.2f} x one read")
 

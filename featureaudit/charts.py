@@ -11,8 +11,15 @@ from typing import Any
 
 from markupsafe import Markup
 
-__all__ = ["bin_bars", "lag_strip", "driver_bars", "auc_interval", "distance_dots",
-           "stat_pairs", "impact_bars"]
+__all__ = [
+    "bin_bars",
+    "lag_strip",
+    "driver_bars",
+    "auc_interval",
+    "distance_dots",
+    "stat_pairs",
+    "impact_bars",
+]
 
 INK, MUTED, GRID = "#1f2a44", "#8a93a6", "#d9dde5"
 W = 520
@@ -23,9 +30,11 @@ def _t(text: Any) -> str:
 
 
 def _svg(height: int, body: str, label: str) -> Markup:
-    return Markup(f'<svg class="chart" viewBox="0 0 {W} {height}" width="100%" role="img" '
-                  f'aria-label="{_t(label)}" xmlns="http://www.w3.org/2000/svg">'
-                  f'<title>{_t(label)}</title>{body}</svg>')
+    return Markup(
+        f'<svg class="chart" viewBox="0 0 {W} {height}" width="100%" role="img" '
+        f'aria-label="{_t(label)}" xmlns="http://www.w3.org/2000/svg">'
+        f"<title>{_t(label)}</title>{body}</svg>"
+    )
 
 
 def _num(x: float) -> str:
@@ -49,19 +58,27 @@ def bin_bars(bins: list[dict], prior: float | None, stat_name: str) -> Markup | 
     for i, (b, v) in enumerate(zip(bins, stats, strict=True)):
         x = left + i * step + 1
         bar = (v - low) / span * 110
-        body.append(f'<rect x="{x:.1f}" y="{base - bar:.1f}" width="{max(step - 2, 1):.1f}" '
-                    f'height="{bar:.1f}" fill="{INK}"><title>{_t(b["bin"])}: {_num(v)} '
-                    f'({b["rows"]} rows)</title></rect>')
+        body.append(
+            f'<rect x="{x:.1f}" y="{base - bar:.1f}" width="{max(step - 2, 1):.1f}" '
+            f'height="{bar:.1f}" fill="{INK}"><title>{_t(b["bin"])}: {_num(v)} '
+            f"({b['rows']} rows)</title></rect>"
+        )
         if len(bins) <= 12:
-            body.append(f'<text x="{x + step / 2:.1f}" y="{base + 14}" font-size="9" '
-                        f'text-anchor="middle" fill="{MUTED}">{_t(str(b["bin"])[:14])}</text>')
+            body.append(
+                f'<text x="{x + step / 2:.1f}" y="{base + 14}" font-size="9" '
+                f'text-anchor="middle" fill="{MUTED}">{_t(str(b["bin"])[:14])}</text>'
+            )
     if prior is not None:
         y = base - (prior - low) / span * 110
-        body.append(f'<line x1="{left}" y1="{y:.1f}" x2="{W - 10}" y2="{y:.1f}" stroke="{MUTED}" '
-                    f'stroke-dasharray="4 3"/><text x="2" y="{y + 3:.1f}" font-size="9" '
-                    f'fill="{MUTED}">{_num(prior)}</text>')
-    body.append(f'<text x="2" y="{h - 8}" font-size="10" fill="{MUTED}">{_t(stat_name)} by bin, '
-                f'left to right; dashed: overall</text>')
+        body.append(
+            f'<line x1="{left}" y1="{y:.1f}" x2="{W - 10}" y2="{y:.1f}" stroke="{MUTED}" '
+            f'stroke-dasharray="4 3"/><text x="2" y="{y + 3:.1f}" font-size="9" '
+            f'fill="{MUTED}">{_num(prior)}</text>'
+        )
+    body.append(
+        f'<text x="2" y="{h - 8}" font-size="10" fill="{MUTED}">{_t(stat_name)} by bin, '
+        f"left to right; dashed: overall</text>"
+    )
     return _svg(h, "".join(body), f"{stat_name} by bin")
 
 
@@ -78,22 +95,23 @@ def lag_strip(quantiles: dict[str, float], label: str) -> Markup | str:
     def x(v: float) -> float:
         return left + (v - lo) / span * (right - left)
 
-    body = [f'<line x1="{x(q["q00"]):.1f}" y1="40" x2="{x(q["q100"]):.1f}" y2="40" '
-            f'stroke="{MUTED}"/>',
-            f'<rect x="{x(q["q05"]):.1f}" y="33" width="{x(q["q95"]) - x(q["q05"]):.1f}" '
-            f'height="14" fill="{GRID}"/>',
-            f'<rect x="{x(q["q25"]):.1f}" y="30" width="{max(x(q["q75"]) - x(q["q25"]), 1):.1f}" '
-            f'height="20" fill="{INK}"/>',
-            f'<line x1="{x(q["q50"]):.1f}" y1="26" x2="{x(q["q50"]):.1f}" y2="54" stroke="#fff" '
-            f'stroke-width="2"/>',
-            f'<line x1="{x(0):.1f}" y1="15" x2="{x(0):.1f}" y2="65" stroke="{INK}" '
-            f'stroke-dasharray="3 2"/>',
-            f'<text x="{x(0) + 3:.1f}" y="14" font-size="10" fill="{INK}">0</text>',
-            f'<text x="{left}" y="80" font-size="10" fill="{MUTED}">{_num(q["q00"])} d</text>',
-            f'<text x="{right}" y="80" font-size="10" text-anchor="end" fill="{MUTED}">'
-            f'{_num(q["q100"])} d</text>',
-            f'<text x="{W / 2}" y="80" font-size="10" text-anchor="middle" fill="{MUTED}">'
-            f'{_t(label)}: median {_num(q["q50"])} d</text>']
+    body = [
+        f'<line x1="{x(q["q00"]):.1f}" y1="40" x2="{x(q["q100"]):.1f}" y2="40" stroke="{MUTED}"/>',
+        f'<rect x="{x(q["q05"]):.1f}" y="33" width="{x(q["q95"]) - x(q["q05"]):.1f}" '
+        f'height="14" fill="{GRID}"/>',
+        f'<rect x="{x(q["q25"]):.1f}" y="30" width="{max(x(q["q75"]) - x(q["q25"]), 1):.1f}" '
+        f'height="20" fill="{INK}"/>',
+        f'<line x1="{x(q["q50"]):.1f}" y1="26" x2="{x(q["q50"]):.1f}" y2="54" stroke="#fff" '
+        f'stroke-width="2"/>',
+        f'<line x1="{x(0):.1f}" y1="15" x2="{x(0):.1f}" y2="65" stroke="{INK}" '
+        f'stroke-dasharray="3 2"/>',
+        f'<text x="{x(0) + 3:.1f}" y="14" font-size="10" fill="{INK}">0</text>',
+        f'<text x="{left}" y="80" font-size="10" fill="{MUTED}">{_num(q["q00"])} d</text>',
+        f'<text x="{right}" y="80" font-size="10" text-anchor="end" fill="{MUTED}">'
+        f"{_num(q['q100'])} d</text>",
+        f'<text x="{W / 2}" y="80" font-size="10" text-anchor="middle" fill="{MUTED}">'
+        f"{_t(label)}: median {_num(q['q50'])} d</text>",
+    ]
     return _svg(88, "".join(body), label)
 
 
@@ -107,11 +125,13 @@ def driver_bars(drivers: list[dict]) -> Markup | str:
     for i, d in enumerate(rows):
         y = 6 + i * 22
         width = max(1.0, float(d["gain_share"]) * (W - 230))
-        body.append(f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">'
-                    f'{_t(str(d["column"])[:28])}</text>'
-                    f'<rect x="200" y="{y + 2}" width="{width:.1f}" height="13" fill="{INK}"/>'
-                    f'<text x="{205 + width:.1f}" y="{y + 12}" font-size="10" fill="{MUTED}">'
-                    f'{float(d["gain_share"]):.0%}</text>')
+        body.append(
+            f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">'
+            f"{_t(str(d['column'])[:28])}</text>"
+            f'<rect x="200" y="{y + 2}" width="{width:.1f}" height="13" fill="{INK}"/>'
+            f'<text x="{205 + width:.1f}" y="{y + 12}" font-size="10" fill="{MUTED}">'
+            f"{float(d['gain_share']):.0%}</text>"
+        )
     return _svg(h, "".join(body), "share of the model's gain by column")
 
 
@@ -126,19 +146,26 @@ def auc_interval(auc: float, ci: list[float] | None) -> Markup | str:
 
     body = [f'<line x1="{left}" y1="30" x2="{right}" y2="30" stroke="{GRID}" stroke-width="6"/>']
     for tick in (0.5, 0.6, 0.7, 0.8, 0.9, 1.0):
-        body.append(f'<text x="{x(tick):.1f}" y="52" font-size="10" text-anchor="middle" '
-                    f'fill="{MUTED}">{tick:.1f}</text>')
+        body.append(
+            f'<text x="{x(tick):.1f}" y="52" font-size="10" text-anchor="middle" '
+            f'fill="{MUTED}">{tick:.1f}</text>'
+        )
     if ci:
-        body.append(f'<line x1="{x(ci[0]):.1f}" y1="30" x2="{x(ci[1]):.1f}" y2="30" '
-                    f'stroke="{INK}" stroke-width="6"/>')
-    body.append(f'<circle cx="{x(auc):.1f}" cy="30" r="6" fill="#fff" stroke="{INK}" '
-                f'stroke-width="3"/><text x="{x(auc):.1f}" y="16" font-size="11" '
-                f'text-anchor="middle" fill="{INK}">AUC {_num(auc)}</text>')
+        body.append(
+            f'<line x1="{x(ci[0]):.1f}" y1="30" x2="{x(ci[1]):.1f}" y2="30" '
+            f'stroke="{INK}" stroke-width="6"/>'
+        )
+    body.append(
+        f'<circle cx="{x(auc):.1f}" cy="30" r="6" fill="#fff" stroke="{INK}" '
+        f'stroke-width="3"/><text x="{x(auc):.1f}" y="16" font-size="11" '
+        f'text-anchor="middle" fill="{INK}">AUC {_num(auc)}</text>'
+    )
     return _svg(60, "".join(body), f"AUC {auc:.3f} with 95 % interval")
 
 
-def distance_dots(distances: list[float], threshold: float | None, median: float | None
-                  ) -> Markup | str:
+def distance_dots(
+    distances: list[float], threshold: float | None, median: float | None
+) -> Markup | str:
     """Near-twin distances against the copy threshold and the typical neighbour distance."""
     if not distances or not threshold:
         return ""
@@ -149,14 +176,20 @@ def distance_dots(distances: list[float], threshold: float | None, median: float
         return left + v / top * (right - left)
 
     body = [f'<line x1="{left}" y1="30" x2="{right}" y2="30" stroke="{GRID}"/>']
-    body += [f'<circle cx="{x(d):.1f}" cy="30" r="3" fill="{INK}" fill-opacity="0.6"/>'
-             for d in distances[:200]]
-    body.append(f'<line x1="{x(threshold):.1f}" y1="14" x2="{x(threshold):.1f}" y2="46" '
-                f'stroke="{INK}" stroke-dasharray="3 2"/><text x="{x(threshold) + 3:.1f}" y="14" '
-                f'font-size="10" fill="{INK}">copy threshold</text>')
+    body += [
+        f'<circle cx="{x(d):.1f}" cy="30" r="3" fill="{INK}" fill-opacity="0.6"/>'
+        for d in distances[:200]
+    ]
+    body.append(
+        f'<line x1="{x(threshold):.1f}" y1="14" x2="{x(threshold):.1f}" y2="46" '
+        f'stroke="{INK}" stroke-dasharray="3 2"/><text x="{x(threshold) + 3:.1f}" y="14" '
+        f'font-size="10" fill="{INK}">copy threshold</text>'
+    )
     if median:
-        body.append(f'<text x="{right}" y="58" font-size="10" text-anchor="end" '
-                    f'fill="{MUTED}">typical neighbour distance {_num(median)}</text>')
+        body.append(
+            f'<text x="{right}" y="58" font-size="10" text-anchor="end" '
+            f'fill="{MUTED}">typical neighbour distance {_num(median)}</text>'
+        )
     return _svg(64, "".join(body), "near-twin distances")
 
 
@@ -164,14 +197,24 @@ def stat_pairs(all_rows: dict | None, training_rows: dict | None) -> Markup | st
     """All-rows against training-row statistics, side by side."""
     if not isinstance(all_rows, dict) or not isinstance(training_rows, dict):
         return ""
-    keys = [k for k in all_rows if k in training_rows and isinstance(all_rows[k], (int, float))
-            and not isinstance(all_rows[k], bool)]
+    keys = [
+        k
+        for k in all_rows
+        if k in training_rows
+        and isinstance(all_rows[k], (int, float))
+        and not isinstance(all_rows[k], bool)
+    ]
     if not keys:
         return ""
-    cells = "".join(f"<tr><th>{_t(k)}</th><td>{float(all_rows[k]):.6g}</td>"
-                    f"<td>{float(training_rows[k]):.6g}</td></tr>" for k in keys)
-    return Markup('<table class="pairs"><thead><tr><th></th><th>all rows</th>'
-                  f'<th>training rows</th></tr></thead><tbody>{cells}</tbody></table>')
+    cells = "".join(
+        f"<tr><th>{_t(k)}</th><td>{float(all_rows[k]):.6g}</td>"
+        f"<td>{float(training_rows[k]):.6g}</td></tr>"
+        for k in keys
+    )
+    return Markup(
+        '<table class="pairs"><thead><tr><th></th><th>all rows</th>'
+        f"<th>training rows</th></tr></thead><tbody>{cells}</tbody></table>"
+    )
 
 
 def impact_bars(block: dict | None) -> Markup | str:
@@ -191,18 +234,24 @@ def impact_bars(block: dict | None) -> Markup | str:
 
     h = 22 * len(rows) + 30
     given = x(float(block["as_given"]))
-    body = [f'<line x1="{given:.1f}" y1="2" x2="{given:.1f}" y2="{h - 20}" stroke="{MUTED}" '
-            f'stroke-dasharray="4 3"/>']
+    body = [
+        f'<line x1="{given:.1f}" y1="2" x2="{given:.1f}" y2="{h - 20}" stroke="{MUTED}" '
+        f'stroke-dasharray="4 3"/>'
+    ]
     for i, e in enumerate(rows):
         y = 6 + i * 22
         name = e.get("column") or str(e.get("kind", "")).replace("_", " ")
         width = max(1.0, x(e["corrected"]) - left)
-        body.append(f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">{_t(str(name)[:30])}'
-                    f'</text><rect x="{left}" y="{y + 2}" width="{width:.1f}" '
-                    f'height="13" fill="{INK}"><title>{_t(e.get("how"))}</title></rect>'
-                    f'<text x="{x(e["corrected"]) + 4:.1f}" y="{y + 12}" font-size="10" '
-                    f'fill="{MUTED}">{_num(e["corrected"])}</text>')
-    body.append(f'<text x="{left}" y="{h - 6}" font-size="10" fill="{MUTED}">corrected '
-                f'{_t(block.get("metric"))} per finding; dashed: as given '
-                f'{_num(block["as_given"])}</text>')
+        body.append(
+            f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">{_t(str(name)[:30])}'
+            f'</text><rect x="{left}" y="{y + 2}" width="{width:.1f}" '
+            f'height="13" fill="{INK}"><title>{_t(e.get("how"))}</title></rect>'
+            f'<text x="{x(e["corrected"]) + 4:.1f}" y="{y + 12}" font-size="10" '
+            f'fill="{MUTED}">{_num(e["corrected"])}</text>'
+        )
+    body.append(
+        f'<text x="{left}" y="{h - 6}" font-size="10" fill="{MUTED}">corrected '
+        f"{_t(block.get('metric'))} per finding; dashed: as given "
+        f"{_num(block['as_given'])}</text>"
+    )
     return _svg(h, "".join(body), "corrected validation score per finding")

@@ -18,8 +18,17 @@ from featureaudit.errors import DictionaryError, DurationError, InputFileError
 
 __all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
 
-ROLES = ("feature", "target", "id", "entity", "label_time", "cutoff_time", "split", "weight",
-         "ignore")
+ROLES = (
+    "feature",
+    "target",
+    "id",
+    "entity",
+    "label_time",
+    "cutoff_time",
+    "split",
+    "weight",
+    "ignore",
+)
 STANDARD = ("column", "role", "known_at", "description")
 
 
@@ -57,13 +66,16 @@ def read_dictionary(path: str | Path) -> DataDictionary:
     """Read and validate a dictionary CSV; raise :class:`DictionaryError` naming file and line."""
     p = Path(path)
     if not p.is_file():
-        raise InputFileError(f"dictionary {str(p)!r} does not exist; pass --dictionary with a CSV "
-                             "file (draft one with `featureaudit dictionary TABLE`).")
+        raise InputFileError(
+            f"dictionary {str(p)!r} does not exist; pass --dictionary with a CSV "
+            "file (draft one with `featureaudit dictionary TABLE`)."
+        )
     try:
         text = p.read_text(encoding="utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputFileError(f"cannot read dictionary {str(p)!r}: {exc}; save it as UTF-8 CSV.") \
-            from exc
+        raise InputFileError(
+            f"cannot read dictionary {str(p)!r}: {exc}; save it as UTF-8 CSV."
+        ) from exc
     return parse_dictionary(text, source=str(p))
 
 
@@ -72,45 +84,68 @@ def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary
     reader = csv.reader(io.StringIO(text))
     rows = list(reader)
     if not rows:
-        raise DictionaryError(f"dictionary {source!r} is empty; it needs a header row with at "
-                              "least a 'column' header.")
+        raise DictionaryError(
+            f"dictionary {source!r} is empty; it needs a header row with at "
+            "least a 'column' header."
+        )
     header = [h.strip() for h in rows[0]]
     lowered = [h.lower() for h in header]
     if "column" not in lowered:
-        raise DictionaryError(f"dictionary {source!r} line 1 has headers {header}; a 'column' "
-                              "header is required (also allowed: role, known_at, description).")
+        raise DictionaryError(
+            f"dictionary {source!r} line 1 has headers {header}; a 'column' "
+            "header is required (also allowed: role, known_at, description)."
+        )
     index = {h: lowered.index(h) for h in STANDARD if h in lowered}
     extra_headers = tuple(h for h, low in zip(header, lowered, strict=True) if low not in STANDARD)
     entries: dict[str, DictionaryEntry] = {}
     for line_no, row in enumerate(rows[1:], start=2):
         if not any(cell.strip() for cell in row):
             continue
+
         def cell(name: str, row: list[str] = row) -> str:
             i = index.get(name)
             return row[i].strip() if i is not None and i < len(row) else ""
+
         column = cell("column")
         if not column:
-            raise DictionaryError(f"dictionary {source!r} line {line_no}: the 'column' cell is "
-                                  "empty; name a column of the table or delete the line.")
+            raise DictionaryError(
+                f"dictionary {source!r} line {line_no}: the 'column' cell is "
+                "empty; name a column of the table or delete the line."
+            )
         role = (cell("role") or "feature").lower()
         if role not in ROLES:
-            raise DictionaryError(f"dictionary {source!r} line {line_no}: role {cell('role')!r} "
-                                  f"of column {column!r} is not one of {', '.join(ROLES)}.")
+            raise DictionaryError(
+                f"dictionary {source!r} line {line_no}: role {cell('role')!r} "
+                f"of column {column!r} is not one of {', '.join(ROLES)}."
+            )
         if column in entries:
-            raise DictionaryError(f"dictionary {source!r} line {line_no}: column {column!r} is "
-                                  f"already described on line {entries[column].line}; keep one.")
+            raise DictionaryError(
+                f"dictionary {source!r} line {line_no}: column {column!r} is "
+                f"already described on line {entries[column].line}; keep one."
+            )
         known_at = cell("known_at")
         offset, known_col = _parse_known_at(known_at, source=source, line=line_no, column=column)
-        extra = {h: (row[i].strip() if i < len(row) else "")
-                 for i, h in enumerate(header) if h.lower() not in STANDARD}
+        extra = {
+            h: (row[i].strip() if i < len(row) else "")
+            for i, h in enumerate(header)
+            if h.lower() not in STANDARD
+        }
         entries[column] = DictionaryEntry(
-            column=column, role=role, known_at=known_at, known_at_column=known_col,
-            known_at_offset=offset, description=cell("description"), line=line_no, extra=extra)
+            column=column,
+            role=role,
+            known_at=known_at,
+            known_at_column=known_col,
+            known_at_offset=offset,
+            description=cell("description"),
+            line=line_no,
+            extra=extra,
+        )
     return DataDictionary(entries=entries, source=source, extra_headers=extra_headers)
 
 
-def _parse_known_at(value: str, *, source: str, line: int, column: str
-                    ) -> tuple[pd.Timedelta | None, str | None]:
+def _parse_known_at(
+    value: str, *, source: str, line: int, column: str
+) -> tuple[pd.Timedelta | None, str | None]:
     """A duration if it parses as one; otherwise a column name (checked against the table later)."""
     if not value:
         return None, None
@@ -119,9 +154,11 @@ def _parse_known_at(value: str, *, source: str, line: int, column: str
         return parse_duration(value, what="known_at"), None
     except DurationError as exc:
         if looks_like_duration and (value[0] in "+-" or value[0].isdigit()):
-            raise DictionaryError(f"dictionary {source!r} line {line}: known_at {value!r} of "
-                                  f"column {column!r} is neither a duration nor a column name; "
-                                  f"{str(exc).split('; ', 1)[-1]}") from exc
+            raise DictionaryError(
+                f"dictionary {source!r} line {line}: known_at {value!r} of "
+                f"column {column!r} is neither a duration nor a column name; "
+                f"{str(exc).split('; ', 1)[-1]}"
+            ) from exc
     return None, value
 
 
@@ -145,13 +182,17 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
     if pd.api.types.is_datetime64_any_dtype(s.dtype):
         return "feature"
     is_integer_or_text = pd.api.types.is_integer_dtype(s.dtype) or not (
-        pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype))
+        pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype)
+    )
     if not is_integer_or_text:
-        return "feature"          # floats, booleans: never identifiers
+        return "feature"  # floats, booleans: never identifiers
     n = int(s.notna().sum())
     unique_share = s.nunique(dropna=True) / n if n else 0.0
-    id_name = (low == "id" or low.endswith(("_id", "_key", "_no", "_number"))
-               or name.endswith(("Id", "ID")))
+    id_name = (
+        low == "id"
+        or low.endswith(("_id", "_key", "_no", "_number"))
+        or name.endswith(("Id", "ID"))
+    )
     if is_integer_or_text and id_name:
         return "id" if unique_share > 0.95 else "entity"
     if is_integer_or_text and unique_share > 0.999 and n > 50:

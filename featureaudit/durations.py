@@ -11,11 +11,27 @@ from featureaudit.errors import DurationError
 __all__ = ["parse_duration"]
 
 _UNIT_SECONDS = {
-    "w": 7 * 86400, "week": 7 * 86400, "weeks": 7 * 86400,
-    "d": 86400, "day": 86400, "days": 86400,
-    "h": 3600, "hr": 3600, "hrs": 3600, "hour": 3600, "hours": 3600,
-    "m": 60, "min": 60, "mins": 60, "minute": 60, "minutes": 60,
-    "s": 1, "sec": 1, "secs": 1, "second": 1, "seconds": 1,
+    "w": 7 * 86400,
+    "week": 7 * 86400,
+    "weeks": 7 * 86400,
+    "d": 86400,
+    "day": 86400,
+    "days": 86400,
+    "h": 3600,
+    "hr": 3600,
+    "hrs": 3600,
+    "hour": 3600,
+    "hours": 3600,
+    "m": 60,
+    "min": 60,
+    "mins": 60,
+    "minute": 60,
+    "minutes": 60,
+    "s": 1,
+    "sec": 1,
+    "secs": 1,
+    "second": 1,
+    "seconds": 1,
 }
 _PLAIN = re.compile(r"^([+-]?)\s*(\d+(?:\.\d+)?)\s*([a-z]+)$")
 _ISO = re.compile(

@@ -16,9 +16,16 @@ from featureaudit.levels import LEVEL_NAMES, Level
 
 __all__ = ["KINDS", "Evidence", "ColumnVerdict", "Skip", "clean_json"]
 
-KINDS = ("target_proxy", "recorded_after_cutoff", "fit_on_all_rows", "row_order_tells_target",
-         "duplicate_rows_across_split", "shared_entities_across_split",
-         "time_overlap_across_split", "split_shift")
+KINDS = (
+    "target_proxy",
+    "recorded_after_cutoff",
+    "fit_on_all_rows",
+    "row_order_tells_target",
+    "duplicate_rows_across_split",
+    "shared_entities_across_split",
+    "time_overlap_across_split",
+    "split_shift",
+)
 
 
 def clean_json(value: Any) -> Any:
@@ -72,10 +79,18 @@ class Evidence:
         return Level.parse(self.level)
 
     def to_dict(self) -> dict[str, Any]:
-        return clean_json({"probe": self.probe, "kind": self.kind, "statistic": self.statistic,
-                           "value": self.value, "threshold": self.threshold, "level": self.level,
-                           "summary": self.summary,
-                           "detail": {**self.detail, "severity": round(float(self.severity), 4)}})
+        return clean_json(
+            {
+                "probe": self.probe,
+                "kind": self.kind,
+                "statistic": self.statistic,
+                "value": self.value,
+                "threshold": self.threshold,
+                "level": self.level,
+                "summary": self.summary,
+                "detail": {**self.detail, "severity": round(float(self.severity), 4)},
+            }
+        )
 
 
 @dataclass(frozen=True)
@@ -92,10 +107,16 @@ class ColumnVerdict:
     description: str = ""
 
     def to_dict(self) -> dict[str, Any]:
-        return {"column": self.column, "score": round(float(self.score), 4),
-                "level": self.level, "kinds": list(self.kinds), "summary": self.summary,
-                "role": self.role, "description": self.description,
-                "evidence": [e.to_dict() for e in self.evidence]}   # each already clean
+        return {
+            "column": self.column,
+            "score": round(float(self.score), 4),
+            "level": self.level,
+            "kinds": list(self.kinds),
+            "summary": self.summary,
+            "role": self.role,
+            "description": self.description,
+            "evidence": [e.to_dict() for e in self.evidence],
+        }  # each already clean
 
 
 @dataclass(frozen=True)

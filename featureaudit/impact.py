@@ -23,10 +23,10 @@ from featureaudit.threads import limited_blas, model_threads
 
 __all__ = ["measure_impact", "column_change", "largest_lift"]
 
-MAX_COLUMNS = 8       # column findings corrected one by one, strongest first
-BOOTSTRAP = 100       # resamples of the scored rows for each interval
-MIN_SCORED = 20       # fewer scored rows than this: not measured
-NEGLIGIBLE = 0.01     # a change below this is negligible (Roth 2026's bound for refits)
+MAX_COLUMNS = 8  # column findings corrected one by one, strongest first
+BOOTSTRAP = 100  # resamples of the scored rows for each interval
+MIN_SCORED = 20  # fewer scored rows than this: not measured
+NEGLIGIBLE = 0.01  # a change below this is negligible (Roth 2026's bound for refits)
 
 
 @dataclass
@@ -34,19 +34,32 @@ class _Scored:
     """Predictions on the scored rows (positions into the sample) and the rows kept."""
 
     pred: np.ndarray
-    keep: np.ndarray        # bool over the scored rows
+    keep: np.ndarray  # bool over the scored rows
 
 
 def _params(seed: int, rows: int, n_jobs: int) -> dict:
-    return dict(n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
-                subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                n_jobs=model_threads(n_jobs, rows), verbose=-1, deterministic=True,
-                force_row_wise=True, max_bin=31)
+    return dict(
+        n_estimators=40,
+        learning_rate=0.15,
+        num_leaves=15,
+        min_child_samples=10,
+        subsample=0.8,
+        subsample_freq=1,
+        colsample_bytree=0.8,
+        random_state=seed,
+        n_jobs=model_threads(n_jobs, rows),
+        verbose=-1,
+        deterministic=True,
+        force_row_wise=True,
+        max_bin=31,
+    )
 
 
-def _fit_predict(x_tr, y_tr, x_te, task: str, n_classes: int, params: dict,
-                 weight=None) -> np.ndarray:  # noqa: ANN001
+def _fit_predict(
+    x_tr, y_tr, x_te, task: str, n_classes: int, params: dict, weight=None
+) -> np.ndarray:  # noqa: ANN001
     import lightgbm as lgb
+
     if task == "numeric":
         model = lgb.LGBMRegressor(**params).fit(x_tr, y_tr, sample_weight=weight)
         return np.asarray(model.predict(x_te))
@@ -58,6 +71,7 @@ def _fit_predict(x_tr, y_tr, x_te, task: str, n_classes: int, params: dict,
 
 def _metric(task: str, n_classes: int, y: np.ndarray, p: np.ndarray) -> float:
     from sklearn.metrics import r2_score, roc_auc_score
+
     if task == "numeric":
         return float(r2_score(y, p))
     present = np.unique(y)
@@ -76,40 +90,60 @@ class _Bench:
 
     def __init__(self, table: AuditTable, settings: Settings, columns: list[str]) -> None:
         from featureaudit.probes.separability import _matrix
+
         self.task = table.task or "binary"
         self.k = max(len(table.classes), 2)
         self.seed = settings.seed
         rng = np.random.default_rng(settings.seed + 12)
         lab = table.labelled
-        assert table.y is not None   # impact is measured only with a target
+        assert table.y is not None  # impact is measured only with a target
         held = table.heldout if table.heldout is not None else np.zeros(table.n_rows, bool)
         strata = held.astype(np.int64) * (self.k + 1) + (
-            np.zeros(table.n_rows, np.int64) if self.task == "numeric"
-            else np.maximum(table.y, 0).astype(np.int64))
+            np.zeros(table.n_rows, np.int64)
+            if self.task == "numeric"
+            else np.maximum(table.y, 0).astype(np.int64)
+        )
         self.rows = _stratified(np.flatnonzero(lab), strata, settings.reference_rows, rng)
         self.x = _matrix(table, columns, self.rows)
         self.columns = columns
         self.y = table.y[self.rows] if self.task == "numeric" else table.y[self.rows].astype(int)
         h = held[self.rows]
         self.heldout_mode = h.sum() >= MIN_SCORED and (
-            self.task == "numeric" or np.unique(self.y[h]).size >= 2)
+            self.task == "numeric" or np.unique(self.y[h]).size >= 2
+        )
         self.fit_rows = np.flatnonzero(~h) if self.heldout_mode else np.flatnonzero(~h)
         self.scored = np.flatnonzero(h) if self.heldout_mode else self.fit_rows
-        self.how = ("trained on the training rows, scored on the user's held-out rows"
-                    if self.heldout_mode else "out of fold (3 folds) on the training rows")
+        self.how = (
+            "trained on the training rows, scored on the user's held-out rows"
+            if self.heldout_mode
+            else "out of fold (3 folds) on the training rows"
+        )
         self.params = _params(settings.seed, len(self.rows), settings.n_jobs)
         self.boot = np.random.default_rng(settings.seed + 13).integers(
-            0, len(self.scored), (BOOTSTRAP, len(self.scored)))
+            0, len(self.scored), (BOOTSTRAP, len(self.scored))
+        )
 
-    def score(self, x: np.ndarray | None = None, groups: np.ndarray | None = None,
-              weight: np.ndarray | None = None) -> np.ndarray:
+    def score(
+        self,
+        x: np.ndarray | None = None,
+        groups: np.ndarray | None = None,
+        weight: np.ndarray | None = None,
+    ) -> np.ndarray:
         """Predictions on the scored rows: held-out, or out of fold (optionally grouped)."""
         x = self.x if x is None else x
         if self.heldout_mode and groups is None:
             w = None if weight is None else weight[self.fit_rows]
-            return _fit_predict(x[self.fit_rows], self.y[self.fit_rows], x[self.scored],
-                                self.task, self.k, self.params, w)
+            return _fit_predict(
+                x[self.fit_rows],
+                self.y[self.fit_rows],
+                x[self.scored],
+                self.task,
+                self.k,
+                self.params,
+                w,
+            )
         from sklearn.model_selection import GroupKFold, KFold
+
         idx = self.scored
         if groups is not None:
             folds = GroupKFold(3).split(idx, groups=groups[idx])
@@ -117,8 +151,9 @@ class _Bench:
             folds = KFold(3, shuffle=True, random_state=self.seed).split(idx)
         out = np.zeros(len(idx)) if self.task == "numeric" else np.zeros((len(idx), self.k))
         for tr, te in folds:
-            out[te] = _fit_predict(x[idx[tr]], self.y[idx[tr]], x[idx[te]], self.task, self.k,
-                                   self.params)
+            out[te] = _fit_predict(
+                x[idx[tr]], self.y[idx[tr]], x[idx[te]], self.task, self.k, self.params
+            )
         return out
 
     def value(self, s: _Scored) -> float:
@@ -142,7 +177,6 @@ class _Bench:
         if arr.size == 0:
             return [float("nan"), float("nan")]
         return [float(np.quantile(arr, 0.025)), float(np.quantile(arr, 0.975))]
-
 
     def _binary_interval(self, y: np.ndarray, s: _Scored, base: _Scored | None) -> list[float]:
         """The same bootstrap for a binary AUC, in O(rows) per resample from resample counts
@@ -201,9 +235,12 @@ def _r(ci: list[float]) -> list[float | None]:
     return [None if not np.isfinite(v) else round(v, 4) for v in ci]
 
 
-def measure_impact(table: AuditTable, settings: Settings, columns: list[dict[str, Any]],
-                   dataset_findings: list[dict[str, Any]]
-                   ) -> tuple[dict[str, Any] | None, dict[str, dict]]:
+def measure_impact(
+    table: AuditTable,
+    settings: Settings,
+    columns: list[dict[str, Any]],
+    dataset_findings: list[dict[str, Any]],
+) -> tuple[dict[str, Any] | None, dict[str, dict]]:
     """The top-level ``impact`` block and ``{column: impact}`` for the corrected columns."""
     if table.target is None or table.y is None or table.target_problem:
         return None, {}
@@ -222,8 +259,11 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
     base = _Scored(bench.score(), keep_all)
     as_given = bench.value(base)
     metric = {"binary": "auc", "multiclass": "macro_auc", "numeric": "r2"}[bench.task]
-    suspects = [c["column"] for c in columns if Level.parse(c["level"]) >= Level.HIGH
-                and c["column"] in feats]
+    suspects = [
+        c["column"]
+        for c in columns
+        if Level.parse(c["level"]) >= Level.HIGH and c["column"] in feats
+    ]
     if suspects:
         x = np.delete(bench.x, [feats.index(c) for c in suspects], axis=1)
         without = _Scored(bench.score(x) if x.shape[1] else _constant(bench), keep_all)
@@ -231,32 +271,49 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         without = base
     by: list[dict] = []
     per_column: dict[str, dict] = {}
-    picks = [c for c in columns if Level.parse(c["level"]) >= Level.MEDIUM
-             and c["column"] in feats][:MAX_COLUMNS]
+    picks = [
+        c for c in columns if Level.parse(c["level"]) >= Level.MEDIUM and c["column"] in feats
+    ][:MAX_COLUMNS]
     for c in picks:
         how = "refit" if c.get("remedy") == "refit_on_training_rows" else "remove"
         if how == "remove" and len(feats) == 1:
             continue
         s, entry = column_change(bench, base, c["column"], how)
         per_column[c["column"]] = entry
-        by.append(_entry(c["column"], c["kinds"][0] if c["kinds"] else "target_proxy",
-                         as_given, bench.value(s), entry["how"], entry))
+        by.append(
+            _entry(
+                c["column"],
+                c["kinds"][0] if c["kinds"] else "target_proxy",
+                as_given,
+                bench.value(s),
+                entry["how"],
+                entry,
+            )
+        )
     for f in dataset_findings:
         if Level.parse(f["level"]) < Level.LOW:
             continue
         found = _dataset_correction(table, bench, base, f)
         if found is not None:
             by.append(_entry(None, f["kind"], as_given, *found))
-    by.sort(key=lambda e: -(e["as_given"] - e["corrected"]) if e["corrected"] is not None
-            else 1.0)   # largest effect first; findings not corrected last
-    block = {"metric": metric, "as_given": round(as_given, 4),
-             "as_given_ci95": _r(bench.interval(base)),
-             "without_suspects": round(bench.value(without), 4),
-             "ci95": _r(bench.interval(without)), "suspects_removed": suspects,
-             "rows": int(len(bench.rows)), "scored_rows": int(len(bench.scored)),
-             "how": bench.how, "interval": f"95 % seeded bootstrap ({BOOTSTRAP} resamples) "
-             "over the scored rows; a change's interval is paired", "by_finding": by,
-             "negligible_below": NEGLIGIBLE}
+    by.sort(
+        key=lambda e: -(e["as_given"] - e["corrected"]) if e["corrected"] is not None else 1.0
+    )  # largest effect first; findings not corrected last
+    block = {
+        "metric": metric,
+        "as_given": round(as_given, 4),
+        "as_given_ci95": _r(bench.interval(base)),
+        "without_suspects": round(bench.value(without), 4),
+        "ci95": _r(bench.interval(without)),
+        "suspects_removed": suspects,
+        "rows": int(len(bench.rows)),
+        "scored_rows": int(len(bench.scored)),
+        "how": bench.how,
+        "interval": f"95 % seeded bootstrap ({BOOTSTRAP} resamples) "
+        "over the scored rows; a change's interval is paired",
+        "by_finding": by,
+        "negligible_below": NEGLIGIBLE,
+    }
     return block, per_column
 
 
@@ -269,38 +326,53 @@ def _constant(bench: _Bench) -> np.ndarray:
 
 
 def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN001
-    return {"column": column, "kind": kind, "as_given": round(as_given, 4),
-            "corrected": None if corrected is None else round(corrected, 4), "how": how,
-            "change": change["change"], "ci95": change["ci95"]}
+    return {
+        "column": column,
+        "kind": kind,
+        "as_given": round(as_given, 4),
+        "corrected": None if corrected is None else round(corrected, 4),
+        "how": how,
+        "change": change["change"],
+        "ci95": change["ci95"],
+    }
 
 
 def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict):  # noqa: ANN202
     kind = f["kind"]
     if kind == "duplicate_rows_across_split":
         from featureaudit.probes.twins.hashing import member, row_hashes
+
         h = row_hashes(table.frame.iloc[bench.rows], bench.columns)
         if bench.heldout_mode:
             twin = member(h[bench.scored], h[bench.fit_rows])
         else:
             import pandas as pd
+
             twin = pd.Series(h[bench.scored]).duplicated(keep=False).to_numpy()
         keep = ~twin
         if keep.sum() < MIN_SCORED:
             return None
         s = _Scored(base.pred, keep)
-        how = "held-out rows with a training twin removed" if bench.heldout_mode else \
-            "scored rows with an exact copy in the sample removed"
+        how = (
+            "held-out rows with a training twin removed"
+            if bench.heldout_mode
+            else "scored rows with an exact copy in the sample removed"
+        )
     elif kind == "shared_entities_across_split" and table.entity is not None:
         import pandas as pd
+
         codes, _ = pd.factorize(table.frame[table.entity].iloc[bench.rows])
         groups = np.where(codes < 0, -np.arange(1, len(codes) + 1), codes)
         saved = bench.scored
-        bench.scored = np.arange(len(bench.rows))        # every labelled sample row, grouped
+        bench.scored = np.arange(len(bench.rows))  # every labelled sample row, grouped
         grouped = _Scored(bench.score(groups=groups), np.ones(len(bench.rows), bool))
         corrected = bench.value(grouped)
         bench.scored = saved
-        return corrected, "folds grouped by the entity (all labelled sample rows)", {
-            "change": round(bench.value(base) - corrected, 4), "ci95": [None, None]}
+        return (
+            corrected,
+            "folds grouped by the entity (all labelled sample rows)",
+            {"change": round(bench.value(base) - corrected, 4), "ci95": [None, None]},
+        )
     elif kind == "time_overlap_across_split":
         times = table.cutoff_time if table.cutoff_time is not None else table.label_time
         if times is None:
@@ -311,16 +383,24 @@ def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict
         early, late = order[:cut], order[cut:]
         if len(late) < MIN_SCORED:
             return None
-        p = _fit_predict(bench.x[early], bench.y[early], bench.x[late], bench.task, bench.k,
-                         bench.params)
+        p = _fit_predict(
+            bench.x[early], bench.y[early], bench.x[late], bench.task, bench.k, bench.params
+        )
         corrected = _metric(bench.task, bench.k, bench.y[late], p)
-        return corrected, "trained on the earliest 80 % of labelled sample rows, scored on " \
-            "the latest 20 %", {"change": round(bench.value(base) - corrected, 4),
-                                "ci95": [None, None]}
+        return (
+            corrected,
+            "trained on the earliest 80 % of labelled sample rows, scored on the latest 20 %",
+            {"change": round(bench.value(base) - corrected, 4), "ci95": [None, None]},
+        )
     elif kind == "split_shift":
-        return None, ("not corrected: re-weighting toward the held-out rows needs a model of "
-                      "the shift, which this version does not fit; see the finding's drivers"), \
-            {"change": None, "ci95": [None, None]}
+        return (
+            None,
+            (
+                "not corrected: re-weighting toward the held-out rows needs a model of "
+                "the shift, which this version does not fit; see the finding's drivers"
+            ),
+            {"change": None, "ci95": [None, None]},
+        )
     else:
         return None
     change = bench.value(base) - bench.value(s)
@@ -332,7 +412,8 @@ def largest_lift(doc: dict[str, Any]) -> float | None:
     block = doc.get("impact")
     if not block:
         return None
-    scores = [block.get("without_suspects")] + [e.get("corrected")
-                                                for e in block.get("by_finding", [])]
+    scores = [block.get("without_suspects")] + [
+        e.get("corrected") for e in block.get("by_finding", [])
+    ]
     scores = [s for s in scores if s is not None]
     return max(0.0, block["as_given"] - min(scores)) if scores else None

@@ -38,8 +38,9 @@ class Level(IntEnum):
         try:
             return cls[str(value).strip().upper()]
         except KeyError:
-            raise ValueError(f"{value!r} is not a level; use one of "
-                             f"{', '.join(LEVEL_NAMES)}") from None
+            raise ValueError(
+                f"{value!r} is not a level; use one of {', '.join(LEVEL_NAMES)}"
+            ) from None
 
     def down(self, steps: int = 1) -> Level:
         """This level lowered by ``steps``, never below ``none``."""
@@ -74,7 +75,7 @@ class Ladder:
 
     def level(self, value: float | None) -> Level:
         """The highest level whose floor ``value`` reaches."""
-        if value is None or value != value:       # None or NaN
+        if value is None or value != value:  # None or NaN
             return Level.NONE
         for lv, floor in self.floors:
             if value >= floor:
@@ -90,10 +91,12 @@ class Ladder:
 
     def describe(self) -> str:
         """The ladder in words, e.g. ``high from 0.1, critical from 0.5``."""
+
         def fmt(v: float) -> str:
             if self.unit == "%":
                 return f"{v * 100:g} %"
             return f"{v:g}{self.unit}"
+
         return ", ".join(f"{lv.label} from {fmt(f)}" for lv, f in reversed(self.floors))
 
     def to_dict(self) -> dict[str, float]:

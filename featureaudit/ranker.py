@@ -18,8 +18,7 @@ def _strength(e: Evidence) -> tuple[Level, float]:
     return e.rank, min(max(e.severity, 0.0), 0.999)
 
 
-def rank(table: AuditTable, evidence: list[Evidence]
-         ) -> tuple[list[ColumnVerdict], list[Evidence]]:
+def rank(table: AuditTable, evidence: list[Evidence]) -> tuple[list[ColumnVerdict], list[Evidence]]:
     """Return column verdicts sorted by score (descending) and dataset findings by level."""
     by_column: dict[str, list[Evidence]] = {c: [] for c in table.id_columns + table.features}
     dataset: list[Evidence] = []
@@ -40,8 +39,9 @@ def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdi
     role = table.roles.get(name, "feature")
     description = entry.description if entry else ""
     if not items:
-        return ColumnVerdict(name, 0.0, "none", (), "no probe measured this column", (),
-                             role, description)
+        return ColumnVerdict(
+            name, 0.0, "none", (), "no probe measured this column", (), role, description
+        )
     top = items[0]
     rank_, sev = _strength(top)
     strong_kinds = {e.kind for e in items if e.rank >= Level.HIGH}
@@ -57,5 +57,4 @@ def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdi
     if others:
         summary += "; also " + ", ".join(k.replace("_", " ") for k in others)
     score = (int(rank_) + sev) / len(Level)
-    return ColumnVerdict(name, score, level, tuple(kinds), summary, tuple(items), role,
-                         description)
+    return ColumnVerdict(name, score, level, tuple(kinds), summary, tuple(items), role, description)

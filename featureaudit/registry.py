@@ -24,7 +24,7 @@ class Probe:
     """
 
     name: ClassVar[str] = ""
-    scope: ClassVar[str] = "column"    # "column" or "table"
+    scope: ClassVar[str] = "column"  # "column" or "table"
     kinds: ClassVar[tuple[str, ...]] = ()
     # The probe's thresholds: an instance of a frozen dataclass whose fields are the numbers
     # its level decisions use, each with its source in the class docstring. Recorded in
@@ -49,17 +49,22 @@ def register(cls: type[Probe]) -> type[Probe]:
     if cls.scope not in ("column", "table"):
         raise TypeError(f"probe {cls.name!r} has scope {cls.scope!r}; use 'column' or 'table'")
     if not cls.kinds or any(k not in KINDS for k in cls.kinds):
-        raise TypeError(f"probe {cls.name!r} declares kinds {cls.kinds}; each must be one of "
-                        f"{KINDS}")
+        raise TypeError(
+            f"probe {cls.name!r} declares kinds {cls.kinds}; each must be one of {KINDS}"
+        )
     if not (cls.__doc__ or "").strip():
-        raise TypeError(f"probe {cls.name!r} needs a docstring saying what it detects and how "
-                        "its thresholds were chosen")
+        raise TypeError(
+            f"probe {cls.name!r} needs a docstring saying what it detects and how "
+            "its thresholds were chosen"
+        )
     if cls.run is Probe.run:
         raise TypeError(f"probe {cls.name!r} does not implement run()")
     params = getattr(type(cls.thresholds), "__dataclass_params__", None)
     if params is None or not params.frozen:
-        raise TypeError(f"probe {cls.name!r} needs thresholds: an instance of a frozen dataclass "
-                        "whose fields are the numbers its levels use")
+        raise TypeError(
+            f"probe {cls.name!r} needs thresholds: an instance of a frozen dataclass "
+            "whose fields are the numbers its levels use"
+        )
     if cls.describe.__func__ is Probe.describe.__func__:  # type: ignore[attr-defined]
         raise TypeError(f"probe {cls.name!r} does not implement describe(settings)")
     _REGISTRY[cls.name] = cls
@@ -81,12 +86,15 @@ def _load_plugins() -> None:
         return
     _plugins_loaded = True
     from importlib.metadata import entry_points
+
     for ep in sorted(entry_points(group=ENTRY_POINT_GROUP), key=lambda e: e.name):
         try:
             obj = ep.load()
         except Exception as exc:
-            raise TypeError(f"probe plugin {ep.name!r} ({ep.value}) failed to import: "
-                            f"{type(exc).__name__}: {exc}") from exc
+            raise TypeError(
+                f"probe plugin {ep.name!r} ({ep.value}) failed to import: "
+                f"{type(exc).__name__}: {exc}"
+            ) from exc
         if isinstance(obj, type) and issubclass(obj, Probe) and _REGISTRY.get(obj.name) is not obj:
             register(obj)
 
@@ -94,6 +102,7 @@ def _load_plugins() -> None:
 def thresholds_dict(thresholds: Any) -> dict[str, Any]:
     """A probe's thresholds as plain JSON values; a ladder as ``{level: floor}``."""
     from featureaudit.levels import Ladder
+
     out: dict[str, Any] = {}
     for f in fields(thresholds):
         value = getattr(thresholds, f.name)
@@ -111,6 +120,7 @@ def registered() -> dict[str, type[Probe]]:
     """Every registered probe by name: the built-in ones (importing featureaudit.probes
     registers them) and those of installed plugins."""
     import featureaudit.probes  # noqa: F401  (registers on import)
+
     _load_plugins()
     return dict(_REGISTRY)
 
@@ -118,4 +128,3 @@ def registered() -> dict[str, type[Probe]]:
 def unregister(name: str) -> None:
     """Remove a probe (for tests that register throwaway probes)."""
     _REGISTRY.pop(name, None)
-

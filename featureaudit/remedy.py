@@ -14,22 +14,31 @@ from featureaudit.levels import Level
 
 __all__ = ["REMEDIES", "column_remedy", "dataset_remedy", "remedy_words"]
 
-REMEDIES = ("drop", "refit_on_training_rows", "regroup_split", "split_by_time", "deduplicate",
-            "review")
-_SPLIT = {"duplicate_rows_across_split": "deduplicate",
-          "shared_entities_across_split": "regroup_split",
-          "time_overlap_across_split": "split_by_time",
-          "split_shift": "review", "row_order_tells_target": "review"}
+REMEDIES = (
+    "drop",
+    "refit_on_training_rows",
+    "regroup_split",
+    "split_by_time",
+    "deduplicate",
+    "review",
+)
+_SPLIT = {
+    "duplicate_rows_across_split": "deduplicate",
+    "shared_entities_across_split": "regroup_split",
+    "time_overlap_across_split": "split_by_time",
+    "split_shift": "review",
+    "row_order_tells_target": "review",
+}
 _WORDS = {
     "drop": "drop the column from the model's inputs",
     "refit_on_training_rows": "refit its preprocessing (scaler, imputer, cap or encoding) on "
-                              "the training rows only and apply it to the held-out rows; keep "
-                              "the column",
+    "the training rows only and apply it to the held-out rows; keep "
+    "the column",
     "regroup_split": "split by entity, so every entity's rows fall on one side (grouped folds)",
     "split_by_time": "split by time: train on earlier rows, validate on later ones",
     "deduplicate": "remove held-out rows that have a copy among the training rows",
     "review": "review it: the evidence is not strong enough, or the fix depends on how the "
-              "data was made",
+    "data was made",
 }
 
 

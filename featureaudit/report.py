@@ -13,10 +13,12 @@ from featureaudit.levels import Level
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
 
-CAUTION = ("An audit finds evidence, not proof: a suspect may be legitimate, and a clean audit "
-           "does not prove that the data is free of leakage. Models that affect people (credit, "
-           "health, employment) still go through the organisation's review and the rules that "
-           "apply to them.")
+CAUTION = (
+    "An audit finds evidence, not proof: a suspect may be legitimate, and a clean audit "
+    "does not prove that the data is free of leakage. Models that affect people (credit, "
+    "health, employment) still go through the organisation's review and the rules that "
+    "apply to them."
+)
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
 
 
@@ -29,19 +31,26 @@ def _visible(value: Any) -> str:
 def _env() -> jinja2.Environment:
     env = jinja2.Environment(
         loader=jinja2.PackageLoader("featureaudit.reports", "templates"),
-        autoescape=jinja2.select_autoescape(enabled_extensions=("html.j2",),
-                                       disabled_extensions=("md.j2",), default=True),
-        undefined=jinja2.ChainableUndefined, trim_blocks=True, lstrip_blocks=True)
+        autoescape=jinja2.select_autoescape(
+            enabled_extensions=("html.j2",), disabled_extensions=("md.j2",), default=True
+        ),
+        undefined=jinja2.ChainableUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
     env.filters["visible"] = _visible
     env.filters["fmt"] = _fmt
     env.filters["md"] = _md
     from featureaudit import charts
+
     for name in charts.__all__:
         env.globals[name] = getattr(charts, name)
     env.globals["rank"] = {lv.label: int(lv) for lv in Level}
     from featureaudit.remedy import remedy_words
-    env.globals.update(impact_line=impact_line, impact_words=impact_words,
-                       remedy_words=remedy_words)
+
+    env.globals.update(
+        impact_line=impact_line, impact_words=impact_words, remedy_words=remedy_words
+    )
     return env
 
 
@@ -60,7 +69,7 @@ def _fmt(value: Any) -> str:
 
 
 def impact_line(doc: dict[str, Any]) -> str:
-    """"validation AUC 0.97 as given; 0.84 (0.82–0.86) without the suspects", or ""."""
+    """ "validation AUC 0.97 as given; 0.84 (0.82–0.86) without the suspects", or ""."""
     block = doc.get("impact")
     if not block:
         return ""
@@ -69,8 +78,10 @@ def impact_line(doc: dict[str, Any]) -> str:
     ci = f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
     if not block.get("suspects_removed"):
         return f"validation {name} {block['as_given']:.2f} as given; no suspect at high or above"
-    return (f"validation {name} {block['as_given']:.2f} as given; "
-            f"{block['without_suspects']:.2f}{ci} without the suspects")
+    return (
+        f"validation {name} {block['as_given']:.2f} as given; "
+        f"{block['without_suspects']:.2f}{ci} without the suspects"
+    )
 
 
 def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
@@ -94,35 +105,60 @@ def verdict_line(findings: Findings) -> str:
         counts[f["level"]] = counts.get(f["level"], 0) + 1
     serious = counts.get("critical", 0) + counts.get("high", 0)
     if serious == 0:
-        return ("No column or split finding reached level high. Review the medium ones, "
-                "and remember what the audit cannot see.")
+        return (
+            "No column or split finding reached level high. Review the medium ones, "
+            "and remember what the audit cannot see."
+        )
     parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
-    medium = (f"; {counts['medium']} more at medium" if counts.get("medium") else "")
-    return (f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
-            f"({', '.join(parts)}){medium}. Resolve them before trusting validation scores.")
+    medium = f"; {counts['medium']} more at medium" if counts.get("medium") else ""
+    return (
+        f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
+        f"({', '.join(parts)}){medium}. Resolve them before trusting validation scores."
+    )
 
 
-MAX_CARDS = 60      # evidence cards beyond this many suspects stay in the ranked table
+MAX_CARDS = 60  # evidence cards beyond this many suspects stay in the ranked table
 
 
 def render_dossier(findings: Findings) -> str:
     doc = findings.document
     suspects = [c for c in doc["columns"] if c["level"] != "none"]
-    cards = [{**c, "charted": c["level"] in ("medium", "high", "critical")}
-             for c in suspects[:MAX_CARDS]]
-    return _env().get_template("dossier.html.j2").render(
-        doc=doc, verdict=verdict_line(findings), caution=CAUTION, suspects=suspects,
-        cards=cards, clean=[c for c in doc["columns"] if c["level"] == "none"],
-        drops=droplist(findings, "high"), refits=_refits(doc),
-        methods=list(doc.get("settings", {}).get("methods", {}).items()))
+    cards = [
+        {**c, "charted": c["level"] in ("medium", "high", "critical")} for c in suspects[:MAX_CARDS]
+    ]
+    return (
+        _env()
+        .get_template("dossier.html.j2")
+        .render(
+            doc=doc,
+            verdict=verdict_line(findings),
+            caution=CAUTION,
+            suspects=suspects,
+            cards=cards,
+            clean=[c for c in doc["columns"] if c["level"] == "none"],
+            drops=droplist(findings, "high"),
+            refits=_refits(doc),
+            methods=list(doc.get("settings", {}).get("methods", {}).items()),
+        )
+    )
 
 
 def render_summary(findings: Findings) -> str:
     doc = findings.document
-    return _env().get_template("summary.md.j2").render(
-        doc=doc, verdict=verdict_line(findings), caution=CAUTION,
-        suspects=[c for c in doc["columns"] if c["level"] in ("critical", "high", "medium")][:20],
-        drops=droplist(findings, "high"), refits=_refits(doc))
+    return (
+        _env()
+        .get_template("summary.md.j2")
+        .render(
+            doc=doc,
+            verdict=verdict_line(findings),
+            caution=CAUTION,
+            suspects=[c for c in doc["columns"] if c["level"] in ("critical", "high", "medium")][
+                :20
+            ],
+            drops=droplist(findings, "high"),
+            refits=_refits(doc),
+        )
+    )
 
 
 def _refits(doc: dict[str, Any]) -> list[str]:
@@ -133,7 +169,9 @@ def _refits(doc: dict[str, Any]) -> list[str]:
 def render_all(findings: Findings) -> dict[str, str]:
     """Every file of a report, rendered in memory so they can be written together."""
     drops = droplist(findings, "high")
-    return {"findings.json": findings.to_json(),
-            "droplist.txt": "".join(f"{c}\n" for c in drops),
-            "summary.md": render_summary(findings),
-            "dossier.html": render_dossier(findings)}
+    return {
+        "findings.json": findings.to_json(),
+        "droplist.txt": "".join(f"{c}\n" for c in drops),
+        "summary.md": render_summary(findings),
+        "dossier.html": render_dossier(findings),
+    }

@@ -30,8 +30,9 @@ def _fmt(x: float) -> str:
     return f"{x:.4g}"
 
 
-def bin_codes(s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 50_000,
-              seed: int = 0) -> Bins:
+def bin_codes(
+    s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 50_000, seed: int = 0
+) -> Bins:
     """Code a column into at most ``n_bins`` quantile bins (numbers, datetimes) or its categories.
 
     ``order=True`` bins text by its sorted order (for identifiers whose order may carry the
@@ -46,8 +47,13 @@ def bin_codes(s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 5
             ranks[present] = pd.Series(text[present].astype(str)).rank(method="min").to_numpy()
         values = ranks
     if values is not None:
-        return _numeric_bins(values, n_bins, sample=sample, seed=seed,
-                             datetime=pd.api.types.is_datetime64_any_dtype(s.dtype))
+        return _numeric_bins(
+            values,
+            n_bins,
+            sample=sample,
+            seed=seed,
+            datetime=pd.api.types.is_datetime64_any_dtype(s.dtype),
+        )
     if isinstance(s.dtype, pd.CategoricalDtype):
         codes = s.cat.codes.to_numpy().astype(np.int64) + 1
         labels = ["(missing)"] + [str(c) for c in s.cat.categories]
@@ -58,8 +64,9 @@ def bin_codes(s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 5
     return Bins(codes, labels, "categories")
 
 
-def _numeric_bins(values: np.ndarray, n_bins: int, *, sample: int, seed: int, datetime: bool
-                  ) -> Bins:
+def _numeric_bins(
+    values: np.ndarray, n_bins: int, *, sample: int, seed: int, datetime: bool
+) -> Bins:
     finite = np.isfinite(values)
     codes = np.zeros(len(values), dtype=np.int64)
     present = values[finite]
@@ -81,9 +88,12 @@ def _numeric_bins(values: np.ndarray, n_bins: int, *, sample: int, seed: int, da
     else:
         codes[finite] = np.searchsorted(inner, present, side="right") + 1
     bounds = np.r_[-np.inf, inner, np.inf]
-    labels = ["(missing)"] + [f"[{label(lo)}, {label(hi)})" if np.isfinite(lo) and np.isfinite(hi)
-                              else (f"< {label(hi)}" if np.isfinite(hi) else f">= {label(lo)}")
-                              for lo, hi in zip(bounds[:-1], bounds[1:], strict=True)]
+    labels = ["(missing)"] + [
+        f"[{label(lo)}, {label(hi)})"
+        if np.isfinite(lo) and np.isfinite(hi)
+        else (f"< {label(hi)}" if np.isfinite(hi) else f">= {label(lo)}")
+        for lo, hi in zip(bounds[:-1], bounds[1:], strict=True)
+    ]
     return Bins(codes, labels, "quantile")
 
 
@@ -115,8 +125,9 @@ def hanley_mcneil_se(auc: float, n_pos: int, n_neg: int) -> float:
         return float("nan")
     q1 = auc / (2 - auc)
     q2 = 2 * auc * auc / (1 + auc)
-    var = (auc * (1 - auc) + (n_pos - 1) * (q1 - auc * auc) + (n_neg - 1) * (q2 - auc * auc)) \
-        / (n_pos * n_neg)
+    var = (auc * (1 - auc) + (n_pos - 1) * (q1 - auc * auc) + (n_neg - 1) * (q2 - auc * auc)) / (
+        n_pos * n_neg
+    )
     return float(np.sqrt(max(var, 0.0)))
 
 

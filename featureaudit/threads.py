@@ -38,6 +38,7 @@ def available_cpus() -> int:
 def limited_blas() -> Iterator[None]:
     """Cap BLAS and OpenMP pools at one thread for the duration (threads never nest)."""
     from threadpoolctl import threadpool_limits
+
     with threadpool_limits(limits=1):
         yield
 

@@ -15,7 +15,7 @@ from featureaudit.errors import SettingError
 
 __all__ = ["as_datetime"]
 
-_EPOCH_S = (1e8, 5e9)     # 1973 .. 2128 in seconds
+_EPOCH_S = (1e8, 5e9)  # 1973 .. 2128 in seconds
 _EPOCH_MS = (1e11, 5e12)  # the same span in milliseconds
 
 
@@ -26,39 +26,50 @@ def as_datetime(s: pd.Series, *, column: str, what: str = "column") -> pd.Series
             s = s.dt.tz_convert("UTC").dt.tz_localize(None)
         return s.astype("datetime64[ns]")
     if pd.api.types.is_bool_dtype(s.dtype):
-        raise SettingError(f"{what} {column!r} holds true/false values, not times; name a "
-                           "column of dates or datetimes.")
+        raise SettingError(
+            f"{what} {column!r} holds true/false values, not times; name a "
+            "column of dates or datetimes."
+        )
     if pd.api.types.is_numeric_dtype(s.dtype):
         values = pd.to_numeric(s, errors="coerce").astype("float64")
         med = float(np.nanmedian(np.abs(values))) if values.notna().any() else np.nan
         present = values.dropna()
-        if (not present.empty and present.between(1000, 3000).all()
-                and np.allclose(present, np.round(present))):
+        if (
+            not present.empty
+            and present.between(1000, 3000).all()
+            and np.allclose(present, np.round(present))
+        ):
             years = values.round().astype("Int64").astype(str).where(values.notna(), None)
             return pd.to_datetime(years, format="%Y").astype("datetime64[ns]")
         if _EPOCH_S[0] <= med <= _EPOCH_S[1]:
             return pd.to_datetime(values, unit="s").astype("datetime64[ns]")
         if _EPOCH_MS[0] <= med <= _EPOCH_MS[1]:
             return pd.to_datetime(values, unit="ms").astype("datetime64[ns]")
-        raise SettingError(f"{what} {column!r} holds numbers that are not epoch seconds or "
-                           "milliseconds (e.g. "
-                           f"{values.dropna().iloc[0] if values.notna().any() else 'none'}); "
-                           "store it as ISO dates such as 2026-01-31.")
+        raise SettingError(
+            f"{what} {column!r} holds numbers that are not epoch seconds or "
+            "milliseconds (e.g. "
+            f"{values.dropna().iloc[0] if values.notna().any() else 'none'}); "
+            "store it as ISO dates such as 2026-01-31."
+        )
     text = s.astype(object).where(s.notna(), None)
     present = pd.Series(text.dropna().astype(str))
     if present.empty:
         raise SettingError(f"{what} {column!r} has no values; name a column of dates.")
     zoned = present.str.contains(r"(?:Z|[+-]\d{2}:?\d{2})$", regex=True)
     if zoned.any() and not zoned.all():
-        raise SettingError(f"{what} {column!r} mixes times with a time zone and times without "
-                           f"one (e.g. {present[zoned].iloc[0]!r} and {present[~zoned].iloc[0]!r});"
-                           " write them all with an offset or all without.")
+        raise SettingError(
+            f"{what} {column!r} mixes times with a time zone and times without "
+            f"one (e.g. {present[zoned].iloc[0]!r} and {present[~zoned].iloc[0]!r});"
+            " write them all with an offset or all without."
+        )
     parsed = pd.to_datetime(text, errors="coerce", utc=bool(zoned.all()), format="ISO8601")
     bad = parsed.isna() & text.notna()
     if bad.any():
-        raise SettingError(f"{what} {column!r} has {int(bad.sum())} values that are not dates "
-                           f"(e.g. {str(text[bad].iloc[0])!r}); write them as ISO dates such as "
-                           "2026-01-31 or 2026-01-31T09:30:00.")
+        raise SettingError(
+            f"{what} {column!r} has {int(bad.sum())} values that are not dates "
+            f"(e.g. {str(text[bad].iloc[0])!r}); write them as ISO dates such as "
+            "2026-01-31 or 2026-01-31T09:30:00."
+        )
     if zoned.all():
         parsed = parsed.dt.tz_convert("UTC").dt.tz_localize(None)
     return parsed.astype("datetime64[ns]")

@@ -55,8 +55,11 @@ class SeparabilityThresholds:
     a leak). ``top_left_out``: drivers left out to see how much of the AUC they carry.
     """
 
-    auc: Ladder = field(default=Ladder("adversarial_auc", (
-        (Level.CRITICAL, 0.85), (Level.HIGH, 0.70), (Level.MEDIUM, 0.60))))
+    auc: Ladder = field(
+        default=Ladder(
+            "adversarial_auc", ((Level.CRITICAL, 0.85), (Level.HIGH, 0.70), (Level.MEDIUM, 0.60))
+        )
+    )
     z_high: float = 4.0
     z_medium: float = 3.0
     z_low: float = 2.0
@@ -105,8 +108,9 @@ def _matrix(table: AuditTable, columns: list[str], rows: np.ndarray) -> np.ndarr
     return np.column_stack(out) if out else np.zeros((rows.size, 0))
 
 
-def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3,
-                    n_jobs: int = 1) -> tuple[float, np.ndarray]:
+def adversarial_auc(
+    x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3, n_jobs: int = 1
+) -> tuple[float, np.ndarray]:
     """Out-of-fold AUC of LightGBM telling side 1 from side 0, and total gain per column."""
     import lightgbm as lgb
     from sklearn.metrics import roc_auc_score
@@ -115,11 +119,21 @@ def adversarial_auc(x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3,
     pred = np.zeros(len(side))
     gain = np.zeros(x.shape[1])
     params: dict[str, Any] = dict(
-                  n_estimators=50, learning_rate=0.12, num_leaves=15, min_child_samples=20,
-                  subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=model_threads(n_jobs, len(side)), verbose=-1, deterministic=True,
-                  force_row_wise=True, max_bin=63,
-                  importance_type="gain")
+        n_estimators=50,
+        learning_rate=0.12,
+        num_leaves=15,
+        min_child_samples=20,
+        subsample=0.8,
+        subsample_freq=1,
+        colsample_bytree=0.8,
+        random_state=seed,
+        n_jobs=model_threads(n_jobs, len(side)),
+        verbose=-1,
+        deterministic=True,
+        force_row_wise=True,
+        max_bin=63,
+        importance_type="gain",
+    )
     with limited_blas():
         for tr, te in StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, side):
             model = lgb.LGBMClassifier(**params).fit(x[tr], side[tr])
@@ -152,7 +166,8 @@ class Separability(Probe):
             "identifier whose values alone separate the sides is reported at "
             f"{t.identifier_level.label}. Without a split, a random split holding out "
             f"{SIMULATED_HELDOUT_SHARE:.0%} of the rows and, when a time is known, the last "
-            f"{SIMULATED_HELDOUT_SHARE:.0%} in time are simulated and reported as information.")
+            f"{SIMULATED_HELDOUT_SHARE:.0%} in time are simulated and reported as information."
+        )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         columns = [c for c in table.features if table.frame[c].notna().any()]
@@ -171,18 +186,32 @@ class Separability(Probe):
             evidence.append(self._measure(table, columns, ids, late, rng, settings, "time"))
         return evidence, []
 
-    def _measure(self, table: AuditTable, columns: list[str], ids: list[str],
-                 heldout: np.ndarray, rng: np.random.Generator, settings: Settings,
-                 simulated: str | None) -> Evidence:
+    def _measure(
+        self,
+        table: AuditTable,
+        columns: list[str],
+        ids: list[str],
+        heldout: np.ndarray,
+        rng: np.random.Generator,
+        settings: Settings,
+        simulated: str | None,
+    ) -> Evidence:
         t = self.thresholds
         high_floor = t.auc.floor(Level.HIGH)
         order = _content_order(table, columns + ids, heldout)
         rows = order[_sample(heldout[order], settings.reference_rows, rng)]
         side = heldout[rows].astype(int)
         if min(side.sum(), (1 - side).sum()) < 10:
-            return Evidence(self.name, "split_shift", "adversarial_auc", None, high_floor,
-                            Level.NONE, summary="too few rows on one side to compare",
-                            detail={"sample_rows": int(rows.size)})
+            return Evidence(
+                self.name,
+                "split_shift",
+                "adversarial_auc",
+                None,
+                high_floor,
+                Level.NONE,
+                summary="too few rows on one side to compare",
+                detail={"sample_rows": int(rows.size)},
+            )
         n1, n0 = int(side.sum()), int((1 - side).sum())
         null = null_auc_se(n1, n0)
         id_aucs = _identifier_aucs(table, ids, rows, side)
@@ -192,50 +221,84 @@ class Separability(Probe):
         else:
             xs, auc, gain = np.zeros((rows.size, 0)), 0.5, np.zeros(0)
         z = (auc - 0.5) / null
-        top = np.argsort(-gain)[:t.top_left_out]
+        top = np.argsort(-gain)[: t.top_left_out]
         keep = np.setdiff1d(np.arange(len(columns)), top)
-        worth = auc >= t.auc.floors[-1][1]    # a refit only pays when there is a shift
-        auc_without = adversarial_auc(xs[:, keep], side, settings.seed,
-                                      n_jobs=settings.n_jobs)[0] if keep.size and worth else None
+        worth = auc >= t.auc.floors[-1][1]  # a refit only pays when there is a shift
+        auc_without = (
+            adversarial_auc(xs[:, keep], side, settings.seed, n_jobs=settings.n_jobs)[0]
+            if keep.size and worth
+            else None
+        )
         total = float(gain.sum()) or 1.0
-        drivers = [{"column": columns[i], "gain_share": float(gain[i] / total),
-                    "role": _role(table, columns[i])} for i in np.argsort(-gain)[:8]
-                   if gain[i] > 0]
+        drivers = [
+            {
+                "column": columns[i],
+                "gain_share": float(gain[i] / total),
+                "role": _role(table, columns[i]),
+            }
+            for i in np.argsort(-gain)[:8]
+            if gain[i] > 0
+        ]
         level = simulated_level(split_level(auc, z, t), simulated)
         id_name, id_auc = max(id_aucs.items(), key=lambda kv: kv[1]) if id_aucs else (None, 0.5)
         id_z = (id_auc - 0.5) / null
         by_id = simulated_level(identifier_level(id_auc, id_z, t), simulated)
-        what = {"random": f"a random {1 - SIMULATED_HELDOUT_SHARE:.0%}/"
-                          f"{SIMULATED_HELDOUT_SHARE:.0%} split",
-                "time": f"a split on the last {SIMULATED_HELDOUT_SHARE:.0%} in time",
-                None: "the split"}[simulated]
-        summary = (f"a model tells held-out rows from training rows under {what} with AUC "
-                   f"{auc:.3f}" + (f", driven by {drivers[0]['column']}" if drivers and worth
-                                    else ""))
-        named = [d for d in drivers[:t.top_left_out] if d["role"] != "feature"]
+        what = {
+            "random": f"a random {1 - SIMULATED_HELDOUT_SHARE:.0%}/"
+            f"{SIMULATED_HELDOUT_SHARE:.0%} split",
+            "time": f"a split on the last {SIMULATED_HELDOUT_SHARE:.0%} in time",
+            None: "the split",
+        }[simulated]
+        summary = (
+            f"a model tells held-out rows from training rows under {what} with AUC "
+            f"{auc:.3f}" + (f", driven by {drivers[0]['column']}" if drivers and worth else "")
+        )
+        named = [d for d in drivers[: t.top_left_out] if d["role"] != "feature"]
         if named and worth:
             summary += f" ({', '.join(d['column'] + ' is ' + d['role'] for d in named)})"
         if by_id > Level.NONE:
-            summary += (f"; {id_name} is an identifier whose values differ between the sides "
-                        f"(AUC {id_auc:.3f} on its own): the split follows its order or "
-                        "ranges, which says how the split was made, not that the rows differ")
+            summary += (
+                f"; {id_name} is an identifier whose values differ between the sides "
+                f"(AUC {id_auc:.3f} on its own): the split follows its order or "
+                "ranges, which says how the split was made, not that the rows differ"
+            )
         se = hanley_mcneil_se(auc, n1, n0)
-        detail = {"auc": auc, "se": se, "null_se": null, "z": z,
-                  "ci95": [auc - 1.96 * se, auc + 1.96 * se],
-                  "auc_without_top": auc_without, "left_out": [columns[i] for i in top],
-                  "drivers": drivers, "sample_rows": int(rows.size), "heldout_in_sample": n1,
-                  "simulated_split": simulated, "identifier_auc": id_aucs,
-                  "identifier_level": by_id.label, "thresholds": _json(t)}
-        return Evidence(self.name, "split_shift", "adversarial_auc", auc, high_floor,
-                        max(level, by_id), summary=summary,
-                        severity=min(1.0, max(0.0, 2 * auc - 1)), detail=detail)
+        detail = {
+            "auc": auc,
+            "se": se,
+            "null_se": null,
+            "z": z,
+            "ci95": [auc - 1.96 * se, auc + 1.96 * se],
+            "auc_without_top": auc_without,
+            "left_out": [columns[i] for i in top],
+            "drivers": drivers,
+            "sample_rows": int(rows.size),
+            "heldout_in_sample": n1,
+            "simulated_split": simulated,
+            "identifier_auc": id_aucs,
+            "identifier_level": by_id.label,
+            "thresholds": _json(t),
+        }
+        return Evidence(
+            self.name,
+            "split_shift",
+            "adversarial_auc",
+            auc,
+            high_floor,
+            max(level, by_id),
+            summary=summary,
+            severity=min(1.0, max(0.0, 2 * auc - 1)),
+            detail=detail,
+        )
 
 
-def _identifier_aucs(table: AuditTable, ids: list[str], rows: np.ndarray, side: np.ndarray
-                     ) -> dict[str, float]:
+def _identifier_aucs(
+    table: AuditTable, ids: list[str], rows: np.ndarray, side: np.ndarray
+) -> dict[str, float]:
     """Per identifier, how well its order-independent code alone separates the sides: the
     Mann–Whitney AUC, folded so that 0.5 is none and 1 a clean cut at one value."""
     from sklearn.metrics import roc_auc_score
+
     out: dict[str, float] = {}
     for name in ids:
         v = _codes(table.frame[name])[rows]
@@ -254,8 +317,7 @@ def _json(t: SeparabilityThresholds) -> dict:
     return d
 
 
-def _content_order(table: AuditTable, columns: list[str], heldout: np.ndarray
-                   ) -> np.ndarray:
+def _content_order(table: AuditTable, columns: list[str], heldout: np.ndarray) -> np.ndarray:
     """Row positions sorted by a hash of the rows' values and side, so that the sample and
     the folds, hence the verdict, do not depend on the order of rows in the file."""
     h = pd.util.hash_pandas_object(table.frame[columns], index=False).to_numpy()

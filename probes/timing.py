@@ -60,9 +60,12 @@ class TimingThresholds:
     forward split none; the split uses the same ``share`` ladder.
     """
 
-    share: Ladder = Ladder("share_after_cutoff", ((Level.CRITICAL, 0.5), (Level.HIGH, 0.10),
-                                                  (Level.MEDIUM, 0.02)),
-                           above_zero=Level.LOW, unit="%")
+    share: Ladder = Ladder(
+        "share_after_cutoff",
+        ((Level.CRITICAL, 0.5), (Level.HIGH, 0.10), (Level.MEDIUM, 0.02)),
+        above_zero=Level.LOW,
+        unit="%",
+    )
     after_label_critical: float = 0.10
     clock_skew_floor: str = "1min"
 
@@ -70,8 +73,7 @@ class TimingThresholds:
 THRESHOLDS = TimingThresholds()
 
 
-def share_level(share: float, share_tolerance: float,
-                th: TimingThresholds = THRESHOLDS) -> Level:
+def share_level(share: float, share_tolerance: float, th: TimingThresholds = THRESHOLDS) -> Level:
     """The level of a share of late rows; below ``share_tolerance`` it is nothing."""
     level = th.share.level(share)
     if level == Level.LOW and share < max(share_tolerance, 1e-12):
@@ -79,8 +81,12 @@ def share_level(share: float, share_tolerance: float,
     return level
 
 
-def column_level(share_after_cutoff: float, share_after_label: float | None,
-                 share_tolerance: float, th: TimingThresholds = THRESHOLDS) -> Level:
+def column_level(
+    share_after_cutoff: float,
+    share_after_label: float | None,
+    share_tolerance: float,
+    th: TimingThresholds = THRESHOLDS,
+) -> Level:
     """A column's level: the cutoff share's level, critical when enough rows are known only
     after the outcome itself."""
     level = share_level(share_after_cutoff, share_tolerance, th)
@@ -118,20 +124,26 @@ class Tolerance:
         return "minutes", _MINUTE
 
 
-def tolerance(settings: Settings, *times: np.ndarray,
-              th: TimingThresholds = THRESHOLDS) -> Tolerance:
+def tolerance(
+    settings: Settings, *times: np.ndarray, th: TimingThresholds = THRESHOLDS
+) -> Tolerance:
     """The user's ``time_tolerance``, or under ``auto`` the coarsest resolution of ``times``
     (never below the clock-skew floor)."""
     if settings.time_tolerance != "auto":
-        return Tolerance(float(parse_duration(settings.time_tolerance).value),
-                         f"time_tolerance = {settings.time_tolerance!r} as set")
+        return Tolerance(
+            float(parse_duration(settings.time_tolerance).value),
+            f"time_tolerance = {settings.time_tolerance!r} as set",
+        )
     floor = float(parse_duration(th.clock_skew_floor).value)
     found = [resolution(t) for t in times]
     name, unit = max(found, key=lambda r: r[1]) if found else UNITS[0]
     ns = max(unit, floor)
     what = " and ".join(f"{n}s" for n in dict.fromkeys(r[0] for r in found))
-    return Tolerance(ns, f"automatic: the times carry {what}, so one {name}"
-                     + (f" (clock-skew floor {th.clock_skew_floor})" if ns > unit else ""))
+    return Tolerance(
+        ns,
+        f"automatic: the times carry {what}, so one {name}"
+        + (f" (clock-skew floor {th.clock_skew_floor})" if ns > unit else ""),
+    )
 
 
 def _ns(times: pd.Series) -> np.ndarray:
@@ -146,9 +158,8 @@ def _quantiles(lag_ns: np.ndarray, unit: float = _DAY) -> dict[str, float]:
     lag = lag_ns[np.isfinite(lag_ns)]
     if lag.size == 0:
         return {}
-    values = np.quantile(lag, QUANTILES)          # one partition for all seven quantiles
-    return {f"q{int(q * 100):02d}": float(v / unit) for q, v in zip(QUANTILES, values,
-                                                                    strict=True)}
+    values = np.quantile(lag, QUANTILES)  # one partition for all seven quantiles
+    return {f"q{int(q * 100):02d}": float(v / unit) for q, v in zip(QUANTILES, values, strict=True)}
 
 
 def _quantiles_days(lag_ns: np.ndarray) -> dict[str, float]:
@@ -177,28 +188,37 @@ class Timing(Probe):
     def describe(cls, settings: Settings) -> str:
         th = cls.thresholds
         if settings.time_tolerance == "auto":
-            tol = ("a tolerance that follows the resolution of the times (the coarser of the "
-                   "cutoff's and the value's finest unit: one day for dates, one hour or one "
-                   f"minute for times of day, never below {th.clock_skew_floor} of clock skew; "
-                   "durations from the dictionary are compared exactly)")
+            tol = (
+                "a tolerance that follows the resolution of the times (the coarser of the "
+                "cutoff's and the value's finest unit: one day for dates, one hour or one "
+                f"minute for times of day, never below {th.clock_skew_floor} of clock skew; "
+                "durations from the dictionary are compared exactly)"
+            )
         else:
             tol = f"a tolerance of {settings.time_tolerance} (set by time_tolerance)"
-        return (f"A value is known at its dictionary known_at (a datetime column, or a duration "
-                f"from the label time) or, for a datetime feature, at its own value; durations "
-                f"are compared with each other when no time column is given (cutoff 0, or "
-                f"minus the horizon). The share of rows known after the cutoff, past {tol} "
-                f"and {settings.share_tolerance:.0%} of rows, is {th.share.describe()}, and "
-                f"critical when {th.after_label_critical:.0%} of rows are known only after the "
-                f"outcome itself. For the split: the share of held-out rows earlier than the "
-                f"end of training, on the same ladder.")
+        return (
+            f"A value is known at its dictionary known_at (a datetime column, or a duration "
+            f"from the label time) or, for a datetime feature, at its own value; durations "
+            f"are compared with each other when no time column is given (cutoff 0, or "
+            f"minus the horizon). The share of rows known after the cutoff, past {tol} "
+            f"and {settings.share_tolerance:.0%} of rows, is {th.share.describe()}, and "
+            f"critical when {th.after_label_critical:.0%} of rows are known only after the "
+            f"outcome itself. For the split: the share of held-out rows earlier than the "
+            f"end of training, on the same ladder."
+        )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         evidence: list[Evidence] = []
         skipped: list[Skip] = []
         if table.cutoff_time is None:
-            skipped.append(Skip(self.name, "no label time or cutoff time given: datetime "
-                                           "columns are not compared; pass --label-time (and "
-                                           "--cutoff-time or --horizon)"))
+            skipped.append(
+                Skip(
+                    self.name,
+                    "no label time or cutoff time given: datetime "
+                    "columns are not compared; pass --label-time (and "
+                    "--cutoff-time or --horizon)",
+                )
+            )
             for name in table.features:
                 found = self._without_times(table, name, settings)
                 if found is not None:
@@ -218,61 +238,100 @@ class Timing(Probe):
         source = Path(table.dictionary.source).name if table.dictionary else ""
         return entry, (f"dictionary {source!r} line {entry.line}" if entry else "")
 
-    def _without_times(self, table: AuditTable, name: str, settings: Settings
-                       ) -> Evidence | None:
+    def _without_times(self, table: AuditTable, name: str, settings: Settings) -> Evidence | None:
         """No label or cutoff time: durations against the cutoff's own offset, columns not."""
         entry, where = self._where(table, name)
         if entry is None or not entry.known_at:
             return None
         if entry.known_at_offset is None:
-            return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", None,
-                            self.thresholds.share.floor(), Level.NONE, column=name,
-                            summary=f"cannot compare: known_at names column "
-                                    f"{entry.known_at!r}, and no label time or cutoff time is "
-                                    "given (pass --label-time or --cutoff-time)",
-                            detail={"basis": f"{where}: known_at = {entry.known_at!r}",
-                                    "compared": False, "reason": "no label or cutoff time"})
+            return Evidence(
+                self.name,
+                "recorded_after_cutoff",
+                "share_after_cutoff",
+                None,
+                self.thresholds.share.floor(),
+                Level.NONE,
+                column=name,
+                summary=f"cannot compare: known_at names column "
+                f"{entry.known_at!r}, and no label time or cutoff time is "
+                "given (pass --label-time or --cutoff-time)",
+                detail={
+                    "basis": f"{where}: known_at = {entry.known_at!r}",
+                    "compared": False,
+                    "reason": "no label or cutoff time",
+                },
+            )
         offset = float(entry.known_at_offset.value)
         cut = -float(table.horizon.value) if table.horizon is not None else 0.0
-        tol = 0.0 if settings.time_tolerance == "auto" else \
-            float(parse_duration(settings.time_tolerance).value)
+        tol = (
+            0.0
+            if settings.time_tolerance == "auto"
+            else float(parse_duration(settings.time_tolerance).value)
+        )
         late, after_label = offset - cut > tol, offset > tol
         share, share_l = float(late), float(after_label)
         level = column_level(share, share_l, settings.share_tolerance, self.thresholds)
-        cut_text = f"-{str(table.cutoff_source).split(':', 1)[1]}" if table.horizon is not None \
+        cut_text = (
+            f"-{str(table.cutoff_source).split(':', 1)[1]}"
+            if table.horizon is not None
             else "the label time"
-        text = (f"known {entry.known_at} from the label time, after the cutoff "
-                f"({cut_text}) for every row" if late else
-                f"known {entry.known_at} from the label time, by the cutoff ({cut_text})")
+        )
+        text = (
+            f"known {entry.known_at} from the label time, after the cutoff "
+            f"({cut_text}) for every row"
+            if late
+            else f"known {entry.known_at} from the label time, by the cutoff ({cut_text})"
+        )
         if after_label:
             text += ", and after the outcome itself"
         unit_name, unit = Tolerance(max(abs(offset - cut), _MINUTE), "").unit
-        detail = {"basis": f"{where}: known_at = {entry.known_at!r} (relative to the label "
-                           "time; no time column, durations compared)",
-                  "compared": "durations", "cutoff": table.cutoff_source or "label time",
-                  "known_after_cutoff": f"{(offset - cut) / unit:g} {unit_name}",
-                  "share_after_cutoff": share, "share_after_label": share_l,
-                  "tolerance": settings.time_tolerance,
-                  "tolerance_used": "none (durations are exact)" if tol == 0 else
-                  settings.time_tolerance}
-        return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", share,
-                        self.thresholds.share.floor(), level, column=name, summary=text,
-                        severity=share, detail=detail)
+        detail = {
+            "basis": f"{where}: known_at = {entry.known_at!r} (relative to the label "
+            "time; no time column, durations compared)",
+            "compared": "durations",
+            "cutoff": table.cutoff_source or "label time",
+            "known_after_cutoff": f"{(offset - cut) / unit:g} {unit_name}",
+            "share_after_cutoff": share,
+            "share_after_label": share_l,
+            "tolerance": settings.time_tolerance,
+            "tolerance_used": "none (durations are exact)" if tol == 0 else settings.time_tolerance,
+        }
+        return Evidence(
+            self.name,
+            "recorded_after_cutoff",
+            "share_after_cutoff",
+            share,
+            self.thresholds.share.floor(),
+            level,
+            column=name,
+            summary=text,
+            severity=share,
+            detail=detail,
+        )
 
-    def _known_times(self, table: AuditTable, name: str, label: np.ndarray | None,
-                     skipped: list[Skip]) -> tuple[np.ndarray, str, bool] | None:
+    def _known_times(
+        self, table: AuditTable, name: str, label: np.ndarray | None, skipped: list[Skip]
+    ) -> tuple[np.ndarray, str, bool] | None:
         """The times a column's values become known, the basis, and whether they come from a
         dictionary duration (exact, compared without a resolution tolerance)."""
         entry, where = self._where(table, name)
         if entry is not None and entry.known_at_offset is not None:
             if label is None:
-                skipped.append(Skip(self.name, f"known_at {entry.known_at!r} counts from the "
-                                               "label time, and no label time is given", name))
+                skipped.append(
+                    Skip(
+                        self.name,
+                        f"known_at {entry.known_at!r} counts from the "
+                        "label time, and no label time is given",
+                        name,
+                    )
+                )
                 return None
-            return label + float(entry.known_at_offset.value), f"{where}: known_at = " \
-                f"{entry.known_at!r} (relative to the label time)", True
-        source_col = entry.known_at_column if entry is not None and entry.known_at_column \
-            else None
+            return (
+                label + float(entry.known_at_offset.value),
+                f"{where}: known_at = {entry.known_at!r} (relative to the label time)",
+                True,
+            )
+        source_col = entry.known_at_column if entry is not None and entry.known_at_column else None
         if source_col is not None and source_col not in table.frame.columns:
             return None  # the loader already warned about the missing column
         column = source_col or name
@@ -284,13 +343,22 @@ class Timing(Probe):
         except SettingError as exc:
             skipped.append(Skip(self.name, str(exc), name))
             return None
-        basis = f"{where}: known_at = {source_col!r}" if source_col else \
-            "the column's own datetime values (no known_at in the dictionary)"
+        basis = (
+            f"{where}: known_at = {source_col!r}"
+            if source_col
+            else "the column's own datetime values (no known_at in the dictionary)"
+        )
         return _ns(times), basis, False
 
-    def _column(self, table: AuditTable, name: str, cutoff: np.ndarray,
-                label: np.ndarray | None, settings: Settings,
-                skipped: list[Skip]) -> Evidence | None:
+    def _column(
+        self,
+        table: AuditTable,
+        name: str,
+        cutoff: np.ndarray,
+        label: np.ndarray | None,
+        settings: Settings,
+        skipped: list[Skip],
+    ) -> Evidence | None:
         known = self._known_times(table, name, label, skipped)
         if known is None:
             return None
@@ -299,43 +367,64 @@ class Timing(Probe):
         if not ok.any():
             skipped.append(Skip(self.name, "no row has both a known time and a cutoff", name))
             return None
-        tol = tolerance(settings, cutoff[ok], *(() if from_duration else (times[ok],)),
-                        th=self.thresholds)
+        tol = tolerance(
+            settings, cutoff[ok], *(() if from_duration else (times[ok],)), th=self.thresholds
+        )
         unit_name, unit = tol.unit
         lag = np.where(ok, times - cutoff, np.nan)
         after = ok & (lag > tol.ns)
         share = float(after.sum() / ok.sum())
-        detail: dict = {"basis": basis, "rows_checked": int(ok.sum()),
-                        "rows_missing_time": int((~ok).sum()),
-                        "rows_after_cutoff": int(after.sum()), "share_after_cutoff": share,
-                        "lag_days_vs_cutoff": _quantiles_days(lag),
-                        "lag_unit": unit_name, f"lag_{unit_name}_vs_cutoff": _quantiles(lag, unit),
-                        "examples_after_cutoff": _examples(table, after),
-                        "cutoff": table.cutoff_source, "tolerance": settings.time_tolerance,
-                        "tolerance_used": f"{tol.ns / unit:g} {unit_name}",
-                        "tolerance_reason": tol.reason}
+        detail: dict = {
+            "basis": basis,
+            "rows_checked": int(ok.sum()),
+            "rows_missing_time": int((~ok).sum()),
+            "rows_after_cutoff": int(after.sum()),
+            "share_after_cutoff": share,
+            "lag_days_vs_cutoff": _quantiles_days(lag),
+            "lag_unit": unit_name,
+            f"lag_{unit_name}_vs_cutoff": _quantiles(lag, unit),
+            "examples_after_cutoff": _examples(table, after),
+            "cutoff": table.cutoff_source,
+            "tolerance": settings.time_tolerance,
+            "tolerance_used": f"{tol.ns / unit:g} {unit_name}",
+            "tolerance_reason": tol.reason,
+        }
         share_l = None
         if label is not None:
             ok_l = np.isfinite(times) & np.isfinite(label)
             after_l = ok_l & (times - label > tol.ns)
             share_l = float(after_l.sum() / ok_l.sum()) if ok_l.any() else 0.0
-            detail.update(share_after_label=share_l, rows_after_label=int(after_l.sum()),
-                          lag_days_vs_label=_quantiles_days(np.where(ok_l, times - label,
-                                                                     np.nan)))
+            detail.update(
+                share_after_label=share_l,
+                rows_after_label=int(after_l.sum()),
+                lag_days_vs_label=_quantiles_days(np.where(ok_l, times - label, np.nan)),
+            )
         level = column_level(share, share_l, settings.share_tolerance, self.thresholds)
-        return Evidence(self.name, "recorded_after_cutoff", "share_after_cutoff", share,
-                        self.thresholds.share.floor(), level, column=name,
-                        summary=_column_sentence(level, share, share_l, detail, tol),
-                        severity=min(1.0, share), detail=detail)
+        return Evidence(
+            self.name,
+            "recorded_after_cutoff",
+            "share_after_cutoff",
+            share,
+            self.thresholds.share.floor(),
+            level,
+            column=name,
+            summary=_column_sentence(level, share, share_l, detail, tol),
+            severity=min(1.0, share),
+            detail=detail,
+        )
 
-    def _split(self, table: AuditTable, settings: Settings,
-               skipped: list[Skip]) -> list[Evidence]:
+    def _split(self, table: AuditTable, settings: Settings, skipped: list[Skip]) -> list[Evidence]:
         base = table.cutoff_time if table.cutoff_time is not None else table.label_time
         if base is None:
             return []
         if table.heldout is None:
-            skipped.append(Skip(self.name, "audited as one pool: no held-out period to compare "
-                                           "with training (pass --split-column or --test)"))
+            skipped.append(
+                Skip(
+                    self.name,
+                    "audited as one pool: no held-out period to compare "
+                    "with training (pass --split-column or --test)",
+                )
+            )
             return []
         t = _ns(base)
         ok = np.isfinite(t)
@@ -349,54 +438,76 @@ class Timing(Probe):
         before = held & (t < end - tol_ns)
         share = float(before.sum() / held.sum())
         detail: dict = {
-            "time_column": table.cutoff_source if table.cutoff_time is not None
+            "time_column": table.cutoff_source
+            if table.cutoff_time is not None
             else f"label time {table.label_time_column}",
             "train_period": [_iso(np.min(t[train])), _iso(end)],
             "heldout_period": [_iso(np.min(t[held])), _iso(np.max(t[held]))],
             "overlap_days": max(0.0, (end - float(np.min(t[held]))) / _DAY),
-            "heldout_rows_before_train_end": int(before.sum()), "heldout_rows": int(held.sum()),
+            "heldout_rows_before_train_end": int(before.sum()),
+            "heldout_rows": int(held.sum()),
             "rows_missing_time": int((~ok).sum()),
             "heldout_days_vs_train_end": _quantiles_days(t[held] - end),
-            "examples": _examples(table, before), "tolerance": settings.time_tolerance,
+            "examples": _examples(table, before),
+            "tolerance": settings.time_tolerance,
             "tolerance_used": f"{tol.ns / tol.unit[1]:g} {tol.unit[0]}",
-            "tolerance_reason": tol.reason}
+            "tolerance_reason": tol.reason,
+        }
         if table.label_time is not None and table.cutoff_time is not None:
             lab = _ns(table.label_time)
             lab_end = float(np.nanmax(np.where(train, lab, np.nan)))
             detail["share_heldout_before_train_outcomes_known"] = float(
-                (held & (t < lab_end - tol_ns)).sum() / held.sum())
+                (held & (t < lab_end - tol_ns)).sum() / held.sum()
+            )
         if table.entity is not None:
             detail.update(_per_entity(table.frame[table.entity], t, train, held, tol_ns))
         level = share_level(share, settings.share_tolerance, self.thresholds)
-        summary = (f"{share:.0%} of held-out rows are earlier than the end of the training "
-                   f"period (overlap {detail['overlap_days']:.0f} days)" if level != Level.NONE
-                   else "the held-out period starts after the training period ends")
-        return [Evidence(self.name, "time_overlap_across_split", "heldout_share_before_train_end",
-                         share, self.thresholds.share.floor(), level, summary=summary,
-                         severity=min(1.0, share), detail=detail)]
+        summary = (
+            f"{share:.0%} of held-out rows are earlier than the end of the training "
+            f"period (overlap {detail['overlap_days']:.0f} days)"
+            if level != Level.NONE
+            else "the held-out period starts after the training period ends"
+        )
+        return [
+            Evidence(
+                self.name,
+                "time_overlap_across_split",
+                "heldout_share_before_train_end",
+                share,
+                self.thresholds.share.floor(),
+                level,
+                summary=summary,
+                severity=min(1.0, share),
+                detail=detail,
+            )
+        ]
 
 
-def _column_sentence(level: Level, share: float, share_l: float | None, detail: dict,
-                     tol: Tolerance) -> str:
+def _column_sentence(
+    level: Level, share: float, share_l: float | None, detail: dict, tol: Tolerance
+) -> str:
     """The sentence that explains a column's level (the level is decided elsewhere)."""
     unit_name = detail["lag_unit"]
     median = detail[f"lag_{unit_name}_vs_cutoff"].get("q50", 0.0)
     if level == Level.NONE:
         text = "known by the moment of prediction" + (
-            f" (after it for {share:.1%} of rows, within tolerance)" if share else "")
+            f" (after it for {share:.1%} of rows, within tolerance)" if share else ""
+        )
     else:
         text = f"known after the moment of prediction for {share:.0%} of rows"
         if share_l is not None and share_l > 0 and level == Level.CRITICAL:
             text += f", and after the outcome itself for {share_l:.0%}"
         text += f" (median lag {median:.3g} {unit_name})"
     text += f"; tolerance {detail['tolerance_used']} ({tol.reason})"
-    text += f"; {detail['rows_missing_time']} rows lack a time" \
-        if detail["rows_missing_time"] else ""
+    text += (
+        f"; {detail['rows_missing_time']} rows lack a time" if detail["rows_missing_time"] else ""
+    )
     return text
 
 
-def _per_entity(entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.ndarray,
-                tol_ns: float) -> dict:
+def _per_entity(
+    entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.ndarray, tol_ns: float
+) -> dict:
     """Within each entity: held-out rows earlier than that entity's latest training row."""
     codes, _ = pd.factorize(entity, use_na_sentinel=True)
     valid = codes >= 0
@@ -407,8 +518,10 @@ def _per_entity(entity: pd.Series, t: np.ndarray, train: np.ndarray, held: np.nd
     h = held & valid
     before = np.zeros(len(t), dtype=bool)
     before[h] = t[h] < last[codes[h]] - tol_ns
-    return {"entity_share_before_own_training_end": float(before.sum() / max(h.sum(), 1)),
-            "entity_rows_before_own_training_end": int(before.sum())}
+    return {
+        "entity_share_before_own_training_end": float(before.sum() / max(h.sum(), 1)),
+        "entity_rows_before_own_training_end": int(before.sum()),
+    }
 
 
 def _datetime_like(s: pd.Series) -> bool:

@@ -56,9 +56,13 @@ def small_binary() -> pd.DataFrame:
     n = 400
     x = rng.normal(size=n)
     y = (x + rng.normal(scale=1.0, size=n) > 0).astype(int)
-    return pd.DataFrame({
-        "signal": x, "noise": rng.normal(size=n), "noise2": rng.uniform(size=n),
-        "colour": rng.choice(["red", "green", "blue"], n),
-        "seen_at": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 300, n), "D"),
-        "y": y,
-    })
+    return pd.DataFrame(
+        {
+            "signal": x,
+            "noise": rng.normal(size=n),
+            "noise2": rng.uniform(size=n),
+            "colour": rng.choice(["red", "green", "blue"], n),
+            "seen_at": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 300, n), "D"),
+            "y": y,
+        }
+    )

@@ -23,23 +23,35 @@ from featureaudit.table import AuditTable, build_table
 
 Check = Callable[[type[Probe]], None]
 TARGET_KINDS = ("target_proxy", "row_order_tells_target")
-SPLIT_KINDS = ("duplicate_rows_across_split", "shared_entities_across_split",
-               "time_overlap_across_split", "split_shift")
+SPLIT_KINDS = (
+    "duplicate_rows_across_split",
+    "shared_entities_across_split",
+    "time_overlap_across_split",
+    "split_shift",
+)
 
 
 def awkward_frame(n: int = 300, seed: int = 0) -> pd.DataFrame:
     """One honest signal among constant, empty, all-missing, mixed and dated columns."""
     rng = np.random.default_rng(seed)
     y = rng.integers(0, 2, n)
-    return pd.DataFrame({
-        "good": rng.normal(size=n) + y, "constant": 1.0, "all_missing": np.nan,
-        "one_value_text": "same", "empty_text": "",
-        "mostly_missing": np.where(rng.random(n) < 0.97, np.nan, 1.0),
-        "mixed": [str(v) if i % 3 else "n/a" for i, v in enumerate(rng.integers(0, 9, n))],
-        "when": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 200, n), "D"),
-        "customer": rng.integers(0, 40, n), "split": np.where(rng.random(n) < 0.8, "train", "test"),
-        "decided_at": pd.Timestamp("2025-03-01") + pd.to_timedelta(rng.integers(0, 200, n), "D"),
-        "y": y})
+    return pd.DataFrame(
+        {
+            "good": rng.normal(size=n) + y,
+            "constant": 1.0,
+            "all_missing": np.nan,
+            "one_value_text": "same",
+            "empty_text": "",
+            "mostly_missing": np.where(rng.random(n) < 0.97, np.nan, 1.0),
+            "mixed": [str(v) if i % 3 else "n/a" for i, v in enumerate(rng.integers(0, 9, n))],
+            "when": pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 200, n), "D"),
+            "customer": rng.integers(0, 40, n),
+            "split": np.where(rng.random(n) < 0.8, "train", "test"),
+            "decided_at": pd.Timestamp("2025-03-01")
+            + pd.to_timedelta(rng.integers(0, 200, n), "D"),
+            "y": y,
+        }
+    )
 
 
 def noise_frame(n: int = 400, seed: int = 1, target: str = "binary") -> pd.DataFrame:
@@ -49,18 +61,27 @@ def noise_frame(n: int = 400, seed: int = 1, target: str = "binary") -> pd.DataF
     frame["level"] = rng.choice(["a", "b", "c"], n)
     frame["count"] = rng.poisson(3.0, n)
     frame["split"] = np.where(rng.random(n) < 0.8, "train", "test")
-    frame["y"] = {"binary": rng.integers(0, 2, n), "multiclass": rng.integers(0, 4, n),
-                  "numeric": rng.normal(size=n)}[target]
+    frame["y"] = {
+        "binary": rng.integers(0, 2, n),
+        "multiclass": rng.integers(0, 4, n),
+        "numeric": rng.normal(size=n),
+    }[target]
     return frame
 
 
 def awkward_table() -> AuditTable:
-    return build_table(awkward_frame(), target="y", split_column="split",
-                       label_time="decided_at", entity="customer")
+    return build_table(
+        awkward_frame(),
+        target="y",
+        split_column="split",
+        label_time="decided_at",
+        entity="customer",
+    )
 
 
-def _run(cls: type[Probe], table: AuditTable, settings: Settings | None = None
-         ) -> tuple[list[Evidence], list[Skip]]:
+def _run(
+    cls: type[Probe], table: AuditTable, settings: Settings | None = None
+) -> tuple[list[Evidence], list[Skip]]:
     evidence, skipped = cls().run(table, settings or Settings())
     assert isinstance(evidence, list) and isinstance(skipped, list)
     for e in evidence:
@@ -142,8 +163,13 @@ def check_fewer_rows_than_folds(cls: type[Probe]) -> None:
 
 def check_single_column(cls: type[Probe]) -> None:
     rng = np.random.default_rng(4)
-    frame = pd.DataFrame({"x": rng.normal(size=200), "y": rng.integers(0, 2, 200),
-                          "split": np.where(rng.random(200) < 0.8, "train", "test")})
+    frame = pd.DataFrame(
+        {
+            "x": rng.normal(size=200),
+            "y": rng.integers(0, 2, 200),
+            "split": np.where(rng.random(200) < 0.8, "train", "test"),
+        }
+    )
     evidence, skipped = _run(cls, build_table(frame, target="y", split_column="split"))
     _says_something(evidence, skipped)
     assert _highest(evidence) < Level.HIGH
@@ -180,9 +206,18 @@ def check_one_class_target(cls: type[Probe]) -> None:
 
 def yield_checks(cls: type[Probe]) -> Iterator[tuple[str, Check]]:
     """Every check that applies to ``cls``, by name."""
-    for check in (check_declares_itself, check_valid_evidence_on_awkward_columns,
-                  check_deterministic_for_a_seed, check_does_not_mutate_its_input,
-                  check_without_a_target, check_without_a_split, check_fewer_rows_than_folds,
-                  check_single_column, check_clean_binary_target, check_clean_multiclass_target,
-                  check_clean_numeric_target, check_one_class_target):
+    for check in (
+        check_declares_itself,
+        check_valid_evidence_on_awkward_columns,
+        check_deterministic_for_a_seed,
+        check_does_not_mutate_its_input,
+        check_without_a_target,
+        check_without_a_split,
+        check_fewer_rows_than_folds,
+        check_single_column,
+        check_clean_binary_target,
+        check_clean_multiclass_target,
+        check_clean_numeric_target,
+        check_one_class_target,
+    ):
         yield check.__name__.removeprefix("check_"), check

@@ -17,23 +17,36 @@ if BROWSER is None and os.environ.get("CI"):
     pytest.fail("Chromium is missing; .ci/run installs Debian's chromium", pytrace=False)
 pytestmark = pytest.mark.skipif(BROWSER is None, reason="Chromium is not installed")
 
-FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-         "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+FLAGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+]
 
 
 def _chromium(tmp: Path, url: str, *extra: str) -> tuple[str, list[str]]:
     """Run Chromium once; return stdout and the URLs the page itself asked for."""
     profile, netlog = tmp / f"profile{len(list(tmp.iterdir()))}", tmp / "net.json"
-    out = subprocess.run([BROWSER, *FLAGS, f"--user-data-dir={profile}",
-                          f"--log-net-log={netlog}", *extra, url],
-                         capture_output=True, text=True, timeout=120, check=True).stdout
+    out = subprocess.run(
+        [BROWSER, *FLAGS, f"--user-data-dir={profile}", f"--log-net-log={netlog}", *extra, url],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        check=True,
+    ).stdout
     log = json.loads(netlog.read_text())
     names = {v: k for k, v in log["constants"]["logEventTypes"].items()}
     page_requests = [
-        e["params"]["url"] for e in log["events"]
+        e["params"]["url"]
+        for e in log["events"]
         if names.get(e["type"]) == "URL_REQUEST_START_JOB"
         and str(e.get("params", {}).get("network_isolation_key", "")).startswith("file://")
-        and not str(e["params"].get("url", "")).startswith(("file:", "data:"))]
+        and not str(e["params"].get("url", "")).startswith(("file:", "data:"))
+    ]
     return out, page_requests
 
 
@@ -55,13 +68,21 @@ def test_dossier_in_chromium(demo_report, tmp_path):
     dom, requests = _chromium(tmp_path, (demo_report / "dossier.html").as_uri(), "--dump-dom")
     assert requests == []
     ranked = re.search(r'<table class="ranked" id="ranked">(.*?)</table>', dom, re.S).group(1)
-    for leak in ("reminders_sent", "in_collections", "last_contact_at", "amount_scaled",
-                 "credit_limit"):
+    for leak in (
+        "reminders_sent",
+        "in_collections",
+        "last_contact_at",
+        "amount_scaled",
+        "credit_limit",
+    ):
         assert leak in ranked, leak
     for honest in ("payment_terms_days", "region", "discount_pct"):
         assert honest not in ranked, honest
-    for finding in ("duplicate rows across split", "shared entities across split",
-                    "time overlap across split"):
+    for finding in (
+        "duplicate rows across split",
+        "shared entities across split",
+        "time overlap across split",
+    ):
         assert finding in dom
 
 

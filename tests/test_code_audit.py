@@ -54,30 +54,75 @@ def test_finding_carries_columns_code_and_remedy() -> None:
 # tool: driver; toolComponent: name; result: message; message: text here; reportingDescriptor:
 # id; region.startLine >= 1). Written from memory of the standard, not downloaded.
 SARIF_REQUIRED = {
-    "type": "object", "required": ["version", "runs"],
+    "type": "object",
+    "required": ["version", "runs"],
     "properties": {
         "version": {"const": "2.1.0"},
-        "runs": {"type": "array", "items": {
-            "type": "object", "required": ["tool"],
-            "properties": {
-                "tool": {"type": "object", "required": ["driver"], "properties": {
-                    "driver": {"type": "object", "required": ["name"], "properties": {
-                        "name": {"type": "string"},
-                        "rules": {"type": "array", "items": {
-                            "type": "object", "required": ["id"]}}}}}},
-                "results": {"type": "array", "items": {
-                    "type": "object", "required": ["message"],
-                    "properties": {
-                        "message": {"type": "object", "required": ["text"]},
-                        "level": {"enum": ["none", "note", "warning", "error"]},
-                        "ruleIndex": {"type": "integer", "minimum": 0},
-                        "locations": {"type": "array", "items": {"type": "object", "properties": {
-                            "physicalLocation": {"type": "object", "properties": {
-                                "artifactLocation": {"type": "object",
-                                                     "required": ["uri"]},
-                                "region": {"type": "object", "properties": {
-                                    "startLine": {"type": "integer",
-                                                  "minimum": 1}}}}}}}}}}}}}}},
+        "runs": {
+            "type": "array",
+            "items": {
+                "type": "object",
+                "required": ["tool"],
+                "properties": {
+                    "tool": {
+                        "type": "object",
+                        "required": ["driver"],
+                        "properties": {
+                            "driver": {
+                                "type": "object",
+                                "required": ["name"],
+                                "properties": {
+                                    "name": {"type": "string"},
+                                    "rules": {
+                                        "type": "array",
+                                        "items": {"type": "object", "required": ["id"]},
+                                    },
+                                },
+                            }
+                        },
+                    },
+                    "results": {
+                        "type": "array",
+                        "items": {
+                            "type": "object",
+                            "required": ["message"],
+                            "properties": {
+                                "message": {"type": "object", "required": ["text"]},
+                                "level": {"enum": ["none", "note", "warning", "error"]},
+                                "ruleIndex": {"type": "integer", "minimum": 0},
+                                "locations": {
+                                    "type": "array",
+                                    "items": {
+                                        "type": "object",
+                                        "properties": {
+                                            "physicalLocation": {
+                                                "type": "object",
+                                                "properties": {
+                                                    "artifactLocation": {
+                                                        "type": "object",
+                                                        "required": ["uri"],
+                                                    },
+                                                    "region": {
+                                                        "type": "object",
+                                                        "properties": {
+                                                            "startLine": {
+                                                                "type": "integer",
+                                                                "minimum": 1,
+                                                            }
+                                                        },
+                                                    },
+                                                },
+                                            }
+                                        },
+                                    },
+                                },
+                            },
+                        },
+                    },
+                },
+            },
+        },
+    },
 }
 
 
@@ -92,31 +137,49 @@ def test_sarif_has_the_fields_the_standard_requires() -> None:
 
 
 def test_cli_writes_json_and_sarif_and_fails_at(tmp_path: Path) -> None:
-    res = CliRunner().invoke(app, ["code", str(CASES / "smote_leaky.py"), "--out",
-                                   str(tmp_path), "--format", "sarif", "--fail-at", "high"])
+    res = CliRunner().invoke(
+        app,
+        [
+            "code",
+            str(CASES / "smote_leaky.py"),
+            "--out",
+            str(tmp_path),
+            "--format",
+            "sarif",
+            "--fail-at",
+            "high",
+        ],
+    )
     assert res.exit_code == 1, res.output
     doc = json.loads((tmp_path / "code-findings.json").read_text())
     assert doc["schema"] == "featureaudit.code/1"
     assert [f["kind"] for f in doc["findings"]] == ["oversampled_before_split"]
     assert {"file", "line", "cell", "kind", "level", "summary", "evidence"} <= set(
-        doc["findings"][0])
+        doc["findings"][0]
+    )
     assert json.loads((tmp_path / "code-findings.sarif").read_text())["version"] == "2.1.0"
-    clean = CliRunner().invoke(app, ["code", str(CASES / "smote_clean.py"), "--out",
-                                     str(tmp_path), "--fail-at", "low"])
+    clean = CliRunner().invoke(
+        app, ["code", str(CASES / "smote_clean.py"), "--out", str(tmp_path), "--fail-at", "low"]
+    )
     assert clean.exit_code == 0 and "0 finding(s)" in clean.output
 
 
-@pytest.mark.parametrize("name,content", [
-    ("broken.py", b"def f(:\n    pass\n"),
-    ("broken.ipynb", b"{\"cells\": [oops"),
-    ("blob.py", bytes(range(256)) * 4),
-])
-def test_unreadable_file_is_one_line_and_others_still_audited(tmp_path: Path, name: str,
-                                                              content: bytes) -> None:
+@pytest.mark.parametrize(
+    "name,content",
+    [
+        ("broken.py", b"def f(:\n    pass\n"),
+        ("broken.ipynb", b'{"cells": [oops'),
+        ("blob.py", bytes(range(256)) * 4),
+    ],
+)
+def test_unreadable_file_is_one_line_and_others_still_audited(
+    tmp_path: Path, name: str, content: bytes
+) -> None:
     bad = tmp_path / name
     bad.write_bytes(content)
-    res = CliRunner().invoke(app, ["code", str(bad), str(CASES / "scaler_leaky.py"),
-                                   "--out", str(tmp_path)])
+    res = CliRunner().invoke(
+        app, ["code", str(bad), str(CASES / "scaler_leaky.py"), "--out", str(tmp_path)]
+    )
     assert res.exit_code == 2
     errors = [ln for ln in res.stderr.splitlines() if ln.strip()]
     assert len(errors) == 1 and name in errors[0] and "Traceback" not in res.output
@@ -124,7 +187,7 @@ def test_unreadable_file_is_one_line_and_others_still_audited(tmp_path: Path, na
     assert [f["kind"] for f in doc["findings"]] == ["fit_before_split"]
 
 
-LEAKY_SELECTION = '''
+LEAKY_SELECTION = """
 import numpy as np
 from sklearn.feature_selection import SelectKBest, f_classif
 from sklearn.linear_model import LogisticRegression
@@ -135,8 +198,8 @@ y = rng.randint(0, 2, 200)
 X_sel = SelectKBest(f_classif, k=25).fit_transform(X, y)
 X_train, X_test, y_train, y_test = train_test_split(X_sel, y, random_state=42)
 score = LogisticRegression().fit(X_train, y_train).score(X_test, y_test)
-'''
-CORRECT_SELECTION = '''
+"""
+CORRECT_SELECTION = """
 import numpy as np
 from sklearn.feature_selection import SelectKBest, f_classif
 from sklearn.linear_model import LogisticRegression
@@ -148,7 +211,7 @@ y = rng.randint(0, 2, 200)
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=42)
 pipe = make_pipeline(SelectKBest(f_classif, k=25), LogisticRegression())
 score = pipe.fit(X_train, y_train).score(X_test, y_test)
-'''
+"""
 
 
 def test_selection_pitfall_scores_higher_when_leaky_and_is_flagged(tmp_path: Path) -> None:

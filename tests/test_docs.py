@@ -13,6 +13,7 @@ DEVELOPERS = (Path(__file__).resolve().parents[1] / "DEVELOPERS.md").read_text()
 
 def test_every_command_is_documented():
     import typer.main
+
     commands = typer.main.get_command(app).commands
     for name in commands:
         if name != "version":

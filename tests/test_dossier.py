@@ -19,29 +19,72 @@ LEVELS = list(LEVEL_NAMES)
 
 
 def _doc(columns=(), dataset=(), skipped=(), warnings=()):
-    return Findings({
-        "schema": "featureaudit.findings/1", "tool_version": "0.1.0",
-        "created": "2026-12-01T12:00:00Z",
-        "dataset": {"source": "t.csv", "rows": 10, "train_rows": 8, "heldout_rows": 2,
-                    "columns": 3, "target": "y", "task": "binary", "split": "column:split"},
-        "settings": {"seed": 0}, "columns": list(columns), "dataset_findings": list(dataset),
-        "skipped": list(skipped), "warnings": list(warnings)})
+    return Findings(
+        {
+            "schema": "featureaudit.findings/1",
+            "tool_version": "0.1.0",
+            "created": "2026-12-01T12:00:00Z",
+            "dataset": {
+                "source": "t.csv",
+                "rows": 10,
+                "train_rows": 8,
+                "heldout_rows": 2,
+                "columns": 3,
+                "target": "y",
+                "task": "binary",
+                "split": "column:split",
+            },
+            "settings": {"seed": 0},
+            "columns": list(columns),
+            "dataset_findings": list(dataset),
+            "skipped": list(skipped),
+            "warnings": list(warnings),
+        }
+    )
 
 
 def _column(name, level, kind="target_proxy", probe="solo", detail=None):
-    return {"column": name, "score": LEVELS.index(level) / 5, "level": level, "kinds": [kind],
-            "summary": f"{name} summary", "role": "feature", "description": "",
-            "evidence": [{"probe": probe, "kind": kind, "statistic": "s", "value": 0.5,
-                          "threshold": 0.4, "level": level, "summary": "e",
-                          "detail": detail or {}}]}
+    return {
+        "column": name,
+        "score": LEVELS.index(level) / 5,
+        "level": level,
+        "kinds": [kind],
+        "summary": f"{name} summary",
+        "role": "feature",
+        "description": "",
+        "evidence": [
+            {
+                "probe": probe,
+                "kind": kind,
+                "statistic": "s",
+                "value": 0.5,
+                "threshold": 0.4,
+                "level": level,
+                "summary": "e",
+                "detail": detail or {},
+            }
+        ],
+    }
 
 
 @pytest.mark.parametrize("kind", KINDS)
 @pytest.mark.parametrize("level", LEVELS)
 def test_every_kind_and_level_renders(kind, level):
-    doc = _doc([_column("c1", level, kind)],
-               [{"probe": "twins", "kind": kind, "statistic": "s", "value": 0.2,
-                 "threshold": 0.1, "level": level, "summary": "split summary", "detail": {}}])
+    doc = _doc(
+        [_column("c1", level, kind)],
+        [
+            {
+                "probe": "twins",
+                "kind": kind,
+                "statistic": "s",
+                "value": 0.2,
+                "threshold": 0.1,
+                "level": level,
+                "summary": "split summary",
+                "detail": {},
+            }
+        ],
+    )
     page = render_dossier(doc)
     assert "split summary" in page and str(escape(CAUTION)) in page
     if level != "none":
@@ -49,8 +92,12 @@ def test_every_kind_and_level_renders(kind, level):
 
 
 def test_empty_findings_and_every_probe_skipped():
-    doc = _doc(skipped=[{"probe": p, "column": None, "reason": f"{p} had nothing"}
-                        for p in ("solo", "timing", "fitscope", "twins", "separability")])
+    doc = _doc(
+        skipped=[
+            {"probe": p, "column": None, "reason": f"{p} had nothing"}
+            for p in ("solo", "timing", "fitscope", "twins", "separability")
+        ]
+    )
     page = render_dossier(doc)
     assert "No column reached level low" in page and "No finding about the split" in page
     assert page.count("had nothing") == 5
@@ -63,20 +110,32 @@ def test_hostile_names_values_and_descriptions_are_escaped():
     n = 400
     y = rng.integers(0, 2, n)
     evil = '<script>alert("x")</script>&"\'\x07\x1b'
-    frame = pd.DataFrame({evil: np.where(rng.random(n) < 0.97, y, 1 - y) + 0.0,
-                          "note": np.where((y == 1) ^ (rng.random(n) < 0.05), "<b>bold</b>",
-                                           'a&b"q"'),
-                          "x": rng.normal(size=n), "w": rng.normal(size=n),
-                          "v": rng.normal(size=n), "y": y})
+    frame = pd.DataFrame(
+        {
+            evil: np.where(rng.random(n) < 0.97, y, 1 - y) + 0.0,
+            "note": np.where((y == 1) ^ (rng.random(n) < 0.05), "<b>bold</b>", 'a&b"q"'),
+            "x": rng.normal(size=n),
+            "w": rng.normal(size=n),
+            "v": rng.normal(size=n),
+            "y": y,
+        }
+    )
     import csv
     import io
+
     buf = io.StringIO()
-    csv.writer(buf).writerows([["column", "role", "description"],
-                               [evil, "feature", "<img src=x onerror=alert(1)>"],
-                               ["note", "feature", "</td></tr><script>x()</script>"]])
+    csv.writer(buf).writerows(
+        [
+            ["column", "role", "description"],
+            [evil, "feature", "<img src=x onerror=alert(1)>"],
+            ["note", "feature", "</td></tr><script>x()</script>"],
+        ]
+    )
     from featureaudit.dictionary import parse_dictionary
-    result = fa.audit(frame, target="y", dictionary=parse_dictionary(buf.getvalue()),
-                      source="<t>&.csv")
+
+    result = fa.audit(
+        frame, target="y", dictionary=parse_dictionary(buf.getvalue()), source="<t>&.csv"
+    )
     files = render_all(result.findings)
     page = files["dossier.html"]
     assert "<script>alert" not in page and "<img src=x" not in page and "<b>bold" not in page
@@ -100,21 +159,38 @@ def test_dossier_is_self_contained():
 
 
 def test_a_thousand_column_dossier_stays_small():
-    detail = {"bins": [{"bin": f"[{i}, {i + 1})", "rows": 50, "stat": 0.1 + i / 100}
-                       for i in range(20)], "prior": 0.2, "bin_stat": "target rate",
-              "oof_value": 0.7, "ci95": [0.6, 0.8], "fold_values": [0.7] * 5}
-    cols = [_column(f"col_{i:04d}", LEVELS[i % 5], detail=copy.deepcopy(detail))
-            for i in range(1000)]
+    detail = {
+        "bins": [{"bin": f"[{i}, {i + 1})", "rows": 50, "stat": 0.1 + i / 100} for i in range(20)],
+        "prior": 0.2,
+        "bin_stat": "target rate",
+        "oof_value": 0.7,
+        "ci95": [0.6, 0.8],
+        "fold_values": [0.7] * 5,
+    }
+    cols = [
+        _column(f"col_{i:04d}", LEVELS[i % 5], detail=copy.deepcopy(detail)) for i in range(1000)
+    ]
     page = render_dossier(_doc(cols))
     assert len(page.encode()) < 5_000_000
     assert page.count("<svg") <= 60 + 5
 
 
 def test_summary_markdown_lists_suspects_and_droplist(tmp_path):
-    doc = _doc([_column("late_fee", "critical"), _column("amount", "none")],
-               [{"probe": "twins", "kind": "duplicate_rows_across_split", "statistic": "s",
-                 "value": 0.2, "threshold": 0.1, "level": "high", "summary": "copies|here",
-                 "detail": {}}])
+    doc = _doc(
+        [_column("late_fee", "critical"), _column("amount", "none")],
+        [
+            {
+                "probe": "twins",
+                "kind": "duplicate_rows_across_split",
+                "statistic": "s",
+                "value": 0.2,
+                "threshold": 0.1,
+                "level": "high",
+                "summary": "copies|here",
+                "detail": {},
+            }
+        ],
+    )
     md = render_summary(doc)
     assert "| critical |" in md and "`late_fee`" in md and "copies\\|here" in md
     assert "```\nlate_fee\n```" in md and CAUTION in md
@@ -128,8 +204,13 @@ def test_methods_and_thresholds_come_from_the_probes_and_the_settings_in_force()
 
     rng = np.random.default_rng(0)
     n = 300
-    frame = pd.DataFrame({"x": rng.normal(size=n), "y": rng.integers(0, 2, n),
-                          "split": np.where(rng.random(n) < 0.8, "train", "test")})
+    frame = pd.DataFrame(
+        {
+            "x": rng.normal(size=n),
+            "y": rng.integers(0, 2, n),
+            "split": np.where(rng.random(n) < 0.8, "train", "test"),
+        }
+    )
     settings = Settings(time_tolerance="3d")
     result = fa.audit(frame, target="y", split_column="split", settings=settings)
     recorded = result.document["settings"]
@@ -144,11 +225,21 @@ def test_methods_and_thresholds_come_from_the_probes_and_the_settings_in_force()
 
 
 def test_headline_counts_only_high_and_above_in_its_parentheses():
-    doc = {"schema": "featureaudit.findings/1", "dataset": {}, "settings": {},
-           "columns": [{"column": c, "level": lv} for c, lv in
-                       [("a", "critical"), ("b", "high"), ("c", "high"), ("d", "medium")]],
-           "dataset_findings": [], "skipped": [], "warnings": []}
+    doc = {
+        "schema": "featureaudit.findings/1",
+        "dataset": {},
+        "settings": {},
+        "columns": [
+            {"column": c, "level": lv}
+            for c, lv in [("a", "critical"), ("b", "high"), ("c", "high"), ("d", "medium")]
+        ],
+        "dataset_findings": [],
+        "skipped": [],
+        "warnings": [],
+    }
     from featureaudit.report import verdict_line
+
     line = verdict_line(Findings(doc))
-    assert line.startswith("3 findings at level high or above (1 critical, 2 high); "
-                           "1 more at medium.")
+    assert line.startswith(
+        "3 findings at level high or above (1 critical, 2 high); 1 more at medium."
+    )

@@ -7,14 +7,23 @@ from featureaudit.durations import parse_duration
 from featureaudit.errors import DurationError
 
 
-@pytest.mark.parametrize("text, expected", [
-    ("30d", pd.Timedelta(days=30)), ("30D", pd.Timedelta(days=30)),
-    ("30 days", pd.Timedelta(days=30)), ("-30d", pd.Timedelta(days=-30)),
-    ("+2 days", pd.Timedelta(days=2)), ("12h", pd.Timedelta(hours=12)),
-    ("P30D", pd.Timedelta(days=30)), ("-P30D", pd.Timedelta(days=-30)),
-    ("P1DT12H", pd.Timedelta(hours=36)), ("0d", pd.Timedelta(0)),
-    ("2 weeks", pd.Timedelta(days=14)), ("90 minutes", pd.Timedelta(minutes=90)),
-])
+@pytest.mark.parametrize(
+    "text, expected",
+    [
+        ("30d", pd.Timedelta(days=30)),
+        ("30D", pd.Timedelta(days=30)),
+        ("30 days", pd.Timedelta(days=30)),
+        ("-30d", pd.Timedelta(days=-30)),
+        ("+2 days", pd.Timedelta(days=2)),
+        ("12h", pd.Timedelta(hours=12)),
+        ("P30D", pd.Timedelta(days=30)),
+        ("-P30D", pd.Timedelta(days=-30)),
+        ("P1DT12H", pd.Timedelta(hours=36)),
+        ("0d", pd.Timedelta(0)),
+        ("2 weeks", pd.Timedelta(days=14)),
+        ("90 minutes", pd.Timedelta(minutes=90)),
+    ],
+)
 def test_accepted_spellings(text, expected):
     # reference: pandas.Timedelta built from explicit keyword units
     assert parse_duration(text) == expected

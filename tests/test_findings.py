@@ -20,13 +20,29 @@ def table():
 
 
 def ev(column, level, kind="target_proxy", severity=0.5, probe="solo"):
-    return Evidence(probe, kind, "oof_auc", 0.9, 0.8, level, column=column, summary=f"{column} s",
-                    severity=severity)
+    return Evidence(
+        probe,
+        kind,
+        "oof_auc",
+        0.9,
+        0.8,
+        level,
+        column=column,
+        summary=f"{column} s",
+        severity=severity,
+    )
 
 
 def test_rank_orders_by_level_then_severity(table):
-    verdicts, dataset = rank(table, [ev("a", "high", severity=0.2), ev("b", "high", severity=0.9),
-                                     ev("c", "low"), ev(None, "medium", "split_shift")])
+    verdicts, dataset = rank(
+        table,
+        [
+            ev("a", "high", severity=0.2),
+            ev("b", "high", severity=0.9),
+            ev("c", "low"),
+            ev(None, "medium", "split_shift"),
+        ],
+    )
     assert [v.column for v in verdicts] == ["b", "a", "c"]
     assert 0.6 <= verdicts[1].score < verdicts[0].score < 0.8
     assert dataset[0].kind == "split_shift"
@@ -66,28 +82,59 @@ def test_findings_json_is_strict_json_in_contract_order(breast_cancer):
 
 
 def _doc(columns, dataset=()):
-    return Findings({"schema": "featureaudit.findings/1", "columns": list(columns),
-                     "dataset_findings": list(dataset)})
+    return Findings(
+        {
+            "schema": "featureaudit.findings/1",
+            "columns": list(columns),
+            "dataset_findings": list(dataset),
+        }
+    )
 
 
 def test_droplist_levels_and_order():
-    doc = _doc([{"column": "x", "score": 0.7, "level": "high"},
-                {"column": "z", "score": 0.9, "level": "critical"},
-                {"column": "m", "score": 0.5, "level": "medium"}])
+    doc = _doc(
+        [
+            {"column": "x", "score": 0.7, "level": "high"},
+            {"column": "z", "score": 0.9, "level": "critical"},
+            {"column": "m", "score": 0.5, "level": "medium"},
+        ]
+    )
     assert droplist(doc, "high") == ["z", "x"]
     assert droplist(doc, "medium") == ["z", "x", "m"]
 
 
 def test_diff_new_gone_raised_lowered():
-    old = _doc([{"column": "a", "level": "low"}, {"column": "b", "level": "high"},
-                {"column": "gone", "level": "medium"}],
-               [{"probe": "twins", "kind": "duplicate_rows_across_split", "statistic": "s",
-                 "level": "high"}])
-    new = _doc([{"column": "a", "level": "critical"}, {"column": "b", "level": "low"},
-                {"column": "fresh", "level": "high"}, {"column": "quiet", "level": "none"}])
+    old = _doc(
+        [
+            {"column": "a", "level": "low"},
+            {"column": "b", "level": "high"},
+            {"column": "gone", "level": "medium"},
+        ],
+        [
+            {
+                "probe": "twins",
+                "kind": "duplicate_rows_across_split",
+                "statistic": "s",
+                "level": "high",
+            }
+        ],
+    )
+    new = _doc(
+        [
+            {"column": "a", "level": "critical"},
+            {"column": "b", "level": "low"},
+            {"column": "fresh", "level": "high"},
+            {"column": "quiet", "level": "none"},
+        ]
+    )
     changes = {(d.change, d.name) for d in diff_findings(old, new)}
-    assert changes == {("raised", "a"), ("lowered", "b"), ("gone", "gone"), ("new", "fresh"),
-                       ("gone", "twins/duplicate_rows_across_split/s")}
+    assert changes == {
+        ("raised", "a"),
+        ("lowered", "b"),
+        ("gone", "gone"),
+        ("new", "fresh"),
+        ("gone", "twins/duplicate_rows_across_split/s"),
+    }
 
 
 def test_result_object(breast_cancer):
@@ -104,8 +151,13 @@ def test_schema_2_fields_are_written(tmp_path):
     # and accepted, code_findings, and the engine with its sample size.
     rng = np.random.default_rng(0)
     n = 400
-    frame = pd.DataFrame({"x": rng.normal(size=n), "y": rng.integers(0, 2, n),
-                          "split": rng.choice(["train", "train", "train", "valid", "test"], n)})
+    frame = pd.DataFrame(
+        {
+            "x": rng.normal(size=n),
+            "y": rng.integers(0, 2, n),
+            "split": rng.choice(["train", "train", "train", "valid", "test"], n),
+        }
+    )
     frame.loc[frame.index[:40], "x2"] = 1.0
     doc = fa.audit(frame, target="y", split_column="split").document
     assert doc["schema"] == "featureaudit.findings/2"
@@ -121,9 +173,13 @@ def test_schema_2_fields_are_written(tmp_path):
 
 
 def test_schema_1_files_are_still_read(tmp_path):
-    old = {"schema": "featureaudit.findings/1", "columns": [
-        {"column": "leak", "level": "high", "score": 0.7}], "dataset_findings": []}
+    old = {
+        "schema": "featureaudit.findings/1",
+        "columns": [{"column": "leak", "level": "high", "score": 0.7}],
+        "dataset_findings": [],
+    }
     path = tmp_path / "old.json"
     path.write_text(json.dumps(old))
     from featureaudit.findings import load_findings
+
     assert droplist(load_findings(path), "high") == ["leak"]

@@ -22,8 +22,7 @@ def _split(frame, seed=0, share=0.3):
     return out
 
 
-def test_planted_duplicates_raise_the_score_and_deduplication_matches_a_direct_auc(
-        breast_cancer):
+def test_planted_duplicates_raise_the_score_and_deduplication_matches_a_direct_auc(breast_cancer):
     frame = _split(breast_cancer)
     train = frame[frame.split == "train"]
     copies = train.sample(120, random_state=1).assign(split="test")
@@ -31,7 +30,7 @@ def test_planted_duplicates_raise_the_score_and_deduplication_matches_a_direct_a
     result = fa.audit(planted, target="malignant", split_column="split", probes=["twins"])
     imp = result.document["impact"]
     dup = [e for e in imp["by_finding"] if e["kind"] == "duplicate_rows_across_split"][0]
-    assert dup["corrected"] < dup["as_given"]          # the copies lifted the held-out score
+    assert dup["corrected"] < dup["as_given"]  # the copies lifted the held-out score
     # reference: sklearn.metrics.roc_auc_score of the same LightGBM on held-out rows without twins
     feats = [c for c in breast_cancer.columns if c != "malignant"]
     tr = planted[planted.split == "train"]
@@ -39,7 +38,8 @@ def test_planted_duplicates_raise_the_score_and_deduplication_matches_a_direct_a
     keys = set(map(tuple, tr[feats].to_numpy()))
     clean = te[[tuple(r) not in keys for r in te[feats].to_numpy()]]
     model = lgb.LGBMClassifier(**_params(0, len(planted), 1)).fit(
-        tr[feats].to_numpy(), tr.malignant.to_numpy())
+        tr[feats].to_numpy(), tr.malignant.to_numpy()
+    )
     direct = roc_auc_score(clean.malignant, model.predict_proba(clean[feats].to_numpy())[:, 1])
     lo, hi = dup["as_given"] - dup["ci95"][1], dup["as_given"] - dup["ci95"][0]
     assert lo - 1e-9 <= direct <= hi + 1e-9
@@ -62,7 +62,7 @@ def test_noisy_target_copy_removed_gives_the_original_columns_score(breast_cance
     assert abs(leak["corrected"] - roc_auc_score(y, pred)) < 0.01
     assert leak["as_given"] > leak["corrected"]
     col = [c for c in result.document["columns"] if c["column"] == "leak"][0]
-    assert col["impact"]["change"] == leak["change"]        # one computation for both
+    assert col["impact"]["change"] == leak["change"]  # one computation for both
     assert col["remedy"] == "drop"
 
 
@@ -78,11 +78,15 @@ def test_scaler_fitted_on_all_rows_has_a_negligible_impact(breast_cancer):
     assert "mean radius" not in droplist(result.findings, "high")
 
 
-@pytest.mark.parametrize("kind, remedy", [
-    ("duplicate_rows_across_split", "deduplicate"),
-    ("shared_entities_across_split", "regroup_split"),
-    ("time_overlap_across_split", "split_by_time"),
-    ("split_shift", "review")])
+@pytest.mark.parametrize(
+    "kind, remedy",
+    [
+        ("duplicate_rows_across_split", "deduplicate"),
+        ("shared_entities_across_split", "regroup_split"),
+        ("time_overlap_across_split", "split_by_time"),
+        ("split_shift", "review"),
+    ],
+)
 def test_dataset_remedy_per_kind(kind, remedy):
     assert dataset_remedy({"kind": kind, "level": "high"}) == remedy
     assert dataset_remedy({"kind": kind, "level": "none"}) is None
@@ -91,6 +95,7 @@ def test_dataset_remedy_per_kind(kind, remedy):
 def test_column_remedy_per_kind():
     def col(level, *probes):
         return {"level": level, "evidence": [{"probe": p, "level": level} for p in probes]}
+
     assert column_remedy(col("high", "fitscope")) == "refit_on_training_rows"
     assert column_remedy(col("critical", "solo")) == "drop"
     assert column_remedy(col("high", "timing", "fitscope")) == "drop"

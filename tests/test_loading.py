@@ -13,10 +13,15 @@ from featureaudit.table import build_table, infer_task
 
 @pytest.fixture()
 def frame():
-    return pd.DataFrame({"id": [f"r{i}" for i in range(60)], "x": np.arange(60) * 1.5,
-                         "kind": ["a", "b", "c"] * 20,
-                         "day": [f"2025-01-{1 + i % 28:02d}" for i in range(60)],
-                         "y": [0, 1] * 30})
+    return pd.DataFrame(
+        {
+            "id": [f"r{i}" for i in range(60)],
+            "x": np.arange(60) * 1.5,
+            "kind": ["a", "b", "c"] * 20,
+            "day": [f"2025-01-{1 + i % 28:02d}" for i in range(60)],
+            "y": [0, 1] * 30,
+        }
+    )
 
 
 @pytest.mark.parametrize("suffix", [".csv", ".tsv", ".parquet", ".feather", ".arrow"])
@@ -32,9 +37,9 @@ def test_every_format_reads_the_same(tmp_path, frame, suffix):
         frame.to_feather(path)
     got = read_table(path)
     assert list(got.columns) == list(frame.columns) and len(got) == 60
-    assert pd.api.types.is_datetime64_any_dtype(got["day"])   # ISO strings become datetimes
+    assert pd.api.types.is_datetime64_any_dtype(got["day"])  # ISO strings become datetimes
     assert isinstance(got["kind"].dtype, pd.CategoricalDtype)  # low cardinality → category
-    assert got["id"].dtype == object                           # unique text stays text
+    assert got["id"].dtype == object  # unique text stays text
     # reference: pandas' own parsing of the same values
     assert (got["day"] == pd.to_datetime(frame["day"])).all()
 
@@ -42,8 +47,9 @@ def test_every_format_reads_the_same(tmp_path, frame, suffix):
 def test_folder_of_parquet_files(tmp_path, frame):
     (tmp_path / "parts").mkdir()
     for i, part in enumerate([frame.iloc[:20], frame.iloc[20:40], frame.iloc[40:]]):
-        pq.write_table(pa.Table.from_pandas(part, preserve_index=False),
-                       tmp_path / "parts" / f"p{i}.parquet")
+        pq.write_table(
+            pa.Table.from_pandas(part, preserve_index=False), tmp_path / "parts" / f"p{i}.parquet"
+        )
     assert len(read_table(tmp_path / "parts")) == 60
 
 
@@ -60,11 +66,18 @@ def test_test_table_without_target(frame):
     assert t.heldout_rows == 10 and t.labelled.sum() == 60 and t.split.startswith("test:")
 
 
-@pytest.mark.parametrize("values, task", [
-    ([0, 1] * 10, "binary"), (["yes", "no"] * 10, "binary"), ([True, False] * 10, "binary"),
-    ([0, 1, 2, 3] * 5, "multiclass"), (["a", "b", "c"] * 7, "multiclass"),
-    (list(np.linspace(0, 1, 20)), "numeric"), (list(range(50)), "numeric"),
-])
+@pytest.mark.parametrize(
+    "values, task",
+    [
+        ([0, 1] * 10, "binary"),
+        (["yes", "no"] * 10, "binary"),
+        ([True, False] * 10, "binary"),
+        ([0, 1, 2, 3] * 5, "multiclass"),
+        (["a", "b", "c"] * 7, "multiclass"),
+        (list(np.linspace(0, 1, 20)), "numeric"),
+        (list(range(50)), "numeric"),
+    ],
+)
 def test_task_inference(values, task):
     assert infer_task(pd.Series(values)) == task
 
@@ -82,8 +95,9 @@ def test_dictionary_row_for_a_missing_column_is_a_warning(frame):
 
 
 def test_dictionary_keeps_other_headers_and_reads_durations():
-    d = parse_dictionary("column,role,known_at,description,owner\n"
-                         "a,feature,-30d,amount,finance\nb,,decided_at,,\n")
+    d = parse_dictionary(
+        "column,role,known_at,description,owner\na,feature,-30d,amount,finance\nb,,decided_at,,\n"
+    )
     assert d.extra_headers == ("owner",) and d.entries["a"].extra == {"owner": "finance"}
     assert d.entries["a"].known_at_offset == pd.Timedelta(days=-30)
     assert d.entries["b"].role == "feature" and d.entries["b"].known_at_column == "decided_at"
@@ -98,6 +112,7 @@ def test_draft_dictionary_guesses_roles(frame):
 
 def read_table_like(frame):
     from featureaudit.io import normalise_frame
+
     return normalise_frame(frame.copy(), source="t")
 
 

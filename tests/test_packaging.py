@@ -13,8 +13,11 @@ ROOT = Path(__file__).resolve().parents[1]
 @pytest.fixture(scope="module")
 def wheel(tmp_path_factory):
     out = tmp_path_factory.mktemp("wheel")
-    subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps",
-                    "-q", "-w", str(out), str(ROOT)], check=True, capture_output=True)
+    subprocess.run(
+        [sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", "-w", str(out), str(ROOT)],
+        check=True,
+        capture_output=True,
+    )
     return next(out.glob("featureaudit-*.whl"))
 
 
@@ -22,10 +25,13 @@ def test_wheel_has_one_top_level_package(wheel):
     names = zipfile.ZipFile(wheel).namelist()
     tops = {n.split("/")[0] for n in names if not n.split("/")[0].endswith(".dist-info")}
     assert tops == {"featureaudit"}
-    for needed in ("featureaudit/probes/solo/__init__.py",
-                   "featureaudit/probes/solo/_peers.py", "featureaudit/probes/twins/hashing.py",
-                   "featureaudit/reports/templates/dossier.html.j2",
-                   "featureaudit/sample_data/invoices.csv",
-                   "featureaudit/sample_data/dictionary.csv"):
+    for needed in (
+        "featureaudit/probes/solo/__init__.py",
+        "featureaudit/probes/solo/_peers.py",
+        "featureaudit/probes/twins/hashing.py",
+        "featureaudit/reports/templates/dossier.html.j2",
+        "featureaudit/sample_data/invoices.csv",
+        "featureaudit/sample_data/dictionary.csv",
+    ):
         assert needed in names, needed
     assert not [n for n in names if n.startswith("probes/")]

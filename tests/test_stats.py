@@ -78,7 +78,8 @@ def test_multiclass_oof_auc_equals_macro_ovr(wine):
     pred = score.row_scores(t, b.codes)
     # reference: sklearn roc_auc_score(multi_class="ovr", average="macro")
     assert score.value == pytest.approx(
-        roc_auc_score(t.y, pred, multi_class="ovr", average="macro"), abs=1e-12)
+        roc_auc_score(t.y, pred, multi_class="ovr", average="macro"), abs=1e-12
+    )
 
 
 def test_numeric_oof_r2_and_spearman(diabetes):
@@ -92,14 +93,15 @@ def test_unique_values_cannot_be_memorised():
     # Every row in its own bin: out of fold, nothing is learned, so the AUC sits at chance.
     rng = np.random.default_rng(5)
     import pandas as pd
-    frame = pd.DataFrame({"code": [f"k{i}" for i in range(2000)],
-                          "y": rng.integers(0, 2, 2000)})
+
+    frame = pd.DataFrame({"code": [f"k{i}" for i in range(2000)], "y": rng.integers(0, 2, 2000)})
     t, b, score = _oof(frame, "code", "y", "binary", 2)
     assert score.value == pytest.approx(0.5, abs=1e-9)
 
 
 def test_quantile_bins_put_missing_values_in_bin_zero():
     import pandas as pd
+
     s = pd.Series([np.nan, 1.0, 2.0, 3.0, np.nan] * 20 + list(range(100)))
     b = bin_codes(s, 5)
     assert (b.codes[s.isna().to_numpy()] == 0).all()

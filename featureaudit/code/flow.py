@@ -21,20 +21,56 @@ __all__ = ["Val", "Event", "Flow", "ALL", "TRAIN", "VALID", "TEST", "HELDOUT"]
 
 ALL, TRAIN, VALID, TEST = "all", "train", "valid", "test"
 HELDOUT = (VALID, TEST)
-READERS = re.compile(r"^(read_\w+|load_\w+|fetch_\w+|make_classification|make_regression|"
-                     r"make_blobs|make_moons|make_circles|loadtxt|genfromtxt|"
-                     r"standard_normal|randn)$")
-REDUCTIONS = {"mean", "median", "std", "var", "quantile", "min", "max", "mode", "sum", "agg",
-              "nanmean", "nanmedian", "nanstd", "percentile", "nanpercentile", "average",
-              "describe"}
-MODELS = re.compile(r"(Classifier|Regressor|Regression|SVC|SVR|NB|Lasso|Ridge|ElasticNet|"
-                    r"LassoCV|RidgeCV|GBM\w*|Perceptron|Boost\w*|KNeighbors\w*)$")
-SELECTING = {"max", "min", "argmax", "argmin", "idxmax", "idxmin", "sorted", "nlargest",
-             "nsmallest", "sort_values"}
-_TOKENS = {TRAIN: {"train", "training", "tr", "trn"}, VALID: {"valid", "val", "validation",
-           "dev"}, TEST: {"test", "tst", "te", "holdout", "heldout", "oos"}}
-_WORDS = {TRAIN: {"train", "training", "fit"}, VALID: {"valid", "val", "validation", "dev"},
-          TEST: {"test", "holdout", "heldout", "eval"}}
+READERS = re.compile(
+    r"^(read_\w+|load_\w+|fetch_\w+|make_classification|make_regression|"
+    r"make_blobs|make_moons|make_circles|loadtxt|genfromtxt|"
+    r"standard_normal|randn)$"
+)
+REDUCTIONS = {
+    "mean",
+    "median",
+    "std",
+    "var",
+    "quantile",
+    "min",
+    "max",
+    "mode",
+    "sum",
+    "agg",
+    "nanmean",
+    "nanmedian",
+    "nanstd",
+    "percentile",
+    "nanpercentile",
+    "average",
+    "describe",
+}
+MODELS = re.compile(
+    r"(Classifier|Regressor|Regression|SVC|SVR|NB|Lasso|Ridge|ElasticNet|"
+    r"LassoCV|RidgeCV|GBM\w*|Perceptron|Boost\w*|KNeighbors\w*)$"
+)
+SELECTING = {
+    "max",
+    "min",
+    "argmax",
+    "argmin",
+    "idxmax",
+    "idxmin",
+    "sorted",
+    "nlargest",
+    "nsmallest",
+    "sort_values",
+}
+_TOKENS = {
+    TRAIN: {"train", "training", "tr", "trn"},
+    VALID: {"valid", "val", "validation", "dev"},
+    TEST: {"test", "tst", "te", "holdout", "heldout", "oos"},
+}
+_WORDS = {
+    TRAIN: {"train", "training", "fit"},
+    VALID: {"valid", "val", "validation", "dev"},
+    TEST: {"test", "holdout", "heldout", "eval"},
+}
 
 
 def name_role(name: str) -> str | None:
@@ -51,10 +87,10 @@ class Val:
     """What the analysis knows about a value: rows of some part, a statistic of them, split
     indices or a mask, an estimator, or a tuple of values."""
 
-    kind: str                      # rows, stat, index, mask, folds, estimator, tuple, score
+    kind: str  # rows, stat, index, mask, folds, estimator, tuple, score
     role: str | None = None
     trail: tuple[str, ...] = ()
-    cls: str = ""                  # estimator class
+    cls: str = ""  # estimator class
     family: str | None = None
     fitted_on: str | None = None
     items: tuple[Val | None, ...] = ()
@@ -68,7 +104,7 @@ class Val:
 class Event:
     """Something the rules judge: what happened, on which part, where."""
 
-    what: str                      # fit, stat_use, score, resample, select_func, eval_set
+    what: str  # fit, stat_use, score, resample, select_func, eval_set
     role: str | None
     unit: Unit
     line: int
@@ -110,7 +146,7 @@ class Flow:
         self.called: set[str] = set()
         self.events: list[Event] = []
         self.metric_events: list[Event] = []
-        self.splits: list[tuple[Unit, int, str]] = []   # (unit, line, how)
+        self.splits: list[tuple[Unit, int, str]] = []  # (unit, line, how)
         self.loops: list[int] = []
         self.loop_selects: set[int] = set()
         self.selecting_calls = 0
@@ -143,8 +179,11 @@ class Flow:
         elif isinstance(s, ast.AnnAssign) and s.value is not None:
             self.bind(s.target, self.ev(s.value), s.lineno, s.value)
         elif isinstance(s, ast.AugAssign):
-            self.ev(ast.BinOp(left=s.target, op=s.op, right=s.value, lineno=s.lineno,
-                              col_offset=s.col_offset))
+            self.ev(
+                ast.BinOp(
+                    left=s.target, op=s.op, right=s.value, lineno=s.lineno, col_offset=s.col_offset
+                )
+            )
         elif isinstance(s, ast.Expr):
             self.ev(s.value)
         elif isinstance(s, ast.Return):
@@ -188,12 +227,16 @@ class Flow:
         name assigned)?"""
         for node in ast.walk(ast.Module(body=body, type_ignores=[])):
             if isinstance(node, ast.If) and any(
-                    isinstance(c, ast.Compare) and any(isinstance(o, ast.Gt | ast.Lt | ast.GtE |
-                                                       ast.LtE) for o in c.ops)
-                    for c in ast.walk(node.test)):
+                isinstance(c, ast.Compare)
+                and any(isinstance(o, ast.Gt | ast.Lt | ast.GtE | ast.LtE) for o in c.ops)
+                for c in ast.walk(node.test)
+            ):
                 return True
-            if isinstance(node, ast.Name) and isinstance(node.ctx, ast.Store) and \
-                    "best" in node.id.lower():
+            if (
+                isinstance(node, ast.Name)
+                and isinstance(node.ctx, ast.Store)
+                and "best" in node.id.lower()
+            ):
                 return True
         return False
 
@@ -205,13 +248,18 @@ class Flow:
             if val is None:
                 self.env.pop(target.id, None)
                 return
-            if val.kind == "rows" and val.role == ALL and isinstance(source, ast.Call) and \
-                    READERS.match(_dotted(source.func).rsplit(".", 1)[-1]):
+            if (
+                val.kind == "rows"
+                and val.role == ALL
+                and isinstance(source, ast.Call)
+                and READERS.match(_dotted(source.func).rsplit(".", 1)[-1])
+            ):
                 named = name_role(target.id) or self._path_role(source)
                 if named:
                     val = replace(val, role=named)
-            self.env[target.id] = val.step(f"{target.id} (line {line})") \
-                if val.kind in ("rows", "stat") else val
+            self.env[target.id] = (
+                val.step(f"{target.id} (line {line})") if val.kind in ("rows", "stat") else val
+            )
         elif isinstance(target, ast.Tuple | ast.List):
             elts = target.elts
             if val is not None and val.kind == "tuple" and len(val.items) == len(elts):
@@ -219,8 +267,9 @@ class Flow:
                     self.bind(t, v, line, None)
             else:
                 for t in elts:
-                    self.bind(t, val if val is not None and val.kind == "rows" else None,
-                              line, None)
+                    self.bind(
+                        t, val if val is not None and val.kind == "rows" else None, line, None
+                    )
 
     @staticmethod
     def _path_role(call: ast.Call) -> str | None:
@@ -233,8 +282,12 @@ class Flow:
     def bind_loop(self, target: ast.AST, it: Val | None, line: int) -> None:
         if it is not None and it.kind == "folds":
             pair = Val("tuple", items=(Val("index", TRAIN), Val("index", VALID)))
-            if isinstance(target, ast.Tuple) and len(target.elts) == 2 and \
-                    isinstance(target.elts[1], ast.Tuple) and it.cls == "enumerate":
+            if (
+                isinstance(target, ast.Tuple)
+                and len(target.elts) == 2
+                and isinstance(target.elts[1], ast.Tuple)
+                and it.cls == "enumerate"
+            ):
                 self.bind(target.elts[1], pair, line, None)
             else:
                 self.bind(target, pair, line, None)
@@ -263,8 +316,11 @@ class Flow:
                     return None
                 if e.attr in REDUCTIONS:
                     return None
-                return replace(base, columns=base.columns + (e.attr,)) \
-                    if e.attr not in ("values", "loc", "iloc", "T", "str", "dt") else base
+                return (
+                    replace(base, columns=base.columns + (e.attr,))
+                    if e.attr not in ("values", "loc", "iloc", "T", "str", "dt")
+                    else base
+                )
             return base if base.kind in ("estimator", "stat") else None
         if isinstance(e, ast.Subscript):
             return self.subscript(e)
@@ -340,8 +396,11 @@ class Flow:
             self.ev(e.slice)
             return None
         if base.kind == "tuple":
-            if isinstance(e.slice, ast.Constant) and isinstance(e.slice.value, int) and \
-                    -len(base.items) <= e.slice.value < len(base.items):
+            if (
+                isinstance(e.slice, ast.Constant)
+                and isinstance(e.slice.value, int)
+                and -len(base.items) <= e.slice.value < len(base.items)
+            ):
                 return base.items[e.slice.value]
             return None
         if base.kind == "stat":
@@ -374,8 +433,11 @@ class Flow:
         if isinstance(node, ast.Constant) and isinstance(node.value, str):
             return (node.value,)
         if isinstance(node, ast.List | ast.Tuple):
-            return tuple(x.value for x in node.elts
-                         if isinstance(x, ast.Constant) and isinstance(x.value, str))
+            return tuple(
+                x.value
+                for x in node.elts
+                if isinstance(x, ast.Constant) and isinstance(x.value, str)
+            )
         if isinstance(node, ast.Name) and isinstance(self.consts.get(node.id), list | tuple):
             return tuple(str(x) for x in self.consts[node.id])
         return ()
@@ -383,8 +445,11 @@ class Flow:
     # ---- calls ------------------------------------------------------------------------
     def call(self, e: ast.Call) -> Val | None:
         func = e.func
-        name = func.attr if isinstance(func, ast.Attribute) else (
-            func.id if isinstance(func, ast.Name) else "")
+        name = (
+            func.attr
+            if isinstance(func, ast.Attribute)
+            else (func.id if isinstance(func, ast.Name) else "")
+        )
         args = [self.ev(a) for a in e.args]
         kw = {k.arg: self.ev(k.value) for k in e.keywords if k.arg}
         if name in SELECTING:
@@ -395,8 +460,11 @@ class Flow:
         fam = family_of(name)
         if fam is None and MODELS.search(name) and name[:1].isupper():
             fam = "model"
-        if fam is not None and isinstance(func, ast.Name | ast.Attribute) and \
-                not (isinstance(func, ast.Attribute) and self._is_value(func.value)):
+        if (
+            fam is not None
+            and isinstance(func, ast.Name | ast.Attribute)
+            and not (isinstance(func, ast.Attribute) and self._is_value(func.value))
+        ):
             inner = args[0] if args else kw.get("estimator")
             if fam == "search" and inner is not None and inner.family == "pipeline":
                 return Val("estimator", cls=name, family="search", items=(inner,))
@@ -405,29 +473,50 @@ class Flow:
             return Val("estimator", cls=name, family=None if fam == "model" else fam)
         if name == "train_test_split":
             return self._tts(e, args)
-        if name in ("cross_val_score", "cross_validate", "cross_val_predict",
-                    "permutation_test_score", "learning_curve", "validation_curve"):
+        if name in (
+            "cross_val_score",
+            "cross_validate",
+            "cross_val_predict",
+            "permutation_test_score",
+            "learning_curve",
+            "validation_curve",
+        ):
             self.splits.append((self.unit, e.lineno, name))  # type: ignore[arg-type]
             return None
-        if re.search(r"(_score|_error|_loss|^score)$", name) and name not in SCORE_FUNCS and \
-                not isinstance(func, ast.Attribute) or name in ("log_loss", "r2_score"):
+        if (
+            re.search(r"(_score|_error|_loss|^score)$", name)
+            and name not in SCORE_FUNCS
+            and not isinstance(func, ast.Attribute)
+            or name in ("log_loss", "r2_score")
+        ):
             rows = [a for a in [*args, *kw.values()] if a is not None and a.kind == "rows"]
             held = next((a for a in rows if a.role in HELDOUT), rows[0] if rows else None)
             assert self.unit is not None
-            self.metric_events.append(Event("score", held.role if held else None, self.unit,
-                                            e.lineno, loop=self.loops[-1] if self.loops else None))
+            self.metric_events.append(
+                Event(
+                    "score",
+                    held.role if held else None,
+                    self.unit,
+                    e.lineno,
+                    loop=self.loops[-1] if self.loops else None,
+                )
+            )
             return Val("score", held.role if held else None)
         if name in SCORE_FUNCS:
             self._event("select_func", args[0] if args else None, e, cls=name, supervised=True)
             return None
         if name == "enumerate" and args and args[0] is not None and args[0].kind == "folds":
             return replace(args[0], cls="enumerate")
-        if name in ("concat", "vstack", "hstack", "concatenate", "append", "merge") and \
-                not (isinstance(func, ast.Attribute) and self._is_value(func.value)):
-            parts = [v for a in args for v in (a.items if a and a.kind == "tuple" else (a,))
-                     if v is not None and v.kind == "rows"]
-            return Val("rows", _merge([v.role for v in parts]),
-                       parts[0].trail) if parts else None
+        if name in ("concat", "vstack", "hstack", "concatenate", "append", "merge") and not (
+            isinstance(func, ast.Attribute) and self._is_value(func.value)
+        ):
+            parts = [
+                v
+                for a in args
+                for v in (a.items if a and a.kind == "tuple" else (a,))
+                if v is not None and v.kind == "rows"
+            ]
+            return Val("rows", _merge([v.role for v in parts]), parts[0].trail) if parts else None
         if name == "resample" and not isinstance(func, ast.Attribute):
             resampled = args[0] if args else None
             if self._replace_true(e):
@@ -454,8 +543,10 @@ class Flow:
 
     @staticmethod
     def _replace_true(e: ast.Call) -> bool:
-        return any(k.arg == "replace" and isinstance(k.value, ast.Constant) and
-                   k.value.value is True for k in e.keywords)
+        return any(
+            k.arg == "replace" and isinstance(k.value, ast.Constant) and k.value.value is True
+            for k in e.keywords
+        )
 
     def _tts(self, e: ast.Call, args: list[Val | None]) -> Val:
         self.splits.append((self.unit, e.lineno, "train_test_split"))  # type: ignore[arg-type]
@@ -464,21 +555,36 @@ class Flow:
             base = a if a is not None and a.kind == "rows" else Val("rows", None)
             heldout = VALID if base.role == TRAIN else TEST
             trail = base.trail + (f"train_test_split at line {e.lineno}",)
-            out += [replace(base, role=TRAIN if base.role in (ALL, None, TRAIN) else base.role,
-                            trail=trail),
-                    replace(base, role=heldout if base.role in (ALL, None, TRAIN) else base.role,
-                            trail=trail)]
+            out += [
+                replace(
+                    base, role=TRAIN if base.role in (ALL, None, TRAIN) else base.role, trail=trail
+                ),
+                replace(
+                    base,
+                    role=heldout if base.role in (ALL, None, TRAIN) else base.role,
+                    trail=trail,
+                ),
+            ]
         return Val("tuple", items=tuple(out))
 
     def _event(self, what: str, rows: Val | None, e: ast.Call, **extra: Any) -> None:
         assert self.unit is not None
-        self.events.append(Event(what, rows.role if rows else None, self.unit, e.lineno,
-                                 trail=rows.trail if rows else (),
-                                 loop=self.loops[-1] if self.loops else None,
-                                 columns=rows.columns if rows else (), **extra))
+        self.events.append(
+            Event(
+                what,
+                rows.role if rows else None,
+                self.unit,
+                e.lineno,
+                trail=rows.trail if rows else (),
+                loop=self.loops[-1] if self.loops else None,
+                columns=rows.columns if rows else (),
+                **extra,
+            )
+        )
 
-    def method(self, est: Val, name: str, args: list[Val | None], kw: dict[str, Val | None],
-               e: ast.Call) -> Val | None:
+    def method(
+        self, est: Val, name: str, args: list[Val | None], kw: dict[str, Val | None], e: ast.Call
+    ) -> Val | None:
         x = args[0] if args else kw.get("X")
         supervised = len(args) > 1 or "y" in kw
         if est.family == "splitter" and name == "split":
@@ -486,12 +592,23 @@ class Flow:
             return Val("folds", cls=est.cls)
         if name in ("fit", "fit_transform", "fit_resample", "fit_predict"):
             if x is not None and x.kind == "rows":
-                self._event("fit", x, e, cls=est.cls, family=est.family, supervised=supervised,
-                            extra={"method": name})
+                self._event(
+                    "fit",
+                    x,
+                    e,
+                    cls=est.cls,
+                    family=est.family,
+                    supervised=supervised,
+                    extra={"method": name},
+                )
             if "eval_set" in kw:
                 ev_set = kw["eval_set"]
-                roles = [i for t in (ev_set.items if ev_set and ev_set.kind == "tuple" else ())
-                         for i in (t.items if t and t.kind == "tuple" else (t,)) if i]
+                roles = [
+                    i
+                    for t in (ev_set.items if ev_set and ev_set.kind == "tuple" else ())
+                    for i in (t.items if t and t.kind == "tuple" else (t,))
+                    if i
+                ]
                 if any(r.kind == "rows" and r.role == TEST for r in roles):
                     self._event("eval_set", Val("rows", TEST), e, cls=est.cls)
             if est.family == "search" and x is not None:
@@ -504,32 +621,44 @@ class Flow:
                 y = args[1] if len(args) > 1 else None
                 return Val("tuple", items=(out, y))
             return x if x is not None and x.kind == "rows" else None
-        if name in ("transform", "predict", "predict_proba", "decision_function",
-                    "inverse_transform", "predict_log_proba"):
+        if name in (
+            "transform",
+            "predict",
+            "predict_proba",
+            "decision_function",
+            "inverse_transform",
+            "predict_log_proba",
+        ):
             return replace(x, kind="rows") if x is not None and x.kind == "rows" else None
         if name == "score":
             self._event("score", x, e, cls=est.cls)
             return Val("score", x.role if x else None)
         return None
 
-    def rows_method(self, rows: Val, name: str, args: list[Val | None],
-                    kw: dict[str, Val | None], e: ast.Call) -> Val | None:
+    def rows_method(
+        self, rows: Val, name: str, args: list[Val | None], kw: dict[str, Val | None], e: ast.Call
+    ) -> Val | None:
         if name in REDUCTIONS:
             return Val("stat", rows.role, rows.trail, columns=rows.columns)
         if name in ("corr", "corrwith"):
             target = [a for a in args if a is not None and a.kind == "rows"]
-            self._event("corr", rows, e, cls=f".{name}()", supervised=bool(target) or
-                        name == "corr")
+            self._event(
+                "corr", rows, e, cls=f".{name}()", supervised=bool(target) or name == "corr"
+            )
             return Val("stat", rows.role, rows.trail)
         if name == "sample":
             if self._replace_true(e):
                 self._event("resample", rows, e, cls="DataFrame.sample(replace=True)")
                 return rows
-            return self._split_part(rows, TRAIN if rows.role != TRAIN else VALID, e.lineno,
-                                    "df.sample")
+            return self._split_part(
+                rows, TRAIN if rows.role != TRAIN else VALID, e.lineno, "df.sample"
+            )
         if name == "drop":
-            by = e.args[0] if e.args else next((k.value for k in e.keywords
-                                                if k.arg == "index"), None)
+            by = (
+                e.args[0]
+                if e.args
+                else next((k.value for k in e.keywords if k.arg == "index"), None)
+            )
             if isinstance(by, ast.Attribute) and by.attr == "index":
                 other = self.ev(by.value)
                 if other is not None and other.kind == "rows" and other.role == TRAIN:
@@ -552,13 +681,22 @@ class Flow:
         if stats and rows:
             assert self.unit is not None
             stat = next((s for s in stats if s.role == ALL), stats[0])
-            self.events.append(Event("stat_use", stat.role, self.unit, line,
-                                     trail=stat.trail, columns=rows[0].columns or stat.columns,
-                                     loop=self.loops[-1] if self.loops else None,
-                                     extra={"applied_to": rows[0].role}))
+            self.events.append(
+                Event(
+                    "stat_use",
+                    stat.role,
+                    self.unit,
+                    line,
+                    trail=stat.trail,
+                    columns=rows[0].columns or stat.columns,
+                    loop=self.loops[-1] if self.loops else None,
+                    extra={"applied_to": rows[0].role},
+                )
+            )
 
-    def call_function(self, fn: ast.FunctionDef, args: list[Val | None],
-                      kw: dict[str, Val | None]) -> Val | None:
+    def call_function(
+        self, fn: ast.FunctionDef, args: list[Val | None], kw: dict[str, Val | None]
+    ) -> Val | None:
         """Analyse a function of the file with its parameters bound to the call's values."""
         saved = dict(self.env)
         params = [a.arg for a in fn.args.args]

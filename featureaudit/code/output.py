@@ -18,42 +18,79 @@ from featureaudit.levels import Level
 __all__ = ["SCHEMA", "document", "sarif", "text_lines", "write_outputs"]
 
 SCHEMA = "featureaudit.code/1"
-_SARIF_LEVEL = {Level.CRITICAL: "error", Level.HIGH: "error", Level.MEDIUM: "warning",
-                Level.LOW: "note", Level.NONE: "none"}
-NOTE = ("notebook cells are read in file order; the order they were run in may differ, and "
-        "line numbers count from the top of each cell")
+_SARIF_LEVEL = {
+    Level.CRITICAL: "error",
+    Level.HIGH: "error",
+    Level.MEDIUM: "warning",
+    Level.LOW: "note",
+    Level.NONE: "none",
+}
+NOTE = (
+    "notebook cells are read in file order; the order they were run in may differ, and "
+    "line numbers count from the top of each cell"
+)
 
 
 def document(result: CodeAudit) -> dict[str, Any]:
     """The ``code-findings.json`` document."""
-    return {"schema": SCHEMA, "tool_version": __version__,
-            "created": datetime.now(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
-            "files": result.files, "notes": [NOTE],
-            "findings": [f.to_dict() for f in result.findings], "errors": result.errors}
+    return {
+        "schema": SCHEMA,
+        "tool_version": __version__,
+        "created": datetime.now(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "files": result.files,
+        "notes": [NOTE],
+        "findings": [f.to_dict() for f in result.findings],
+        "errors": result.errors,
+    }
 
 
 def sarif(result: CodeAudit) -> dict[str, Any]:
     """The findings as one SARIF 2.1.0 run (one rule per kind)."""
     ids = list(KINDS)
-    rules = [{"id": k, "name": k, "shortDescription": {"text": KINDS[k]},
-              "help": {"text": "; or ".join(v for key, v in REMEDY.items()
-                                            if key.split("/")[0] == k)}} for k in ids]
+    rules = [
+        {
+            "id": k,
+            "name": k,
+            "shortDescription": {"text": KINDS[k]},
+            "help": {
+                "text": "; or ".join(v for key, v in REMEDY.items() if key.split("/")[0] == k)
+            },
+        }
+        for k in ids
+    ]
     results = []
     for f in result.findings:
         region: dict[str, Any] = {"startLine": f.line, "snippet": {"text": f.code}}
         message = f.summary + (f" (cell {f.cell})" if f.cell else "") + f". Fix: {f.remedy}."
-        results.append({
-            "ruleId": f.kind, "ruleIndex": ids.index(f.kind), "level": _SARIF_LEVEL[f.level],
-            "message": {"text": message},
-            "locations": [{"physicalLocation": {"artifactLocation": {"uri": Path(f.file)
-                                                                      .as_posix()},
-                                                "region": region}}],
-            "properties": {"cell": f.cell, "featureauditLevel": f.level.label,
-                           "flow": f.flow}})
-    return {"$schema": "https://json.schemastore.org/sarif-2.1.0.json", "version": "2.1.0",
-            "runs": [{"tool": {"driver": {"name": "featureaudit", "version": __version__,
-                                          "rules": rules}},
-                      "results": results}]}
+        results.append(
+            {
+                "ruleId": f.kind,
+                "ruleIndex": ids.index(f.kind),
+                "level": _SARIF_LEVEL[f.level],
+                "message": {"text": message},
+                "locations": [
+                    {
+                        "physicalLocation": {
+                            "artifactLocation": {"uri": Path(f.file).as_posix()},
+                            "region": region,
+                        }
+                    }
+                ],
+                "properties": {"cell": f.cell, "featureauditLevel": f.level.label, "flow": f.flow},
+            }
+        )
+    return {
+        "$schema": "https://json.schemastore.org/sarif-2.1.0.json",
+        "version": "2.1.0",
+        "runs": [
+            {
+                "tool": {
+                    "driver": {"name": "featureaudit", "version": __version__, "rules": rules}
+                },
+                "results": results,
+            }
+        ],
+    }
 
 
 def text_lines(result: CodeAudit) -> list[str]:
@@ -61,8 +98,12 @@ def text_lines(result: CodeAudit) -> list[str]:
     lines = []
     for f in result.findings:
         where = f"{f.file}:{f.line}" + (f" (cell {f.cell})" if f.cell else "")
-        lines += [f"{where}: {f.level.label} {f.kind}: {f.summary}", f"    {f.code}",
-                  f"    flow: {f.flow}", f"    fix: {f.remedy}"]
+        lines += [
+            f"{where}: {f.level.label} {f.kind}: {f.summary}",
+            f"    {f.code}",
+            f"    flow: {f.flow}",
+            f"    fix: {f.remedy}",
+        ]
     readable = sum(1 for x in result.files if not x.get("error"))
     lines.append(f"{len(result.findings)} finding(s) in {readable} file(s)")
     return lines

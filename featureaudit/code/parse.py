@@ -40,11 +40,14 @@ def _parse(source: str, name: str) -> ast.Module:
     try:
         return ast.parse(source, filename=name)
     except SyntaxError as exc:
-        raise InputFileError(f"{name}: line {exc.lineno}: Python syntax error ({exc.msg}); fix "
-                             "the file or leave it out of the paths to audit.") from exc
+        raise InputFileError(
+            f"{name}: line {exc.lineno}: Python syntax error ({exc.msg}); fix "
+            "the file or leave it out of the paths to audit."
+        ) from exc
     except ValueError as exc:  # null bytes
-        raise InputFileError(f"{name}: not Python source ({exc}); pass .py scripts or .ipynb "
-                             "notebooks.") from exc
+        raise InputFileError(
+            f"{name}: not Python source ({exc}); pass .py scripts or .ipynb notebooks."
+        ) from exc
 
 
 def read_units(path: str | Path) -> list[Unit]:
@@ -55,24 +58,29 @@ def read_units(path: str | Path) -> list[Unit]:
     try:
         raw = p.read_bytes()
     except OSError as exc:
-        raise InputFileError(f"{name}: cannot be read ({exc.strerror or exc}); pass an existing "
-                             "script or notebook.") from exc
+        raise InputFileError(
+            f"{name}: cannot be read ({exc.strerror or exc}); pass an existing script or notebook."
+        ) from exc
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
-        raise InputFileError(f"{name}: not UTF-8 text (a binary file?); pass .py scripts or "
-                             ".ipynb notebooks.") from exc
+        raise InputFileError(
+            f"{name}: not UTF-8 text (a binary file?); pass .py scripts or .ipynb notebooks."
+        ) from exc
     if p.suffix.lower() != ".ipynb":
         return [Unit(name, None, _parse(text, name), tuple(text.splitlines()))]
     try:
         doc = json.loads(text)
     except json.JSONDecodeError as exc:
-        raise InputFileError(f"{name}: not a valid notebook (JSON error at line {exc.lineno}: "
-                             f"{exc.msg}); save it again from Jupyter.") from exc
+        raise InputFileError(
+            f"{name}: not a valid notebook (JSON error at line {exc.lineno}: "
+            f"{exc.msg}); save it again from Jupyter."
+        ) from exc
     cells = doc.get("cells") if isinstance(doc, dict) else None
     if not isinstance(cells, list):
-        raise InputFileError(f"{name}: a notebook without a 'cells' list; save it again from "
-                             "Jupyter (nbformat 4).")
+        raise InputFileError(
+            f"{name}: a notebook without a 'cells' list; save it again from Jupyter (nbformat 4)."
+        )
     units = []
     for index, cell in enumerate(cells, start=1):
         if not isinstance(cell, dict) or cell.get("cell_type") != "code":
@@ -80,6 +88,7 @@ def read_units(path: str | Path) -> list[Unit]:
         src = cell.get("source", "")
         source = "".join(src) if isinstance(src, list) else str(src)
         clean = _strip_magics(source)
-        units.append(Unit(name, index, _parse(clean, f"{name} cell {index}"),
-                          tuple(source.splitlines())))
+        units.append(
+            Unit(name, index, _parse(clean, f"{name} cell {index}"), tuple(source.splitlines()))
+        )
     return units

@@ -15,40 +15,110 @@ from featureaudit.levels import Level
 __all__ = ["Finding", "KINDS", "family_of", "LEVELS", "REMEDY"]
 
 TRANSFORMERS = {
-    "StandardScaler", "MinMaxScaler", "RobustScaler", "MaxAbsScaler", "QuantileTransformer",
-    "PowerTransformer", "SimpleImputer", "KNNImputer", "IterativeImputer", "PCA", "TruncatedSVD",
-    "KernelPCA", "FastICA", "NMF", "KBinsDiscretizer", "TfidfVectorizer", "CountVectorizer",
-    "TfidfTransformer", "OneHotEncoder", "OrdinalEncoder", "TargetEncoder", "SplineTransformer",
-    "FactorAnalysis", "IncrementalPCA",
+    "StandardScaler",
+    "MinMaxScaler",
+    "RobustScaler",
+    "MaxAbsScaler",
+    "QuantileTransformer",
+    "PowerTransformer",
+    "SimpleImputer",
+    "KNNImputer",
+    "IterativeImputer",
+    "PCA",
+    "TruncatedSVD",
+    "KernelPCA",
+    "FastICA",
+    "NMF",
+    "KBinsDiscretizer",
+    "TfidfVectorizer",
+    "CountVectorizer",
+    "TfidfTransformer",
+    "OneHotEncoder",
+    "OrdinalEncoder",
+    "TargetEncoder",
+    "SplineTransformer",
+    "FactorAnalysis",
+    "IncrementalPCA",
 }
 SUPERVISED_TRANSFORMERS = {"TargetEncoder"}
 SELECTORS = {
-    "SelectKBest", "SelectPercentile", "SelectFpr", "SelectFdr", "SelectFwe", "RFE", "RFECV",
-    "SelectFromModel", "SequentialFeatureSelector", "GenericUnivariateSelect",
+    "SelectKBest",
+    "SelectPercentile",
+    "SelectFpr",
+    "SelectFdr",
+    "SelectFwe",
+    "RFE",
+    "RFECV",
+    "SelectFromModel",
+    "SequentialFeatureSelector",
+    "GenericUnivariateSelect",
     "VarianceThreshold",
 }
-SCORE_FUNCS = {"f_classif", "f_regression", "chi2", "mutual_info_classif",
-               "mutual_info_regression", "r_regression"}
-SAMPLERS = {
-    "SMOTE", "ADASYN", "BorderlineSMOTE", "SVMSMOTE", "SMOTENC", "SMOTEN", "KMeansSMOTE",
-    "RandomOverSampler", "SMOTETomek", "SMOTEENN",
+SCORE_FUNCS = {
+    "f_classif",
+    "f_regression",
+    "chi2",
+    "mutual_info_classif",
+    "mutual_info_regression",
+    "r_regression",
 }
-SEARCHES = {"GridSearchCV", "RandomizedSearchCV", "HalvingGridSearchCV",
-            "HalvingRandomSearchCV", "BayesSearchCV"}
+SAMPLERS = {
+    "SMOTE",
+    "ADASYN",
+    "BorderlineSMOTE",
+    "SVMSMOTE",
+    "SMOTENC",
+    "SMOTEN",
+    "KMeansSMOTE",
+    "RandomOverSampler",
+    "SMOTETomek",
+    "SMOTEENN",
+}
+SEARCHES = {
+    "GridSearchCV",
+    "RandomizedSearchCV",
+    "HalvingGridSearchCV",
+    "HalvingRandomSearchCV",
+    "BayesSearchCV",
+}
 PIPELINES = {"Pipeline", "make_pipeline", "ColumnTransformer", "make_column_transformer"}
-SPLITTERS = {"KFold", "StratifiedKFold", "GroupKFold", "TimeSeriesSplit", "RepeatedKFold",
-             "RepeatedStratifiedKFold", "ShuffleSplit", "StratifiedShuffleSplit",
-             "GroupShuffleSplit", "StratifiedGroupKFold", "LeaveOneOut", "LeaveOneGroupOut"}
-HARMLESS = {"LabelEncoder", "LabelBinarizer", "MultiLabelBinarizer", "FunctionTransformer",
-            "Normalizer", "PolynomialFeatures", "Binarizer"}
+SPLITTERS = {
+    "KFold",
+    "StratifiedKFold",
+    "GroupKFold",
+    "TimeSeriesSplit",
+    "RepeatedKFold",
+    "RepeatedStratifiedKFold",
+    "ShuffleSplit",
+    "StratifiedShuffleSplit",
+    "GroupShuffleSplit",
+    "StratifiedGroupKFold",
+    "LeaveOneOut",
+    "LeaveOneGroupOut",
+}
+HARMLESS = {
+    "LabelEncoder",
+    "LabelBinarizer",
+    "MultiLabelBinarizer",
+    "FunctionTransformer",
+    "Normalizer",
+    "PolynomialFeatures",
+    "Binarizer",
+}
 
 
 def family_of(name: str) -> str | None:
     """The family of a scikit-learn / imbalanced-learn class name, or None for anything else
     (models and unknown classes)."""
-    for fam, names in (("transformer", TRANSFORMERS), ("selector", SELECTORS),
-                       ("sampler", SAMPLERS), ("search", SEARCHES), ("pipeline", PIPELINES),
-                       ("splitter", SPLITTERS), ("harmless", HARMLESS)):
+    for fam, names in (
+        ("transformer", TRANSFORMERS),
+        ("selector", SELECTORS),
+        ("sampler", SAMPLERS),
+        ("search", SEARCHES),
+        ("pipeline", PIPELINES),
+        ("splitter", SPLITTERS),
+        ("harmless", HARMLESS),
+    ):
         if name in names:
             return fam
     return None
@@ -56,11 +126,11 @@ def family_of(name: str) -> str | None:
 
 KINDS = {
     "fit_before_split": "a scaler, imputer, encoder, decomposition or pandas statistic fitted "
-                        "on rows that include held-out rows",
+    "on rows that include held-out rows",
     "selection_on_all_rows": "features or hyper-parameters chosen with held-out rows or their "
-                             "targets",
+    "targets",
     "test_reused": "the held-out set used to choose among models or settings, then reported as "
-                   "if untouched",
+    "if untouched",
     "fit_on_heldout": "a fit or fit_transform called on held-out rows",
     "oversampled_before_split": "synthetic or duplicated rows made before the split",
 }
@@ -81,23 +151,23 @@ LEVELS = {  # (kind, variant) -> level; common practice, no source (see the modu
 
 REMEDY = {
     "fit_before_split": "fit it on the training rows only: put it in a Pipeline with the model, "
-                        "or fit on X_train and transform X_test",
+    "or fit on X_train and transform X_test",
     "fit_before_split/pandas": "compute the statistic on the training rows after the split "
-                               "(e.g. train.mean()) and apply that to both parts",
+    "(e.g. train.mean()) and apply that to both parts",
     "selection_on_all_rows/features": "select inside the cross-validation: put the selector in "
-                                      "a Pipeline with the model, or fit it on the training "
-                                      "rows only",
+    "a Pipeline with the model, or fit it on the training "
+    "rows only",
     "selection_on_all_rows/search": "fit the search on the training rows only (or nest it in "
-                                    "cross-validation) and score the held-out rows once",
+    "cross-validation) and score the held-out rows once",
     "test_reused/loop": "choose on a validation split or by cross-validation on the training "
-                        "rows; score the test set once, at the end",
+    "rows; score the test set once, at the end",
     "test_reused/early_stopping": "early-stop on a validation split carved from the training "
-                                  "rows, not on the test set",
+    "rows, not on the test set",
     "fit_on_heldout": "fit on the training rows and only transform or predict the held-out rows",
     "fit_on_heldout/pandas": "take the statistic from the training rows and apply it to the "
-                             "held-out rows",
+    "held-out rows",
     "oversampled_before_split": "resample the training rows only, after the split (an "
-                                "imbalanced-learn Pipeline inside cross-validation does this)",
+    "imbalanced-learn Pipeline inside cross-validation does this)",
 }
 
 
@@ -127,7 +197,17 @@ class Finding:
         return (self.file, self.cell or 0, self.line, self.kind)
 
     def to_dict(self) -> dict[str, Any]:
-        return {"file": self.file, "line": self.line, "cell": self.cell, "kind": self.kind,
-                "level": self.level.label, "summary": self.summary,
-                "evidence": {"code": self.code, "flow": self.flow, "remedy": self.remedy,
-                             "columns": list(self.columns)}}
+        return {
+            "file": self.file,
+            "line": self.line,
+            "cell": self.cell,
+            "kind": self.kind,
+            "level": self.level.label,
+            "summary": self.summary,
+            "evidence": {
+                "code": self.code,
+                "flow": self.flow,
+                "remedy": self.remedy,
+                "columns": list(self.columns),
+            },
+        }

@@ -37,7 +37,7 @@ from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
-MIN_SIDE = THRESHOLDS.min_side   # fewer held-out or training rows than this: cannot tell
+MIN_SIDE = THRESHOLDS.min_side  # fewer held-out or training rows than this: cannot tell
 __all__ = ["Fitscope", "FitscopeThresholds"]
 
 
@@ -56,27 +56,36 @@ class Fitscope(Probe):
     def describe(cls, settings: Settings) -> str:
         th = cls.thresholds
         caps = ", ".join(f"{p:.1%}" for p in th.cap_levels)
-        return ("Scaling, imputation, capping, rank transforms and target encodings leave "
-                "statistics that are exact over the rows they were fitted on. Exact over all rows "
-                "but not over the training rows, within 5 SDs of the column's storage rounding "
-                f"and beyond the sampling spread, is {th.leak.label}; target encodings that used "
-                f"held-out targets are {th.encoding.label}. A pile of one value is examined from "
-                f"{th.pile_share:.1%} of rows and {th.pile_min_rows} rows when it exceeds what "
-                f"its {th.neighbours} nearest values on each side predict (Poisson tail below "
-                f"{th.pile_alpha:g}, Bonferroni over the distinct values), so natural ties are "
-                f"no evidence; caps are tested at the {caps} quantiles. With fewer than "
-                f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
-                "cannot tell; every numeric column examined carries what was checked.")
+        return (
+            "Scaling, imputation, capping, rank transforms and target encodings leave "
+            "statistics that are exact over the rows they were fitted on. Exact over all rows "
+            "but not over the training rows, within 5 SDs of the column's storage rounding "
+            f"and beyond the sampling spread, is {th.leak.label}; target encodings that used "
+            f"held-out targets are {th.encoding.label}. A pile of one value is examined from "
+            f"{th.pile_share:.1%} of rows and {th.pile_min_rows} rows when it exceeds what "
+            f"its {th.neighbours} nearest values on each side predict (Poisson tail below "
+            f"{th.pile_alpha:g}, Bonferroni over the distinct values), so natural ties are "
+            f"no evidence; caps are tested at the {caps} quantiles. With fewer than "
+            f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
+            "cannot tell; every numeric column examined carries what was checked."
+        )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         skipped: list[Skip] = []
         split = table.heldout is not None and table.heldout_rows >= 1
         if not split:
-            skipped.append(Skip(self.name, "audited as one pool: without held-out rows the "
-                                           "probe cannot tell which rows a fit used; columns "
-                                           "that look preprocessed are listed as information"))
-        train = ~table.heldout if split and table.heldout is not None \
-            else np.ones(table.n_rows, bool)
+            skipped.append(
+                Skip(
+                    self.name,
+                    "audited as one pool: without held-out rows the "
+                    "probe cannot tell which rows a fit used; columns "
+                    "that look preprocessed are listed as information",
+                )
+            )
+        train = (
+            ~table.heldout if split and table.heldout is not None else np.ones(table.n_rows, bool)
+        )
+
         def one(name: str) -> list[Evidence]:
             s = table.frame[name]
             if pd.api.types.is_datetime64_any_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
@@ -92,14 +101,21 @@ class Fitscope(Probe):
         return evidence, skipped
 
 
-def _check_column(name: str, s: pd.Series, values: np.ndarray, train: np.ndarray,
-                  split: bool) -> list[Evidence]:
+def _check_column(
+    name: str, s: pd.Series, values: np.ndarray, train: np.ndarray, split: bool
+) -> list[Evidence]:
     ok = np.isfinite(values)
     v = values if ok.all() else values[ok]
     if v.size < 2 * MIN_SIDE or np.unique(v).size < 3:
-        return [_coverage(name, None, f"could not judge: {v.size} values, "
-                          f"{np.unique(v).size} distinct (a fit needs {2 * MIN_SIDE} values "
-                          "and 3 distinct)")]
+        return [
+            _coverage(
+                name,
+                None,
+                f"could not judge: {v.size} values, "
+                f"{np.unique(v).size} distinct (a fit needs {2 * MIN_SIDE} values "
+                "and 3 distinct)",
+            )
+        ]
     err = _LazyError(s, values)
     out = []
     checks = _plausible(v, values[ok & train])
@@ -109,22 +125,40 @@ def _check_column(name: str, s: pd.Series, values: np.ndarray, train: np.ndarray
             out.append(found)
     if not out:
         tried = ", ".join(CHECK_NAMES[c.__name__] for c in checks)
-        out.append(_coverage(name, tried, "no fingerprint of a fit on all rows"
-                             + ("" if split else " (audited as one pool)")))
+        out.append(
+            _coverage(
+                name,
+                tried,
+                "no fingerprint of a fit on all rows" + ("" if split else " (audited as one pool)"),
+            )
+        )
     return out
 
 
-CHECK_NAMES = {"_standardised": "standardisation", "_minmax": "min-max scaling",
-               "imputed": "imputation piles", "capped": "quantile caps",
-               "_quantile": "rank or quantile transform"}
+CHECK_NAMES = {
+    "_standardised": "standardisation",
+    "_minmax": "min-max scaling",
+    "imputed": "imputation piles",
+    "capped": "quantile caps",
+    "_quantile": "rank or quantile transform",
+}
 
 
 def _coverage(name: str, tried: str | None, reason: str) -> Evidence:
     """A none-level note: what fitscope checked on a column and why it found nothing."""
     summary = reason + (f"; checked {tried}" if tried else "")
-    return _evidence(name, "fingerprint_checks", None, "none", summary,
-                     {"checked": tried.split(", ") if tried else [],
-                      "fitted_on": "cannot tell" if tried is None else "no fingerprint"}, 0.0)
+    return _evidence(
+        name,
+        "fingerprint_checks",
+        None,
+        "none",
+        summary,
+        {
+            "checked": tried.split(", ") if tried else [],
+            "fitted_on": "cannot tell" if tried is None else "no fingerprint",
+        },
+        0.0,
+    )
 
 
 def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
@@ -132,12 +166,15 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
     checks themselves rely on this gate and do not repeat it."""
     lo, hi = float(v.min()), float(v.max())
     checks: list = []
-    if any(abs(float(np.mean(x))) <= 1e-3 and abs(float(np.std(x)) - 1) <= 1e-2
-           for x in (v, v_tr) if x.size):
+    if any(
+        abs(float(np.mean(x))) <= 1e-3 and abs(float(np.std(x)) - 1) <= 1e-2
+        for x in (v, v_tr)
+        if x.size
+    ):
         checks.append(_standardised)
     if abs(lo) <= 1e-3 and abs(hi - 1) <= 1e-3:
         checks.append(_minmax)
-    checks.append(_imputed)                       # its own sampled pre-check is cheap
+    checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
         checks.append(_capped)
     if (lo >= 0 and hi <= 1) or min(abs(lo + NORMAL_BOUND), abs(hi - NORMAL_BOUND)) < 1e-6:
@@ -179,12 +216,26 @@ def _standardised(name, values, err, ok, train, split):
         return None
     ddof, m, sd, mt, sdt, all_exact, train_exact, tm, tmt = best
     held = int(ok.sum() - tr.sum())
-    spread = np.sqrt(held / max(ok.sum() * tr.sum(), 1))   # SD of the training mean
+    spread = np.sqrt(held / max(ok.sum() * tr.sum(), 1))  # SD of the training mean
     distinguishable = held >= MIN_SIDE and spread > 3 * tmt
-    detail = {"all_rows": {"mean": m, "sd": sd}, "training_rows": {"mean": mt, "sd": sdt},
-              "ddof": ddof, "tolerance_mean": tm, "sampling_sd_of_training_mean": spread}
-    return _verdict(name, "standardised (mean 0, SD 1)", all_exact, train_exact,
-                    distinguishable, split, detail, "training_rows_mean", mt)
+    detail = {
+        "all_rows": {"mean": m, "sd": sd},
+        "training_rows": {"mean": mt, "sd": sdt},
+        "ddof": ddof,
+        "tolerance_mean": tm,
+        "sampling_sd_of_training_mean": spread,
+    }
+    return _verdict(
+        name,
+        "standardised (mean 0, SD 1)",
+        all_exact,
+        train_exact,
+        distinguishable,
+        split,
+        detail,
+        "training_rows_mean",
+        mt,
+    )
 
 
 def _minmax(name, values, err, ok, train, split):
@@ -196,13 +247,24 @@ def _minmax(name, values, err, ok, train, split):
     tr = values[ok & train]
     train_lo, train_hi = float(tr.min()), float(tr.max())
     if abs(train_lo) <= tol and abs(train_hi - 1) <= tol:
-        return None   # the training rows reach both ends: either fit gives the same scale
-    detail = {"all_rows": {"min": lo, "max": hi}, "training_rows": {"min": train_lo,
-                                                                    "max": train_hi}}
+        return None  # the training rows reach both ends: either fit gives the same scale
+    detail = {
+        "all_rows": {"min": lo, "max": hi},
+        "training_rows": {"min": train_lo, "max": train_hi},
+    }
     if _looks_uniform(v, tr):
-        return None   # a quantile transform: judged by _quantile
-    return _verdict(name, "min-max scaled to [0, 1]", True, False,
-                    int((~train & ok).sum()) >= 1, split, detail, "training_rows_max", train_hi)
+        return None  # a quantile transform: judged by _quantile
+    return _verdict(
+        name,
+        "min-max scaled to [0, 1]",
+        True,
+        False,
+        int((~train & ok).sum()) >= 1,
+        split,
+        detail,
+        "training_rows_max",
+        train_hi,
+    )
 
 
 def _rank_gap(u: np.ndarray) -> float:
@@ -215,10 +277,13 @@ def _rank_gap(u: np.ndarray) -> float:
 
 
 def _quantile_fit(u_all: np.ndarray, u_tr: np.ndarray) -> tuple[bool, bool, dict]:
-    tol = 1e-6 + 1.0 / min(u_all.size, 1000)   # one step of the transform's reference grid
+    tol = 1e-6 + 1.0 / min(u_all.size, 1000)  # one step of the transform's reference grid
     gap_all, gap_tr = _rank_gap(u_all), _rank_gap(u_tr)
-    return gap_all <= tol, gap_tr <= tol, {"rank_gap_all_rows": gap_all,
-                                           "rank_gap_training_rows": gap_tr, "tolerance": tol}
+    return (
+        gap_all <= tol,
+        gap_tr <= tol,
+        {"rank_gap_all_rows": gap_all, "rank_gap_training_rows": gap_tr, "tolerance": tol},
+    )
 
 
 def _looks_uniform(v: np.ndarray, v_tr: np.ndarray) -> bool:
@@ -226,7 +291,7 @@ def _looks_uniform(v: np.ndarray, v_tr: np.ndarray) -> bool:
     return all_exact or train_exact
 
 
-NORMAL_BOUND = 5.199337582605575   # scikit-learn's normal output clips at the 1e-7 quantile
+NORMAL_BOUND = 5.199337582605575  # scikit-learn's normal output clips at the 1e-7 quantile
 
 
 def _quantile(name, values, err, ok, train, split):
@@ -238,11 +303,21 @@ def _quantile(name, values, err, ok, train, split):
     else:
         return None
     all_exact, train_exact, detail = _quantile_fit(u, u_tr)
-    return _verdict(name, what, all_exact, train_exact, True, split, detail,
-                    "rank_gap_training_rows", detail["rank_gap_training_rows"])
+    return _verdict(
+        name,
+        what,
+        all_exact,
+        train_exact,
+        True,
+        split,
+        detail,
+        "rank_gap_training_rows",
+        detail["rank_gap_training_rows"],
+    )
 
 
 def _encodings(table: AuditTable, train: np.ndarray) -> list[Evidence]:
     """Target encodings fitted with held-out targets, or in sample (see ``_encoding``)."""
     from featureaudit.probes.fitscope._encoding import encoding_evidence
+
     return encoding_evidence(table, train)

@@ -47,24 +47,30 @@ def _constant_within(x: np.ndarray, codes: np.ndarray, k: int) -> np.ndarray | N
     return np.where(seen, lo, np.nan)
 
 
-def _candidates(table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray
-                ) -> list[tuple[str, np.ndarray]]:
+def _candidates(
+    table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray
+) -> list[tuple[str, np.ndarray]]:
     """Per-category encodings an encoder would produce when fitted on ``rows``."""
     from sklearn.preprocessing import TargetEncoder
-    assert table.y is not None   # encodings are checked only with a target
+
+    assert table.y is not None  # encodings are checked only with a target
     y = table.y[rows]
     cats = codes[rows][:, None]
-    target_type = {"numeric": "continuous", "binary": "binary"}.get(table.task or "",
-                                                                   "multiclass")
+    target_type = {"numeric": "continuous", "binary": "binary"}.get(table.task or "", "multiclass")
     out = []
     grid = np.arange(k)[:, None]
     for smooth in SMOOTHING:
-        enc = TargetEncoder(smooth=smooth, target_type=target_type)   # fit, not fit_transform
+        enc = TargetEncoder(smooth=smooth, target_type=target_type)  # fit, not fit_transform
         enc.fit(cats, y)
         values = enc.transform(grid)
         for j in range(values.shape[1]):
-            out.append((f"TargetEncoder(smooth={smooth!r})" + (f", class {j}"
-                        if values.shape[1] > 1 else ""), values[:, j]))
+            out.append(
+                (
+                    f"TargetEncoder(smooth={smooth!r})"
+                    + (f", class {j}" if values.shape[1] > 1 else ""),
+                    values[:, j],
+                )
+            )
     return out
 
 
@@ -86,7 +92,7 @@ def encoding_evidence(table: AuditTable, train: np.ndarray) -> list[Evidence]:
             continue
         head = x[:20_000]
         if np.unique(head[np.isfinite(head)]).size > most_levels:
-            continue            # more distinct values than any category column has levels
+            continue  # more distinct values than any category column has levels
         n_unique = np.unique(x[np.isfinite(x)]).size
         for cat, codes, k in cat_cols:
             if cat == name or n_unique > k or pairs >= MAX_PAIRS:
@@ -102,17 +108,37 @@ def encoding_evidence(table: AuditTable, train: np.ndarray) -> list[Evidence]:
     return evidence
 
 
-def _best_gap(table: AuditTable, codes: np.ndarray, k: int, rows: np.ndarray,
-              per_cat: np.ndarray, seen: np.ndarray) -> tuple[float, str]:
+def _best_gap(
+    table: AuditTable,
+    codes: np.ndarray,
+    k: int,
+    rows: np.ndarray,
+    per_cat: np.ndarray,
+    seen: np.ndarray,
+) -> tuple[float, str]:
     """The closest encoder fitted on ``rows``: its largest gap to the column, and its name."""
     if rows.sum() < 2:
         return np.inf, ""
-    return min(((float(np.max(np.abs(enc[seen] - per_cat[seen]))), label)
-                for label, enc in _candidates(table, codes, k, rows)), key=lambda g: g[0])
+    return min(
+        (
+            (float(np.max(np.abs(enc[seen] - per_cat[seen]))), label)
+            for label, enc in _candidates(table, codes, k, rows)
+        ),
+        key=lambda g: g[0],
+    )
 
 
-def _match(table: AuditTable, name: str, cat: str, per_cat: np.ndarray, codes: np.ndarray,
-           k: int, x: np.ndarray, labelled: np.ndarray, train: np.ndarray) -> Evidence | None:
+def _match(
+    table: AuditTable,
+    name: str,
+    cat: str,
+    per_cat: np.ndarray,
+    codes: np.ndarray,
+    k: int,
+    x: np.ndarray,
+    labelled: np.ndarray,
+    train: np.ndarray,
+) -> Evidence | None:
     """Which fit the column equals: all labelled rows (held-out targets used) or the training
     rows in sample. When both fit, or no held-out row has a target, the held-out targets
     cannot be blamed and the in-sample reading is the one reported."""
@@ -122,22 +148,53 @@ def _match(table: AuditTable, name: str, cat: str, per_cat: np.ndarray, codes: n
     fit_rows = labelled & train & (codes >= 0)
     gap_tr, label_tr = _best_gap(table, codes, k, fit_rows, per_cat, seen)
     held_labelled = bool((labelled & ~train & (codes >= 0)).any())
-    gap_all, label_all = _best_gap(table, codes, k, labelled & (codes >= 0), per_cat, seen) \
-        if held_labelled else (np.inf, "")
+    gap_all, label_all = (
+        _best_gap(table, codes, k, labelled & (codes >= 0), per_cat, seen)
+        if held_labelled
+        else (np.inf, "")
+    )
     if gap_all <= tol and gap_tr > tol:
-        detail = {"category_column": cat, "encoder": label_all, "fitted_on": "all rows",
-                  "categories": int(seen.sum()), "max_abs_gap": gap_all,
-                  "gap_to_training_fit": gap_tr}
-        return Evidence("fitscope", "fit_on_all_rows", "max_abs_gap_to_all_rows_encoding",
-                        gap_all, tol, "critical", column=name, severity=0.9, detail=detail,
-                        summary=f"target encoding of {cat!r} fitted with held-out targets: "
-                                f"equals {label_all} on all labelled rows")
+        detail = {
+            "category_column": cat,
+            "encoder": label_all,
+            "fitted_on": "all rows",
+            "categories": int(seen.sum()),
+            "max_abs_gap": gap_all,
+            "gap_to_training_fit": gap_tr,
+        }
+        return Evidence(
+            "fitscope",
+            "fit_on_all_rows",
+            "max_abs_gap_to_all_rows_encoding",
+            gap_all,
+            tol,
+            "critical",
+            column=name,
+            severity=0.9,
+            detail=detail,
+            summary=f"target encoding of {cat!r} fitted with held-out targets: "
+            f"equals {label_all} on all labelled rows",
+        )
     if gap_tr <= tol:
-        detail = {"category_column": cat, "encoder": label_tr, "fitted_on": "training rows",
-                  "categories": int(seen.sum()), "max_abs_gap": gap_tr}
-        return Evidence("fitscope", "target_proxy", "max_abs_gap_to_in_sample_encoding",
-                        gap_tr, tol, "high", column=name, severity=0.7, detail=detail,
-                        summary=f"target encoding of {cat!r} fitted in sample: each training "
-                                "row's value includes its own target; encode out of fold "
-                                "(cross fitting)")
+        detail = {
+            "category_column": cat,
+            "encoder": label_tr,
+            "fitted_on": "training rows",
+            "categories": int(seen.sum()),
+            "max_abs_gap": gap_tr,
+        }
+        return Evidence(
+            "fitscope",
+            "target_proxy",
+            "max_abs_gap_to_in_sample_encoding",
+            gap_tr,
+            tol,
+            "high",
+            column=name,
+            severity=0.7,
+            detail=detail,
+            summary=f"target encoding of {cat!r} fitted in sample: each training "
+            "row's value includes its own target; encode out of fold "
+            "(cross fitting)",
+        )
     return None

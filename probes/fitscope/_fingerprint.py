@@ -8,8 +8,13 @@ from featureaudit.levels import Level
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 
 
-def fit_level(all_exact: bool, train_exact: bool, distinguishable: bool, split: bool,
-              th: FitscopeThresholds = THRESHOLDS) -> tuple[Level, str] | None:
+def fit_level(
+    all_exact: bool,
+    train_exact: bool,
+    distinguishable: bool,
+    split: bool,
+    th: FitscopeThresholds = THRESHOLDS,
+) -> tuple[Level, str] | None:
     """The level of a fingerprint and which rows the fit used (``all rows``, ``training
     rows``, ``cannot tell``, or ``no split``); None when neither fit is exact."""
     if not all_exact and not train_exact:
@@ -23,14 +28,40 @@ def fit_level(all_exact: bool, train_exact: bool, distinguishable: bool, split: 
     return th.leak, "all rows"
 
 
-def evidence(name: str, statistic: str, value: float | None, level: str | Level, summary: str,
-             detail: dict, severity: float = 0.5) -> Evidence:
-    return Evidence("fitscope", "fit_on_all_rows", statistic, value, None, level, column=name,
-                    summary=summary, severity=severity, detail=detail)
+def evidence(
+    name: str,
+    statistic: str,
+    value: float | None,
+    level: str | Level,
+    summary: str,
+    detail: dict,
+    severity: float = 0.5,
+) -> Evidence:
+    return Evidence(
+        "fitscope",
+        "fit_on_all_rows",
+        statistic,
+        value,
+        None,
+        level,
+        column=name,
+        summary=summary,
+        severity=severity,
+        detail=detail,
+    )
 
 
-def verdict(name: str, what: str, all_exact: bool, train_exact: bool, distinguishable: bool,
-            split: bool, detail: dict, statistic: str, value: float | None) -> Evidence | None:
+def verdict(
+    name: str,
+    what: str,
+    all_exact: bool,
+    train_exact: bool,
+    distinguishable: bool,
+    split: bool,
+    detail: dict,
+    statistic: str,
+    value: float | None,
+) -> Evidence | None:
     """Exact over all rows only: leak; over training rows only: clean; both or unclear: say so."""
     decided = fit_level(all_exact, train_exact, distinguishable, split)
     if decided is None:
@@ -38,17 +69,45 @@ def verdict(name: str, what: str, all_exact: bool, train_exact: bool, distinguis
     level, fitted_on = decided
     detail = {**detail, "fingerprint": what}
     if fitted_on == "no split":
-        return evidence(name, statistic, value, level, f"looks {what} over all rows; with no "
-                        "split the probe cannot judge whether held-out rows were used", detail,
-                        0.0)
+        return evidence(
+            name,
+            statistic,
+            value,
+            level,
+            f"looks {what} over all rows; with no "
+            "split the probe cannot judge whether held-out rows were used",
+            detail,
+            0.0,
+        )
     if fitted_on == "training rows":
-        return evidence(name, statistic, value, level, f"{what} with training-row statistics",
-                        {**detail, "fitted_on": "training rows"}, 0.0)
+        return evidence(
+            name,
+            statistic,
+            value,
+            level,
+            f"{what} with training-row statistics",
+            {**detail, "fitted_on": "training rows"},
+            0.0,
+        )
     if fitted_on == "cannot tell":
-        return evidence(name, statistic, value, level, f"looks {what}, but a fit on the "
-                        "training rows alone would look the same here (too few held-out rows, "
-                        "or the extremes lie in training rows): cannot tell",
-                        {**detail, "fitted_on": "cannot tell"}, 0.0)
-    return evidence(name, statistic, value, level, f"{what} with statistics of all rows, "
-                    "held-out rows included: exact over all rows, off over the training rows",
-                    {**detail, "fitted_on": "all rows"}, 0.8)
+        return evidence(
+            name,
+            statistic,
+            value,
+            level,
+            f"looks {what}, but a fit on the "
+            "training rows alone would look the same here (too few held-out rows, "
+            "or the extremes lie in training rows): cannot tell",
+            {**detail, "fitted_on": "cannot tell"},
+            0.0,
+        )
+    return evidence(
+        name,
+        statistic,
+        value,
+        level,
+        f"{what} with statistics of all rows, "
+        "held-out rows included: exact over all rows, off over the training rows",
+        {**detail, "fitted_on": "all rows"},
+        0.8,
+    )

@@ -30,8 +30,9 @@ def pile_excess_p(count: int, neighbour_counts: np.ndarray) -> tuple[float, floa
     return float(poisson.sf(count - 1, expected)), expected
 
 
-def piles(values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLDS
-          ) -> list[tuple[float, int, float]]:
+def piles(
+    values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLDS
+) -> list[tuple[float, int, float]]:
     """Values held by far more rows than their neighbours predict: (value, rows, expected).
 
     A pile needs ``pile_share`` of the rows, ``pile_min_rows`` rows, and a Poisson excess
@@ -54,7 +55,7 @@ def piles(values: np.ndarray, ok: np.ndarray, th: FitscopeThresholds = THRESHOLD
     out = []
     top_two = np.sort(counts)[-2:]
     for i in candidates[: 10 * th.max_piles]:
-        near = np.r_[counts[max(0, i - k):i], counts[i + 1:i + 1 + k]]
+        near = np.r_[counts[max(0, i - k) : i], counts[i + 1 : i + 1 + k]]
         p, expected = pile_excess_p(int(counts[i]), near)
         # ... and, where the column ties naturally, beyond its largest other tie: a mode
         # among equal ties is no pile
@@ -77,8 +78,13 @@ def _tie_allowance(expected: float) -> int:
 
 def imputed(name, values, err, ok, train, split):
     """The strongest imputation fingerprint among the column's piles (a leak first)."""
-    found = [e for e in (_imputed_pile(name, values, err, ok, train, split, pile)
-                         for pile in piles(values, ok)) if e is not None]
+    found = [
+        e
+        for e in (
+            _imputed_pile(name, values, err, ok, train, split, pile) for pile in piles(values, ok)
+        )
+        if e is not None
+    ]
     return max(found, key=lambda e: e.rank) if found else None
 
 
@@ -88,35 +94,64 @@ def _imputed_pile(name, values, err, ok, train, split, pile):
     natural = expected > 1.0 and _on_grid(values[other], value)
     genuine = expected if natural else _genuine_count(values[other], value)
     if expected > 1.0 and not natural:
-        genuine = 0.0   # a value off the column's rounding grid has no natural copies
+        genuine = 0.0  # a value off the column's rounding grid has no natural copies
     tol = mean_tolerance(values[other], err[other]) + 4 * float(err[ok & (values == value)][0])
     figures: dict = {}
-    for label, rows, g in (("all_rows", other, genuine),
-                           ("training_rows", other & train, genuine * train.mean())):
+    for label, rows, g in (
+        ("all_rows", other, genuine),
+        ("training_rows", other & train, genuine * train.mean()),
+    ):
         x = values[rows]
         below, above = int((x < value).sum()), int((x > value).sum())
-        figures[label] = {"mean": float(np.mean(x)), "below": below, "above": above,
-                          "median_holds": _median_holds(x, value, g, tol, natural),
-                          "mean_holds": abs(float(np.mean(x)) - value) <= tol}
-    holds = {stat: (figures["all_rows"][f"{stat}_holds"], figures["training_rows"][f"{stat}_holds"])
-             for stat in ("mean", "median")}
+        figures[label] = {
+            "mean": float(np.mean(x)),
+            "below": below,
+            "above": above,
+            "median_holds": _median_holds(x, value, g, tol, natural),
+            "mean_holds": abs(float(np.mean(x)) - value) <= tol,
+        }
+    holds = {
+        stat: (figures["all_rows"][f"{stat}_holds"], figures["training_rows"][f"{stat}_holds"])
+        for stat in ("mean", "median")
+    }
     # A statistic of the training rows that explains the pile wins: a leak needs every
     # training-row explanation to fail.
     order = sorted(holds, key=lambda st: (not holds[st][1], not holds[st][0]))
     for stat in order:
         all_exact, train_exact = holds[stat]
         if all_exact or train_exact:
-            detail = {"spike_value": value, "spike_rows": count, "statistic": stat,
-                      "neighbours_expected_rows": expected,
-                      "observed_copies_of_value_estimated": genuine, "tolerance": tol, **figures}
+            detail = {
+                "spike_value": value,
+                "spike_rows": count,
+                "statistic": stat,
+                "neighbours_expected_rows": expected,
+                "observed_copies_of_value_estimated": genuine,
+                "tolerance": tol,
+                **figures,
+            }
             x_tr = values[other & train]
-            fit_tr = float(np.mean(x_tr)) if stat == "mean" else float(np.median(
-                np.concatenate([x_tr, np.full(int(round(genuine * train.mean())), value)])))
+            fit_tr = (
+                float(np.mean(x_tr))
+                if stat == "mean"
+                else float(
+                    np.median(
+                        np.concatenate([x_tr, np.full(int(round(genuine * train.mean())), value)])
+                    )
+                )
+            )
             gap = value - fit_tr
             detail["training_rows_fit_would_give"] = fit_tr
-            return _verdict(name, f"imputed with the {stat} ({value:.6g} fills {count} rows)",
-                            all_exact, train_exact, abs(gap) > tol, split, detail,
-                            f"imputed_minus_training_{stat}", gap)
+            return _verdict(
+                name,
+                f"imputed with the {stat} ({value:.6g} fills {count} rows)",
+                all_exact,
+                train_exact,
+                abs(gap) > tol,
+                split,
+                detail,
+                f"imputed_minus_training_{stat}",
+                gap,
+            )
     return None
 
 
@@ -128,8 +163,9 @@ def _on_grid(other: np.ndarray, value: float) -> bool:
     return dec is None or bool(np.round(value, dec) == value)
 
 
-def _median_holds(x: np.ndarray, value: float, genuine: float, tol: float,
-                  natural: bool = False) -> bool:
+def _median_holds(
+    x: np.ndarray, value: float, genuine: float, tol: float, natural: bool = False
+) -> bool:
     """Is ``value`` the median of ``x`` plus some of its own genuine copies (0 to ~genuine,
     one more where the column has natural ties)?"""
     below, above = int((x < value).sum()), int((x > value).sum())
@@ -166,37 +202,57 @@ def capped(name, values, err, ok, train, split):
     share_tr = n_tr / max(n_all, 1)
     k = THRESHOLDS.neighbours
     piles = []
-    for side, value, inner in (("upper", float(v.max()), counts[-1 - k:-1]),
-                               ("lower", float(v.min()), counts[1:1 + k])):
+    for side, value, inner in (
+        ("upper", float(v.max()), counts[-1 - k : -1]),
+        ("lower", float(v.min()), counts[1 : 1 + k]),
+    ):
         pile = ok & (values == value)
         count_all, count_tr = int(pile.sum()), int((pile & train).sum())
         p_excess, expected = pile_excess_p(count_all, inner)
         interior = int(counts[1:-1].max())
         examined = count_all >= max(3, interior + 1) or (
-            count_all >= 3 and p_excess * 2 < THRESHOLDS.pile_alpha)
+            count_all >= 3 and p_excess * 2 < THRESHOLDS.pile_alpha
+        )
         if not examined or value == round(value):
-            continue      # whole numbers (0, 1, 100) are natural floors; quantiles rarely are
+            continue  # whole numbers (0, 1, 100) are natural floors; quantiles rarely are
         allow_all, allow_tr = _tie_allowance(expected), _tie_allowance(expected * share_tr)
         fits_all = [p for p in CAP_LEVELS if _cap_fits(n_all, count_all, p, allow_all)]
         fits_tr = [p for p in CAP_LEVELS if _cap_fits(n_tr, count_tr, p, allow_tr)]
         if fits_all or fits_tr:
-            piles.append({"side": side, "cap_value": value, "rows_at_cap": count_all,
-                          "neighbours_expected_rows": expected,
-                          "training_rows_at_cap": count_tr, "levels_fitting_all_rows": fits_all,
-                          "levels_fitting_training_rows": fits_tr,
-                          "level": (fits_all or fits_tr)[0]})
+            piles.append(
+                {
+                    "side": side,
+                    "cap_value": value,
+                    "rows_at_cap": count_all,
+                    "neighbours_expected_rows": expected,
+                    "training_rows_at_cap": count_tr,
+                    "levels_fitting_all_rows": fits_all,
+                    "levels_fitting_training_rows": fits_tr,
+                    "level": (fits_all or fits_tr)[0],
+                }
+            )
     if not piles:
         return None
-    all_exact = all(q["levels_fitting_all_rows"] for q in piles) and \
-        any(not q["levels_fitting_training_rows"] for q in piles)
-    train_exact = all(q["levels_fitting_training_rows"] for q in piles) and \
-        any(not q["levels_fitting_all_rows"] for q in piles)
+    all_exact = all(q["levels_fitting_all_rows"] for q in piles) and any(
+        not q["levels_fitting_training_rows"] for q in piles
+    )
+    train_exact = all(q["levels_fitting_training_rows"] for q in piles) and any(
+        not q["levels_fitting_all_rows"] for q in piles
+    )
     if not all_exact and not train_exact:
-        all_exact = train_exact = True            # every pile fits both: cannot tell
+        all_exact = train_exact = True  # every pile fits both: cannot tell
     what = " and ".join(f"{q['side']} {q['level']:.1%}" for q in piles)
-    return _verdict(name, f"capped at the {what} quantile", all_exact, train_exact, True,
-                    split, {"piles": piles}, "training_rows_at_cap",
-                    piles[0]["training_rows_at_cap"])
+    return _verdict(
+        name,
+        f"capped at the {what} quantile",
+        all_exact,
+        train_exact,
+        True,
+        split,
+        {"piles": piles},
+        "training_rows_at_cap",
+        piles[0]["training_rows_at_cap"],
+    )
 
 
 def _cap_fits(n: int, count: int, p: float, allow: int) -> bool:

@@ -26,8 +26,11 @@ def value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> np.ndar
     dec = _decimals(probe)
     mag = np.floor(np.log10(np.where(values == 0, 1.0, np.abs(values))))
     err_sig = 0.5 * 10.0 ** (mag - sig + 1) if sig is not None else np.full(values.shape, np.inf)
-    err_dec = np.full(values.shape, 0.5 * 10.0 ** -dec) if dec is not None else \
-        np.full(values.shape, np.inf)
+    err_dec = (
+        np.full(values.shape, 0.5 * 10.0**-dec)
+        if dec is not None
+        else np.full(values.shape, np.inf)
+    )
     # Values that fit both spellings may have gone through either rounding: take the larger.
     candidates = [e for e in (err_sig, err_dec) if np.all(np.isfinite(e))]
     floor = 4 * _EPS64 * np.abs(values) + 1e-300
@@ -64,7 +67,7 @@ def mean_tolerance(values: np.ndarray, err: np.ndarray) -> float:
     n = values.size
     if n == 0:
         return np.inf
-    spread = np.sqrt(np.sum(err ** 2) / 3.0) / n
+    spread = np.sqrt(np.sum(err**2) / 3.0) / n
     return float(5 * spread + 16 * _EPS64 * np.max(np.abs(values)))
 
 

@@ -61,12 +61,22 @@ class TwinsThresholds:
     splits of subject data overstate accuracy, Saeb et al. 2016).
     """
 
-    copies: Ladder = field(default=Ladder("excess_heldout_share_with_twin", (
-        (Level.CRITICAL, 0.10), (Level.HIGH, 0.015), (Level.MEDIUM, 0.005)),
-        above_zero=Level.LOW, unit="%"))
-    entities: Ladder = field(default=Ladder("heldout_row_share_with_shared_entity", (
-        (Level.CRITICAL, 0.5), (Level.HIGH, 0.10), (Level.MEDIUM, 0.02)),
-        above_zero=Level.LOW, unit="%"))
+    copies: Ladder = field(
+        default=Ladder(
+            "excess_heldout_share_with_twin",
+            ((Level.CRITICAL, 0.10), (Level.HIGH, 0.015), (Level.MEDIUM, 0.005)),
+            above_zero=Level.LOW,
+            unit="%",
+        )
+    )
+    entities: Ladder = field(
+        default=Ladder(
+            "heldout_row_share_with_shared_entity",
+            ((Level.CRITICAL, 0.5), (Level.HIGH, 0.10), (Level.MEDIUM, 0.02)),
+            above_zero=Level.LOW,
+            unit="%",
+        )
+    )
     ci_z: float = 1.645
     baseline_draws: int = 20
     min_twins: int = 5
@@ -77,9 +87,13 @@ class TwinsThresholds:
 THRESHOLDS = TwinsThresholds()
 
 
-def copy_level(excess: float, twin_rows: float, agreement: float | None,
-               chance: float | None, t: TwinsThresholds = THRESHOLDS
-               ) -> tuple[Level, list[str]]:
+def copy_level(
+    excess: float,
+    twin_rows: float,
+    agreement: float | None,
+    chance: float | None,
+    t: TwinsThresholds = THRESHOLDS,
+) -> tuple[Level, list[str]]:
     """The level of a held-out twin share ``excess`` beyond natural copies, and why it was
     lowered: ``twin_rows`` twins in all, whose labels agree ``agreement`` (chance
     ``chance``; None without a target)."""
@@ -87,15 +101,21 @@ def copy_level(excess: float, twin_rows: float, agreement: float | None,
     if level > Level.LOW and twin_rows < t.min_twins:
         level = Level.LOW
         notes.append(f"only {twin_rows:.0f} twin rows")
-    if level > Level.NONE and agreement is not None and chance is not None \
-            and twin_rows >= t.min_twins and agreement <= chance + t.chance_margin:
+    if (
+        level > Level.NONE
+        and agreement is not None
+        and chance is not None
+        and twin_rows >= t.min_twins
+        and agreement <= chance + t.chance_margin
+    ):
         level = level.down()
         notes.append("twins agree on the target no more than chance")
     return level, notes
 
 
-def within_level(share: float, rows_with_copy: int, natural: float,
-                 t: TwinsThresholds = THRESHOLDS) -> Level:
+def within_level(
+    share: float, rows_with_copy: int, natural: float, t: TwinsThresholds = THRESHOLDS
+) -> Level:
     """The level of a table (no split) in which ``share`` of rows have an exact copy, when
     independent columns would give ``natural``."""
     level = t.copies.level(share)
@@ -106,16 +126,16 @@ def within_level(share: float, rows_with_copy: int, natural: float,
     return level
 
 
-def entity_level(share_rows: float, simulated: bool, t: TwinsThresholds = THRESHOLDS
-                 ) -> Level:
+def entity_level(share_rows: float, simulated: bool, t: TwinsThresholds = THRESHOLDS) -> Level:
     """The level of ``share_rows`` held-out rows with an entity seen in training; under a
     simulated split it is information (low at most)."""
     level = t.entities.level(share_rows)
     return level.at_most(Level.LOW) if simulated else level
 
 
-def copy_excess(h: np.ndarray, heldout: np.ndarray, rng: np.random.Generator,
-                t: TwinsThresholds = THRESHOLDS) -> dict[str, Any]:
+def copy_excess(
+    h: np.ndarray, heldout: np.ndarray, rng: np.random.Generator, t: TwinsThresholds = THRESHOLDS
+) -> dict[str, Any]:
     """The held-out exact-copy rate beyond the natural one, from random parts of the
     training rows in the proportion of the split, queried against the same partners."""
     t_idx, h_idx = np.flatnonzero(~heldout), np.flatnonzero(heldout)
@@ -127,18 +147,28 @@ def copy_excess(h: np.ndarray, heldout: np.ndarray, rng: np.random.Generator,
         part, partners = perm[:a], perm[a:]
         natural.append(float(member(h[part], h[partners]).mean()))
         observed.append(float(member(h[h_idx], h[partners]).mean()))
-    scale = (n_t - a) / n_t                    # planted copies found with this chance
+    scale = (n_t - a) / n_t  # planted copies found with this chance
     po, pb = float(np.mean(observed)), float(np.mean(natural))
     excess = (po - pb) / scale
     # the spread of the draws' differences, as the variance of their mean
-    spread = float(np.var(np.subtract(observed, natural), ddof=1)) / len(natural) \
-        if len(natural) > 1 else 0.0
+    spread = (
+        float(np.var(np.subtract(observed, natural), ddof=1)) / len(natural)
+        if len(natural) > 1
+        else 0.0
+    )
     se = float(np.sqrt(po * (1 - po) / n_h + spread)) / scale
-    return {"excess": excess, "se": se, "lower": excess - t.ci_z * se,
-            "ci95": [excess - 1.96 * se, excess + 1.96 * se],
-            "natural_share": pb / scale, "observed_share_vs_part": po,
-            "natural_share_vs_part": pb, "part_rows": a, "partner_rows": int(n_t - a),
-            "draws": t.baseline_draws}
+    return {
+        "excess": excess,
+        "se": se,
+        "lower": excess - t.ci_z * se,
+        "ci95": [excess - 1.96 * se, excess + 1.96 * se],
+        "natural_share": pb / scale,
+        "observed_share_vs_part": po,
+        "natural_share_vs_part": pb,
+        "part_rows": a,
+        "partner_rows": int(n_t - a),
+        "draws": t.baseline_draws,
+    }
 
 
 @register
@@ -168,15 +198,19 @@ class Twins(Probe):
             f"{t.natural_ratio:.0%} of them. "
             "Held-out rows whose entity also has training rows: "
             f"{t.entities.describe()} of held-out rows; under a simulated random split "
-            f"holding out {SIMULATED_HELDOUT_SHARE:.0%} of the rows, at most low.")
+            f"holding out {SIMULATED_HELDOUT_SHARE:.0%} of the rows, at most low."
+        )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         evidence: list[Evidence] = []
         skipped: list[Skip] = []
         rng = np.random.default_rng(settings.seed)
         simulated = table.heldout is None
-        heldout: np.ndarray = table.heldout if table.heldout is not None else \
-            rng.random(table.n_rows) < SIMULATED_HELDOUT_SHARE
+        heldout: np.ndarray = (
+            table.heldout
+            if table.heldout is not None
+            else rng.random(table.n_rows) < SIMULATED_HELDOUT_SHARE
+        )
         cols = [c for c in table.features if table.frame[c].notna().any()]
         if not cols:
             skipped.append(Skip(self.name, "no feature column has values"))
@@ -195,19 +229,40 @@ class Twins(Probe):
         share = float(dup.mean())
         natural = _natural_share(table, cols, table.n_rows - 1) if share else 0.0
         level = within_level(share, int(dup.sum()), natural, t)
-        detail = {"rows_with_copy": int(dup.sum()), "rows": table.n_rows,
-                  "expected_share_if_columns_independent": natural,
-                  "extra_copies": int(pd.Series(h).duplicated().sum()), "columns": len(cols),
-                  "examples": _pairs(table, h, dup, _first_row(h, dup)), "simulated_split": True}
-        return Evidence(self.name, "duplicate_rows_across_split", "share_rows_with_copy", share,
-                        t.copies.floor(Level.HIGH), level,
-                        summary=(f"{share:.1%} of rows have an exact copy in the table: a random "
-                                 "split would put copies on both sides") if share else
-                        "no two rows are exact copies", severity=min(1.0, share * 5),
-                        detail=detail)
+        detail = {
+            "rows_with_copy": int(dup.sum()),
+            "rows": table.n_rows,
+            "expected_share_if_columns_independent": natural,
+            "extra_copies": int(pd.Series(h).duplicated().sum()),
+            "columns": len(cols),
+            "examples": _pairs(table, h, dup, _first_row(h, dup)),
+            "simulated_split": True,
+        }
+        return Evidence(
+            self.name,
+            "duplicate_rows_across_split",
+            "share_rows_with_copy",
+            share,
+            t.copies.floor(Level.HIGH),
+            level,
+            summary=(
+                f"{share:.1%} of rows have an exact copy in the table: a random "
+                "split would put copies on both sides"
+            )
+            if share
+            else "no two rows are exact copies",
+            severity=min(1.0, share * 5),
+            detail=detail,
+        )
 
-    def _across(self, table: AuditTable, cols: list[str], heldout: np.ndarray,
-                rng: np.random.Generator, settings: Settings) -> Evidence:
+    def _across(
+        self,
+        table: AuditTable,
+        cols: list[str],
+        heldout: np.ndarray,
+        rng: np.random.Generator,
+        settings: Settings,
+    ) -> Evidence:
         t = self.thresholds
         train = ~heldout
         h = row_hashes(table.frame, cols, settings.n_jobs)
@@ -217,14 +272,17 @@ class Twins(Probe):
         partner = calib.pop("partner", None)
         only_near = near & ~exact
         n_held = int(heldout.sum())
-        near_rows = float(only_near.sum()) / calib["searched_share"]   # sampled search
+        near_rows = float(only_near.sum()) / calib["searched_share"]  # sampled search
         share_exact = float(exact.sum() / n_held)
         share = float((exact.sum() + near_rows) / n_held)
         first_train = _first_row(h, train)
         agree, base = _agreement(table, h, exact, train, first_train, rng)
         near_agree = _near_agreement(table, only_near, partner)
-        baseline: dict[str, Any] = copy_excess(h, heldout, rng, t) if exact.any() else \
-            {"excess": 0.0, "lower": 0.0, "natural_share": 0.0, "ci95": [0.0, 0.0]}
+        baseline: dict[str, Any] = (
+            copy_excess(h, heldout, rng, t)
+            if exact.any()
+            else {"excess": 0.0, "lower": 0.0, "natural_share": 0.0, "ci95": [0.0, 0.0]}
+        )
         exact_excess = max(baseline["excess"], 0.0) if baseline["lower"] > 0 else 0.0
         near_natural = _natural_near(table, cols, h, heldout, rng) if near_rows else 0.0
         excess = exact_excess + max(near_rows / n_held - near_natural, 0.0)
@@ -232,33 +290,53 @@ class Twins(Probe):
         agreement = _pooled(agree, exact.sum(), near_agree, only_near.sum())
         level, notes = copy_level(excess, twin_rows, agreement, base, t)
         if exact.any() and exact_excess == 0.0:
-            notes.append(f"{share_exact:.1%} of held-out rows have an exact copy, as often as "
-                         f"random parts of the training rows do ({baseline['natural_share']:.1%})"
-                         ": the copies look natural")
-        detail = {"heldout_rows": n_held, "heldout_rows_with_exact_twin": int(exact.sum()),
-                  "heldout_rows_with_near_twin": int(round(near_rows)),
-                  "share_exact": share_exact, "share_near": near_rows / n_held,
-                  "excess_share": excess, "exact_copy_baseline": baseline,
-                  "natural_near_share": near_natural,
-                  "label_agreement": agree, "label_agreement_by_chance": base,
-                  "near_label_agreement": near_agree,
-                  "examples": _pairs(table, h, exact, first_train),
-                  "near_examples": calib.pop("pairs"),
-                  "calibration": calib, "columns": len(cols), "notes": notes,
-                  "thresholds": _json(t)}
+            notes.append(
+                f"{share_exact:.1%} of held-out rows have an exact copy, as often as "
+                f"random parts of the training rows do ({baseline['natural_share']:.1%})"
+                ": the copies look natural"
+            )
+        detail = {
+            "heldout_rows": n_held,
+            "heldout_rows_with_exact_twin": int(exact.sum()),
+            "heldout_rows_with_near_twin": int(round(near_rows)),
+            "share_exact": share_exact,
+            "share_near": near_rows / n_held,
+            "excess_share": excess,
+            "exact_copy_baseline": baseline,
+            "natural_near_share": near_natural,
+            "label_agreement": agree,
+            "label_agreement_by_chance": base,
+            "near_label_agreement": near_agree,
+            "examples": _pairs(table, h, exact, first_train),
+            "near_examples": calib.pop("pairs"),
+            "calibration": calib,
+            "columns": len(cols),
+            "notes": notes,
+            "thresholds": _json(t),
+        }
         if share:
             lo, hi = baseline["ci95"]
-            text = (f"{share:.1%} of held-out rows have a copy among the training rows "
-                    f"({share_exact:.1%} exact; random parts of the training rows give "
-                    f"{baseline['natural_share']:.1%}, an excess of {excess:.1%}, exact part "
-                    f"95 % CI {lo:.1%} to {hi:.1%})")
+            text = (
+                f"{share:.1%} of held-out rows have a copy among the training rows "
+                f"({share_exact:.1%} exact; random parts of the training rows give "
+                f"{baseline['natural_share']:.1%}, an excess of {excess:.1%}, exact part "
+                f"95 % CI {lo:.1%} to {hi:.1%})"
+            )
         else:
             text = "no held-out row has an exact or near copy among the training rows"
         if agreement is not None and base is not None and (exact.any() or only_near.any()):
             text += f"; twins share the target {agreement:.0%} of the time (chance {base:.0%})"
-        return Evidence(self.name, "duplicate_rows_across_split", "heldout_share_with_twin",
-                        share, t.copies.floor(Level.HIGH), level, summary=text,
-                        severity=min(1.0, excess * 5), detail=detail)
+        return Evidence(
+            self.name,
+            "duplicate_rows_across_split",
+            "heldout_share_with_twin",
+            share,
+            t.copies.floor(Level.HIGH),
+            level,
+            summary=text,
+            severity=min(1.0, excess * 5),
+            detail=detail,
+        )
 
     def _entities(self, table: AuditTable, heldout: np.ndarray, simulated: bool) -> Evidence:
         assert table.entity is not None
@@ -275,23 +353,47 @@ class Twins(Probe):
         share_ent = float(len(shared_entities) / max(held_entities.size, 1))
         level = entity_level(share_rows, simulated, t)
         examples = [str(v) for v in pd.unique(table.frame[table.entity][shared_rows])[:5]]
-        lead = (f"under a random {1 - SIMULATED_HELDOUT_SHARE:.0%}/"
-                f"{SIMULATED_HELDOUT_SHARE:.0%} split, ") if simulated else ""
-        summary = (f"{lead}{share_ent:.0%} of held-out {table.entity} values also have training "
-                   f"rows; they hold {share_rows:.0%} of held-out rows") if share_rows else \
-            f"no {table.entity} has rows on both sides of the split"
+        lead = (
+            (
+                f"under a random {1 - SIMULATED_HELDOUT_SHARE:.0%}/"
+                f"{SIMULATED_HELDOUT_SHARE:.0%} split, "
+            )
+            if simulated
+            else ""
+        )
+        summary = (
+            (
+                f"{lead}{share_ent:.0%} of held-out {table.entity} values also have training "
+                f"rows; they hold {share_rows:.0%} of held-out rows"
+            )
+            if share_rows
+            else f"no {table.entity} has rows on both sides of the split"
+        )
         return Evidence(
-            self.name, "shared_entities_across_split", "heldout_row_share_with_shared_entity",
-            share_rows, t.entities.floor(Level.HIGH), level, summary=summary,
-            severity=min(1.0, share_rows), detail={
-                "entity": table.entity, "heldout_entities": int(held_entities.size),
-                "shared_entities": int(len(shared_entities)), "share_entities": share_ent,
-                "share_heldout_rows": share_rows, "rows_missing_entity": int((~ok).sum()),
-                "examples": examples, "simulated_split": simulated})
+            self.name,
+            "shared_entities_across_split",
+            "heldout_row_share_with_shared_entity",
+            share_rows,
+            t.entities.floor(Level.HIGH),
+            level,
+            summary=summary,
+            severity=min(1.0, share_rows),
+            detail={
+                "entity": table.entity,
+                "heldout_entities": int(held_entities.size),
+                "shared_entities": int(len(shared_entities)),
+                "share_entities": share_ent,
+                "share_heldout_rows": share_rows,
+                "rows_missing_entity": int((~ok).sum()),
+                "examples": examples,
+                "simulated_split": simulated,
+            },
+        )
 
 
-def _natural_near(table: AuditTable, cols: list[str], h: np.ndarray, heldout: np.ndarray,
-                  rng: np.random.Generator) -> float:
+def _natural_near(
+    table: AuditTable, cols: list[str], h: np.ndarray, heldout: np.ndarray, rng: np.random.Generator
+) -> float:
     """The share of rows in a random part of the training rows (in the proportion of the
     split) with a near, not exact, copy in the rest, rescaled to the whole training set."""
     t_idx = np.flatnonzero(~heldout)
@@ -322,8 +424,9 @@ def _pooled(a: float | None, na: int, b: float | None, nb: int) -> float | None:
     return float(sum(v * n for v, n in parts) / sum(n for _, n in parts))
 
 
-def _near_agreement(table: AuditTable, rows: np.ndarray, partner: np.ndarray | None
-                    ) -> float | None:
+def _near_agreement(
+    table: AuditTable, rows: np.ndarray, partner: np.ndarray | None
+) -> float | None:
     """How often a near twin's target equals its nearest training row's."""
     if table.y is None or partner is None or not rows.any():
         return None
@@ -339,8 +442,9 @@ def _near_agreement(table: AuditTable, rows: np.ndarray, partner: np.ndarray | N
     return float(np.mean(y[idx] == y[partner[idx]]))
 
 
-def _natural_share(table: AuditTable, cols: list[str], partners: int, sample: int = 20_000
-                   ) -> float:
+def _natural_share(
+    table: AuditTable, cols: list[str], partners: int, sample: int = 20_000
+) -> float:
     """Share of rows expected to have an exact copy among ``partners`` others if the columns
     were independent, from each column's collision probability (unbiased on a sample). Data
     whose columns take few values has copies by nature, not by a pipeline mistake."""
@@ -356,9 +460,14 @@ def _natural_share(table: AuditTable, cols: list[str], partners: int, sample: in
     return float(-np.expm1(-partners * np.exp(log_p)))
 
 
-def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.ndarray,
-               first_train: pd.Series, rng: np.random.Generator
-               ) -> tuple[float | None, float | None]:
+def _agreement(
+    table: AuditTable,
+    h: np.ndarray,
+    exact: np.ndarray,
+    train: np.ndarray,
+    first_train: pd.Series,
+    rng: np.random.Generator,
+) -> tuple[float | None, float | None]:
     """How often a held-out twin's target equals its training copy's, and by chance.
 
     ``first_train`` maps each training hash to its first row; it serves as it is when every
@@ -383,7 +492,7 @@ def _agreement(table: AuditTable, h: np.ndarray, exact: np.ndarray, train: np.nd
         other = rng.choice(t_idx, rows.size)
         return agree, float(np.mean(np.abs(y[rows] - y[other]) <= tol))
     share = np.bincount(y[labelled], minlength=len(table.classes)) / labelled.sum()
-    return float(np.mean(y[rows] == y[match])), float(np.sum(share ** 2))
+    return float(np.mean(y[rows] == y[match])), float(np.sum(share**2))
 
 
 def _first_row(h: np.ndarray, mask: np.ndarray) -> pd.Series:
@@ -393,8 +502,9 @@ def _first_row(h: np.ndarray, mask: np.ndarray) -> pd.Series:
     return first[~first.index.duplicated()]
 
 
-def _pairs(table: AuditTable, h: np.ndarray, rows: np.ndarray, first: pd.Series,
-           k: int = 5) -> list[list[str]]:
+def _pairs(
+    table: AuditTable, h: np.ndarray, rows: np.ndarray, first: pd.Series, k: int = 5
+) -> list[list[str]]:
     """Up to ``k`` (copy, row) label pairs; ``first`` maps a hash to its first partner row."""
     found: list[tuple[int, int]] = []
     for i in np.flatnonzero(rows):

@@ -14,9 +14,9 @@ from featureaudit.io import numeric_view
 from featureaudit.probes.twins.hashing import column_codes, robust_params
 from featureaudit.table import AuditTable
 
-NEAR_FRACTION = 0.1   # a near copy lies closer than 10 % of the median train-train NN distance
+NEAR_FRACTION = 0.1  # a near copy lies closer than 10 % of the median train-train NN distance
 BANDS, BAND_DIMS, CELL = 6, 6, 0.5
-MAX_BUCKET = 50       # a band cell shared by more training rows than this is not evidence
+MAX_BUCKET = 50  # a band cell shared by more training rows than this is not evidence
 MAX_QUERIES = 50_000  # held-out rows searched at most (the share is scaled back honestly)
 
 
@@ -34,7 +34,7 @@ class _Scaled:
     def __init__(self, raw: list[np.ndarray], train: np.ndarray, sample: int = 50_000) -> None:
         self.raw = raw
         t_idx = np.flatnonzero(train)
-        rows = t_idx[:: max(1, t_idx.size // sample)]       # evenly spaced training rows
+        rows = t_idx[:: max(1, t_idx.size // sample)]  # evenly spaced training rows
         self.params = [robust_params(v, rows) for v in raw]
 
     def __len__(self) -> int:
@@ -53,9 +53,14 @@ class _Scaled:
         return np.sqrt(total / len(self.raw))
 
 
-def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: np.ndarray,
-                 rng: np.random.Generator, train: np.ndarray | None = None
-                 ) -> tuple[np.ndarray, dict]:
+def near_copies(
+    table: AuditTable,
+    cols: list[str],
+    heldout: np.ndarray,
+    exact: np.ndarray,
+    rng: np.random.Generator,
+    train: np.ndarray | None = None,
+) -> tuple[np.ndarray, dict]:
     """Held-out rows with a near copy among training rows (banded hashing, then distance).
 
     ``train`` are the rows searched as partners (default: every row not held out); a
@@ -77,8 +82,11 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
             cats.append(column_codes(table.frame[c]))
     near = np.zeros(table.n_rows, dtype=bool)
     if not raw:
-        return near, {"method": "no continuous columns: exact copies only", "pairs": [],
-                      "searched_share": 1.0}
+        return near, {
+            "method": "no continuous columns: exact copies only",
+            "pairs": [],
+            "searched_share": 1.0,
+        }
     numeric = _Scaled(raw, train)
     cat_key = np.zeros(table.n_rows, dtype=np.uint64)
     with np.errstate(over="ignore"):
@@ -86,8 +94,11 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
             cat_key = cat_key * np.uint64(1099511628211) ^ c
     threshold, calib = _calibrate(numeric, cat_key, train, rng)
     candidates = np.flatnonzero(heldout & ~exact)
-    queries = candidates if candidates.size <= MAX_QUERIES else \
-        np.sort(rng.choice(candidates, MAX_QUERIES, replace=False))
+    queries = (
+        candidates
+        if candidates.size <= MAX_QUERIES
+        else np.sort(rng.choice(candidates, MAX_QUERIES, replace=False))
+    )
     calib["searched_share"] = float(queries.size / candidates.size) if candidates.size else 1.0
     t_idx = np.flatnonzero(train)
     best = np.full(table.n_rows, np.inf)
@@ -116,13 +127,14 @@ def near_copies(table: AuditTable, cols: list[str], heldout: np.ndarray, exact: 
     left, right = row_labels(table, partner[hits]), row_labels(table, hits)
     calib["pairs"] = [[a, b, float(best[i])] for a, b, i in zip(left, right, hits, strict=True)]
     calib["threshold"] = threshold
-    calib["partner"] = partner            # the nearest training row per query (popped)
+    calib["partner"] = partner  # the nearest training row per query (popped)
     calib["near_twin_distances"] = [float(v) for v in np.sort(best[near])[:50]]
     return near, calib
 
 
-def _band_pairs(key: np.ndarray, t_idx: np.ndarray, queries: np.ndarray
-                ) -> tuple[np.ndarray, np.ndarray]:
+def _band_pairs(
+    key: np.ndarray, t_idx: np.ndarray, queries: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
     """(query, training row) pairs that share a band key; keys held by more than MAX_BUCKET
     training rows are dropped, since a crowded cell is no evidence of a copy."""
     tk = key[t_idx]
@@ -144,10 +156,12 @@ def _band_pairs(key: np.ndarray, t_idx: np.ndarray, queries: np.ndarray
     return q, tr[np.repeat(lo, n) + offsets]
 
 
-def _calibrate(numeric: _Scaled, cat_key: np.ndarray, train: np.ndarray,
-               rng: np.random.Generator) -> tuple[float, dict]:
+def _calibrate(
+    numeric: _Scaled, cat_key: np.ndarray, train: np.ndarray, rng: np.random.Generator
+) -> tuple[float, dict]:
     """Threshold from training-to-training nearest-neighbour distances on a sample."""
     from sklearn.neighbors import NearestNeighbors
+
     t_idx = np.flatnonzero(train)
     sample = rng.choice(t_idx, min(t_idx.size, 3000), replace=False)
     xs = np.column_stack([numeric.column(j, sample) for j in range(len(numeric))])
@@ -159,10 +173,14 @@ def _calibrate(numeric: _Scaled, cat_key: np.ndarray, train: np.ndarray,
     positive = d[d > 0]
     median = float(np.median(positive)) if positive.size else 0.0
     threshold = NEAR_FRACTION * median
-    return threshold, {"method": "banded hashing of robustly scaled numbers, categories exact",
-                       "sample_rows": int(sample.size), "train_nn_q01": _q(d, 0.01),
-                       "train_nn_q05": _q(d, 0.05), "train_nn_median": median,
-                       "train_nn_exact_share": float(np.mean(d == 0)) if d.size else 0.0}
+    return threshold, {
+        "method": "banded hashing of robustly scaled numbers, categories exact",
+        "sample_rows": int(sample.size),
+        "train_nn_q01": _q(d, 0.01),
+        "train_nn_q05": _q(d, 0.05),
+        "train_nn_median": median,
+        "train_nn_exact_share": float(np.mean(d == 0)) if d.size else 0.0,
+    }
 
 
 def _q(values: np.ndarray, q: float) -> float:

@@ -23,16 +23,19 @@ def column_codes(s: pd.Series) -> np.ndarray:
     values = numeric_view(s)
     if values is not None:
         v = values.copy()
-        v[v == 0] = 0.0                        # -0.0 and 0.0 are the same value
+        v[v == 0] = 0.0  # -0.0 and 0.0 are the same value
         bits = v.view(np.uint64).copy()
         bits[np.isnan(values)] = _NAN
         return bits
     if isinstance(s.dtype, pd.CategoricalDtype):
         cats = pd.util.hash_array(np.asarray(s.cat.categories.astype(str), dtype=object))
         table = np.r_[cats, np.uint64(_NAN)].astype(np.uint64)
-        return table[s.cat.codes.to_numpy()]          # code -1 (missing) takes the last entry
-    return pd.util.hash_pandas_object(s.astype(str).where(s.notna(), "\x00NA"),
-                                      index=False).to_numpy().astype(np.uint64)
+        return table[s.cat.codes.to_numpy()]  # code -1 (missing) takes the last entry
+    return (
+        pd.util.hash_pandas_object(s.astype(str).where(s.notna(), "\x00NA"), index=False)
+        .to_numpy()
+        .astype(np.uint64)
+    )
 
 
 def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
@@ -49,6 +52,7 @@ def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
 def row_hashes(frame: pd.DataFrame, columns: list[str], n_jobs: int = 1) -> np.ndarray:
     """One uint64 per row over ``columns``; rows equal in every column get equal hashes."""
     from featureaudit.threads import column_map
+
     h = np.full(len(frame), np.uint64(0xCBF29CE484222325), dtype=np.uint64)
     with np.errstate(over="ignore"):
         for codes in column_map(lambda name: column_codes(frame[name]), columns, n_jobs):

@@ -28,8 +28,9 @@ def _breast_cancer():
 
 def _star98():
     # Real data: statsmodels' bundled star98 school data (303 districts).
-    frame = sm.datasets.star98.load_pandas().data[["LOWINC", "PERASIAN", "PTRATIO",
-                                                   "AVSALK"]].copy()
+    frame = (
+        sm.datasets.star98.load_pandas().data[["LOWINC", "PERASIAN", "PTRATIO", "AVSALK"]].copy()
+    )
     frame["y"] = (sm.datasets.star98.load_pandas().data["NBELOW"] > 200).astype(int)
     return frame, "LOWINC", "PTRATIO"
 
@@ -41,16 +42,18 @@ def _encoder():
     """A seeded TargetEncoder on any supported scikit-learn (cv splitters arrived in 1.9)."""
     import sklearn
     from sklearn.model_selection import StratifiedKFold
+
     if tuple(int(p) for p in sklearn.__version__.split(".")[:2]) >= (1, 9):
-        return TargetEncoder(target_type="binary",
-                             cv=StratifiedKFold(5, shuffle=True, random_state=0))
+        return TargetEncoder(
+            target_type="binary", cv=StratifiedKFold(5, shuffle=True, random_state=0)
+        )
     return TargetEncoder(target_type="binary", random_state=0)
 
 
 def _split(frame, column, seed, hold_extremes):
     rng = np.random.default_rng(seed)
     held = rng.random(len(frame)) < 0.25
-    if hold_extremes:          # the fingerprint of a min-max or most-extreme fit needs it
+    if hold_extremes:  # the fingerprint of a min-max or most-extreme fit needs it
         held[int(frame[column].idxmax())] = True
     return held
 
@@ -61,8 +64,11 @@ def _prepare(variant, frame, column, other, held, leaky, clip_at=1.0):
     fit_rows = np.ones(len(frame), bool) if leaky else ~held
     out = frame.copy()
     if variant in ("standard", "minmax", "quantile"):
-        model = {"standard": StandardScaler(), "minmax": MinMaxScaler(),
-                 "quantile": QuantileTransformer(n_quantiles=1000, random_state=0)}[variant]
+        model = {
+            "standard": StandardScaler(),
+            "minmax": MinMaxScaler(),
+            "quantile": QuantileTransformer(n_quantiles=1000, random_state=0),
+        }[variant]
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             out[column] = model.fit(x[fit_rows]).transform(x)[:, 0]
@@ -82,7 +88,7 @@ def _prepare(variant, frame, column, other, held, leaky, clip_at=1.0):
         y = frame["y"].to_numpy()
         if leaky:
             out[column] = encoder.fit(cats, y).transform(cats)[:, 0]
-        else:   # cross-fitted on training rows, applied to held-out rows
+        else:  # cross-fitted on training rows, applied to held-out rows
             enc = np.empty(len(frame))
             enc[~held] = encoder.fit_transform(cats[~held], y[~held])[:, 0]
             enc[held] = encoder.transform(cats[held])[:, 0]
@@ -109,13 +115,22 @@ def _piles_fit_both(x, held):
     """True when each pile's training count is within one row of what clipping the training
     rows at one of the usual levels (0.5, 1, 2.5, 5 %) would leave (numpy's percentile)."""
     n_tr = int((~held).sum())
-    expected = [n_tr - 1 - int(np.floor((1 - p) * (n_tr - 1))) for p in (.005, .01, .025, .05)]
-    return all(min(abs(int(((x == v) & ~held).sum()) - e) for e in expected) <= 1
-               for v in (x.max(), x.min()))
+    expected = [n_tr - 1 - int(np.floor((1 - p) * (n_tr - 1))) for p in (0.005, 0.01, 0.025, 0.05)]
+    return all(
+        min(abs(int(((x == v) & ~held).sum()) - e) for e in expected) <= 1
+        for v in (x.max(), x.min())
+    )
 
 
-VARIANTS = ["standard", "minmax", "impute_mean", "impute_median", "clip", "quantile",
-            "target_encoding"]
+VARIANTS = [
+    "standard",
+    "minmax",
+    "impute_mean",
+    "impute_median",
+    "clip",
+    "quantile",
+    "target_encoding",
+]
 
 
 @pytest.mark.parametrize("dataset", list(DATASETS))
@@ -133,8 +148,7 @@ def test_fingerprints(dataset, variant, dtype, leaky, tmp_path):
     found = [e for e in row["evidence"] if e["probe"] == "fitscope"]
     twin = _prepare(variant, frame, column, other, held, not leaky)[column].to_numpy()
     quantum = 10.0 ** -_decimals(frame[column].to_numpy())
-    same = np.allclose(twin, prepared[column].to_numpy(), rtol=0, atol=2 * quantum,
-                       equal_nan=True)
+    same = np.allclose(twin, prepared[column].to_numpy(), rtol=0, atol=2 * quantum, equal_nan=True)
     if leaky and variant == "clip" and _piles_fit_both(prepared[column].to_numpy(), held):
         # numpy's clipping leaves piles whose sizes a training-row fit would also leave
         assert row["level"] == "none" and "cannot tell" in row["summary"]
@@ -154,9 +168,13 @@ def test_in_sample_target_encoding_is_a_target_proxy():
     held = _split(frame, column, seed=1, hold_extremes=False)
     cats = pd.qcut(frame[other], 10, labels=False).to_numpy()[:, None]
     enc = _encoder().fit(cats[~held], frame["y"].to_numpy()[~held])
-    frame = frame.assign(**{column: enc.transform(cats)[:, 0],
-                            "band": pd.Categorical([f"b{c}" for c in cats[:, 0]]),
-                            "split": np.where(held, "test", "train")})
+    frame = frame.assign(
+        **{
+            column: enc.transform(cats)[:, 0],
+            "band": pd.Categorical([f"b{c}" for c in cats[:, 0]]),
+            "split": np.where(held, "test", "train"),
+        }
+    )
     result = fa.audit(frame, target="y", split_column="split", probes=["fitscope"])
     row = result.columns.set_index("column").loc[column]
     assert row["level"] in HIGH and "target_proxy" in row["kinds"]
@@ -244,6 +262,7 @@ def _wine_imputed(column: str, fit_rows: str, seed: int = 2) -> tuple[pd.DataFra
     """scikit-learn's wine data (measurements stored with two decimals, so values tie
     naturally) with 40 values imputed by the median of all rows or of the training rows."""
     from sklearn.datasets import load_wine
+
     frame = load_wine(as_frame=True).frame
     rng = np.random.default_rng(seed)
     held = rng.random(len(frame)) < 0.25
@@ -263,7 +282,7 @@ def _fitscope_levels(frame):
 @pytest.mark.parametrize("column", ["ash", "malic_acid"])
 def test_all_rows_median_among_natural_ties_is_found(column):
     natural = load_wine_counts(column)
-    assert natural >= 4          # the column ties naturally: its most frequent value repeats
+    assert natural >= 4  # the column ties naturally: its most frequent value repeats
     leak, _ = _fitscope_levels(_wine_imputed(column, "all")[0])
     clean, _ = _fitscope_levels(_wine_imputed(column, "train")[0])
     assert leak[column] in ("high", "critical")
@@ -272,6 +291,7 @@ def test_all_rows_median_among_natural_ties_is_found(column):
 
 def load_wine_counts(column: str) -> int:
     from sklearn.datasets import load_wine
+
     return int(load_wine(as_frame=True).frame[column].value_counts().max())
 
 
@@ -296,14 +316,18 @@ def test_a_column_too_short_to_judge_says_so():
     # scikit-learn's breast-cancer data cut to 30 rows: fewer than a fit needs to be judged.
     frame = _breast_cancer()[0].head(30).assign(split=["train"] * 20 + ["test"] * 10)
     result = fa.audit(frame, target="y", split_column="split", probes=["fitscope"])
-    ev = [e for e in result.columns.set_index("column").loc["mean radius", "evidence"]
-          if e["probe"] == "fitscope"]
+    ev = [
+        e
+        for e in result.columns.set_index("column").loc["mean radius", "evidence"]
+        if e["probe"] == "fitscope"
+    ]
     assert ev and ev[0]["level"] == "none" and "could not judge" in ev[0]["summary"]
 
 
 def test_fit_level_decisions():
     from featureaudit.levels import Level
     from featureaudit.probes.fitscope._fingerprint import fit_level
+
     assert fit_level(False, False, True, True) is None
     assert fit_level(True, False, True, True) == (Level.HIGH, "all rows")
     assert fit_level(True, True, True, True) == (Level.NONE, "cannot tell")
@@ -316,9 +340,10 @@ def test_pile_excess_against_a_hand_computed_poisson_tail():
     import math
 
     from featureaudit.probes.fitscope._piles import pile_excess_p
+
     lam, count = 6.0, 15
     # reference: Poisson tail 1 - sum_{k<15} e^-6 6^k / k! (textbook formula)
-    tail = 1 - sum(math.exp(-lam) * lam ** k / math.factorial(k) for k in range(count))
+    tail = 1 - sum(math.exp(-lam) * lam**k / math.factorial(k) for k in range(count))
     p, expected = pile_excess_p(count, np.array([5, 6, 6, 7, 6, 5, 8, 6]))
     assert expected == 6.0 and p == pytest.approx(tail, rel=1e-9)
 
@@ -326,5 +351,6 @@ def test_pile_excess_against_a_hand_computed_poisson_tail():
 def test_describe_quotes_the_thresholds():
     from featureaudit.probes.fitscope import Fitscope
     from featureaudit.settings import Settings
+
     text = Fitscope.describe(Settings())
     assert "0.5%" in text and "Poisson" in text and "high" in text and "critical" in text

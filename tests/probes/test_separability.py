@@ -15,28 +15,33 @@ def _finding(result):
 def test_random_split_of_breast_cancer_is_near_chance(breast_cancer):
     # Real data: scikit-learn's breast-cancer set, split at random.
     rng = np.random.default_rng(0)
-    frame = breast_cancer.assign(split=np.where(rng.random(len(breast_cancer)) < 0.3, "test",
-                                                "train"))
-    found = _finding(fa.audit(frame, target="malignant", split_column="split",
-                              probes=["separability"]))[0]
+    frame = breast_cancer.assign(
+        split=np.where(rng.random(len(breast_cancer)) < 0.3, "test", "train")
+    )
+    found = _finding(
+        fa.audit(frame, target="malignant", split_column="split", probes=["separability"])
+    )[0]
     assert 0.4 <= found["value"] <= 0.6
     assert found["level"] in ("none", "low")
 
 
 def test_split_by_a_feature_quantile_is_separable_and_named(breast_cancer):
     cut = breast_cancer["mean texture"].quantile(0.7)
-    frame = breast_cancer.assign(split=np.where(breast_cancer["mean texture"] > cut, "test",
-                                                "train"))
-    found = _finding(fa.audit(frame, target="malignant", split_column="split",
-                              probes=["separability"]))[0]
+    frame = breast_cancer.assign(
+        split=np.where(breast_cancer["mean texture"] > cut, "test", "train")
+    )
+    found = _finding(
+        fa.audit(frame, target="malignant", split_column="split", probes=["separability"])
+    )[0]
     assert found["value"] > 0.9 and found["level"] in ("high", "critical")
     top = found["detail"]["drivers"][0]["column"]
     assert top == "mean texture"
     assert found["detail"]["auc_without_top"] < found["value"]
     # reference: scipy.stats.ks_2samp — the top driver differs most between the sides
     train, test = frame[frame.split == "train"], frame[frame.split == "test"]
-    ks = {c: ks_2samp(train[c], test[c]).statistic for c in breast_cancer.columns
-          if c != "malignant"}
+    ks = {
+        c: ks_2samp(train[c], test[c]).statistic for c in breast_cancer.columns if c != "malignant"
+    }
     assert max(ks, key=ks.get) == top
 
 
@@ -51,9 +56,11 @@ def test_identifier_that_separates_is_named(breast_cancer):
 def test_without_a_split_the_random_and_time_splits_are_simulated(breast_cancer):
     frame = breast_cancer.copy()
     frame["decided"] = np.datetime64("2024-01-01") + np.argsort(
-        np.argsort(frame["mean radius"].to_numpy())).astype("timedelta64[D]")
-    found = _finding(fa.audit(frame, target="malignant", label_time="decided",
-                              probes=["separability"]))
+        np.argsort(frame["mean radius"].to_numpy())
+    ).astype("timedelta64[D]")
+    found = _finding(
+        fa.audit(frame, target="malignant", label_time="decided", probes=["separability"])
+    )
     kinds = {f["detail"]["simulated_split"]: f for f in found}
     assert set(kinds) == {"random", "time"}
     assert 0.4 <= kinds["random"]["value"] <= 0.6 and kinds["random"]["level"] == "none"
@@ -63,11 +70,17 @@ def test_without_a_split_the_random_and_time_splits_are_simulated(breast_cancer)
 @pytest.mark.parametrize("seed", [0, 1])
 def test_sample_size_setting_is_honoured_and_reported(breast_cancer, seed):
     from featureaudit.settings import Settings
+
     rng = np.random.default_rng(seed)
-    frame = breast_cancer.assign(split=np.where(rng.random(len(breast_cancer)) < 0.3, "test",
-                                                "train"))
-    result = fa.audit(frame, split_column="split", probes=["separability"],
-                      settings=Settings(seed=seed, reference_rows=300))
+    frame = breast_cancer.assign(
+        split=np.where(rng.random(len(breast_cancer)) < 0.3, "test", "train")
+    )
+    result = fa.audit(
+        frame,
+        split_column="split",
+        probes=["separability"],
+        settings=Settings(seed=seed, reference_rows=300),
+    )
     assert _finding(result)[0]["detail"]["sample_rows"] == pytest.approx(300, abs=2)
 
 
@@ -79,28 +92,45 @@ def test_verdict_does_not_depend_on_row_order_or_on_test_files(breast_cancer):
     frame = breast_cancer.copy()
     frame.insert(0, "record_id", [f"r{i:05d}" for i in range(len(frame))])
     frame["seen"] = np.datetime64("2024-01-01") + rng.permutation(len(frame)).astype(
-        "timedelta64[D]")
+        "timedelta64[D]"
+    )
     split = np.where(rng.random(len(frame)) < 0.3, "test", "train")
-    by_column = _finding(fa.audit(frame.assign(split=split), target="malignant",
-                                  split_column="split", probes=["separability"]))[0]
-    as_files = _finding(fa.audit(frame[split == "train"], test=frame[split == "test"],
-                                 target="malignant", probes=["separability"]))[0]
+    by_column = _finding(
+        fa.audit(
+            frame.assign(split=split),
+            target="malignant",
+            split_column="split",
+            probes=["separability"],
+        )
+    )[0]
+    as_files = _finding(
+        fa.audit(
+            frame[split == "train"],
+            test=frame[split == "test"],
+            target="malignant",
+            probes=["separability"],
+        )
+    )[0]
     by_date = frame.assign(split=split).sort_values("seen")
-    by_date = _finding(fa.audit(by_date, target="malignant", split_column="split",
-                                probes=["separability"]))[0]
+    by_date = _finding(
+        fa.audit(by_date, target="malignant", split_column="split", probes=["separability"])
+    )[0]
     levels = {by_column["level"], as_files["level"], by_date["level"]}
     assert len(levels) == 1 and levels <= {"none", "low"}, levels
-    assert all("record_id" not in [d["column"] for d in f["detail"]["drivers"]]
-               for f in (by_column, as_files, by_date))
+    assert all(
+        "record_id" not in [d["column"] for d in f["detail"]["drivers"]]
+        for f in (by_column, as_files, by_date)
+    )
 
 
 def test_level_functions_are_pure():
     from featureaudit.levels import Level
     from featureaudit.probes.separability import identifier_level, simulated_level, split_level
+
     # floors: common practice, no source (declared in SeparabilityThresholds)
     assert split_level(0.90, 10.0) == Level.CRITICAL
     assert split_level(0.75, 10.0) == Level.HIGH
-    assert split_level(0.75, 3.5) == Level.MEDIUM       # not 4 null SEs from 0.5
+    assert split_level(0.75, 3.5) == Level.MEDIUM  # not 4 null SEs from 0.5
     assert split_level(0.55, 2.5) == Level.LOW
     assert split_level(0.51, 0.5) == Level.NONE
     assert identifier_level(1.0, 20.0) == Level.LOW

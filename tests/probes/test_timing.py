@@ -16,8 +16,9 @@ HIGH = ("high", "critical")
 
 
 def _overlap(result):
-    found = [f for f in result.document["dataset_findings"]
-             if f["kind"] == "time_overlap_across_split"]
+    found = [
+        f for f in result.document["dataset_findings"] if f["kind"] == "time_overlap_across_split"
+    ]
     assert len(found) == 1
     return found[0]
 
@@ -44,8 +45,14 @@ def macrodata():
 def test_grunfeld_random_split_overlaps(grunfeld):
     rng = np.random.default_rng(0)
     frame = grunfeld.assign(split=np.where(rng.random(len(grunfeld)) < 0.75, "train", "test"))
-    result = fa.audit(frame, target="high_invest", split_column="split", label_time="year",
-                      entity="firm", probes=["timing"])
+    result = fa.audit(
+        frame,
+        target="high_invest",
+        split_column="split",
+        label_time="year",
+        entity="firm",
+        probes=["timing"],
+    )
     found = _overlap(result)
     assert found["level"] in HIGH and found["value"] > 0.5
     assert found["detail"]["entity_share_before_own_training_end"] > 0.5
@@ -53,8 +60,9 @@ def test_grunfeld_random_split_overlaps(grunfeld):
 
 def test_grunfeld_forward_split_is_clean(grunfeld):
     frame = grunfeld.assign(split=np.where(grunfeld["year"] <= 1950, "train", "test"))
-    result = fa.audit(frame, target="high_invest", split_column="split", label_time="year",
-                      probes=["timing"])
+    result = fa.audit(
+        frame, target="high_invest", split_column="split", label_time="year", probes=["timing"]
+    )
     found = _overlap(result)
     assert found["level"] == "none" and found["value"] == 0.0
     assert found["detail"]["train_period"][1].startswith("1950")
@@ -62,30 +70,48 @@ def test_grunfeld_forward_split_is_clean(grunfeld):
 
 def test_macrodata_random_and_forward_splits(macrodata):
     rng = np.random.default_rng(1)
-    random_split = macrodata.assign(split=np.where(rng.random(len(macrodata)) < 0.8, "train",
-                                                   "test"))
-    result = fa.audit(random_split, target="unemp_up", split_column="split",
-                      label_time="quarter_start", probes=["timing"])
+    random_split = macrodata.assign(
+        split=np.where(rng.random(len(macrodata)) < 0.8, "train", "test")
+    )
+    result = fa.audit(
+        random_split,
+        target="unemp_up",
+        split_column="split",
+        label_time="quarter_start",
+        probes=["timing"],
+    )
     assert _overlap(result)["level"] in HIGH
-    forward = macrodata.assign(split=np.where(macrodata["quarter_start"] < "2000-01-01", "train",
-                                              "test"))
-    result = fa.audit(forward, target="unemp_up", split_column="split",
-                      label_time="quarter_start", probes=["timing"])
+    forward = macrodata.assign(
+        split=np.where(macrodata["quarter_start"] < "2000-01-01", "train", "test")
+    )
+    result = fa.audit(
+        forward,
+        target="unemp_up",
+        split_column="split",
+        label_time="quarter_start",
+        probes=["timing"],
+    )
     assert _overlap(result)["level"] == "none"
 
 
 def test_lag_arithmetic_matches_pandas_across_daylight_saving():
     # Europe/Berlin moves to summer time on 2025-03-30: one calendar day there is 23 hours.
-    cut = pd.Series(pd.to_datetime(["2025-03-29 12:00", "2025-03-29 12:00", "2025-10-25 12:00",
-                                    "2025-01-10 08:00"]).tz_localize("Europe/Berlin"))
-    seen = pd.Series(pd.to_datetime(["2025-03-30 12:00", "2025-03-29 11:00", "2025-10-26 12:00",
-                                     "2025-01-13 08:00"]).tz_localize("Europe/Berlin"))
+    cut = pd.Series(
+        pd.to_datetime(
+            ["2025-03-29 12:00", "2025-03-29 12:00", "2025-10-25 12:00", "2025-01-10 08:00"]
+        ).tz_localize("Europe/Berlin")
+    )
+    seen = pd.Series(
+        pd.to_datetime(
+            ["2025-03-30 12:00", "2025-03-29 11:00", "2025-10-26 12:00", "2025-01-13 08:00"]
+        ).tz_localize("Europe/Berlin")
+    )
     frame = pd.DataFrame({"cut": cut, "seen": seen, "y": [0, 1, 0, 1], "x": [1.0, 2, 3, 4]})
     table = build_table(frame, target="y", cutoff_time="cut")
     settings = Settings(time_tolerance="0d", share_tolerance=0.0)
     evidence, _ = Timing().run(table, settings)
     lags = evidence[0].detail["lag_days_vs_cutoff"]
-    reference = ((seen - cut) / pd.Timedelta(days=1)).to_numpy()   # reference: pandas arithmetic
+    reference = ((seen - cut) / pd.Timedelta(days=1)).to_numpy()  # reference: pandas arithmetic
     assert lags["q00"] == pytest.approx(reference.min())
     assert lags["q100"] == pytest.approx(reference.max())
     assert reference[0] == pytest.approx(23 / 24) and reference[2] == pytest.approx(25 / 24)
@@ -93,9 +119,13 @@ def test_lag_arithmetic_matches_pandas_across_daylight_saving():
 
 
 def test_zone_aware_value_against_naive_cutoff_is_compared_in_utc():
-    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-06-01 10:00"] * 4),
-                          "seen": pd.to_datetime(["2025-06-01 11:30"] * 4).tz_localize(
-                              "Europe/Berlin"), "y": [0, 1, 0, 1]})
+    frame = pd.DataFrame(
+        {
+            "cut": pd.to_datetime(["2025-06-01 10:00"] * 4),
+            "seen": pd.to_datetime(["2025-06-01 11:30"] * 4).tz_localize("Europe/Berlin"),
+            "y": [0, 1, 0, 1],
+        }
+    )
     table = build_table(frame, target="y", cutoff_time="cut")
     evidence, _ = Timing().run(table, Settings(time_tolerance="0d"))
     # 11:30 in Berlin (UTC+2 in June) is 09:30 UTC: before the 10:00 UTC cutoff
@@ -105,11 +135,18 @@ def test_zone_aware_value_against_naive_cutoff_is_compared_in_utc():
 def test_duration_known_at_against_a_horizon():
     n = 200
     label = pd.Timestamp("2025-01-01") + pd.to_timedelta(np.arange(n), "D")
-    frame = pd.DataFrame({"decided": label, "late_fee": np.arange(n) % 7,
-                          "score": 1.0 * np.arange(n), "y": np.arange(n) % 2})
+    frame = pd.DataFrame(
+        {
+            "decided": label,
+            "late_fee": np.arange(n) % 7,
+            "score": 1.0 * np.arange(n),
+            "y": np.arange(n) % 2,
+        }
+    )
     d = parse_dictionary("column,known_at\nlate_fee,-5d\nscore,-40d\n", source="d.csv")
-    result = fa.audit(frame, target="y", label_time="decided", horizon="30d", dictionary=d,
-                      probes=["timing"])
+    result = fa.audit(
+        frame, target="y", label_time="decided", horizon="30d", dictionary=d, probes=["timing"]
+    )
     levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
     assert levels["late_fee"] in HIGH and levels["score"] == "none"
     ev = result.columns.set_index("column").loc["late_fee", "evidence"][0]
@@ -117,10 +154,15 @@ def test_duration_known_at_against_a_horizon():
 
 
 def test_missing_times_are_counted_not_dropped():
-    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-01-01"] * 6),
-                          "seen": pd.to_datetime(["2025-02-01", None, None, "2024-12-01",
-                                                  "2024-12-02", "2024-12-03"]),
-                          "y": [0, 1] * 3})
+    frame = pd.DataFrame(
+        {
+            "cut": pd.to_datetime(["2025-01-01"] * 6),
+            "seen": pd.to_datetime(
+                ["2025-02-01", None, None, "2024-12-01", "2024-12-02", "2024-12-03"]
+            ),
+            "y": [0, 1] * 3,
+        }
+    )
     evidence, _ = Timing().run(build_table(frame, target="y", cutoff_time="cut"), Settings())
     detail = evidence[0].detail
     assert detail["rows_missing_time"] == 2 and detail["rows_checked"] == 4
@@ -130,7 +172,7 @@ def test_missing_times_are_counted_not_dropped():
 def test_small_shares_and_small_lags_stay_within_tolerance():
     n = 1000
     cut = pd.Timestamp("2025-01-01") + pd.to_timedelta(np.arange(n), "D")
-    seen = cut + pd.Timedelta(hours=20)              # same-day recording: within 1 day
+    seen = cut + pd.Timedelta(hours=20)  # same-day recording: within 1 day
     seen_rare = cut - pd.Timedelta(days=3)
     seen_rare = seen_rare.where(np.arange(n) % 200 != 0, cut + pd.Timedelta(days=9))  # 0.5 %
     frame = pd.DataFrame({"cut": cut, "seen": seen, "rare": seen_rare, "y": np.arange(n) % 2})
@@ -140,9 +182,13 @@ def test_small_shares_and_small_lags_stay_within_tolerance():
 
 
 def test_unparseable_feature_dates_are_skipped_with_the_column_named():
-    frame = pd.DataFrame({"cut": pd.to_datetime(["2025-01-01"] * 20),
-                          "noted": ["2025-01-02T10:00:00+01:00"] * 10 + ["2025-01-02T10:00"] * 10,
-                          "y": [0, 1] * 10})
+    frame = pd.DataFrame(
+        {
+            "cut": pd.to_datetime(["2025-01-01"] * 20),
+            "noted": ["2025-01-02T10:00:00+01:00"] * 10 + ["2025-01-02T10:00"] * 10,
+            "y": [0, 1] * 10,
+        }
+    )
     _, skipped = Timing().run(build_table(frame, target="y", cutoff_time="cut"), Settings())
     assert any(s.column == "noted" and "'noted'" in s.reason for s in skipped)
 
@@ -167,8 +213,13 @@ def test_demo_after_the_fact_columns_are_found_and_honest_dates_are_not():
 
 def test_demo_without_dictionary_still_flags_the_late_timestamp():
     table, _ = demo_paths()
-    result = fa.audit(table, target="late_over_30d", split_column="split",
-                      cutoff_time="issued_at", probes=["timing"])
+    result = fa.audit(
+        table,
+        target="late_over_30d",
+        split_column="split",
+        cutoff_time="issued_at",
+        probes=["timing"],
+    )
     levels = dict(zip(result.columns["column"], result.columns["level"], strict=True))
     assert levels["last_contact_at"] in HIGH
     assert levels["customer_since"] == "none"
@@ -182,7 +233,8 @@ def _levels(result):
 def test_relative_known_at_is_compared_without_any_time_column(macrodata):
     # Real data: statsmodels' macrodata with its dates dropped, so only durations remain.
     frame = macrodata.drop(columns="quarter_start").assign(
-        revised_cpi=macrodata["cpi"] * 1.01, lagged_m1=macrodata["m1"].shift(1).bfill())
+        revised_cpi=macrodata["cpi"] * 1.01, lagged_m1=macrodata["m1"].shift(1).bfill()
+    )
     d = parse_dictionary("column,known_at\nrevised_cpi,+30d\nlagged_m1,-90d\n", source="d.csv")
     result = fa.audit(frame, target="unemp_up", dictionary=d, probes=["timing"])
     levels = _levels(result)
@@ -202,15 +254,20 @@ def test_known_at_column_without_times_says_it_cannot_compare(macrodata):
     d = parse_dictionary("column,known_at\ncpi,published\n", source="d.csv")
     result = fa.audit(frame, target="unemp_up", dictionary=d, probes=["timing"])
     ev = result.columns.set_index("column").loc["cpi", "evidence"][0]
-    assert ev["level"] == "none" and "cannot compare" in ev["summary"] and "'published'" in \
-        ev["summary"]
-    compared = fa.audit(frame, target="unemp_up", dictionary=d, cutoff_time="quarter_start",
-                        probes=["timing"])
+    assert (
+        ev["level"] == "none"
+        and "cannot compare" in ev["summary"]
+        and "'published'" in ev["summary"]
+    )
+    compared = fa.audit(
+        frame, target="unemp_up", dictionary=d, cutoff_time="quarter_start", probes=["timing"]
+    )
     assert _levels(compared)["cpi"] in HIGH
 
 
 def test_horizon_without_label_time_still_needs_a_duration_to_compare(macrodata):
     from featureaudit.errors import SettingError
+
     with pytest.raises(SettingError, match="--label-time"):
         fa.audit(macrodata, target="unemp_up", horizon="30d", probes=["timing"])
 
@@ -225,10 +282,12 @@ def _minute_times(macrodata):
 
 def test_hours_late_in_minute_resolution_data_is_found(macrodata):
     cut = _minute_times(macrodata)
-    late = macrodata["unemp_up"] == 1              # recorded once the outcome is in
+    late = macrodata["unemp_up"] == 1  # recorded once the outcome is in
     frame = macrodata.assign(
-        cut=cut, noted=cut + pd.to_timedelta(np.where(late, 180, -45), unit="min"),
-        honest=cut - pd.Timedelta(minutes=30))
+        cut=cut,
+        noted=cut + pd.to_timedelta(np.where(late, 180, -45), unit="min"),
+        honest=cut - pd.Timedelta(minutes=30),
+    )
     result = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"])
     levels = _levels(result)
     assert levels["noted"] in HIGH and levels["honest"] == "none"
@@ -237,8 +296,13 @@ def test_hours_late_in_minute_resolution_data_is_found(macrodata):
     # reference: pandas arithmetic; three hours late = 180 minutes
     assert ev["detail"]["lag_minutes_vs_cutoff"]["q100"] == pytest.approx(180)
     # an explicit tolerance wins over the resolution: three hours pass under "1d"
-    explicit = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"],
-                        settings=Settings(time_tolerance="1d"))
+    explicit = fa.audit(
+        frame,
+        target="unemp_up",
+        cutoff_time="cut",
+        probes=["timing"],
+        settings=Settings(time_tolerance="1d"),
+    )
     assert _levels(explicit)["noted"] == "none"
 
 
@@ -252,8 +316,10 @@ def test_same_day_lateness_against_a_date_cutoff_stays_within_a_day(macrodata):
 
 def test_levels_do_not_depend_on_row_order(macrodata):
     cut = _minute_times(macrodata)
-    frame = macrodata.assign(cut=cut, noted=cut + pd.to_timedelta(
-        np.where(macrodata["unemp_up"] == 1, 180, -45), unit="min"))
+    frame = macrodata.assign(
+        cut=cut,
+        noted=cut + pd.to_timedelta(np.where(macrodata["unemp_up"] == 1, 180, -45), unit="min"),
+    )
     shuffled = frame.sample(frac=1.0, random_state=3).reset_index(drop=True)
     a = fa.audit(frame, target="unemp_up", cutoff_time="cut", probes=["timing"])
     b = fa.audit(shuffled, target="unemp_up", cutoff_time="cut", probes=["timing"])
@@ -264,6 +330,7 @@ def test_levels_do_not_depend_on_row_order(macrodata):
 def test_share_and_column_levels():
     from featureaudit.levels import Level
     from featureaudit.probes.timing import column_level, share_level
+
     assert share_level(0.005, 0.01) == Level.NONE and share_level(0.015, 0.01) == Level.LOW
     assert share_level(0.02, 0.01) == Level.MEDIUM and share_level(0.10, 0.01) == Level.HIGH
     assert share_level(0.5, 0.01) == Level.CRITICAL
@@ -273,15 +340,17 @@ def test_share_and_column_levels():
 
 def test_resolution_and_tolerance():
     from featureaudit.probes.timing import resolution, tolerance
+
     def ns(*t):
         times = pd.to_datetime(list(t), format="ISO8601")
         return times.to_numpy(dtype="datetime64[ns]").astype("int64") * 1.0
+
     assert resolution(ns("2025-01-01", "2025-02-03"))[0] == "day"
     assert resolution(ns("2025-01-01 10:00", "2025-01-01"))[0] == "hour"
     assert resolution(ns("2025-01-01 10:05"))[0] == "minute"
     assert resolution(ns("2025-01-01 10:05:03"))[0] == "second"
     auto = tolerance(Settings(), ns("2025-01-01 10:05"), ns("2025-01-01"))
-    assert auto.ns == 86400e9 and "day" in auto.reason          # the coarser of the two
+    assert auto.ns == 86400e9 and "day" in auto.reason  # the coarser of the two
     assert tolerance(Settings(), ns("2025-01-01 10:05:03")).ns == 60e9  # clock-skew floor
     assert tolerance(Settings(time_tolerance="3d"), ns("2025-01-01 10:05")).ns == 3 * 86400e9
 

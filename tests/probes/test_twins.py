@@ -57,9 +57,13 @@ def test_exact_duplicates_agree_with_pandas_on_iris():
 
 def test_row_hashes_match_pandas_duplicates_with_missing_values_and_text():
     rng = np.random.default_rng(0)
-    frame = pd.DataFrame({"a": rng.integers(0, 3, 500).astype(float),
-                          "b": rng.choice(["x", "y", None], 500),
-                          "c": rng.integers(0, 2, 500)})
+    frame = pd.DataFrame(
+        {
+            "a": rng.integers(0, 3, 500).astype(float),
+            "b": rng.choice(["x", "y", None], 500),
+            "c": rng.integers(0, 2, 500),
+        }
+    )
     frame.loc[::7, "a"] = np.nan
     dup = pd.Series(row_hashes(frame, ["a", "b", "c"])).duplicated(keep=False).to_numpy()
     assert (dup == frame.duplicated(keep=False).to_numpy()).all()  # reference: pandas
@@ -71,14 +75,23 @@ def test_row_hashes_match_pandas_duplicates_with_missing_values_and_text():
 def test_planted_copies_are_found_at_high(request, dataset, share, noise):
     frame = request.getfixturevalue(dataset)
     target = "malignant" if dataset == "breast_cancer" else "digit"
-    planted, k = _plant_copies(frame, target, share, noise, seed=1,
-                               heldout_share=0.5 if dataset == "breast_cancer" else 0.3)
-    result = fa.audit(planted, target=target, split_column="split", train_value="train",
-                      probes=["twins"])
+    planted, k = _plant_copies(
+        frame,
+        target,
+        share,
+        noise,
+        seed=1,
+        heldout_share=0.5 if dataset == "breast_cancer" else 0.3,
+    )
+    result = fa.audit(
+        planted, target=target, split_column="split", train_value="train", probes=["twins"]
+    )
     found = _finding(result, "duplicate_rows_across_split")
     assert found["level"] in HIGH, found["summary"]
-    counted = found["detail"]["heldout_rows_with_exact_twin"] + \
-        found["detail"]["heldout_rows_with_near_twin"]
+    counted = (
+        found["detail"]["heldout_rows_with_exact_twin"]
+        + found["detail"]["heldout_rows_with_near_twin"]
+    )
     assert counted >= 0.9 * k
     if not noise:
         assert found["detail"]["label_agreement"] == 1.0
@@ -98,8 +111,13 @@ def test_clean_random_splits_are_not_flagged(request, dataset):
 def test_shared_entities_on_a_random_split():
     rng = np.random.default_rng(3)
     n = 2000
-    frame = pd.DataFrame({"patient": rng.integers(0, 150, n), "x": rng.normal(size=n),
-                          "split": np.where(rng.random(n) < 0.2, "test", "train")})
+    frame = pd.DataFrame(
+        {
+            "patient": rng.integers(0, 150, n),
+            "x": rng.normal(size=n),
+            "split": np.where(rng.random(n) < 0.2, "test", "train"),
+        }
+    )
     result = fa.audit(frame, split_column="split", entity="patient", probes=["twins"])
     found = _finding(result, "shared_entities_across_split")
     assert found["level"] == "critical" and found["detail"]["share_entities"] > 0.9
@@ -121,8 +139,9 @@ def test_natural_copies_of_discrete_survey_data_are_not_shouted():
     # Real data: statsmodels' bundled fair survey; 1,039 of 6,366 rows repeat another row
     # (references.md §3, computed with pandas) because every answer takes few values.
     import statsmodels.api as sm
+
     full = sm.datasets.fair.load_pandas().data
-    assert int(full.duplicated().sum()) == 1039           # reference: pandas duplicated
+    assert int(full.duplicated().sum()) == 1039  # reference: pandas duplicated
     frame = full.drop(columns="affairs")
     found = _finding(fa.audit(frame, probes=["twins"]), "duplicate_rows_across_split")
     assert found["level"] not in HIGH
@@ -132,10 +151,10 @@ def test_natural_copies_of_discrete_survey_data_are_not_shouted():
 def test_every_heldout_row_an_exact_copy():
     # No held-out row is left for the near-copy search; the share must still be computed.
     rng = np.random.default_rng(5)
-    train = pd.DataFrame({"x": rng.normal(size=300), "w": rng.normal(size=300),
-                          "y": rng.integers(0, 2, 300)})
-    result = fa.audit(train, test=train.sample(40, random_state=1), target="y",
-                      probes=["twins"])
+    train = pd.DataFrame(
+        {"x": rng.normal(size=300), "w": rng.normal(size=300), "y": rng.integers(0, 2, 300)}
+    )
+    result = fa.audit(train, test=train.sample(40, random_state=1), target="y", probes=["twins"])
     found = _finding(result, "duplicate_rows_across_split")
     assert found["value"] == 1.0 and found["level"] == "critical"
     assert not result.document["skipped"]
@@ -145,6 +164,7 @@ def _modechoice():
     # Real data: statsmodels' bundled modechoice (travel choices of 210 people, four
     # alternatives each; few-valued columns such as psize, hinc and ttme).
     import statsmodels.api as sm
+
     frame = sm.datasets.modechoice.load_pandas().data.copy()
     frame["y"] = frame.pop("choice").astype(int)
     return frame
@@ -156,8 +176,10 @@ def test_natural_copies_of_a_group_split_stay_below_medium_and_planted_copies_ar
     people = frame["individual"].unique()
     held = rng.choice(people, people.size // 4, replace=False)
     grouped = frame.assign(split=np.where(frame["individual"].isin(held), "test", "train"))
-    clean = _finding(fa.audit(grouped, target="y", split_column="split", probes=["twins"]),
-                     "duplicate_rows_across_split")
+    clean = _finding(
+        fa.audit(grouped, target="y", split_column="split", probes=["twins"]),
+        "duplicate_rows_across_split",
+    )
     assert clean["level"] in ("none", "low"), clean["summary"]
     assert clean["detail"]["exact_copy_baseline"]["natural_share"] >= 0
     # 5 % of held-out rows copied from training rows (features and label)
@@ -165,10 +187,13 @@ def test_natural_copies_of_a_group_split_stay_below_medium_and_planted_copies_ar
     test_rows, train_rows = np.flatnonzero(split == "test"), np.flatnonzero(split == "train")
     k = int(round(0.05 * test_rows.size))
     planted = frame.copy()
-    planted.iloc[rng.choice(test_rows, k, replace=False)] = \
-        frame.iloc[rng.choice(train_rows, k)].to_numpy()
-    found = _finding(fa.audit(planted.assign(split=split), target="y", split_column="split",
-                              probes=["twins"]), "duplicate_rows_across_split")
+    planted.iloc[rng.choice(test_rows, k, replace=False)] = frame.iloc[
+        rng.choice(train_rows, k)
+    ].to_numpy()
+    found = _finding(
+        fa.audit(planted.assign(split=split), target="y", split_column="split", probes=["twins"]),
+        "duplicate_rows_across_split",
+    )
     assert found["level"] in HIGH, found["summary"]
     assert found["detail"]["label_agreement"] == 1.0
 
@@ -176,6 +201,7 @@ def test_natural_copies_of_a_group_split_stay_below_medium_and_planted_copies_ar
 def test_copy_excess_matches_a_hand_count_and_levels_are_pure():
     from featureaudit.levels import Level
     from featureaudit.probes.twins import THRESHOLDS, copy_excess, copy_level, entity_level
+
     # 100 training rows, all distinct; 20 held-out rows of which 10 copy a training row:
     # random parts of the training rows never find a copy, so the excess is 10/20 exactly
     # (reference: hand count).
@@ -185,8 +211,8 @@ def test_copy_excess_matches_a_hand_count_and_levels_are_pure():
     assert base["natural_share"] == 0.0
     assert base["excess"] == pytest.approx(0.5, abs=0.15)
     assert copy_level(0.02, 10, 1.0, 0.5) == (Level.HIGH, [])
-    assert copy_level(0.02, 3, 1.0, 0.5)[0] == Level.LOW           # too few twins
-    assert copy_level(0.02, 10, 0.52, 0.5)[0] == Level.MEDIUM      # labels agree by chance
+    assert copy_level(0.02, 3, 1.0, 0.5)[0] == Level.LOW  # too few twins
+    assert copy_level(0.02, 10, 0.52, 0.5)[0] == Level.MEDIUM  # labels agree by chance
     assert copy_level(0.0, 0, None, None)[0] == Level.NONE
     assert entity_level(0.6, simulated=True) == Level.LOW
     assert entity_level(0.6, simulated=False) == Level.CRITICAL
