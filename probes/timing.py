@@ -138,12 +138,26 @@ def tolerance(
     found = [resolution(t) for t in times]
     name, unit = max(found, key=lambda r: r[1]) if found else UNITS[0]
     ns = max(unit, floor)
-    what = " and ".join(f"{n}s" for n in dict.fromkeys(r[0] for r in found))
     return Tolerance(
         ns,
-        f"automatic: the times carry {what}, so one {name}"
+        f"automatic: the coarsest resolution of the times compared is one {name}"
         + (f" (clock-skew floor {th.clock_skew_floor})" if ns > unit else ""),
     )
+
+
+def _display_unit(lag_ns: np.ndarray) -> tuple[str, float]:
+    """Days, hours or minutes, whichever shows the typical lag as a readable number."""
+    lag = np.abs(lag_ns[np.isfinite(lag_ns)])
+    typical = float(np.median(lag)) if lag.size else 0.0
+    for name, unit in UNITS[:-1]:
+        if typical >= 2 * unit:
+            return name + "s", unit
+    return "minutes", _MINUTE
+
+
+def _amount(value: float, unit_plural: str) -> str:
+    """``1 minute``, ``3 days``: a number with its unit, singular for one."""
+    return f"{value:g} {unit_plural[:-1] if value == 1 else unit_plural}"
 
 
 def _ns(times: pd.Series) -> np.ndarray:
@@ -370,9 +384,9 @@ class Timing(Probe):
         tol = tolerance(
             settings, cutoff[ok], *(() if from_duration else (times[ok],)), th=self.thresholds
         )
-        unit_name, unit = tol.unit
         lag = np.where(ok, times - cutoff, np.nan)
         after = ok & (lag > tol.ns)
+        unit_name, unit = _display_unit(lag[after] if after.any() else lag[ok])
         share = float(after.sum() / ok.sum())
         detail: dict = {
             "basis": basis,
@@ -386,7 +400,7 @@ class Timing(Probe):
             "examples_after_cutoff": _examples(table, after),
             "cutoff": table.cutoff_source,
             "tolerance": settings.time_tolerance,
-            "tolerance_used": f"{tol.ns / unit:g} {unit_name}",
+            "tolerance_used": _amount(tol.ns / tol.unit[1], tol.unit[0]),
             "tolerance_reason": tol.reason,
         }
         share_l = None
@@ -450,7 +464,7 @@ class Timing(Probe):
             "heldout_days_vs_train_end": _quantiles_days(t[held] - end),
             "examples": _examples(table, before),
             "tolerance": settings.time_tolerance,
-            "tolerance_used": f"{tol.ns / tol.unit[1]:g} {tol.unit[0]}",
+            "tolerance_used": _amount(tol.ns / tol.unit[1], tol.unit[0]),
             "tolerance_reason": tol.reason,
         }
         if table.label_time is not None and table.cutoff_time is not None:

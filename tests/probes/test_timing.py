@@ -292,7 +292,7 @@ def test_hours_late_in_minute_resolution_data_is_found(macrodata):
     levels = _levels(result)
     assert levels["noted"] in HIGH and levels["honest"] == "none"
     ev = result.columns.set_index("column").loc["noted", "evidence"][0]
-    assert ev["detail"]["lag_unit"] == "minutes" and ev["detail"]["tolerance_used"] == "1 minutes"
+    assert ev["detail"]["lag_unit"] == "hours" and ev["detail"]["tolerance_used"] == "1 minute"
     # reference: pandas arithmetic; three hours late = 180 minutes
     assert ev["detail"]["lag_minutes_vs_cutoff"]["q100"] == pytest.approx(180)
     # an explicit tolerance wins over the resolution: three hours pass under "1d"
@@ -311,7 +311,7 @@ def test_same_day_lateness_against_a_date_cutoff_stays_within_a_day(macrodata):
     frame = macrodata.assign(noted=macrodata["quarter_start"] + pd.Timedelta(hours=18))
     result = fa.audit(frame, target="unemp_up", cutoff_time="quarter_start", probes=["timing"])
     ev = result.columns.set_index("column").loc["noted", "evidence"][0]
-    assert ev["level"] == "none" and ev["detail"]["tolerance_used"] == "1 days"
+    assert ev["level"] == "none" and ev["detail"]["tolerance_used"] == "1 day"
 
 
 def test_levels_do_not_depend_on_row_order(macrodata):
