@@ -35,14 +35,35 @@ class AuditResult:
     def columns(self) -> pd.DataFrame:
         """One row per audited column, most suspect first, with the JSON's fields."""
         rows = self.findings.columns
-        return pd.DataFrame(rows, columns=["column", "score", "level", "kinds", "summary",
-                                           "role", "description", "evidence"])
+        return pd.DataFrame(
+            rows,
+            columns=[
+                "column",
+                "score",
+                "level",
+                "kinds",
+                "summary",
+                "role",
+                "description",
+                "evidence",
+            ],
+        )
 
     @property
     def dataset_findings(self) -> pd.DataFrame:
-        return pd.DataFrame(self.findings.dataset_findings,
-                            columns=["probe", "kind", "statistic", "value", "threshold",
-                                     "level", "summary", "detail"])
+        return pd.DataFrame(
+            self.findings.dataset_findings,
+            columns=[
+                "probe",
+                "kind",
+                "statistic",
+                "value",
+                "threshold",
+                "level",
+                "summary",
+                "detail",
+            ],
+        )
 
     def suspects(self, at_least: str = "high") -> list[str]:
         """Column names at level ``at_least`` or above, most suspect first."""
@@ -54,8 +75,10 @@ class AuditResult:
 
     def __repr__(self) -> str:
         d = self.document["dataset"]
-        return (f"<AuditResult {d['source']}: {d['rows']} rows, {len(self.findings.columns)} "
-                f"columns audited, suspects at high+: {self.suspects('high')[:5]}>")
+        return (
+            f"<AuditResult {d['source']}: {d['rows']} rows, {len(self.findings.columns)} "
+            f"columns audited, suspects at high+: {self.suspects('high')[:5]}>"
+        )
 
     def _repr_html_(self) -> str:
         rows = [c for c in self.findings.columns if c["level"] != "none"][:25]
@@ -63,19 +86,26 @@ class AuditResult:
             f"<tr><td>{html.escape(c['level'])}</td><td>{c['score']:.2f}</td>"
             f"<td><code>{html.escape(str(c['column']))}</code></td>"
             f"<td>{html.escape(', '.join(c['kinds']))}</td>"
-            f"<td>{html.escape(str(c['summary']))}</td></tr>" for c in rows)
+            f"<td>{html.escape(str(c['summary']))}</td></tr>"
+            for c in rows
+        )
         dataset = "".join(
             f"<li>{html.escape(f['level'])}: {html.escape(f['kind'])}: "
-            f"{html.escape(str(f['summary']))}</li>" for f in self.findings.dataset_findings
-            if f["level"] != "none")
+            f"{html.escape(str(f['summary']))}</li>"
+            for f in self.findings.dataset_findings
+            if f["level"] != "none"
+        )
         clean = len(self.findings.columns) - len(rows)
         d = self.document["dataset"]
-        return (f"<div><strong>featureaudit</strong>: {html.escape(str(d['source']))}, "
-                f"{d['rows']} rows, target <code>{html.escape(str(d['target']))}</code>"
-                f"<table><thead><tr><th>level</th><th>score</th><th>column</th><th>kinds</th>"
-                f"<th>summary</th></tr></thead><tbody>{body}</tbody></table>"
-                f"<p>{clean} more columns without findings shown.</p>"
-                + (f"<ul>{dataset}</ul>" if dataset else "") + "</div>")
+        return (
+            f"<div><strong>featureaudit</strong>: {html.escape(str(d['source']))}, "
+            f"{d['rows']} rows, target <code>{html.escape(str(d['target']))}</code>"
+            f"<table><thead><tr><th>level</th><th>score</th><th>column</th><th>kinds</th>"
+            f"<th>summary</th></tr></thead><tbody>{body}</tbody></table>"
+            f"<p>{clean} more columns without findings shown.</p>"
+            + (f"<ul>{dataset}</ul>" if dataset else "")
+            + "</div>"
+        )
 
 
 def audit(
@@ -132,11 +162,22 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
-    table = build_table(data, test=test, split_column=split_column, train_value=train_value,
-                        target=target, task=task, dictionary=dictionary, label_time=label_time,
-                        cutoff_time=cutoff_time, horizon=horizon, entity=entity, source=source)
+    table = build_table(
+        data,
+        test=test,
+        split_column=split_column,
+        train_value=train_value,
+        target=target,
+        task=task,
+        dictionary=dictionary,
+        label_time=label_time,
+        cutoff_time=cutoff_time,
+        horizon=horizon,
+        entity=entity,
+        source=source,
+    )
     if settings is None:
         settings = Settings(seed=seed)
-    elif seed != 0 and seed != settings.seed:      # an explicit seed wins over the settings'
+    elif seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
         settings = Settings(**{**settings.to_dict(), "seed": seed})
     return AuditResult(run_audit(table, settings, probes=probes))

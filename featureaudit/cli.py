@@ -23,6 +23,7 @@ def _click_exception() -> Any:
     """The usage-error class that this typer raises: its own vendored click's (recent typer
     releases) or click's (earlier ones)."""
     import importlib
+
     try:
         module = importlib.import_module("typer._click.exceptions")
     except ImportError:
@@ -48,15 +49,23 @@ class _OneLineErrors(TyperGroup):
             print("featureaudit: interrupted; no report was written.", file=sys.stderr)
             sys.exit(130)
         except Exception as exc:  # noqa: BLE001 — a bug: one line, no traceback, exit 3
-            print(f"featureaudit: internal error ({type(exc).__name__}: {exc}); no report was "
-                  "written. Please report it with the command you ran.", file=sys.stderr)
+            print(
+                f"featureaudit: internal error ({type(exc).__name__}: {exc}); no report was "
+                "written. Please report it with the command you ran.",
+                file=sys.stderr,
+            )
             sys.exit(3)
         sys.exit(rv if isinstance(rv, int) else 0)
 
 
-app = typer.Typer(cls=_OneLineErrors, add_completion=False, rich_markup_mode=None,
-                  pretty_exceptions_enable=False, no_args_is_help=True,
-                  help="Audit a training table and its split for target leakage.")
+app = typer.Typer(
+    cls=_OneLineErrors,
+    add_completion=False,
+    rich_markup_mode=None,
+    pretty_exceptions_enable=False,
+    no_args_is_help=True,
+    help="Audit a training table and its split for target leakage.",
+)
 
 
 def _fail(exc: BaseException) -> None:
@@ -67,36 +76,49 @@ def _fail(exc: BaseException) -> None:
 def _reached(doc: dict[str, Any], level: str) -> list[str]:
     floor = Level.parse(level)
     hits = [c["column"] for c in doc["columns"] if Level.parse(c["level"]) >= floor]
-    hits += [f"{f['kind']} (split)" for f in doc["dataset_findings"]
-             if Level.parse(f["level"]) >= floor]
+    hits += [
+        f"{f['kind']} (split)" for f in doc["dataset_findings"] if Level.parse(f["level"]) >= floor
+    ]
     return hits
 
 
 @app.command()
 def scan(
-    table: Annotated[Path, typer.Argument(help="CSV, TSV, Parquet, Feather/Arrow file or a "
-                                               "folder of Parquet files.")],
+    table: Annotated[
+        Path,
+        typer.Argument(help="CSV, TSV, Parquet, Feather/Arrow file or a folder of Parquet files."),
+    ],
     test: Annotated[str | None, typer.Option(help="Held-out table with the same columns.")] = None,
     split_column: Annotated[str | None, typer.Option(help="Column that marks the split.")] = None,
-    train_value: Annotated[str | None, typer.Option(help="Value of --split-column that marks "
-                                                         "training rows [default: train].")] = None,
+    train_value: Annotated[
+        str | None,
+        typer.Option(help="Value of --split-column that marks training rows [default: train]."),
+    ] = None,
     target: Annotated[str | None, typer.Option(help="The outcome column.")] = None,
     task: Annotated[str | None, typer.Option(help="binary, multiclass or numeric.")] = None,
     dictionary: Annotated[str | None, typer.Option(help="Data dictionary CSV.")] = None,
     label_time: Annotated[str | None, typer.Option(help="When each outcome became known.")] = None,
     cutoff_time: Annotated[str | None, typer.Option(help="When each prediction is made.")] = None,
-    horizon: Annotated[str | None, typer.Option(help="Cutoff = label time minus this, e.g. "
-                                                     "30d.")] = None,
+    horizon: Annotated[
+        str | None, typer.Option(help="Cutoff = label time minus this, e.g. 30d.")
+    ] = None,
     entity: Annotated[str | None, typer.Option(help="Customer, patient… a row belongs to.")] = None,
-    out: Annotated[str | None, typer.Option(help="Report folder [default: "
-                                                 "featureaudit-report].")] = None,
-    fail_at: Annotated[str | None, typer.Option(help="Exit 1 when a finding reaches this "
-                                                     "level.")] = None,
-    seed: Annotated[int | None, typer.Option(help="Seed of folds and samples [default: "
-                                                  "0].")] = None,
-    fail_at_impact: Annotated[float | None, typer.Option(
-        help="Exit 1 when the as-given validation score exceeds a corrected one by more than "
-             "this, e.g. 0.02.")] = None,
+    out: Annotated[
+        str | None, typer.Option(help="Report folder [default: featureaudit-report].")
+    ] = None,
+    fail_at: Annotated[
+        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+    ] = None,
+    seed: Annotated[
+        int | None, typer.Option(help="Seed of folds and samples [default: 0].")
+    ] = None,
+    fail_at_impact: Annotated[
+        float | None,
+        typer.Option(
+            help="Exit 1 when the as-given validation score exceeds a corrected one by more than "
+            "this, e.g. 0.02."
+        ),
+    ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
@@ -106,10 +128,22 @@ def scan(
     """
     from featureaudit.api import audit
 
-    given = {"test": test, "split_column": split_column, "train_value": train_value,
-             "target": target, "task": task, "dictionary": dictionary, "label_time": label_time,
-             "cutoff_time": cutoff_time, "horizon": horizon, "entity": entity, "out": out,
-             "fail_at": fail_at, "seed": seed, "fail_at_impact": fail_at_impact}
+    given = {
+        "test": test,
+        "split_column": split_column,
+        "train_value": train_value,
+        "target": target,
+        "task": task,
+        "dictionary": dictionary,
+        "label_time": label_time,
+        "cutoff_time": cutoff_time,
+        "horizon": horizon,
+        "entity": entity,
+        "out": out,
+        "fail_at": fail_at,
+        "seed": seed,
+        "fail_at_impact": fail_at_impact,
+    }
     opts = dict(read_config(config)) if config else {}
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
     opts.update({k: v for k, v in given.items() if v is not None})
@@ -119,12 +153,21 @@ def scan(
         settings = Settings(seed=seed_value, **settings_over)
     except TypeError as exc:
         raise SettingError(f"config {config!r} has a setting of the wrong type: {exc}.") from exc
-    result = audit(str(table), test=opts.get("test"), split_column=opts.get("split_column"),
-                   train_value=str(opts.get("train_value", "train")), target=opts.get("target"),
-                   task=opts.get("task"), dictionary=opts.get("dictionary"),
-                   label_time=opts.get("label_time"), cutoff_time=opts.get("cutoff_time"),
-                   horizon=opts.get("horizon"), entity=opts.get("entity"), seed=seed_value,
-                   settings=settings)
+    result = audit(
+        str(table),
+        test=opts.get("test"),
+        split_column=opts.get("split_column"),
+        train_value=str(opts.get("train_value", "train")),
+        target=opts.get("target"),
+        task=opts.get("task"),
+        dictionary=opts.get("dictionary"),
+        label_time=opts.get("label_time"),
+        cutoff_time=opts.get("cutoff_time"),
+        horizon=opts.get("horizon"),
+        entity=opts.get("entity"),
+        seed=seed_value,
+        settings=settings,
+    )
     out_dir = Path(opts.get("out") or "featureaudit-report")
     result.write(out_dir)
     _print_outcome(result.document, out_dir)
@@ -132,6 +175,7 @@ def scan(
         return 1
     if opts.get("fail_at_impact") is not None:
         from featureaudit.impact import largest_lift
+
         lift = largest_lift(result.document)
         if lift is not None and lift > float(opts["fail_at_impact"]):
             return 1
@@ -148,9 +192,12 @@ def _int(value: Any, flag: str) -> int:
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     from featureaudit.findings import Findings
     from featureaudit.report import verdict_line
+
     d = doc["dataset"]
-    print(f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-          f"{d['heldout_rows']} held out), target {d['target']} ({d['task']})")
+    print(
+        f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
+        f"{d['heldout_rows']} held out), target {d['target']} ({d['task']})"
+    )
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
@@ -189,8 +236,9 @@ def droplist_cmd(
 def diff(
     old: Annotated[Path, typer.Argument(help="findings.json of the earlier run.")],
     new: Annotated[Path, typer.Argument(help="findings.json of the later run.")],
-    fail_at: Annotated[str | None, typer.Option(help="Exit 1 when a new or raised finding "
-                                                     "reaches this level.")] = None,
+    fail_at: Annotated[
+        str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
+    ] = None,
 ) -> int:
     """Print columns and split findings that are new, gone or changed level between two runs.
 
@@ -203,8 +251,12 @@ def diff(
         print("no change in levels")
     for line in lines:
         print(line.text())
-    if level and any(d.change in ("new", "raised") and d.new_level
-                     and Level.parse(d.new_level) >= Level.parse(level) for d in lines):
+    if level and any(
+        d.change in ("new", "raised")
+        and d.new_level
+        and Level.parse(d.new_level) >= Level.parse(level)
+        for d in lines
+    ):
         return 1
     return 0
 
@@ -220,11 +272,15 @@ def dictionary_cmd(
     """
     from featureaudit.dictionary import draft_dictionary
     from featureaudit.io import read_table
+
     frame = read_table(table)
     if target is not None and target not in frame.columns:
         from featureaudit.errors import ColumnNotFound
-        raise ColumnNotFound(f"--target column {target!r} is not in {table.name}; columns are: "
-                             f"{', '.join(frame.columns[:30])}. Pass --target with one of them.")
+
+        raise ColumnNotFound(
+            f"--target column {target!r} is not in {table.name}; columns are: "
+            f"{', '.join(frame.columns[:30])}. Pass --target with one of them."
+        )
     sys.stdout.write(draft_dictionary(frame, target=target))
     return 0
 
@@ -238,6 +294,7 @@ def demo(
     Example: featureaudit demo --out demo-report
     """
     from featureaudit.demo import run_demo
+
     result, out_dir = run_demo(out)
     _print_outcome(result.document, out_dir)
     return 0
@@ -253,12 +310,14 @@ def version() -> int:
 # ---- featureaudit code: static audit of training scripts and notebooks ----------------------
 @app.command("code")
 def code_cmd(
-    paths: Annotated[list[Path], typer.Argument(help="Python scripts, .ipynb notebooks or "
-                                                      "folders of them.")],
+    paths: Annotated[
+        list[Path], typer.Argument(help="Python scripts, .ipynb notebooks or folders of them.")
+    ],
     out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
     format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
-    fail_at: Annotated[str | None, typer.Option(help="Exit 1 when a finding reaches this "
-                                                     "level.")] = None,
+    fail_at: Annotated[
+        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+    ] = None,
 ) -> int:
     """Audit training code statically (nothing is run) for leakage the table cannot show.
 
@@ -266,6 +325,7 @@ def code_cmd(
     """
     from featureaudit.code import audit_code
     from featureaudit.code.output import document, sarif, text_lines, write_outputs
+
     if format not in ("text", "json", "sarif"):
         raise SettingError(f"--format {format!r} is not one of text, json, sarif.")
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
@@ -289,5 +349,3 @@ def code_cmd(
 def main() -> None:
     """Console entry point."""
     app()
-
-

@@ -15,7 +15,7 @@ from featureaudit.levels import Level
 __all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
 
 SCHEMA = "featureaudit.findings/2"
-READABLE = ("featureaudit.findings/1", SCHEMA)   # schema 2 keeps every field of 1
+READABLE = ("featureaudit.findings/1", SCHEMA)  # schema 2 keeps every field of 1
 
 
 @dataclass(frozen=True)
@@ -36,40 +36,65 @@ class Findings:
         return json.dumps(self.document, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def build_document(*, tool_version: str, dataset: dict[str, Any], settings: dict[str, Any],
-                   columns: list[dict[str, Any]], dataset_findings: list[dict[str, Any]],
-                   skipped: list[dict[str, Any]], warnings: list[str],
-                   created: datetime | None = None) -> Findings:
+def build_document(
+    *,
+    tool_version: str,
+    dataset: dict[str, Any],
+    settings: dict[str, Any],
+    columns: list[dict[str, Any]],
+    dataset_findings: list[dict[str, Any]],
+    skipped: list[dict[str, Any]],
+    warnings: list[str],
+    created: datetime | None = None,
+) -> Findings:
     """Assemble the document in the contract's key order (columns and findings arrive as
     plain JSON data from ``to_dict``; the rest is cleaned here)."""
     stamp = (created or datetime.now(UTC)).strftime("%Y-%m-%dT%H:%M:%SZ")
-    return Findings({
-        "schema": SCHEMA, "tool_version": tool_version, "created": stamp,
-        "dataset": clean_json(dataset), "settings": clean_json(settings), "columns": columns,
-        "dataset_findings": dataset_findings, "skipped": clean_json(skipped),
-        "warnings": [str(w) for w in warnings], "impact": None, "code_findings": []})
+    return Findings(
+        {
+            "schema": SCHEMA,
+            "tool_version": tool_version,
+            "created": stamp,
+            "dataset": clean_json(dataset),
+            "settings": clean_json(settings),
+            "columns": columns,
+            "dataset_findings": dataset_findings,
+            "skipped": clean_json(skipped),
+            "warnings": [str(w) for w in warnings],
+            "impact": None,
+            "code_findings": [],
+        }
+    )
 
 
 def load_findings(path: str | Path) -> Findings:
     """Read a findings file, checking that it is one of ours and of a schema we read."""
     p = Path(path)
     if not p.is_file():
-        raise InputFileError(f"findings file {str(p)!r} does not exist; pass the findings.json "
-                             "that `featureaudit scan` wrote.")
+        raise InputFileError(
+            f"findings file {str(p)!r} does not exist; pass the findings.json "
+            "that `featureaudit scan` wrote."
+        )
     try:
         doc = json.loads(p.read_text(encoding="utf-8"))
     except (json.JSONDecodeError, UnicodeDecodeError) as exc:
-        raise InputFileError(f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
-                             "findings.json that `featureaudit scan` wrote.") from exc
+        raise InputFileError(
+            f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
+            "findings.json that `featureaudit scan` wrote."
+        ) from exc
     if not isinstance(doc, dict) or doc.get("schema") not in READABLE:
         got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
-        raise InputFileError(f"findings file {str(p)!r} has schema {got!r}; this version reads "
-                             f"{' and '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
-                             "to produce it.")
+        raise InputFileError(
+            f"findings file {str(p)!r} has schema {got!r}; this version reads "
+            f"{' and '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
+            "to produce it."
+        )
     for key in ("columns", "dataset_findings"):
         if not isinstance(doc.get(key), list):
-            raise InputFileError(f"findings file {str(p)!r} has no {key!r} list; it is "
-                                 "incomplete. Re-run `featureaudit scan`.")
+            raise InputFileError(
+                f"findings file {str(p)!r} has no {key!r} list; it is "
+                "incomplete. Re-run `featureaudit scan`."
+            )
     return Findings(doc)
 
 
@@ -80,8 +105,12 @@ def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False)
     they are left out unless ``refit`` is true.
     """
     floor = Level.parse(at_least)
-    cols = [c for c in findings.columns if Level.parse(c.get("level", "none")) >= floor
-            and (refit or c.get("remedy") != "refit_on_training_rows")]
+    cols = [
+        c
+        for c in findings.columns
+        if Level.parse(c.get("level", "none")) >= floor
+        and (refit or c.get("remedy") != "refit_on_training_rows")
+    ]
     cols.sort(key=lambda c: -float(c.get("score") or 0.0))
     return [c["column"] for c in cols]
 
@@ -90,8 +119,8 @@ def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False)
 class DiffLine:
     """One change between two runs."""
 
-    change: str            # new, gone, raised, lowered
-    scope: str             # column or dataset
+    change: str  # new, gone, raised, lowered
+    scope: str  # column or dataset
     name: str
     old_level: str | None
     new_level: str | None
@@ -99,11 +128,18 @@ class DiffLine:
     extra: dict[str, Any] = field(default_factory=dict)
 
     def text(self) -> str:
-        levels = (self.new_level or "") if self.change == "new" else (
-            (self.old_level or "") if self.change == "gone"
-            else f"{self.old_level} -> {self.new_level}")
+        levels = (
+            (self.new_level or "")
+            if self.change == "new"
+            else (
+                (self.old_level or "")
+                if self.change == "gone"
+                else f"{self.old_level} -> {self.new_level}"
+            )
+        )
         return f"{self.change:<8} {self.scope:<8} {self.name}  {levels}" + (
-            f"  ({self.detail})" if self.detail else "")
+            f"  ({self.detail})" if self.detail else ""
+        )
 
 
 def _dataset_key(f: dict[str, Any]) -> str:
@@ -113,10 +149,14 @@ def _dataset_key(f: dict[str, Any]) -> str:
 def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
     """Columns and dataset findings that are new, gone, or changed level between two runs."""
     lines: list[DiffLine] = []
-    pairs = [("column", {c["column"]: c for c in old.columns},
-              {c["column"]: c for c in new.columns}),
-             ("dataset", {_dataset_key(f): f for f in old.dataset_findings},
-              {_dataset_key(f): f for f in new.dataset_findings})]
+    pairs = [
+        ("column", {c["column"]: c for c in old.columns}, {c["column"]: c for c in new.columns}),
+        (
+            "dataset",
+            {_dataset_key(f): f for f in old.dataset_findings},
+            {_dataset_key(f): f for f in new.dataset_findings},
+        ),
+    ]
     for scope, before, after in pairs:
         for name, item in after.items():
             level = item.get("level", "none")
@@ -132,6 +172,12 @@ def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
             if name not in after:
                 lines.append(DiffLine("gone", scope, name, item.get("level", "none"), None))
     order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
-    lines.sort(key=lambda d: (order[d.change], -Level.parse(d.new_level or d.old_level or "none"),
-                              d.scope, d.name))
+    lines.sort(
+        key=lambda d: (
+            order[d.change],
+            -Level.parse(d.new_level or d.old_level or "none"),
+            d.scope,
+            d.name,
+        )
+    )
     return lines

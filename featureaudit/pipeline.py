@@ -18,8 +18,13 @@ from featureaudit.table import AuditTable
 __all__ = ["run_audit"]
 
 
-def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | None = None,
-              progress: bool | None = None) -> Findings:
+def run_audit(
+    table: AuditTable,
+    settings: Settings,
+    *,
+    probes: Iterable[str] | None = None,
+    progress: bool | None = None,
+) -> Findings:
     """Run each registered probe (or those named), rank the evidence and build the findings.
 
     A probe that raises anything but a :class:`FeatureAuditError` is a bug: the audit stops
@@ -50,12 +55,20 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
         skipped.extend(skips)
     verdicts, dataset_findings = rank(table, evidence)
     dataset = {
-        "source": table.source, "rows": table.n_rows, "train_rows": table.train_rows,
-        "heldout_rows": table.heldout_rows, "columns": int(table.frame.shape[1]),
-        "target": table.target, "task": table.task, "split": table.split,
-        "label_time": table.label_time_column, "cutoff": table.cutoff_source,
-        "entity": table.entity, "audited_columns": len(verdicts),
-        "partitions": table.partitions or {"all rows": table.n_rows}, "folds": None,
+        "source": table.source,
+        "rows": table.n_rows,
+        "train_rows": table.train_rows,
+        "heldout_rows": table.heldout_rows,
+        "columns": int(table.frame.shape[1]),
+        "target": table.target,
+        "task": table.task,
+        "split": table.split,
+        "label_time": table.label_time_column,
+        "cutoff": table.cutoff_source,
+        "entity": table.entity,
+        "audited_columns": len(verdicts),
+        "partitions": table.partitions or {"all rows": table.n_rows},
+        "folds": None,
     }
     columns = [v.to_dict() for v in verdicts]
     pair = _compared_pair(table)
@@ -63,17 +76,25 @@ def run_audit(table: AuditTable, settings: Settings, *, probes: Iterable[str] | 
     for c in columns:
         c.setdefault("accepted", None)
     # after the ranker: remedies and measured impact (never change what a probe measured)
-    impact_block, impact_seconds = _after_rank(table, settings, columns, split_findings,
-                                               warnings)
+    impact_block, impact_seconds = _after_rank(table, settings, columns, split_findings, warnings)
     timings["impact"] = impact_seconds
     findings = build_document(
-        tool_version=__version__, dataset=dataset,
-        settings={**settings.to_dict(), "probes": names, "probe_seconds": timings,
-                  "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
-                  "methods": {n: available[n].describe(settings) for n in names},
-                  "engine": "memory", "sample_rows": min(settings.reference_rows, table.n_rows)},
-        columns=columns, dataset_findings=split_findings,
-        skipped=[s.to_dict() for s in skipped], warnings=warnings)
+        tool_version=__version__,
+        dataset=dataset,
+        settings={
+            **settings.to_dict(),
+            "probes": names,
+            "probe_seconds": timings,
+            "thresholds": {n: thresholds_dict(available[n].thresholds) for n in names},
+            "methods": {n: available[n].describe(settings) for n in names},
+            "engine": "memory",
+            "sample_rows": min(settings.reference_rows, table.n_rows),
+        },
+        columns=columns,
+        dataset_findings=split_findings,
+        skipped=[s.to_dict() for s in skipped],
+        warnings=warnings,
+    )
     findings.document["impact"] = impact_block
     return findings
 
@@ -87,12 +108,18 @@ def _compared_pair(table: AuditTable) -> list[str]:
     return [train, "+".join(held)]
 
 
-def _after_rank(table: AuditTable, settings: Settings, columns: list[dict],
-                found: list[dict], warnings: list[str]) -> tuple[dict | None, float]:
+def _after_rank(
+    table: AuditTable,
+    settings: Settings,
+    columns: list[dict],
+    found: list[dict],
+    warnings: list[str],
+) -> tuple[dict | None, float]:
     """Set each finding's ``remedy`` and each column's ``impact``; return the impact block."""
     from featureaudit.evidence import clean_json
     from featureaudit.impact import measure_impact
     from featureaudit.remedy import column_remedy, dataset_remedy
+
     start = time.perf_counter()
     for c in columns:
         c["remedy"] = column_remedy(c)

@@ -17,13 +17,27 @@ __all__ = ["Settings", "read_config", "CONFIG_KEYS"]
 TASKS = ("binary", "multiclass", "numeric")
 
 # Keys of the config file: every scan flag, with '-' written as '_'.
-CONFIG_KEYS = ("test", "split_column", "train_value", "target", "task", "dictionary",
-               "label_time", "cutoff_time", "horizon", "entity", "out", "fail_at", "seed",
-               "fail_at_impact")
+CONFIG_KEYS = (
+    "test",
+    "split_column",
+    "train_value",
+    "target",
+    "task",
+    "dictionary",
+    "label_time",
+    "cutoff_time",
+    "horizon",
+    "entity",
+    "out",
+    "fail_at",
+    "seed",
+    "fail_at_impact",
+)
 
 
 def _default_jobs() -> int:
     from featureaudit.threads import available_cpus
+
     return available_cpus()
 
 
@@ -32,11 +46,11 @@ class Settings:
     """Knobs of the probes; every one is recorded in findings.json under ``settings``."""
 
     seed: int = 0
-    folds: int = 5                 # out-of-fold folds of the single-column scores
-    bins: int = 20                 # quantile bins per numeric column
-    reference_rows: int = 20_000   # sample for the model-based reference (seeded, stratified)
-    min_rows: int = 100            # below this, levels are capped at medium (small sample)
-    time_tolerance: str = "auto"   # "auto": follows the times' resolution (see probes/timing.py)
+    folds: int = 5  # out-of-fold folds of the single-column scores
+    bins: int = 20  # quantile bins per numeric column
+    reference_rows: int = 20_000  # sample for the model-based reference (seeded, stratified)
+    min_rows: int = 100  # below this, levels are capped at medium (small sample)
+    time_tolerance: str = "auto"  # "auto": follows the times' resolution (see probes/timing.py)
     share_tolerance: float = 0.01  # shares of rows below this are not flagged
     n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
 
@@ -48,8 +62,10 @@ class Settings:
         if not 0 <= self.share_tolerance < 1:
             raise SettingError(f"share_tolerance must be in [0, 1); got {self.share_tolerance}.")
         from featureaudit.durations import parse_duration
+
         if self.time_tolerance != "auto" and parse_duration(
-                self.time_tolerance, what="time_tolerance") < pd.Timedelta(0):
+            self.time_tolerance, what="time_tolerance"
+        ) < pd.Timedelta(0):
             raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
         if self.n_jobs < 1:
             raise SettingError(f"n_jobs must be at least 1; got {self.n_jobs}.")
@@ -72,12 +88,15 @@ def read_config(path: str | Path) -> dict[str, Any]:
     try:
         data = tomllib.loads(p.read_text(encoding="utf-8"))
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise SettingError(f"config {str(p)!r} is not valid TOML: {exc}; fix the line it names.") \
-            from exc
+        raise SettingError(
+            f"config {str(p)!r} is not valid TOML: {exc}; fix the line it names."
+        ) from exc
     unknown = sorted(set(data) - set(CONFIG_KEYS) - set(Settings.names()))
     if unknown:
-        raise SettingError(f"config {str(p)!r} has unknown keys {unknown}; known keys are "
-                           f"{', '.join(CONFIG_KEYS + Settings.names())}.")
+        raise SettingError(
+            f"config {str(p)!r} has unknown keys {unknown}; known keys are "
+            f"{', '.join(CONFIG_KEYS + Settings.names())}."
+        )
     return data
 
 
@@ -86,5 +105,6 @@ def check_level(value: str, *, flag: str) -> str:
     try:
         return Level.parse(value).label
     except ValueError:
-        raise SettingError(f"{flag} {value!r} is not a level; use one of "
-                           f"{', '.join(LEVEL_NAMES)}.") from None
+        raise SettingError(
+            f"{flag} {value!r} is not a level; use one of {', '.join(LEVEL_NAMES)}."
+        ) from None

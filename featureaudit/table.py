@@ -37,19 +37,19 @@ class AuditTable:
     id_columns: list[str]
     target: str | None = None
     task: str | None = None
-    y: np.ndarray | None = None            # codes 0..K-1 (classes) or floats; NaN/-1 = unlabelled
+    y: np.ndarray | None = None  # codes 0..K-1 (classes) or floats; NaN/-1 = unlabelled
     classes: list[str] = field(default_factory=list)
-    heldout: np.ndarray | None = None      # bool per row; None when audited as one pool
+    heldout: np.ndarray | None = None  # bool per row; None when audited as one pool
     split: str = "none"
     label_time: pd.Series | None = None
     cutoff_time: pd.Series | None = None
     label_time_column: str | None = None
-    cutoff_source: str | None = None       # "column:X", "horizon:30 days", "label time"
-    horizon: pd.Timedelta | None = None    # --horizon, kept for durations compared without times
+    cutoff_source: str | None = None  # "column:X", "horizon:30 days", "label time"
+    horizon: pd.Timedelta | None = None  # --horizon, kept for durations compared without times
     entity: str | None = None
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
-    target_problem: str | None = None      # why target-based probes cannot run
+    target_problem: str | None = None  # why target-based probes cannot run
     partitions: dict[str, int] = field(default_factory=dict)  # rows per partition (schema 2)
 
     @property
@@ -91,8 +91,9 @@ def build_table(
 ) -> AuditTable:
     """Load and validate every input into an :class:`AuditTable` (raises on bad input)."""
     if test is not None and split_column is not None:
-        raise SettingError("--test and --split-column were both given; pass one way of naming "
-                           "the held-out rows.")
+        raise SettingError(
+            "--test and --split-column were both given; pass one way of naming the held-out rows."
+        )
     if cutoff_time is not None and horizon is not None:
         raise SettingError("--cutoff-time and --horizon were both given; pass one of them.")
     if task is not None and task not in TASKS:
@@ -103,23 +104,37 @@ def build_table(
         raise TargetError(f"table {src!r} has no rows; pass a table with data rows.")
     warnings: list[str] = []
 
-    ddict = read_dictionary(Path(dictionary)) if isinstance(dictionary, (str, os.PathLike)) \
+    ddict = (
+        read_dictionary(Path(dictionary))
+        if isinstance(dictionary, (str, os.PathLike))
         else dictionary
+    )
     heldout = None
     split_desc = "none"
     partitions: dict[str, int] = {}
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
-        frame, heldout = _append_test(frame, as_frame(test, what=tsrc), src, tsrc, target, ddict,
-                                      warnings)
+        frame, heldout = _append_test(
+            frame, as_frame(test, what=tsrc), src, tsrc, target, ddict, warnings
+        )
         split_desc = f"test:{tsrc}"
         partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
 
     roles = _resolve_roles(frame, ddict, warnings)
-    flags = {"target": target, "split": split_column, "label_time": label_time,
-             "cutoff_time": cutoff_time, "entity": entity}
-    flag_names = {"target": "--target", "split": "--split-column", "label_time": "--label-time",
-                  "cutoff_time": "--cutoff-time", "entity": "--entity"}
+    flags = {
+        "target": target,
+        "split": split_column,
+        "label_time": label_time,
+        "cutoff_time": cutoff_time,
+        "entity": entity,
+    }
+    flag_names = {
+        "target": "--target",
+        "split": "--split-column",
+        "label_time": "--label-time",
+        "cutoff_time": "--cutoff-time",
+        "entity": "--entity",
+    }
     chosen: dict[str, str | None] = {}
     for role, value in flags.items():
         if value is not None:
@@ -128,16 +143,20 @@ def build_table(
         else:
             named = [c for c, r in roles.items() if r == role]
             if len(named) > 1:
-                raise SettingError(f"dictionary {ddict.source if ddict else ''!r} gives role "
-                                   f"{role!r} to {len(named)} columns {named}; keep one or pass "
-                                   f"{flag_names[role]}.")
+                raise SettingError(
+                    f"dictionary {ddict.source if ddict else ''!r} gives role "
+                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
+                    f"{flag_names[role]}."
+                )
             chosen[role] = named[0] if named else None
     for role, col in chosen.items():
         if col is not None:
             roles[col] = role
     if test is not None and chosen["split"] is not None:
-        warnings.append(f"--test names the held-out rows, so split column {chosen['split']!r} "
-                        "of the dictionary is not used to split.")
+        warnings.append(
+            f"--test names the held-out rows, so split column {chosen['split']!r} "
+            "of the dictionary is not used to split."
+        )
         chosen["split"] = None
 
     if chosen["split"] is not None:
@@ -147,12 +166,15 @@ def build_table(
         is_train = (codes >= 0) & (names[codes] == str(train_value))
         if not is_train.any():
             seen = sorted(str(u) for u in uniques)[:10]
-            raise SettingError(f"no row of split column {col!r} equals --train-value "
-                               f"{train_value!r}; its values are {seen}. Pass --train-value "
-                               "with the value that marks training rows.")
+            raise SettingError(
+                f"no row of split column {col!r} equals --train-value "
+                f"{train_value!r}; its values are {seen}. Pass --train-value "
+                "with the value that marks training rows."
+            )
         if is_train.all():
-            warnings.append(f"every row of split column {col!r} is a training row; audited as "
-                            "one pool.")
+            warnings.append(
+                f"every row of split column {col!r} is a training row; audited as one pool."
+            )
         else:
             heldout = ~is_train
             split_desc = f"column:{col}"
@@ -161,9 +183,19 @@ def build_table(
             values, counts = np.unique(held_names.astype(str), return_counts=True)
             partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
 
-    table = AuditTable(frame=frame, source=src, roles=roles, features=[], id_columns=[],
-                       heldout=heldout, split=split_desc, dictionary=ddict, warnings=warnings,
-                       entity=chosen["entity"], partitions=partitions)
+    table = AuditTable(
+        frame=frame,
+        source=src,
+        roles=roles,
+        features=[],
+        id_columns=[],
+        heldout=heldout,
+        split=split_desc,
+        dictionary=ddict,
+        warnings=warnings,
+        entity=chosen["entity"],
+        partitions=partitions,
+    )
     _set_target(table, chosen["target"], task)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
     for name in frame.columns:
@@ -178,28 +210,42 @@ def build_table(
 def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
     if column not in frame.columns:
         shown = ", ".join(list(frame.columns)[:30]) + (" …" if frame.shape[1] > 30 else "")
-        raise ColumnNotFound(f"{flag} column {column!r} is not in {src}; columns are: {shown}. "
-                             f"Pass {flag} with one of them.")
+        raise ColumnNotFound(
+            f"{flag} column {column!r} is not in {src}; columns are: {shown}. "
+            f"Pass {flag} with one of them."
+        )
 
 
-def _append_test(frame: pd.DataFrame, test: pd.DataFrame, src: str, tsrc: str,
-                 target: str | None, ddict: DataDictionary | None, warnings: list[str]
-                 ) -> tuple[pd.DataFrame, np.ndarray]:
+def _append_test(
+    frame: pd.DataFrame,
+    test: pd.DataFrame,
+    src: str,
+    tsrc: str,
+    target: str | None,
+    ddict: DataDictionary | None,
+    warnings: list[str],
+) -> tuple[pd.DataFrame, np.ndarray]:
     if len(test) == 0:
-        raise InputFileError(f"held-out table {tsrc!r} has no rows; pass a held-out table with "
-                             "rows, or leave --test out to audit the table as one pool.")
+        raise InputFileError(
+            f"held-out table {tsrc!r} has no rows; pass a held-out table with "
+            "rows, or leave --test out to audit the table as one pool."
+        )
     targets = {target} if target else set()
     if ddict is not None:
         targets |= set(ddict.columns_with_role("target"))
     missing = [c for c in frame.columns if c not in test.columns and c not in targets]
     if missing:
-        raise ColumnNotFound(f"held-out table {tsrc!r} lacks columns {missing[:10]} that {src} "
-                             "has; pass a held-out table with the same columns (its target may "
-                             "be absent).")
+        raise ColumnNotFound(
+            f"held-out table {tsrc!r} lacks columns {missing[:10]} that {src} "
+            "has; pass a held-out table with the same columns (its target may "
+            "be absent)."
+        )
     extra = [c for c in test.columns if c not in frame.columns]
     if extra:
-        warnings.append(f"held-out table {tsrc!r} has columns {extra[:10]} that {src} lacks; "
-                        "they are not audited.")
+        warnings.append(
+            f"held-out table {tsrc!r} has columns {extra[:10]} that {src} lacks; "
+            "they are not audited."
+        )
     test = test[[c for c in frame.columns if c in test.columns]]
     both = pd.concat([_plain(frame), _plain(test)], ignore_index=True)
     heldout = np.r_[np.zeros(len(frame), bool), np.ones(len(test), bool)]
@@ -215,20 +261,25 @@ def _plain(frame: pd.DataFrame) -> pd.DataFrame:
     return out
 
 
-def _resolve_roles(frame: pd.DataFrame, ddict: DataDictionary | None, warnings: list[str]
-                   ) -> dict[str, str]:
+def _resolve_roles(
+    frame: pd.DataFrame, ddict: DataDictionary | None, warnings: list[str]
+) -> dict[str, str]:
     roles: dict[str, str] = {}
     if ddict is not None:
         for name, entry in ddict.entries.items():
             if name not in frame.columns:
-                warnings.append(f"dictionary {ddict.source!r} line {entry.line} names column "
-                                f"{name!r}, which the table lacks; the line is ignored.")
+                warnings.append(
+                    f"dictionary {ddict.source!r} line {entry.line} names column "
+                    f"{name!r}, which the table lacks; the line is ignored."
+                )
                 continue
             roles[name] = entry.role
             if entry.known_at_column and entry.known_at_column not in frame.columns:
-                warnings.append(f"dictionary {ddict.source!r} line {entry.line}: known_at of "
-                                f"{name!r} names column {entry.known_at_column!r}, which the table"
-                                " lacks; its timing is not checked.")
+                warnings.append(
+                    f"dictionary {ddict.source!r} line {entry.line}: known_at of "
+                    f"{name!r} names column {entry.known_at_column!r}, which the table"
+                    " lacks; its timing is not checked."
+                )
     for name in frame.columns:
         if name not in roles and guess_role(frame[name], name) == "id":
             roles[name] = "id"
@@ -254,14 +305,18 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
     s = table.frame[target]
     present = s.dropna()
     if present.empty:
-        raise TargetError(f"target column {target!r} of {table.source} has no values; pass "
-                          "--target with a column that holds the outcome.")
+        raise TargetError(
+            f"target column {target!r} of {table.source} has no values; pass "
+            "--target with a column that holds the outcome."
+        )
     table.target = target
     table.task = task or infer_task(s)
     if table.task == "numeric":
         if not pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
-            raise TargetError(f"target column {target!r} is not numeric, so --task numeric cannot "
-                              "apply; drop --task or pass binary or multiclass.")
+            raise TargetError(
+                f"target column {target!r} is not numeric, so --task numeric cannot "
+                "apply; drop --task or pass binary or multiclass."
+            )
         table.y = pd.to_numeric(s, errors="coerce").astype("float64").to_numpy()
     else:
         codes, uniques = pd.factorize(s, use_na_sentinel=True)
@@ -269,14 +324,17 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
         classes = sorted(set(names), key=_natural)
         lookup = {c: i for i, c in enumerate(classes)}
         remap = np.array([lookup[n] for n in names] + [-1], dtype=np.int64)
-        table.y = remap[codes]          # code -1 (missing) picks the trailing -1
+        table.y = remap[codes]  # code -1 (missing) picks the trailing -1
         table.classes = classes
         if table.task == "binary" and len(classes) > 2:
-            raise TargetError(f"target column {target!r} has {len(classes)} values, so --task "
-                              "binary cannot apply; pass --task multiclass.")
+            raise TargetError(
+                f"target column {target!r} has {len(classes)} values, so --task "
+                "binary cannot apply; pass --task multiclass."
+            )
     if present.nunique() < 2:
-        table.target_problem = (f"target {target!r} has a single value ({present.iloc[0]!r}) in "
-                                "the labelled rows")
+        table.target_problem = (
+            f"target {target!r} has a single value ({present.iloc[0]!r}) in the labelled rows"
+        )
         table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
 
 
@@ -287,8 +345,9 @@ def _natural(text: str) -> tuple[int, float, str]:
         return (1, 0.0, text)
 
 
-def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon: str | None
-               ) -> None:
+def _set_times(
+    table: AuditTable, label: str | None, cutoff: str | None, horizon: str | None
+) -> None:
     if label is not None:
         table.label_time = as_datetime(table.frame[label], column=label, what="label time")
         table.label_time_column = label
@@ -299,11 +358,13 @@ def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon
         delta = parse_duration(horizon, what="--horizon")
         table.horizon = delta
         if table.label_time is None and _has_relative_known_at(table):
-            table.cutoff_source = f"horizon:{horizon}"   # durations are compared with -horizon
+            table.cutoff_source = f"horizon:{horizon}"  # durations are compared with -horizon
             return
         if table.label_time is None:
-            raise SettingError("--horizon needs a label time to count back from; pass "
-                               "--label-time or give a column the role label_time.")
+            raise SettingError(
+                "--horizon needs a label time to count back from; pass "
+                "--label-time or give a column the role label_time."
+            )
         table.cutoff_time = table.label_time - delta
         table.cutoff_source = f"horizon:{horizon}"
     elif table.label_time is not None:
@@ -314,5 +375,7 @@ def _set_times(table: AuditTable, label: str | None, cutoff: str | None, horizon
 def _has_relative_known_at(table: AuditTable) -> bool:
     """Does the dictionary give some feature a known_at relative to the label time?"""
     return table.dictionary is not None and any(
-        e.known_at_offset is not None for c, e in table.dictionary.entries.items()
-        if c in table.frame.columns)
+        e.known_at_offset is not None
+        for c, e in table.dictionary.entries.items()
+        if c in table.frame.columns
+    )

@@ -17,8 +17,10 @@ def write_files(out_dir: str | os.PathLike[str], files: dict[str, str]) -> list[
     try:
         out.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
-        raise InputFileError(f"cannot create output folder {str(out)!r}: {exc.strerror}; pass "
-                             "--out with a folder you can write to.") from exc
+        raise InputFileError(
+            f"cannot create output folder {str(out)!r}: {exc.strerror}; pass "
+            "--out with a folder you can write to."
+        ) from exc
     temps: list[tuple[Path, Path]] = []
     try:
         for name, text in files.items():
@@ -30,8 +32,10 @@ def write_files(out_dir: str | os.PathLike[str], files: dict[str, str]) -> list[
     except OSError as exc:
         for written_tmp, _ in temps:
             written_tmp.unlink(missing_ok=True)
-        raise InputFileError(f"cannot write the report into {str(out)!r}: {exc.strerror}; pass "
-                             "--out with a folder you can write to.") from exc
+        raise InputFileError(
+            f"cannot write the report into {str(out)!r}: {exc.strerror}; pass "
+            "--out with a folder you can write to."
+        ) from exc
     written = []
     for tmp_path, final in temps:
         os.replace(tmp_path, final)

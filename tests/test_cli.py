@@ -41,8 +41,12 @@ def report(leaky_csv, tmp_path_factory):
 
 
 def test_scan_writes_the_four_files(report):
-    assert sorted(p.name for p in report.iterdir()) == ["dossier.html", "droplist.txt",
-                                                       "findings.json", "summary.md"]
+    assert sorted(p.name for p in report.iterdir()) == [
+        "dossier.html",
+        "droplist.txt",
+        "findings.json",
+        "summary.md",
+    ]
     doc = json.loads((report / "findings.json").read_text())
     assert doc["schema"] == SCHEMA
     assert doc["dataset"]["train_rows"] + doc["dataset"]["heldout_rows"] == doc["dataset"]["rows"]
@@ -50,8 +54,17 @@ def test_scan_writes_the_four_files(report):
     assert (report / "droplist.txt").read_text().splitlines()[0] == "closed_code"
     scores = [c["score"] for c in doc["columns"]]
     assert scores == sorted(scores, reverse=True)
-    for key in ("schema", "tool_version", "created", "dataset", "settings", "columns",
-                "dataset_findings", "skipped", "warnings"):
+    for key in (
+        "schema",
+        "tool_version",
+        "created",
+        "dataset",
+        "settings",
+        "columns",
+        "dataset_findings",
+        "skipped",
+        "warnings",
+    ):
         assert key in doc
 
 
@@ -63,11 +76,20 @@ def test_fail_at_exits_1_when_reached(leaky_csv, tmp_path):
 
 def test_fail_at_not_reached_exits_0(tmp_path):
     rng = np.random.default_rng(1)
-    frame = pd.DataFrame({"a": rng.normal(size=400), "b": rng.normal(size=400),
-                          "y": rng.integers(0, 2, 400)})
+    frame = pd.DataFrame(
+        {"a": rng.normal(size=400), "b": rng.normal(size=400), "y": rng.integers(0, 2, 400)}
+    )
     frame.to_csv(tmp_path / "clean.csv", index=False)
-    result = run("scan", tmp_path / "clean.csv", "--target", "y", "--out", tmp_path / "r",
-                 "--fail-at", "high")
+    result = run(
+        "scan",
+        tmp_path / "clean.csv",
+        "--target",
+        "y",
+        "--out",
+        tmp_path / "r",
+        "--fail-at",
+        "high",
+    )
     assert result.exit_code == 0, result.stdout + result.stderr
 
 
@@ -108,8 +130,9 @@ def test_diff_command(report, tmp_path):
     (tmp_path / "old.json").write_text(json.dumps(old))
     result = run("diff", tmp_path / "old.json", report / "findings.json")
     assert result.exit_code == 0
-    assert any(line.startswith("new") and "closed_code" in line
-               for line in result.stdout.splitlines())
+    assert any(
+        line.startswith("new") and "closed_code" in line for line in result.stdout.splitlines()
+    )
     assert any(line.startswith("lowered") for line in result.stdout.splitlines())
     failing = run("diff", tmp_path / "old.json", report / "findings.json", "--fail-at", "high")
     assert failing.exit_code == 1
@@ -150,8 +173,9 @@ def test_demo_runs_end_to_end(tmp_path):
 def test_every_command_has_an_example_in_its_help():
     for command in ("scan", "droplist", "diff", "dictionary", "demo"):
         result = run(command, "--help")
-        assert result.exit_code == 0 and "Example: featureaudit " + command in \
-            " ".join(result.stdout.split()), command
+        assert result.exit_code == 0 and "Example: featureaudit " + command in " ".join(
+            result.stdout.split()
+        ), command
 
 
 def test_dictionary_warnings_reach_stderr(leaky_csv, tmp_path):
@@ -183,14 +207,30 @@ def test_config_settings_and_their_validation(leaky_csv, tmp_path):
 def test_scan_with_a_heldout_file_and_a_horizon(tmp_path):
     rng = np.random.default_rng(3)
     n = 600
-    frame = pd.DataFrame({"x": rng.normal(size=n), "w": rng.normal(size=n),
-                          "decided": pd.date_range("2024-01-01", periods=n, freq="D"),
-                          "y": rng.integers(0, 2, n)})
+    frame = pd.DataFrame(
+        {
+            "x": rng.normal(size=n),
+            "w": rng.normal(size=n),
+            "decided": pd.date_range("2024-01-01", periods=n, freq="D"),
+            "y": rng.integers(0, 2, n),
+        }
+    )
     frame.iloc[:480].to_csv(tmp_path / "train.csv", index=False)
     frame.iloc[480:].drop(columns="y").to_parquet(tmp_path / "later.parquet")
-    result = run("scan", tmp_path / "train.csv", "--test", tmp_path / "later.parquet",
-                 "--target", "y", "--label-time", "decided", "--horizon", "30 days",
-                 "--out", tmp_path / "r")
+    result = run(
+        "scan",
+        tmp_path / "train.csv",
+        "--test",
+        tmp_path / "later.parquet",
+        "--target",
+        "y",
+        "--label-time",
+        "decided",
+        "--horizon",
+        "30 days",
+        "--out",
+        tmp_path / "r",
+    )
     assert result.exit_code == 0, result.stderr
     doc = json.loads((tmp_path / "r" / "findings.json").read_text())
     assert doc["dataset"]["split"] == "test:later.parquet"
@@ -212,6 +252,7 @@ def test_a_probe_that_fails_fails_the_run_with_exit_3_and_keeps_the_report(leaky
     @register
     class Broken(Probe):
         """A probe that always raises, to stand for a bug in a real probe."""
+
         name = "broken_for_test"
         kinds = ("target_proxy",)
         thresholds = NoNumbers()
@@ -225,8 +266,18 @@ def test_a_probe_that_fails_fails_the_run_with_exit_3_and_keeps_the_report(leaky
 
     before = {p.name: p.read_bytes() for p in report.iterdir()}
     try:
-        result = run("scan", leaky_csv, "--target", "y", "--split-column", "split",
-                     "--out", report, "--fail-at", "critical")
+        result = run(
+            "scan",
+            leaky_csv,
+            "--target",
+            "y",
+            "--split-column",
+            "split",
+            "--out",
+            report,
+            "--fail-at",
+            "critical",
+        )
     finally:
         unregister("broken_for_test")
     assert result.exit_code == 3, result.stderr

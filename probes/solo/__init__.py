@@ -72,12 +72,22 @@ class SoloThresholds:
     """
 
     share_floors: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.35), (Level.HIGH, 0.20), (Level.MEDIUM, 0.10), (Level.LOW, 0.05))
+        (Level.CRITICAL, 0.35),
+        (Level.HIGH, 0.20),
+        (Level.MEDIUM, 0.10),
+        (Level.LOW, 0.05),
+    )
     share_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.5), (Level.HIGH, 0.3), (Level.MEDIUM, 0.2), (Level.LOW, 0.1))
+        (Level.CRITICAL, 0.5),
+        (Level.HIGH, 0.3),
+        (Level.MEDIUM, 0.2),
+        (Level.LOW, 0.1),
+    )
     deterministic: float = 0.98
     function_of_target: tuple[tuple[Level, float, float], ...] = (
-        (Level.CRITICAL, 0.7, 0.8), (Level.HIGH, 0.5, 0.5))
+        (Level.CRITICAL, 0.7, 0.8),
+        (Level.HIGH, 0.5, 0.5),
+    )
     strong_alone: float = 0.8
     match_margin: float = 0.02
     match_power: float = 0.6
@@ -88,9 +98,15 @@ class SoloThresholds:
     max_reference: int = 200
     strong_reference_fits: int = 2
     order_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.6), (Level.HIGH, 0.2), (Level.MEDIUM, 0.1))
+        (Level.CRITICAL, 0.6),
+        (Level.HIGH, 0.2),
+        (Level.MEDIUM, 0.1),
+    )
     order_z: tuple[tuple[Level, float], ...] = (
-        (Level.HIGH, 4.0), (Level.MEDIUM, 3.0), (Level.LOW, 2.0))
+        (Level.HIGH, 4.0),
+        (Level.MEDIUM, 3.0),
+        (Level.LOW, 2.0),
+    )
 
     def share(self, level: Level) -> float:
         return dict(self.share_floors)[level]
@@ -128,22 +144,37 @@ def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Leve
     tellable = f.expected_r2_if_effect >= th.peer_signal
     level, why = Level.NONE, "explained"
     for lv in (Level.LOW, Level.MEDIUM, Level.HIGH, Level.CRITICAL):
-        if enough_peers and share >= typical + th.share(lv) and power >= th.share_min_power(lv):
+        if (
+            enough_peers
+            and share is not None
+            and share >= typical + th.share(lv)
+            and power >= th.share_min_power(lv)
+        ):
             level, why = lv, "share"
     if why == "share" and level >= Level.HIGH and not (effect_like and tellable):
         level, why = Level.MEDIUM, "share_untold"
     if power >= th.strong_alone and level < Level.LOW:
         level, why = Level.LOW, "strong"
-    if (enough_peers and f.others_power is not None and power >= th.match_power
-            and power >= f.others_power - th.match_margin and effect_like and tellable
-            and level < Level.HIGH):
+    if (
+        enough_peers
+        and f.others_power is not None
+        and power >= th.match_power
+        and power >= f.others_power - th.match_margin
+        and effect_like
+        and tellable
+        and level < Level.HIGH
+    ):
         level, why = Level.HIGH, "match"
     for lv, u_min, p_min in sorted(th.function_of_target):
         if f.determinism >= u_min and power >= p_min and level <= lv:
             level, why = lv, "function"
     if power >= th.deterministic:
-        explained = (enough_peers and not effect_like
-                     and share < typical + th.share(Level.LOW))
+        explained = (
+            enough_peers
+            and share is not None
+            and not effect_like
+            and share < typical + th.share(Level.LOW)
+        )
         level, why = (Level.HIGH if explained else Level.CRITICAL), "deterministic"
     if f.small and level >= Level.HIGH:
         level = Level.MEDIUM
@@ -152,14 +183,12 @@ def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Leve
     return level, why
 
 
-def decide_order(z: float, power: float, small: bool,
-                 th: SoloThresholds = THRESHOLDS) -> Level:
+def decide_order(z: float, power: float, small: bool, th: SoloThresholds = THRESHOLDS) -> Level:
     """The level of ``row_order_tells_target`` from its z and power (a pure function)."""
     level = Level.NONE
     if z >= th.order(th.order_z, Level.LOW):
         level = Level.LOW
-    if z >= th.order(th.order_z, Level.MEDIUM) and power >= th.order(th.order_power,
-                                                                      Level.MEDIUM):
+    if z >= th.order(th.order_z, Level.MEDIUM) and power >= th.order(th.order_power, Level.MEDIUM):
         level = Level.MEDIUM
     if z >= th.order(th.order_z, Level.HIGH) and power >= th.order(th.order_power, Level.HIGH):
         critical = power >= th.order(th.order_power, Level.CRITICAL)
@@ -183,69 +212,113 @@ class Solo(Probe):
     def describe(cls, settings: Settings) -> str:
         """The method and its thresholds in one paragraph, with the settings in force."""
         th = cls.thresholds
-        shares = ", ".join(f"{lv.label} from the typical share + {f:g} with power "
-                           f"{th.share_min_power(lv):g}" for lv, f in reversed(th.share_floors))
-        func = ", ".join(f"{lv.label} from U {u:g} with power {p:g}"
-                         for lv, u, p in sorted(th.function_of_target))
+        shares = ", ".join(
+            f"{lv.label} from the typical share + {f:g} with power {th.share_min_power(lv):g}"
+            for lv, f in reversed(th.share_floors)
+        )
+        func = ", ".join(
+            f"{lv.label} from U {u:g} with power {p:g}"
+            for lv, u, p in sorted(th.function_of_target)
+        )
         order = ", ".join(f"{lv.label} from z {z:g}" for lv, z in reversed(th.order_z))
-        return (f"Each column alone, strictly out of fold ({settings.folds} folds, numbers in "
-                f"{settings.bins} quantile bins, categories as they are, a bin for missing "
-                f"values): its power is the Gini of its AUC or its R². The share of what its "
-                f"peers leave unexplained in it that the target explains (on a seeded sample of "
-                f"at most {settings.reference_rows} rows, at least {th.min_peers} peers) sets "
-                f"the level: {shares}; high needs the peers to add at most {th.beyond_max:g} "
-                f"beyond the target and to explain {th.peer_signal:g} of the column. A column "
-                f"alone within {th.match_margin:g} of an out-of-fold LightGBM on the other "
-                f"columns (power {th.match_power:g} or more) is high; almost a function of the "
-                f"target (Theil's U): {func}; power {th.deterministic:g} alone is critical. "
-                f"Identifiers and the row position tell the target when the Mann–Whitney z "
-                f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
-                f"Under {settings.min_rows} labelled rows levels stop at medium.")
+        return (
+            f"Each column alone, strictly out of fold ({settings.folds} folds, numbers in "
+            f"{settings.bins} quantile bins, categories as they are, a bin for missing "
+            f"values): its power is the Gini of its AUC or its R². The share of what its "
+            f"peers leave unexplained in it that the target explains (on a seeded sample of "
+            f"at most {settings.reference_rows} rows, at least {th.min_peers} peers) sets "
+            f"the level: {shares}; high needs the peers to add at most {th.beyond_max:g} "
+            f"beyond the target and to explain {th.peer_signal:g} of the column. A column "
+            f"alone within {th.match_margin:g} of an out-of-fold LightGBM on the other "
+            f"columns (power {th.match_power:g} or more) is high; almost a function of the "
+            f"target (Theil's U): {func}; power {th.deterministic:g} alone is critical. "
+            f"Identifiers and the row position tell the target when the Mann–Whitney z "
+            f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
+            f"Under {settings.min_rows} labelled rows levels stop at medium."
+        )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
         if table.target is None or table.y is None:
-            return [], [Skip(self.name, "no target given: pass --target or give a column the "
-                                        "role target in the dictionary")]
+            return [], [
+                Skip(
+                    self.name,
+                    "no target given: pass --target or give a column the "
+                    "role target in the dictionary",
+                )
+            ]
         if table.target_problem:
             return [], [Skip(self.name, table.target_problem)]
-        t = make_target(table.y, table.labelled, table.task or "binary",
-                        max(len(table.classes), 1), settings.folds, settings.seed)
+        t = make_target(
+            table.y,
+            table.labelled,
+            table.task or "binary",
+            max(len(table.classes), 1),
+            settings.folds,
+            settings.seed,
+        )
         if len(t.rows) < 4 * settings.folds:
-            return [], [Skip(self.name, f"only {len(t.rows)} labelled rows; at least "
-                                        f"{4 * settings.folds} are needed")]
+            return [], [
+                Skip(
+                    self.name,
+                    f"only {len(t.rows)} labelled rows; at least {4 * settings.folds} are needed",
+                )
+            ]
         small = len(t.rows) < settings.min_rows
         skipped: list[Skip] = []
         scores: dict[str, CellScore] = {}
         bins: dict[str, Bins] = {}
+
         def one(name: str) -> tuple[str, Bins, CellScore | None]:
-            b = bin_codes(table.frame[name], settings.bins, order=name in table.id_columns,
-                          seed=settings.seed)
+            b = bin_codes(
+                table.frame[name], settings.bins, order=name in table.id_columns, seed=settings.seed
+            )
             if not (b.codes[t.rows] > 0).any():
                 return name, b, None
             score = score_bins(b.codes, b.n_bins, t)
             if not _encoded_in_peer_test(table.frame[name], t):
-                b.codes = None          # only encoded columns need their codes again
+                b.codes = None  # type: ignore[assignment]  # only encoded columns keep codes
             return name, b, score
 
         # numpy releases the GIL in its sorting and searching loops: one thread per CPU
-        for name, b, score in column_map(one, table.id_columns + table.features,
-                                         settings.n_jobs):
+        for name, b, score in column_map(one, table.id_columns + table.features, settings.n_jobs):
             if score is None:
                 skipped.append(Skip(self.name, "no values in the labelled rows", name))
             else:
                 bins[name], scores[name] = b, score
         features = [c for c in table.features if c in scores]
         peers, ref = _peer_figures(table, t, features, scores, bins, settings)
-        evidence = [_order_evidence(name, scores[name], bins[name], t, small, "identifier")
-                    for name in table.id_columns if name in scores]
-        evidence += [_proxy_evidence(name, scores[name], bins[name], t, peers.get(name, {}),
-                                     ref, small, len(features) - 1) for name in features]
-        position = np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows,
-                              settings.bins - 1) + 1
+        evidence = [
+            _order_evidence(name, scores[name], bins[name], t, small, "identifier")
+            for name in table.id_columns
+            if name in scores
+        ]
+        evidence += [
+            _proxy_evidence(
+                name,
+                scores[name],
+                bins[name],
+                t,
+                peers.get(name, {}),
+                ref,
+                small,
+                len(features) - 1,
+            )
+            for name in features
+        ]
+        position = (
+            np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows, settings.bins - 1)
+            + 1
+        )
         pos_score = score_bins(position, settings.bins + 1, t)
-        pos_bins = Bins(position, ["(none)"] + [f"rows {i * 100 // settings.bins}–"
-                                                f"{(i + 1) * 100 // settings.bins}%"
-                                                for i in range(settings.bins)], "order")
+        pos_bins = Bins(
+            position,
+            ["(none)"]
+            + [
+                f"rows {i * 100 // settings.bins}–{(i + 1) * 100 // settings.bins}%"
+                for i in range(settings.bins)
+            ],
+            "order",
+        )
         row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
         evidence.append(row)
         return evidence, skipped
@@ -260,36 +333,56 @@ def _encoded_in_peer_test(s, t: Target) -> bool:  # noqa: ANN001
 
 
 def _power_text(score: CellScore) -> str:
-    label = {"oof_auc": "AUC", "oof_macro_auc": "macro AUC",
-             "oof_r2": "R² (target's normal scores)"}[score.statistic]
+    label = {
+        "oof_auc": "AUC",
+        "oof_macro_auc": "macro AUC",
+        "oof_r2": "R² (target's normal scores)",
+    }[score.statistic]
     return f"out-of-fold {label} {score.value:.3f}"
 
 
-def _order_evidence(name: str | None, score: CellScore, b: Bins, t: Target, small: bool,
-                    what: str) -> Evidence:
+def _order_evidence(
+    name: str | None, score: CellScore, b: Bins, t: Target, small: bool, what: str
+) -> Evidence:
     if t.task == "numeric":
         z = (score.spearman or 0.0) / score.null_se
     else:
         z = (score.value - 0.5) / score.null_se if score.null_se > 0 else 0.0
     level = decide_order(z, score.power, small).label
     detail = {**common_detail(score, b, t), "z": z, "what": what}
-    text = (f"the {what} alone predicts the target ({_power_text(score)}, z = {z:.1f})"
-            if level != "none" else f"the {what} carries no order signal ({_power_text(score)})")
-    return Evidence("solo", "row_order_tells_target",
-                    score.statistic if name else f"row_position_{score.statistic}",
-                    score.value,
-                    _threshold(t, THRESHOLDS.order(THRESHOLDS.order_power, Level.HIGH)),
-                    level, column=name,
-                    summary=text + (" (small sample)" if small and level != "none" else ""),
-                    severity=min(1.0, score.power), detail=detail)
+    text = (
+        f"the {what} alone predicts the target ({_power_text(score)}, z = {z:.1f})"
+        if level != "none"
+        else f"the {what} carries no order signal ({_power_text(score)})"
+    )
+    return Evidence(
+        "solo",
+        "row_order_tells_target",
+        score.statistic if name else f"row_position_{score.statistic}",
+        score.value,
+        _threshold(t, THRESHOLDS.order(THRESHOLDS.order_power, Level.HIGH)),
+        level,
+        column=name,
+        summary=text + (" (small sample)" if small and level != "none" else ""),
+        severity=min(1.0, score.power),
+        detail=detail,
+    )
 
 
 def _threshold(t: Target, power: float) -> float:
     return power if t.task == "numeric" else (1 + power) / 2
 
 
-def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
-                    ref: dict, small: bool, n_peers: int) -> Evidence:
+def _proxy_evidence(
+    name: str,
+    score: CellScore,
+    b: Bins,
+    t: Target,
+    peer: dict,
+    ref: dict,
+    small: bool,
+    n_peers: int,
+) -> Evidence:
     th = THRESHOLDS
     power = score.power
     share = peer.get("share")
@@ -298,8 +391,9 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
     beyond = peer.get("peers_beyond_target")
     effect_like = beyond is not None and beyond <= th.beyond_max
     expected = (peer.get("r2_target") or 0.0) * (peer.get("target_r2_on_peers") or 0.0)
-    figures = ProxyFigures(power, score.determinism, share, typical, others, beyond, expected,
-                           n_peers, small)
+    figures = ProxyFigures(
+        power, score.determinism, share, typical, others, beyond, expected, n_peers, small
+    )
     rank, why = decide_proxy(figures, th)
     level = rank.label
     enough_peers = n_peers >= th.min_peers and share is not None
@@ -307,52 +401,90 @@ def _proxy_evidence(name: str, score: CellScore, b: Bins, t: Target, peer: dict,
     threshold = _threshold(t, th.share_min_power(Level.HIGH))
     txt = _power_text(score)
     if why == "share":
+        assert share is not None  # decide_proxy reads the share only when it was measured
         statistic, value, threshold = "target_share_beyond_peers", share, typical + th.share(rank)
-        summary = (f"the target explains {share:.0%} of what the other columns leave "
-                   f"unexplained in it ({txt}): it looks caused by the outcome")
+        summary = (
+            f"the target explains {share:.0%} of what the other columns leave "
+            f"unexplained in it ({txt}): it looks caused by the outcome"
+        )
     elif why == "share_untold":
+        assert share is not None
         statistic, value = "target_share_beyond_peers", share
         threshold = typical + th.share(Level.HIGH)
-        reason = ("the other columns explain it beyond the target, as they would an honest "
-                  "feature" if not effect_like else "the other columns say too little about "
-                  "the target to tell an effect of the outcome from a strong cause")
-        summary = (f"the target explains {share:.0%} of what the other columns leave "
-                   f"unexplained in it ({txt}), but {reason}")
+        reason = (
+            "the other columns explain it beyond the target, as they would an honest feature"
+            if not effect_like
+            else "the other columns say too little about "
+            "the target to tell an effect of the outcome from a strong cause"
+        )
+        summary = (
+            f"the target explains {share:.0%} of what the other columns leave "
+            f"unexplained in it ({txt}), but {reason}"
+        )
     elif why == "deterministic":
         threshold = _threshold(t, th.deterministic)
         summary = f"alone predicts the target almost exactly ({txt})"
     elif why == "function":
         statistic, value = "determinism_given_target", score.determinism
         threshold = {lv: u for lv, u, _ in th.function_of_target}[rank]
-        summary = (f"is almost a function of the target: the target accounts for "
-                   f"{score.determinism:.0%} of its entropy ({txt})")
+        summary = (
+            f"is almost a function of the target: the target accounts for "
+            f"{score.determinism:.0%} of its entropy ({txt})"
+        )
     elif why == "match":
+        assert others is not None  # decide_proxy matches only against a measured power
         threshold = _threshold(t, others - th.match_margin)
-        summary = (f"alone ({txt}) matches all the other columns together "
-                   f"({_threshold(t, others):.3f})")
+        summary = (
+            f"alone ({txt}) matches all the other columns together ({_threshold(t, others):.3f})"
+        )
     else:
         share_txt = f"; the target adds {share:.0%} beyond its peers" if share is not None else ""
-        summary = f"{txt}{share_txt}" + (", so it is explained by other columns"
-                                         if why == "strong" else "")
+        summary = f"{txt}{share_txt}" + (
+            ", so it is explained by other columns" if why == "strong" else ""
+        )
     if small and level != "none":
         summary += f" (small sample: {len(t.rows)} labelled rows)"
     if not enough_peers and level != "none" and why not in ("deterministic", "function"):
         summary += " (too few other columns to compare with)"
-    detail = {**common_detail(score, b, t), "share_beyond_peers": share, "typical_share": typical,
-              "r2_on_peers": peer.get("r2_peers"), "r2_on_peers_and_target":
-              peer.get("r2_peers_target"), "r2_on_target": peer.get("r2_target"),
-              "peers_beyond_target": beyond, "target_r2_on_peers": peer.get("target_r2_on_peers"),
-              "expected_r2_on_peers_if_effect": expected, "peers": peer.get("peers"),
-              "reference_power": others, "reference_rows": ref.get("rows"),
-              "reference_columns": ref.get("columns"), "decided_by": why}
+    detail = {
+        **common_detail(score, b, t),
+        "share_beyond_peers": share,
+        "typical_share": typical,
+        "r2_on_peers": peer.get("r2_peers"),
+        "r2_on_peers_and_target": peer.get("r2_peers_target"),
+        "r2_on_target": peer.get("r2_target"),
+        "peers_beyond_target": beyond,
+        "target_r2_on_peers": peer.get("target_r2_on_peers"),
+        "expected_r2_on_peers_if_effect": expected,
+        "peers": peer.get("peers"),
+        "reference_power": others,
+        "reference_rows": ref.get("rows"),
+        "reference_columns": ref.get("columns"),
+        "decided_by": why,
+    }
     severity = 0.5 * power + 0.5 * min(1.0, (share or 0.0) / 0.5)
-    return Evidence("solo", "target_proxy", statistic, value, threshold, level, column=name,
-                    summary=summary, severity=severity, detail=detail)
+    return Evidence(
+        "solo",
+        "target_proxy",
+        statistic,
+        value,
+        threshold,
+        level,
+        column=name,
+        summary=summary,
+        severity=severity,
+        detail=detail,
+    )
 
 
-def _peer_figures(table: AuditTable, t: Target, features: list[str],
-                  scores: dict[str, CellScore], bins: dict[str, Bins], settings: Settings
-                  ) -> tuple[dict[str, dict], dict]:
+def _peer_figures(
+    table: AuditTable,
+    t: Target,
+    features: list[str],
+    scores: dict[str, CellScore],
+    bins: dict[str, Bins],
+    settings: Settings,
+) -> tuple[dict[str, dict], dict]:
     """Dependence shares and reference-model power on a seeded, stratified sample."""
     if len(features) < 2:
         return {}, {}
@@ -360,17 +492,26 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
     n = len(t.rows)
     take = min(n, settings.reference_rows)
     if take < n and t.task != "numeric":
-        pick = np.concatenate([rng.choice(np.flatnonzero(t.y == k),
-                                          max(1, round(take * float(np.mean(t.y == k)))),
-                                          replace=False) for k in range(t.n_classes)
-                               if (t.y == k).any()])
+        pick = np.concatenate(
+            [
+                rng.choice(
+                    np.flatnonzero(t.y == k),
+                    max(1, round(take * float(np.mean(t.y == k)))),
+                    replace=False,
+                )
+                for k in range(t.n_classes)
+                if (t.y == k).any()
+            ]
+        )
     else:
         pick = rng.choice(n, take, replace=False) if take < n else np.arange(n)
     pick = np.sort(pick)
     cols, trees = [], []
     for name in features:
-        if bins[name].codes is None:     # run() kept codes only for encoded columns
-            raw = normal_scores(numeric_view(table.frame[name])[t.rows][pick])
+        if bins[name].codes is None:  # run() kept codes only for encoded columns
+            values = numeric_view(table.frame[name])
+            assert values is not None  # a column without codes is numeric
+            raw = normal_scores(values[t.rows][pick])
         else:
             pred = scores[name].row_scores(t, bins[name].codes)[pick]
             if pred.ndim == 2:
@@ -387,20 +528,33 @@ def _peer_figures(table: AuditTable, t: Target, features: list[str],
         y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
     power = np.array([scores[c].power for c in features])
     inp = PeerInput(features, np.column_stack(cols), np.column_stack(trees), y_block, y, power)
-    shares = dependence_shares(inp, flag_share=THRESHOLDS.share(Level.HIGH),
-                               flag_power=THRESHOLDS.share_min_power(Level.HIGH),
-                               min_power=0.0, flag_beyond=THRESHOLDS.beyond_max)
+    shares = dependence_shares(
+        inp,
+        flag_share=THRESHOLDS.share(Level.HIGH),
+        flag_power=THRESHOLDS.share_min_power(Level.HIGH),
+        min_power=0.0,
+        flag_beyond=THRESHOLDS.beyond_max,
+    )
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
-    keep = np.array([i for i in np.argsort(-power) if features[i] not in flagged]
-                    [:THRESHOLDS.max_reference], dtype=np.int64)  # the reference
-    ref = {"power": reference_power(inp, keep, t.task, t.n_classes, settings.seed,
-                                     n_jobs=settings.n_jobs),
-           "rows": int(take), "columns": int(keep.size)}
-    strong = [i for i in np.argsort(-power) if features[i] not in flagged
-              and power[i] >= THRESHOLDS.match_power][:THRESHOLDS.strong_reference_fits]
+    keep = np.array(
+        [i for i in np.argsort(-power) if features[i] not in flagged][: THRESHOLDS.max_reference],
+        dtype=np.int64,
+    )  # the reference
+    ref = {
+        "power": reference_power(
+            inp, keep, t.task, t.n_classes, settings.seed, n_jobs=settings.n_jobs
+        ),
+        "rows": int(take),
+        "columns": int(keep.size),
+    }
+    strong = [
+        i
+        for i in np.argsort(-power)
+        if features[i] not in flagged and power[i] >= THRESHOLDS.match_power
+    ][: THRESHOLDS.strong_reference_fits]
     for i in strong:
         rest = keep[keep != i]
-        shares[features[i]]["others_power"] = reference_power(inp, rest, t.task, t.n_classes,
-                                                              settings.seed,
-                                                              n_jobs=settings.n_jobs)
+        shares[features[i]]["others_power"] = reference_power(
+            inp, rest, t.task, t.n_classes, settings.seed, n_jobs=settings.n_jobs
+        )
     return shares, ref

@@ -10,8 +10,7 @@ from featureaudit.stats import Bins, auc_from_cells
 
 
 def _bin_detail(score: CellScore, b: Bins, t: Target) -> dict:
-    prior = float(np.mean(t.raw) if t.raw is not None else t.prior[-1] if t.n_classes == 2
-                  else 0)
+    prior = float(np.mean(t.raw) if t.raw is not None else t.prior[-1] if t.n_classes == 2 else 0)
     rows = score.bin_rows
     stat = np.nan_to_num(score.bin_stat, nan=prior)
     weight = rows * (stat - prior) ** 2 if t.n_classes <= 2 else rows * stat
@@ -24,9 +23,16 @@ def _bin_detail(score: CellScore, b: Bins, t: Target) -> dict:
         if score.bin_class is not None:
             item["class"] = int(score.bin_class[i])
         out.append(item)
-    return {"bins": out, "bin_kind": b.kind, "bin_stat": {"numeric": "target mean",
-            "binary": "target rate", "multiclass": "rate of the bin's most over-represented "
-            "class"}[t.task], "prior": prior}
+    return {
+        "bins": out,
+        "bin_kind": b.kind,
+        "bin_stat": {
+            "numeric": "target mean",
+            "binary": "target rate",
+            "multiclass": "rate of the bin's most over-represented class",
+        }[t.task],
+        "prior": prior,
+    }
 
 
 def _missing_detail(score: CellScore, t: Target) -> dict | None:
@@ -40,18 +46,26 @@ def _missing_detail(score: CellScore, t: Target) -> dict | None:
     if t.n_classes == 2:
         pos_m = score.bin_stat[0] * n_missing
         pos_p = out["stat_present"] * (n - n_missing)
-        auc = auc_from_cells(np.array([1.0, 0.0]), np.array([pos_m, pos_p]),
-                             np.array([n_missing - pos_m, n - n_missing - pos_p]))
+        auc = auc_from_cells(
+            np.array([1.0, 0.0]),
+            np.array([pos_m, pos_p]),
+            np.array([n_missing - pos_m, n - n_missing - pos_p]),
+        )
         out["auc"] = max(auc, 1 - auc)
     return out
 
 
 def common_detail(score: CellScore, b: Bins, t: Target) -> dict:
-    detail = {"oof_value": score.value, "se": score.se,
-              "ci95": [score.value - 1.96 * score.se, score.value + 1.96 * score.se],
-              "fold_values": [float(v) for v in score.fold_values], "power": score.power,
-              "determinism_given_target": score.determinism,
-              "labelled_rows": len(t.rows), **_bin_detail(score, b, t)}
+    detail = {
+        "oof_value": score.value,
+        "se": score.se,
+        "ci95": [score.value - 1.96 * score.se, score.value + 1.96 * score.se],
+        "fold_values": [float(v) for v in score.fold_values],
+        "power": score.power,
+        "determinism_given_target": score.determinism,
+        "labelled_rows": len(t.rows),
+        **_bin_detail(score, b, t),
+    }
     if score.spearman is not None:
         detail["spearman"] = score.spearman
     missing = _missing_detail(score, t)

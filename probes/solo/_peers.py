@@ -19,9 +19,9 @@ from featureaudit.threads import limited_blas, model_threads
 
 __all__ = ["PeerInput", "dependence_shares", "reference_power", "normal_scores"]
 
-RIDGE = 1e-3          # on correlations; keeps near-collinear peers invertible
-COPY_CORR = 0.995     # a peer this correlated is a copy of the column, not evidence about it
-MAX_PEERS = 200       # the most powerful columns serve as peers beyond this many
+RIDGE = 1e-3  # on correlations; keeps near-collinear peers invertible
+COPY_CORR = 0.995  # a peer this correlated is a copy of the column, not evidence about it
+MAX_PEERS = 200  # the most powerful columns serve as peers beyond this many
 
 
 @dataclass(frozen=True)
@@ -29,11 +29,11 @@ class PeerInput:
     """The sample's representation: one standardised variable per column, and the target."""
 
     names: list[str]
-    z: np.ndarray            # [rows, columns], standardised, missing at 0
-    z_tree: np.ndarray       # the same with NaN where missing (for the tree model)
-    y_block: np.ndarray      # [rows, 1] or [rows, K-1]
-    y_codes: np.ndarray      # target of the sample rows (codes or floats)
-    power: np.ndarray        # single-column power per column, to choose peers
+    z: np.ndarray  # [rows, columns], standardised, missing at 0
+    z_tree: np.ndarray  # the same with NaN where missing (for the tree model)
+    y_block: np.ndarray  # [rows, 1] or [rows, K-1]
+    y_codes: np.ndarray  # target of the sample rows (codes or floats)
+    power: np.ndarray  # single-column power per column, to choose peers
 
 
 def normal_scores(values: np.ndarray) -> np.ndarray:
@@ -42,6 +42,7 @@ def normal_scores(values: np.ndarray) -> np.ndarray:
     ok = np.isfinite(values)
     if ok.sum() > 1:
         from scipy.stats import rankdata
+
         r = rankdata(values[ok])
         out[ok] = ndtri((r - 0.5) / ok.sum())
     return out
@@ -68,13 +69,19 @@ def _figures(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray) -> dic
     b = _r2(corr, j, ys)
     c = max(_r2(corr, j, np.r_[peers, ys]), a, b)
     target_on_peers = float(np.mean([_r2(corr, int(y), peers) for y in ys])) if ys.size else 0.0
-    return {"share": (c - a) / (1 - a) if a < 1 else 0.0, "r2_peers": a, "r2_target": b,
-            "r2_peers_target": c, "peers_beyond_target": (c - b) / (1 - b) if b < 1 else 0.0,
-            "target_r2_on_peers": target_on_peers}
+    return {
+        "share": (c - a) / (1 - a) if a < 1 else 0.0,
+        "r2_peers": a,
+        "r2_target": b,
+        "r2_peers_target": c,
+        "peers_beyond_target": (c - b) / (1 - b) if b < 1 else 0.0,
+        "target_r2_on_peers": target_on_peers,
+    }
 
 
-def typical_share(shares: dict[str, dict], power: dict[str, float], exclude: str,
-                  min_power: float) -> float:
+def typical_share(
+    shares: dict[str, dict], power: dict[str, float], exclude: str, min_power: float
+) -> float:
     """Median share of the other columns with some power: what this table's honest columns show.
 
     Flagged columns stay in the median (a few leaks barely move it), so removing them from
@@ -83,15 +90,23 @@ def typical_share(shares: dict[str, dict], power: dict[str, float], exclude: str
     Where the target genuinely causes the features (a plant's cultivar its chemistry), every
     column has a large share; a leak is the column that stands out above that level.
     """
-    others = [v["share"] for c, v in shares.items()
-              if c != exclude and v["share"] is not None
-              and power.get(c, 0.0) >= min_power]
+    others = [
+        v["share"]
+        for c, v in shares.items()
+        if c != exclude and v["share"] is not None and power.get(c, 0.0) >= min_power
+    ]
     return float(np.median(others)) if len(others) >= 3 else 0.0
 
 
-def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
-                      min_power: float, flag_beyond: float, rounds: int = 5
-                      ) -> dict[str, dict]:
+def dependence_shares(
+    inp: PeerInput,
+    *,
+    flag_share: float,
+    flag_power: float,
+    min_power: float,
+    flag_beyond: float,
+    rounds: int = 5,
+) -> dict[str, dict]:
     """Share per column; columns flagged in one round are removed from the peers of the next.
 
     A column is flagged when its share exceeds the typical share of the other columns by
@@ -112,21 +127,38 @@ def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
     for round_no in range(1, rounds + 1):
         for j in range(p):
             if not usable[j]:
-                out[inp.names[j]] = {"share": None, "flag_round": None, "peers": 0,
-                                     "typical_share": None}
+                out[inp.names[j]] = {
+                    "share": None,
+                    "flag_round": None,
+                    "peers": 0,
+                    "typical_share": None,
+                }
                 continue
-            peers = np.array([k for k in order if k != j and usable[k] and k not in flagged
-                              and abs(corr[j, k]) < COPY_CORR][:MAX_PEERS], dtype=np.int64)
-            out[inp.names[j]] = {**_figures(corr, j, peers, ys), "flag_round": flagged.get(j),
-                                 "peers": int(peers.size)}
+            peers = np.array(
+                [
+                    k
+                    for k in order
+                    if k != j and usable[k] and k not in flagged and abs(corr[j, k]) < COPY_CORR
+                ][:MAX_PEERS],
+                dtype=np.int64,
+            )
+            out[inp.names[j]] = {
+                **_figures(corr, j, peers, ys),
+                "flag_round": flagged.get(j),
+                "peers": int(peers.size),
+            }
         new = []
         for j, name in enumerate(inp.names):
             typical = typical_share(out, power, name, min_power)
             out[name]["typical_share"] = typical
             share = out[name]["share"]
-            if (j not in flagged and share is not None and inp.power[j] >= flag_power
-                    and share >= typical + flag_share
-                    and out[name]["peers_beyond_target"] <= flag_beyond):
+            if (
+                j not in flagged
+                and share is not None
+                and inp.power[j] >= flag_power
+                and share >= typical + flag_share
+                and out[name]["peers_beyond_target"] <= flag_beyond
+            ):
                 new.append(j)
         if not new:
             break
@@ -136,24 +168,42 @@ def dependence_shares(inp: PeerInput, *, flag_share: float, flag_power: float,
     return out
 
 
-def reference_power(inp: PeerInput, columns: np.ndarray, task: str, n_classes: int,
-                    seed: int, folds: int = 3, n_jobs: int = 1) -> float:
+def reference_power(
+    inp: PeerInput,
+    columns: np.ndarray,
+    task: str,
+    n_classes: int,
+    seed: int,
+    folds: int = 3,
+    n_jobs: int = 1,
+) -> float:
     """Out-of-fold LightGBM on the given columns of the sample: Gini of its AUC, or its R²."""
     if columns.size == 0:
         return 0.0
     x = inp.z_tree[:, columns]
     y = inp.y_codes
     params: dict[str, Any] = dict(
-                  n_estimators=40, learning_rate=0.15, num_leaves=15, min_child_samples=10,
-                  subsample=0.8, subsample_freq=1, colsample_bytree=0.8, random_state=seed,
-                  n_jobs=model_threads(n_jobs, len(inp.y_codes)), verbose=-1, deterministic=True,
-                  force_row_wise=True, max_bin=31)
+        n_estimators=40,
+        learning_rate=0.15,
+        num_leaves=15,
+        min_child_samples=10,
+        subsample=0.8,
+        subsample_freq=1,
+        colsample_bytree=0.8,
+        random_state=seed,
+        n_jobs=model_threads(n_jobs, len(inp.y_codes)),
+        verbose=-1,
+        deterministic=True,
+        force_row_wise=True,
+        max_bin=31,
+    )
     with limited_blas():
         return _reference_fit(x, y, params, task, n_classes, seed, folds)
 
 
-def _reference_fit(x: np.ndarray, y: np.ndarray, params: dict, task: str, n_classes: int,
-                   seed: int, folds: int) -> float:
+def _reference_fit(
+    x: np.ndarray, y: np.ndarray, params: dict, task: str, n_classes: int, seed: int, folds: int
+) -> float:
     import lightgbm as lgb
     from sklearn.metrics import r2_score, roc_auc_score
     from sklearn.model_selection import KFold, StratifiedKFold

@@ -20,8 +20,9 @@ HIGH = ("high", "critical")
 
 
 @pytest.mark.parametrize("seed", [0, 1, 2])
-def test_breast_cancer_noisy_copy_is_caught_and_honest_columns_are_not(breast_cancer, seed,
-                                                                     noisy_copy):
+def test_breast_cancer_noisy_copy_is_caught_and_honest_columns_are_not(
+    breast_cancer, seed, noisy_copy
+):
     # Real data: scikit-learn's bundled breast-cancer set; honest single-column AUC up to ~0.97.
     frame = breast_cancer.copy()
     frame["noisy_copy"] = noisy_copy(frame["malignant"].to_numpy(), 0.05, seed)
@@ -74,8 +75,9 @@ def test_sorted_by_target_with_sequential_id_raises_row_order(breast_cancer):
     result = fa.audit(frame, target="malignant", probes=["solo"])
     row = result.columns.set_index("column").loc["record_id"]
     assert row["level"] in HIGH and "row_order_tells_target" in row["kinds"]
-    position = [f for f in result.document["dataset_findings"]
-                if f["kind"] == "row_order_tells_target"]
+    position = [
+        f for f in result.document["dataset_findings"] if f["kind"] == "row_order_tells_target"
+    ]
     assert position and position[0]["level"] in HIGH
 
 
@@ -84,8 +86,9 @@ def test_shuffled_rows_with_sequential_id_stay_clean(breast_cancer):
     frame.insert(0, "record_id", np.arange(1, len(frame) + 1))
     result = fa.audit(frame, target="malignant", probes=["solo"])
     assert _levels(result)["record_id"] in ("none", "low")
-    position = [f for f in result.document["dataset_findings"]
-                if f["kind"] == "row_order_tells_target"]
+    position = [
+        f for f in result.document["dataset_findings"] if f["kind"] == "row_order_tells_target"
+    ]
     assert position[0]["level"] in ("none", "low")
 
 
@@ -98,8 +101,13 @@ def test_neutral_column_stays_none(small_binary):
 def test_high_cardinality_text_cannot_leak_through_the_probe():
     rng = np.random.default_rng(4)
     n = 3000
-    frame = pd.DataFrame({"ticket": [f"T-{rng.integers(1e9):09d}-{i}" for i in range(n)],
-                          "x": rng.normal(size=n), "y": rng.integers(0, 2, n)})
+    frame = pd.DataFrame(
+        {
+            "ticket": [f"T-{rng.integers(1e9):09d}-{i}" for i in range(n)],
+            "x": rng.normal(size=n),
+            "y": rng.integers(0, 2, n),
+        }
+    )
     result = fa.audit(frame, target="y", probes=["solo"])
     assert _detail(result, "ticket")["oof_value"] == pytest.approx(0.5, abs=0.02)
 
@@ -121,7 +129,8 @@ def test_missingness_that_tells_the_target_is_reported():
 def test_datetime_and_category_columns_are_scored(small_binary):
     frame = small_binary.copy()
     frame["signal_day"] = pd.Timestamp("2025-01-01") + pd.to_timedelta(
-        np.argsort(np.argsort(frame["signal"].to_numpy())), "D")
+        np.argsort(np.argsort(frame["signal"].to_numpy())), "D"
+    )
     result = fa.audit(frame, target="y", probes=["solo"])
     detail = _detail(result, "signal_day")
     assert detail["oof_value"] > 0.7 and detail["bins"][1]["bin"].startswith("[2025")
@@ -131,8 +140,16 @@ def test_datetime_and_category_columns_are_scored(small_binary):
 def test_evidence_carries_what_a_reviewer_needs(breast_cancer):
     result = fa.audit(breast_cancer, target="malignant", probes=["solo"])
     d = _detail(result, "worst perimeter")
-    for key in ("oof_value", "ci95", "fold_values", "reference_power", "bins", "se",
-                "share_beyond_peers", "determinism_given_target"):
+    for key in (
+        "oof_value",
+        "ci95",
+        "fold_values",
+        "reference_power",
+        "bins",
+        "se",
+        "share_beyond_peers",
+        "determinism_given_target",
+    ):
         assert key in d, key
     assert d["ci95"][0] < d["oof_value"] < d["ci95"][1]
     assert len(d["fold_values"]) == 5 and 0 < d["reference_power"] <= 1
@@ -151,12 +168,22 @@ from featureaudit.settings import Settings  # noqa: E402
 
 
 def test_decide_proxy_share_rule_needs_an_effect_the_peers_can_tell():
-    base = dict(power=0.6, determinism=0.1, share=0.45, typical_share=0.02, others_power=0.9,
-                peers_beyond_target=0.05, expected_r2_if_effect=0.2, n_peers=10)
+    base = dict(
+        power=0.6,
+        determinism=0.1,
+        share=0.45,
+        typical_share=0.02,
+        others_power=0.9,
+        peers_beyond_target=0.05,
+        expected_r2_if_effect=0.2,
+        n_peers=10,
+    )
     assert decide_proxy(ProxyFigures(**base)) == (Level.CRITICAL, "share")
     # the peers add much beyond the target: an honest feature, held at medium
     assert decide_proxy(ProxyFigures(**{**base, "peers_beyond_target": 0.5})) == (
-        Level.MEDIUM, "share_untold")
+        Level.MEDIUM,
+        "share_untold",
+    )
     # too few peers to compare with: the share rule does not apply
     assert decide_proxy(ProxyFigures(**{**base, "n_peers": 2}))[0] == Level.NONE
     # a small sample caps at medium too
@@ -164,8 +191,14 @@ def test_decide_proxy_share_rule_needs_an_effect_the_peers_can_tell():
 
 
 def test_decide_proxy_power_rules():
-    explained = dict(share=0.0, typical_share=0.0, others_power=0.99,
-                     peers_beyond_target=0.6, expected_r2_if_effect=0.3, n_peers=10)
+    explained = dict(
+        share=0.0,
+        typical_share=0.0,
+        others_power=0.99,
+        peers_beyond_target=0.6,
+        expected_r2_if_effect=0.3,
+        n_peers=10,
+    )
     assert decide_proxy(ProxyFigures(0.85, 0.1, **explained)) == (Level.LOW, "strong")
     assert decide_proxy(ProxyFigures(0.99, 0.1, **explained)) == (Level.HIGH, "deterministic")
     assert decide_proxy(ProxyFigures(0.99, 0.1)) == (Level.CRITICAL, "deterministic")

@@ -293,8 +293,9 @@ def test_hours_late_in_minute_resolution_data_is_found(macrodata):
     assert levels["noted"] in HIGH and levels["honest"] == "none"
     ev = result.columns.set_index("column").loc["noted", "evidence"][0]
     assert ev["detail"]["lag_unit"] == "hours" and ev["detail"]["tolerance_used"] == "1 minute"
-    # reference: pandas arithmetic; three hours late = 180 minutes
-    assert ev["detail"]["lag_minutes_vs_cutoff"]["q100"] == pytest.approx(180)
+    # reference: pandas arithmetic; three hours late = 180 minutes = 3 hours = 0.125 days
+    assert ev["detail"]["lag_hours_vs_cutoff"]["q100"] == pytest.approx(3)
+    assert ev["detail"]["lag_days_vs_cutoff"]["q100"] == pytest.approx(180 / 1440)
     # an explicit tolerance wins over the resolution: three hours pass under "1d"
     explicit = fa.audit(
         frame,
