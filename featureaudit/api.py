@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import html
 import os
+from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
@@ -125,6 +126,7 @@ def audit(
     probes: list[str] | None = None,
     settings: Settings | None = None,
     source: str | None = None,
+    code: Sequence[str | os.PathLike[str]] | None = None,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -146,6 +148,9 @@ def audit(
         As the scan flags of the same names.
     seed : int, default 0
         Seeds every sample and fold, so the same inputs give the same findings.
+    code : list of paths, optional
+        Training scripts or notebooks, audited as by ``featureaudit code``; their findings
+        go into ``code_findings`` and, on named columns, into those columns' evidence.
 
     Returns
     -------
@@ -162,6 +167,11 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
+    code_result = None
+    if code:  # read first: an unreadable file stops the audit before any work
+        from featureaudit.code.join import read_code
+
+        code_result = read_code(list(code))
     table = build_table(
         data,
         test=test,
@@ -180,4 +190,4 @@ def audit(
         settings = Settings(seed=seed)
     elif seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
         settings = Settings(**{**settings.to_dict(), "seed": seed})
-    return AuditResult(run_audit(table, settings, probes=probes))
+    return AuditResult(run_audit(table, settings, probes=probes, code=code_result))

@@ -120,6 +120,9 @@ def scan(
         ),
     ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
+    code: Annotated[
+        list[str] | None, typer.Option(help="Training script or notebook to audit (repeatable).")
+    ] = None,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -143,6 +146,7 @@ def scan(
         "fail_at": fail_at,
         "seed": seed,
         "fail_at_impact": fail_at_impact,
+        "code": code or None,
     }
     opts = dict(read_config(config)) if config else {}
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
@@ -167,6 +171,7 @@ def scan(
         entity=opts.get("entity"),
         seed=seed_value,
         settings=settings,
+        code=_paths(opts.get("code")),
     )
     out_dir = Path(opts.get("out") or "featureaudit-report")
     result.write(out_dir)
@@ -180,6 +185,17 @@ def scan(
         if lift is not None and lift > float(opts["fail_at_impact"]):
             return 1
     return 0
+
+
+def _paths(value: Any) -> list[str] | None:
+    """``--code`` (or the config's ``code``): one path or a list of them."""
+    if value in (None, "", []):
+        return None
+    if isinstance(value, str):
+        return [value]
+    if isinstance(value, list) and all(isinstance(v, str) for v in value):
+        return value
+    raise SettingError(f"code in the config must be a path or a list of paths; got {value!r}.")
 
 
 def _int(value: Any, flag: str) -> int:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 import time
 from collections.abc import Iterable
+from typing import TYPE_CHECKING
 
 from featureaudit import __version__
 from featureaudit.errors import FeatureAuditError, ProbeFailed
@@ -15,6 +16,9 @@ from featureaudit.registry import registered, thresholds_dict
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 
+if TYPE_CHECKING:
+    from featureaudit.code.audit import CodeAudit
+
 __all__ = ["run_audit"]
 
 
@@ -24,6 +28,7 @@ def run_audit(
     *,
     probes: Iterable[str] | None = None,
     progress: bool | None = None,
+    code: CodeAudit | None = None,
 ) -> Findings:
     """Run each registered probe (or those named), rank the evidence and build the findings.
 
@@ -53,6 +58,10 @@ def run_audit(
         timings[name] = round(time.perf_counter() - start, 3)
         evidence.extend(found)
         skipped.extend(skips)
+    if code is not None:  # the training code's findings on named columns join their evidence
+        from featureaudit.code.join import code_evidence
+
+        evidence.extend(code_evidence(code, table.id_columns + table.features))
     verdicts, dataset_findings = rank(table, evidence)
     dataset = {
         "source": table.source,
@@ -96,6 +105,11 @@ def run_audit(
         warnings=warnings,
     )
     findings.document["impact"] = impact_block
+    if code is not None:
+        from featureaudit.code.join import code_entries
+
+        findings.document["code_findings"] = code_entries(code)
+        findings.document["settings"]["code_files"] = [str(f["file"]) for f in code.files]
     return findings
 
 

@@ -45,16 +45,22 @@ _WORDS = {
 def column_remedy(column: dict[str, Any]) -> str | None:
     """The remedy of one column verdict (``None`` for a column at level none).
 
-    A column whose evidence at its own level is only preprocessing fingerprints is refitted;
-    otherwise it is dropped at high or above and reviewed below.
+    A column whose evidence at its own level is only preprocessing fingerprints (fitscope's,
+    or the training code's fits on all rows) is refitted; otherwise it is dropped at high or
+    above and reviewed below.
     """
     level = Level.parse(column.get("level", "none"))
     if level == Level.NONE:
         return None
     top = [e for e in column.get("evidence", []) if Level.parse(e.get("level", "none")) >= level]
-    if top and all(e.get("probe") == "fitscope" for e in top):
+    if top and all(_refit_evidence(e) for e in top):
         return "refit_on_training_rows"
     return "drop" if level >= Level.HIGH else "review"
+
+
+def _refit_evidence(e: dict[str, Any]) -> bool:
+    probe = e.get("probe")
+    return probe == "fitscope" or (probe == "code" and e.get("kind") == "fit_on_all_rows")
 
 
 def dataset_remedy(finding: dict[str, Any]) -> str | None:

@@ -225,3 +225,91 @@ def test_selection_pitfall_scores_higher_when_leaky_and_is_flagged(tmp_path: Pat
     assert leaky_score > 0.65 and correct_score < 0.62 and leaky_score > correct_score + 0.1
     assert [f.kind for f in audit_file(leaky)[0]] == ["selection_on_all_rows"]
     assert audit_file(correct)[0] == []
+
+
+SCALED_BEFORE_SPLIT = """
+import pandas as pd
+from sklearn.linear_model import LogisticRegression
+from sklearn.model_selection import train_test_split
+from sklearn.preprocessing import StandardScaler
+
+df = pd.read_csv("cancer.csv")
+df[["mean radius", "mean texture"]] = StandardScaler().fit_transform(
+    df[["mean radius", "mean texture"]]
+)
+train, test = train_test_split(df, test_size=0.3, random_state=0)
+model = LogisticRegression().fit(train.drop(columns="malignant"), train["malignant"])
+"""
+
+
+def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_cancer) -> None:
+    import featureaudit as fa
+
+    script = tmp_path / "train.py"
+    script.write_text(SCALED_BEFORE_SPLIT)
+    result = fa.audit(breast_cancer, target="malignant", probes=["solo"], code=[script])
+    doc = result.document
+    assert [f["kind"] for f in doc["code_findings"]] == ["fit_before_split"]
+    assert doc["code_findings"][0]["line"] == 8
+    cols = {c["column"]: c for c in doc["columns"]}
+    for name in ("mean radius", "mean texture"):
+        ev = [e for e in cols[name]["evidence"] if e["probe"] == "code"]
+        assert [e["kind"] for e in ev] == ["fit_on_all_rows"] and ev[0]["level"] == "medium"
+        assert ev[0]["detail"]["line"] == 8 and "fit_on_all_rows" in cols[name]["kinds"]
+    # solo finds nothing strong on "mean texture", so the code evidence sets its level and its
+    # remedy: refit, not drop
+    assert cols["mean texture"]["level"] == "medium"
+    assert cols["mean texture"]["remedy"] == "refit_on_training_rows"
+    assert not [e for e in cols["worst area"]["evidence"] if e["probe"] == "code"]
+    html = result.write(tmp_path / "report")
+    dossier = (tmp_path / "report" / "dossier.html").read_text()
+    assert html and "<h2>Training code</h2>" in dossier and "StandardScaler" in dossier
+    plain = fa.audit(breast_cancer, target="malignant", probes=["solo"]).document
+    assert plain["code_findings"] == []
+
+
+def test_scan_code_without_findings_says_so(tmp_path: Path, breast_cancer) -> None:
+    import featureaudit as fa
+
+    result = fa.audit(
+        breast_cancer, target="malignant", probes=["solo"], code=[CASES / "scaler_clean.py"]
+    )
+    assert result.document["code_findings"] == []
+    result.write(tmp_path)
+    dossier = (tmp_path / "dossier.html").read_text()
+    assert "<h2>Training code</h2>" in dossier and "shows none of the patterns" in dossier
+
+
+def test_scan_with_an_unreadable_code_file_is_one_line_and_writes_nothing(
+    tmp_path: Path, breast_cancer
+) -> None:
+    table = tmp_path / "cancer.csv"
+    breast_cancer.to_csv(table, index=False)
+    bad = tmp_path / "broken.py"
+    bad.write_bytes(b"def f(:\n")
+    out = tmp_path / "report"
+    args = ["scan", str(table), "--target", "malignant", "--out", str(out), "--code", str(bad)]
+    res = CliRunner().invoke(app, args)
+    assert res.exit_code == 2
+    errors = [ln for ln in res.stderr.splitlines() if ln.strip()]
+    assert len(errors) == 1 and "broken.py" in errors[0] and "--code" in errors[0]
+    assert not out.exists()
+
+
+def test_scan_cli_takes_code_repeatedly(tmp_path: Path, breast_cancer) -> None:
+    table = tmp_path / "cancer.csv"
+    breast_cancer.to_csv(table, index=False)
+    script = tmp_path / "train.py"
+    script.write_text(SCALED_BEFORE_SPLIT)
+    out = tmp_path / "report"
+    args = ["scan", str(table), "--target", "malignant", "--out", str(out)]
+    res = CliRunner().invoke(
+        app, [*args, "--code", str(script), "--code", str(CASES / "smote_leaky.py")]
+    )
+    assert res.exit_code == 0, res.output
+    doc = json.loads((out / "findings.json").read_text())
+    assert sorted(f["kind"] for f in doc["code_findings"]) == [
+        "fit_before_split",
+        "oversampled_before_split",
+    ]
+    assert len(doc["settings"]["code_files"]) == 2
