@@ -152,6 +152,11 @@ def scan(
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
     opts.update({k: v for k, v in given.items() if v is not None})
     fail = check_level(opts["fail_at"], flag="--fail-at") if opts.get("fail_at") else None
+    gate = opts.get("fail_at_impact")
+    if gate is not None:
+        from featureaudit.impact import check_fail_at_impact
+
+        gate = check_fail_at_impact(gate)
     seed_value = _int(opts.get("seed", 0), "--seed")
     try:
         settings = Settings(seed=seed_value, **settings_over)
@@ -178,11 +183,11 @@ def scan(
     _print_outcome(result.document, out_dir)
     if fail and _reached(result.document, fail):
         return 1
-    if opts.get("fail_at_impact") is not None:
+    if gate is not None:
         from featureaudit.impact import largest_lift
 
         lift = largest_lift(result.document)
-        if lift is not None and lift > float(opts["fail_at_impact"]):
+        if lift is not None and lift > gate:
             return 1
     return 0
 

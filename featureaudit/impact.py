@@ -21,12 +21,20 @@ from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas, model_threads
 
-__all__ = ["measure_impact", "column_change", "largest_lift"]
+__all__ = [
+    "measure_impact",
+    "column_change",
+    "largest_lift",
+    "reused_lift",
+    "shift_weights",
+    "check_fail_at_impact",
+]
 
 MAX_COLUMNS = 8  # column findings corrected one by one, strongest first
 BOOTSTRAP = 100  # resamples of the scored rows for each interval
 MIN_SCORED = 20  # fewer scored rows than this: not measured
 NEGLIGIBLE = 0.01  # a change below this is negligible (Roth 2026's bound for refits)
+MAX_WEIGHT = 20.0  # cap of a re-weighted training row, in means (common practice, no source)
 
 
 @dataclass
@@ -47,7 +55,7 @@ def _params(seed: int, rows: int, n_jobs: int) -> dict:
         subsample_freq=1,
         colsample_bytree=0.8,
         random_state=seed,
-        n_jobs=model_threads(n_jobs, rows),
+        n_jobs=max(1, n_jobs),  # narrowed per fit by _fit_predict
         verbose=-1,
         deterministic=True,
         force_row_wise=True,
@@ -60,6 +68,8 @@ def _fit_predict(
 ) -> np.ndarray:  # noqa: ANN001
     import lightgbm as lgb
 
+    # threads by the rows this fit sees, not the sample's size (see featureaudit.threads)
+    params = {**params, "n_jobs": model_threads(params["n_jobs"], len(x_tr))}
     if task == "numeric":
         model = lgb.LGBMRegressor(**params).fit(x_tr, y_tr, sample_weight=weight)
         return np.asarray(model.predict(x_te))
@@ -122,6 +132,7 @@ class _Bench:
         self.boot = np.random.default_rng(settings.seed + 13).integers(
             0, len(self.scored), (BOOTSTRAP, len(self.scored))
         )
+        self._cache: dict[frozenset[str], np.ndarray] = {}
 
     def score(
         self,
@@ -162,42 +173,59 @@ class _Bench:
     def interval(self, s: _Scored, base: _Scored | None = None) -> list[float]:
         """95 % bootstrap interval of a score, or of ``base - s`` (paired) when given."""
         y = self.y[self.scored]
+        vals = self.values(y, s, self.boot)
+        if base is not None:
+            vals = self.values(y, base, self.boot) - vals
+        return _quantiles(vals)
+
+    def values(self, y: np.ndarray, s: _Scored, boot: np.ndarray) -> np.ndarray:
+        """The score on each bootstrap resample ``boot`` (rows of positions into ``y``)."""
         if self.task == "binary":
-            return self._binary_interval(y, s, base)
+            return _binary_aucs(y, s, boot)
         vals = []
-        for b in self.boot:
+        for b in boot:
             keep = b[s.keep[b]]
-            v = _metric(self.task, self.k, y[keep], s.pred[keep])
-            if base is not None:
-                kb = b[base.keep[b]]
-                v = _metric(self.task, self.k, y[kb], base.pred[kb]) - v
-            vals.append(v)
-        arr = np.asarray(vals)
-        arr = arr[np.isfinite(arr)]
-        if arr.size == 0:
-            return [float("nan"), float("nan")]
-        return [float(np.quantile(arr, 0.025)), float(np.quantile(arr, 0.975))]
+            vals.append(_metric(self.task, self.k, y[keep], s.pred[keep]))
+        return np.asarray(vals, dtype=float)
 
-    def _binary_interval(self, y: np.ndarray, s: _Scored, base: _Scored | None) -> list[float]:
-        """The same bootstrap for a binary AUC, in O(rows) per resample from resample counts
-        (the Mann–Whitney count with ties as halves, weighted by how often a row is drawn)."""
-        counts = np.stack([np.bincount(b, minlength=len(y)) for b in self.boot]).astype(float)
+    def elsewhere(self, y: np.ndarray, s: _Scored, base: _Scored) -> tuple[list, list]:
+        """Intervals of a corrected score scored on other rows than the base (grouped folds,
+        a later period): its own bootstrap, and the change against independent resamples of
+        the base (unpaired, so wider than a paired interval)."""
+        boot = np.random.default_rng(self.seed + 14).integers(0, len(y), (BOOTSTRAP, len(y)))
+        vals = self.values(y, s, boot)
+        change = self.values(self.y[self.scored], base, self.boot) - vals
+        return _quantiles(vals), _quantiles(change)
 
-        def aucs(sc: _Scored) -> np.ndarray:
-            _, inv = np.unique(sc.pred[:, 1], return_inverse=True)
-            w = counts * sc.keep
-            g = inv.max() + 1
-            neg = np.stack([np.bincount(inv, wr * (y == 0), g) for wr in w])
-            pos = np.stack([np.bincount(inv, wr * (y == 1), g) for wr in w])
-            below = np.cumsum(neg, axis=1) - neg
-            with np.errstate(invalid="ignore", divide="ignore"):
-                return (pos * (below + 0.5 * neg)).sum(1) / (pos.sum(1) * neg.sum(1))
+    def without(self, removed: tuple[str, ...]) -> np.ndarray:
+        """Predictions with these columns removed; each set is fitted once per audit (the
+        suspects and a single column removed are often the same set)."""
+        key = frozenset(removed)
+        if key not in self._cache:
+            x = np.delete(self.x, [self.columns.index(c) for c in removed], axis=1)
+            self._cache[key] = self.score(x) if x.shape[1] else _constant(self)
+        return self._cache[key]
 
-        vals = aucs(s) if base is None else aucs(base) - aucs(s)
-        vals = vals[np.isfinite(vals)]
-        if vals.size == 0:
-            return [float("nan"), float("nan")]
-        return [float(np.quantile(vals, 0.025)), float(np.quantile(vals, 0.975))]
+
+def _quantiles(vals: np.ndarray) -> list[float]:
+    vals = vals[np.isfinite(vals)]
+    if vals.size == 0:
+        return [float("nan"), float("nan")]
+    return [float(np.quantile(vals, 0.025)), float(np.quantile(vals, 0.975))]
+
+
+def _binary_aucs(y: np.ndarray, s: _Scored, boot: np.ndarray) -> np.ndarray:
+    """A binary AUC per resample in O(rows) from resample counts (the Mann–Whitney count with
+    ties as halves, weighted by how often a row is drawn)."""
+    counts = np.stack([np.bincount(b, minlength=len(y)) for b in boot]).astype(float)
+    _, inv = np.unique(s.pred[:, 1], return_inverse=True)
+    w = counts * s.keep
+    g = inv.max() + 1
+    neg = np.stack([np.bincount(inv, wr * (y == 0), g) for wr in w])
+    pos = np.stack([np.bincount(inv, wr * (y == 1), g) for wr in w])
+    below = np.cumsum(neg, axis=1) - neg
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return (pos * (below + 0.5 * neg)).sum(1) / (pos.sum(1) * neg.sum(1))
 
 
 def _stratified(rows: np.ndarray, strata: np.ndarray, size: int, rng) -> np.ndarray:  # noqa: ANN001
@@ -223,12 +251,42 @@ def column_change(bench: _Bench, base: _Scored, column: str, how: str) -> tuple[
         sd = float(np.std(v)) or 1.0
         x[:, j] = (x[:, j] - float(np.mean(v)) if v.size else x[:, j]) / sd
         text = "the column re-standardised on the training rows (a refit of its scaling)"
+        s = _Scored(bench.score(x), base.keep)
     else:
-        x = np.delete(bench.x, j, axis=1)
         text = "the column removed"
-    s = _Scored(bench.score(x), base.keep)
+        s = _Scored(bench.without((column,)), base.keep)
     change = bench.value(base) - bench.value(s)
     return s, {"change": round(change, 4), "ci95": _r(bench.interval(s, base)), "how": text}
+
+
+def reused_lift(column: dict[str, Any], metric: str) -> dict | None:
+    """The column's ``impact`` from a unique-lift measurement its evidence already carries
+    (``detail["unique_lift"]``: value, low, high, statistic, folds), so the same figure is
+    not fitted twice; ``None`` when there is none, or it was measured in another metric."""
+    for e in column.get("evidence", []):
+        lift = (e.get("detail") or {}).get("unique_lift")
+        if not isinstance(lift, dict) or not _finite(lift.get("value")):
+            continue
+        stat = str(lift.get("statistic") or "")
+        if stat and ("r2" in stat) != (metric == "r2"):
+            continue  # an AUC lift cannot stand for an R² change, nor the reverse
+        lo, hi = lift.get("low"), lift.get("high")
+        folds = f", {lift['folds']} folds" if lift.get("folds") else ""
+        return {
+            "change": round(float(lift["value"]), 4),
+            "ci95": _r([_num(lo), _num(hi)]),
+            "how": f"the column removed (the unique lift {e.get('probe', 'a probe')} measured"
+            f"{folds}{', ' + stat if stat else ''}; not refitted here)",
+        }
+    return None
+
+
+def _num(v: Any) -> float:
+    return float(v) if _finite(v) else float("nan")
+
+
+def _finite(v: object) -> bool:
+    return isinstance(v, (int, float)) and not isinstance(v, bool) and bool(np.isfinite(v))
 
 
 def _r(ci: list[float]) -> list[float | None]:
@@ -264,11 +322,7 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         for c in columns
         if Level.parse(c["level"]) >= Level.HIGH and c["column"] in feats
     ]
-    if suspects:
-        x = np.delete(bench.x, [feats.index(c) for c in suspects], axis=1)
-        without = _Scored(bench.score(x) if x.shape[1] else _constant(bench), keep_all)
-    else:
-        without = base
+    without = _Scored(bench.without(tuple(suspects)), keep_all) if suspects else base
     by: list[dict] = []
     per_column: dict[str, dict] = {}
     picks = [
@@ -278,14 +332,19 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         how = "refit" if c.get("remedy") == "refit_on_training_rows" else "remove"
         if how == "remove" and len(feats) == 1:
             continue
-        s, entry = column_change(bench, base, c["column"], how)
+        entry = reused_lift(c, metric) if how == "remove" else None
+        if entry is not None:
+            corrected = as_given - entry["change"]
+        else:
+            s, entry = column_change(bench, base, c["column"], how)
+            corrected = bench.value(s)
         per_column[c["column"]] = entry
         by.append(
             _entry(
                 c["column"],
                 c["kinds"][0] if c["kinds"] else "target_proxy",
                 as_given,
-                bench.value(s),
+                corrected,
                 entry["how"],
                 entry,
             )
@@ -326,7 +385,7 @@ def _constant(bench: _Bench) -> np.ndarray:
 
 
 def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN001
-    return {
+    out = {
         "column": column,
         "kind": kind,
         "as_given": round(as_given, 4),
@@ -335,6 +394,9 @@ def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN
         "change": change["change"],
         "ci95": change["ci95"],
     }
+    if "corrected_ci95" in change:
+        out["corrected_ci95"] = change["corrected_ci95"]
+    return out
 
 
 def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict):  # noqa: ANN202
@@ -365,13 +427,18 @@ def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict
         groups = np.where(codes < 0, -np.arange(1, len(codes) + 1), codes)
         saved = bench.scored
         bench.scored = np.arange(len(bench.rows))  # every labelled sample row, grouped
-        grouped = _Scored(bench.score(groups=groups), np.ones(len(bench.rows), bool))
-        corrected = bench.value(grouped)
-        bench.scored = saved
-        return (
+        try:
+            grouped = _Scored(bench.score(groups=groups), np.ones(len(bench.rows), bool))
+            corrected = bench.value(grouped)
+        finally:
+            bench.scored = saved
+        return _elsewhere(
+            bench,
+            base,
+            bench.y,
+            grouped,
             corrected,
             "folds grouped by the entity (all labelled sample rows)",
-            {"change": round(bench.value(base) - corrected, 4), "ci95": [None, None]},
         )
     elif kind == "time_overlap_across_split":
         times = table.cutoff_time if table.cutoff_time is not None else table.label_time
@@ -386,25 +453,81 @@ def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict
         p = _fit_predict(
             bench.x[early], bench.y[early], bench.x[late], bench.task, bench.k, bench.params
         )
+        s_late = _Scored(p, np.ones(len(late), bool))
         corrected = _metric(bench.task, bench.k, bench.y[late], p)
-        return (
+        return _elsewhere(
+            bench,
+            base,
+            bench.y[late],
+            s_late,
             corrected,
             "trained on the earliest 80 % of labelled sample rows, scored on the latest 20 %",
-            {"change": round(bench.value(base) - corrected, 4), "ci95": [None, None]},
         )
     elif kind == "split_shift":
-        return (
-            None,
-            (
-                "not corrected: re-weighting toward the held-out rows needs a model of "
-                "the shift, which this version does not fit; see the finding's drivers"
-            ),
-            {"change": None, "ci95": [None, None]},
+        if not bench.heldout_mode:
+            return (
+                None,
+                "not corrected: re-weighting toward the held-out rows needs held-out rows "
+                "with targets to score",
+                {"change": None, "ci95": [None, None]},
+            )
+        s = _Scored(bench.score(weight=shift_weights(bench)), base.keep)
+        how = (
+            "training rows re-weighted toward the held-out rows by the odds of an "
+            f"adversarial model (cross-fitted, weights capped at {MAX_WEIGHT:g}× the mean)"
         )
     else:
         return None
     change = bench.value(base) - bench.value(s)
-    return bench.value(s), how, {"change": round(change, 4), "ci95": _r(bench.interval(s, base))}
+    return (
+        bench.value(s),
+        how,
+        {
+            "change": round(change, 4),
+            "ci95": _r(bench.interval(s, base)),
+            "corrected_ci95": _r(bench.interval(s)),
+        },
+    )
+
+
+def _elsewhere(bench, base, y, s, corrected, how):  # noqa: ANN001, ANN202
+    """A correction scored on other rows than the as-given score, with both intervals."""
+    own, change = bench.elsewhere(y, s, base)
+    entry = {
+        "change": round(bench.value(base) - corrected, 4),
+        "ci95": _r(change),
+        "corrected_ci95": _r(own),
+    }
+    return corrected, how, entry
+
+
+def shift_weights(bench: _Bench) -> np.ndarray:
+    """Weights over the sample rows that make the training rows look like the held-out rows:
+    the odds p / (1 - p) of an adversarial model (held out vs training), the importance
+    weight of covariate-shift correction (Shimodaira 2000). Each training row's p comes from
+    a model fitted without it (two halves), so a row is not weighted by its own memory;
+    weights are scaled to mean 1 and capped (common practice, no source)."""
+    fit, held = bench.fit_rows, bench.scored
+    half = np.random.default_rng(bench.seed + 15).permutation(len(fit)) % 2
+    p = np.zeros(len(fit))
+    for h in (0, 1):
+        tr = fit[half != h]
+        xa = np.vstack([bench.x[tr], bench.x[held]])
+        ya = np.r_[np.zeros(len(tr), int), np.ones(len(held), int)]
+        p[half == h] = _fit_predict(xa, ya, bench.x[fit[half == h]], "binary", 2, bench.params)[
+            :, 1
+        ]
+    p = np.clip(p, 1e-3, 1 - 1e-3)
+    w = p / (1 - p)
+    w = w / w.mean()
+    for _ in range(100):  # cap and rescale until the cap holds at mean 1 (a few rounds)
+        if w.max() <= MAX_WEIGHT * (1 + 1e-9):
+            break
+        w = np.minimum(w, MAX_WEIGHT)
+        w = w / w.mean()
+    out = np.ones(len(bench.rows))
+    out[fit] = w
+    return out
 
 
 def largest_lift(doc: dict[str, Any]) -> float | None:
@@ -417,3 +540,18 @@ def largest_lift(doc: dict[str, Any]) -> float | None:
     ]
     scores = [s for s in scores if s is not None]
     return max(0.0, block["as_given"] - min(scores)) if scores else None
+
+
+def check_fail_at_impact(value: object) -> float:
+    """``--fail-at-impact``: a score difference, 0 or more (e.g. 0.02 AUC)."""
+    from featureaudit.errors import SettingError
+
+    try:
+        x = float(value)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        x = float("nan")
+    if not np.isfinite(x) or x < 0:
+        raise SettingError(
+            f"--fail-at-impact must be a score difference of 0 or more, e.g. 0.02; got {value!r}."
+        )
+    return x
