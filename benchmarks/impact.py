@@ -32,7 +32,20 @@ def _cases() -> dict[str, tuple[pd.DataFrame, dict]]:
     v = scaled["mean radius"]
     scaled["mean radius"] = (v - v.mean()) / v.std(ddof=0)
     kw = {"target": "y", "split_column": "split"}
+    n = 3000  # covariate shift: held-out rows drawn from N(1, 1), training rows from N(0, 1)
+    held = rng.random(n) < 0.3
+    sx = rng.normal(size=n) + held
+    sz = rng.normal(size=n)
+    shifted = pd.DataFrame(
+        {
+            "x": sx,
+            "z": sz,
+            "y": (sx + 0.5 * sz + rng.normal(size=n) > 0.5).astype(int),
+            "split": np.where(held, "test", "train"),
+        }
+    )
     return {
+        "covariate shift": (shifted, kw),
         "noisy target copy": (leak, kw),
         "planted duplicates": (dup, kw),
         "scaler on all rows": (scaled, kw),
