@@ -10,11 +10,11 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.errors import SettingError
 from featureaudit.findings import Findings, droplist
+from featureaudit.inputs import Inputs
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
-from featureaudit.errors import SettingError
-from featureaudit.inputs import Inputs
 from featureaudit.settings import Settings, check_level
 from featureaudit.table import build_table
 from featureaudit.writer import write_files

@@ -236,9 +236,7 @@ def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inp
     values = dict(read_config(config)) if config else {}
     values.update({k: v for k, v in flags.items() if v is not None})
     names = set(Settings.names())
-    inputs = Inputs.from_mapping(
-        {k: v for k, v in values.items() if k not in names}, where="scan"
-    )
+    inputs = Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="scan")
     settings = Settings(**{k: v for k, v in values.items() if k in names})
     return inputs, settings
 

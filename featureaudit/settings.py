@@ -99,25 +99,21 @@ def _is_number(value: Any) -> bool:
 
 
 def _bad(name: str, value: Any, allowed: str) -> str:
-    flag = " (--seed)" if name == "seed" else ""
-    return (
-        f"setting {name}{flag} (config key {name}) must be {allowed}; got {value!r} "
-        f"({type(value).__name__})."
-    )
+    where = "--seed" if name == "seed" else f"setting {name}"
+    return f"{where} (config key {name}) must be {allowed}; got {value!r} ({type(value).__name__})."
 
 
-def _whole(
-    settings: Settings, name: str, low: int | None, high: int | None, allowed: str
-) -> None:
+def _whole(settings: Settings, name: str, low: int | None, high: int | None, allowed: str) -> None:
     """Check that a setting is a whole number within [low, high]; numpy integers become int."""
     import numbers
 
-    value = getattr(settings, name)
-    if not isinstance(value, numbers.Integral) or isinstance(value, bool):
-        raise SettingError(_bad(name, value, allowed))
+    given = getattr(settings, name)
+    if not isinstance(given, numbers.Integral) or isinstance(given, bool):
+        raise SettingError(_bad(name, given, allowed))
+    value = int(given)
     if (low is not None and value < low) or (high is not None and value > high):
         raise SettingError(_bad(name, value, allowed))
-    object.__setattr__(settings, name, int(value))
+    object.__setattr__(settings, name, value)
 
 
 def check_level(value: str, *, flag: str) -> str:

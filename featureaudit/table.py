@@ -17,8 +17,8 @@ import pandas as pd
 from featureaudit.dictionary import DataDictionary, guess_role, parse_dictionary, read_dictionary
 from featureaudit.durations import parse_duration
 from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
-from featureaudit.io import as_frame, normalise_frame
 from featureaudit.inputs import Inputs
+from featureaudit.io import as_frame, normalise_frame
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
