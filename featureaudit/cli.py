@@ -246,9 +246,14 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     from featureaudit.report import verdict_line
 
     d = doc["dataset"]
+    target = (
+        f"target {d['target']} ({d['task']})"
+        if d["target"] is not None
+        else "no target (probes that need one are skipped; pass --target)"
+    )
     print(
         f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-        f"{d['heldout_rows']} held out), target {d['target']} ({d['task']})"
+        f"{d['heldout_rows']} held out), {target}"
     )
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]

@@ -16,6 +16,7 @@ __all__ = [
     "TargetError",
     "ProbeFailed",
     "Interrupted",
+    "TooFewRows",
 ]
 
 
@@ -48,6 +49,10 @@ class SettingError(FeatureAuditError, ValueError, TypeError):
 
 class TargetError(FeatureAuditError, ValueError):
     """A target that cannot be audited: all missing, a single class, or the wrong task."""
+
+
+class TooFewRows(FeatureAuditError, ValueError):
+    """A table with too few rows for any probe to compare parts of it."""
 
 
 class Interrupted(BaseException):

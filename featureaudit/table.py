@@ -163,6 +163,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
             split_desc = f"column:{col}"
             partitions = {str(train_value): int(is_train.sum())}
             held_names = np.where(codes >= 0, names[codes], "(missing)")[heldout]
+            _warn_missing_split(codes, col, warnings)
             values, counts = np.unique(held_names.astype(str), return_counts=True)
             partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
 
@@ -198,6 +199,15 @@ def _dictionary(given: object) -> DataDictionary | None:
         text = given.astype(object).where(given.notna(), "").to_csv(index=False)
         return parse_dictionary(text, source="DataFrame dictionary")
     return given  # type: ignore[return-value]
+
+
+def _warn_missing_split(codes: np.ndarray, col: str, warnings: list[str]) -> None:
+    """Rows without a split value are held out; say how many, since it is easy to miss."""
+    if (missing := int((codes < 0).sum())) > 0:
+        warnings.append(
+            f"{missing} rows of split column {col!r} have no value; they are held out as "
+            "partition '(missing)'. Fill the column if they are training rows."
+        )
 
 
 def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
@@ -326,7 +336,7 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
             )
     if present.nunique() < 2:
         table.target_problem = (
-            f"target {target!r} has a single value ({present.iloc[0]!r}) in the labelled rows"
+            f"target {target!r} has a single value ({str(present.iloc[0])!r}) in the labelled rows"
         )
         table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
 
