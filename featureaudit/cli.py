@@ -30,7 +30,9 @@ def _exit_at_once(signum: int, frame: object) -> None:
     os._exit(128 + signum)
 
 
-for _sig in (signal.SIGINT, signal.SIGTERM):  # first, before the heavy imports below
+# first, before the heavy imports below; a signal the caller ignores (nohup, `&`) stays ignored
+_SIGNALS = [s for s in (signal.SIGINT, signal.SIGTERM) if signal.getsignal(s) != signal.SIG_IGN]
+for _sig in _SIGNALS:
     signal.signal(_sig, _exit_at_once)
 
 import json  # noqa: E402
@@ -68,7 +70,8 @@ class _OneLineErrors(TyperGroup):
     def main(self, *args: Any, **kwargs: Any) -> Any:
         usage_error = _click_exception()
         kwargs["standalone_mode"] = False
-        argv = list(args[0]) if args and args[0] is not None else sys.argv[1:]
+        given = args[0] if args else kwargs.get("args")
+        argv = list(given) if given is not None else sys.argv[1:]
         if not argv:
             print(
                 "featureaudit: error: no command given; use one of "
@@ -114,7 +117,7 @@ def _raise_on_signals() -> dict[int, Any]:
         raise Interrupted(signum)
 
     if threading_main():
-        return {sig: signal.signal(sig, handler) for sig in (signal.SIGINT, signal.SIGTERM)}
+        return {sig: signal.signal(sig, handler) for sig in _SIGNALS}
     return {}
 
 

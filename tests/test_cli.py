@@ -294,3 +294,69 @@ def test_a_heldout_file_with_no_rows_exits_2(leaky_csv, tmp_path):
     assert result.exit_code == 2 and result.stderr.count("\n") == 1
     assert "empty_test.csv" in result.stderr and "no rows" in result.stderr
     assert not (tmp_path / "r").exists()
+
+
+# --- commands, help and version (issue 11 item 8) ----------------------------------------
+def test_no_command_is_one_line_exit_2():
+    result = run()
+    assert result.exit_code == 2 and result.stderr.count("\n") == 1
+    assert "no command given" in result.stderr and "scan" in result.stderr
+
+
+@pytest.mark.parametrize("flag", ["-h", "--help"])
+def test_short_and_long_help(flag):
+    for args in ([flag], ["scan", flag]):
+        result = run(*args)
+        assert result.exit_code == 0 and "Usage:" in result.stdout, result.stderr
+
+
+def test_version_flag_and_command_agree():
+    from featureaudit import __version__
+
+    assert run("--version").stdout.strip() == __version__ == run("version").stdout.strip()
+
+
+# --- interrupts (issue 11 item 3) --------------------------------------------------------
+def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
+    """SIGINT/SIGTERM during imports, the audit or the write: exit 130/143, one line, and
+    the earlier report (or, after the swap, the new one) whole, with nothing left beside it."""
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    exe = [sys.executable, "-c", "import sys; from featureaudit.cli import main; main()"]
+    out = tmp_path / "r"
+    out.mkdir()
+    earlier = {n: f"earlier {n}" for n in ("dossier.html", "findings.json", "droplist.txt")}
+    for name, text in earlier.items():
+        (out / name).write_text(text)
+    plan = [(0.0, signal.SIGINT), (0.1, signal.SIGTERM), (0.3, signal.SIGINT)]
+    plan += [(1.0, signal.SIGTERM), (2.5, signal.SIGINT), (5.0, signal.SIGTERM)]
+    for delay, sig in plan:
+        proc = subprocess.Popen(
+            [*exe, "scan", str(leaky_csv), "--target", "y", "--out", str(out)],
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+        )
+        time.sleep(delay)
+        proc.send_signal(sig)
+        _, err = proc.communicate(timeout=120)
+        assert "Traceback" not in err, (delay, err)
+        files = {p.name: p.read_text() for p in out.iterdir()}
+        assert [p.name for p in tmp_path.iterdir()] == ["r"], (delay, list(tmp_path.iterdir()))
+        if proc.returncode == 0:  # finished before the signal: the new report, whole
+            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            json.loads(files["findings.json"])
+            continue
+        if proc.returncode == -sig:  # before Python ran any of ours: killed, silently
+            assert err == "" and files == earlier, (delay, err)
+            continue
+        assert proc.returncode == 128 + sig, (delay, proc.returncode, err)
+        assert err.count("\n") == 1 and "featureaudit: interrupted; the " in err, err
+        if "earlier report" in err:
+            assert files == earlier, delay
+            assert f"the earlier report in {out} is unchanged" in err
+        else:
+            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
