@@ -2,19 +2,14 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any
-
 __version__ = "0.2.0"
-
-if TYPE_CHECKING:
-    from featureaudit.api import AuditResult, audit
-    from featureaudit.errors import FeatureAuditError
 
 __all__ = ["audit", "AuditResult", "FeatureAuditError", "__version__"]
 
 
-def __getattr__(name: str) -> Any:
-    """Import the API on first use, so the CLI starts (and handles signals) before pandas."""
+def __getattr__(name: str) -> object:
+    """Import the API on first use: the CLI then sets its signal handlers before any heavy
+    import (typing and pandas included), so an early interrupt is handled too."""
     if name in ("audit", "AuditResult"):
         from featureaudit import api
 

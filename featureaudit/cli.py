@@ -195,7 +195,8 @@ def scan(
         str | None, typer.Option(help="Report folder [default: featureaudit-report].")
     ] = None,
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+        str | None,
+        typer.Option(help="Exit 1 when a finding reaches this level: critical, high, medium, low."),
     ] = None,
     seed: Annotated[
         int | None, typer.Option(help="Seed of folds and samples [default: 0].")
