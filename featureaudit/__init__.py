@@ -4,7 +4,18 @@ from __future__ import annotations
 
 __version__ = "0.2.0"
 
-from featureaudit.api import AuditResult, audit  # noqa: E402
-from featureaudit.errors import FeatureAuditError  # noqa: E402
-
 __all__ = ["audit", "AuditResult", "FeatureAuditError", "__version__"]
+
+
+def __getattr__(name: str) -> object:
+    """Import the API on first use: the CLI then sets its signal handlers before any heavy
+    import (typing and pandas included), so an early interrupt is handled too."""
+    if name in ("audit", "AuditResult"):
+        from featureaudit import api
+
+        return getattr(api, name)
+    if name == "FeatureAuditError":
+        from featureaudit.errors import FeatureAuditError
+
+        return FeatureAuditError
+    raise AttributeError(f"module 'featureaudit' has no attribute {name!r}")

@@ -11,7 +11,9 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.errors import SettingError
 from featureaudit.findings import Findings, droplist
+from featureaudit.inputs import Inputs
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
 from featureaudit.settings import Settings, check_level
@@ -115,9 +117,9 @@ def audit(
     target: str | None = None,
     test: object | None = None,
     split_column: str | None = None,
-    train_value: str = "train",
+    train_value: str | None = None,
     task: str | None = None,
-    dictionary: str | os.PathLike[str] | DataDictionary | None = None,
+    dictionary: str | os.PathLike[str] | DataDictionary | pd.DataFrame | None = None,
     label_time: str | None = None,
     cutoff_time: str | None = None,
     horizon: str | None = None,
@@ -142,12 +144,16 @@ def audit(
         Rows whose ``split_column`` equals ``train_value`` (default ``"train"``) are training.
     task : {"binary", "multiclass", "numeric"}, optional
         Overrides the inferred task.
-    dictionary : path or DataDictionary, optional
-        The data dictionary CSV (roles, ``known_at``, descriptions).
+    dictionary : path, DataFrame or DataDictionary, optional
+        The data dictionary: a CSV path, or a DataFrame with the same headers (roles,
+        ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
     seed : int, default 0
-        Seeds every sample and fold, so the same inputs give the same findings.
+        Seeds every sample and fold, so the same inputs give the same findings. Any whole
+        number; one outside [0, 2**31 - 1) is mapped into it.
+    settings : Settings, optional
+        Probe settings (folds, bins, ...); ``seed``, when not 0, wins over its seed.
     code : list of paths, optional
         Training scripts or notebooks, audited as by ``featureaudit code``; their findings
         go into ``code_findings`` and, on named columns, into those columns' evidence.
@@ -159,7 +165,9 @@ def audit(
     Raises
     ------
     FeatureAuditError
-        On bad input, with a message that names the file, column or argument.
+        On bad input, with a message that names the file, column or argument, before any
+        work starts; a bad argument value or type is a ``SettingError``, which is also a
+        ``ValueError`` and a ``TypeError``.
 
     Examples
     --------
@@ -167,13 +175,7 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
-    code_result = None
-    if code:  # read first: an unreadable file stops the audit before any work
-        from featureaudit.code.join import read_code
-
-        code_result = read_code(list(code))
-    table = build_table(
-        data,
+    inputs = Inputs(
         test=test,
         split_column=split_column,
         train_value=train_value,
@@ -185,9 +187,32 @@ def audit(
         horizon=horizon,
         entity=entity,
         source=source,
+        code=code or None,
     )
+    chosen = _settings(settings, seed)
+    if probes is not None and (
+        isinstance(probes, str) or not all(isinstance(p, str) for p in probes)
+    ):
+        raise SettingError(f"probes must be a list of probe names; got {probes!r}.")
+    code_result = None
+    if inputs.code:  # read first: an unreadable file stops the audit before any table work
+        from featureaudit.code.join import read_code
+
+        given = inputs.code
+        code_result = read_code([given] if isinstance(given, str | os.PathLike) else list(given))
+    table = build_table(data, inputs)
+    return AuditResult(run_audit(table, chosen, probes=probes, code=code_result))
+
+
+def _settings(settings: object, seed: object) -> Settings:
+    """The settings to run with: ``settings`` (or the defaults), an explicit seed winning."""
+    if settings is not None and not isinstance(settings, Settings):
+        raise SettingError(
+            f"settings must be a featureaudit.settings.Settings; got a "
+            f"{type(settings).__name__} ({settings!r:.80}). Pass Settings(**values)."
+        )
     if settings is None:
-        settings = Settings(seed=seed)
-    elif seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
-        settings = Settings(**{**settings.to_dict(), "seed": seed})
-    return AuditResult(run_audit(table, settings, probes=probes, code=code_result))
+        return Settings(seed=seed)  # type: ignore[arg-type]  # checked by Settings
+    if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
+        return Settings(**{**settings.to_dict(), "seed": seed})
+    return settings

@@ -2,19 +2,52 @@
 
 from __future__ import annotations
 
-import json
+import os
+import signal
 import sys
-from pathlib import Path
-from typing import Annotated, Any
 
-import typer
-from typer.core import TyperGroup
 
-from featureaudit import __version__
-from featureaudit.errors import FeatureAuditError, SettingError
-from featureaudit.findings import diff_findings, droplist, load_findings
-from featureaudit.levels import Level
-from featureaudit.settings import Settings, check_level, read_config
+def _report_dir(argv: list[str]) -> str:
+    """The --out folder named on the command line (for the interrupt line), else the default."""
+    for i, arg in enumerate(argv):
+        if arg == "--out" and i + 1 < len(argv):
+            return argv[i + 1]
+        if arg.startswith("--out="):
+            return arg.removeprefix("--out=")
+    return "." if argv[:1] == ["code"] else "featureaudit-report"
+
+
+def _interrupted_line(signum: int, argv: list[str], replaced: bool) -> str:
+    where = _report_dir(argv)
+    if replaced:
+        return f"featureaudit: interrupted; the new report in {where} is complete."
+    return f"featureaudit: interrupted; the earlier report in {where} is unchanged."
+
+
+def _exit_at_once(signum: int, frame: object) -> None:
+    """While the modules load nothing is written yet: say so and leave, without a traceback."""
+    print(_interrupted_line(signum, sys.argv[1:], False), file=sys.stderr, flush=True)
+    os._exit(128 + signum)
+
+
+# first, before the heavy imports below; a signal the caller ignores (nohup, `&`) stays ignored
+_SIGNALS = [s for s in (signal.SIGINT, signal.SIGTERM) if signal.getsignal(s) != signal.SIG_IGN]
+for _sig in _SIGNALS:
+    signal.signal(_sig, _exit_at_once)
+
+import json  # noqa: E402
+from pathlib import Path  # noqa: E402
+from typing import Annotated, Any  # noqa: E402
+
+import typer  # noqa: E402
+from typer.core import TyperGroup  # noqa: E402
+
+from featureaudit import __version__  # noqa: E402
+from featureaudit.errors import FeatureAuditError, Interrupted, SettingError  # noqa: E402
+from featureaudit.findings import diff_findings, droplist, load_findings  # noqa: E402
+from featureaudit.inputs import Inputs  # noqa: E402
+from featureaudit.levels import Level  # noqa: E402
+from featureaudit.settings import Settings, check_level, read_config  # noqa: E402
 
 __all__ = ["app", "main"]
 
@@ -37,8 +70,24 @@ class _OneLineErrors(TyperGroup):
     def main(self, *args: Any, **kwargs: Any) -> Any:
         usage_error = _click_exception()
         kwargs["standalone_mode"] = False
+        given = args[0] if args else kwargs.get("args")
+        argv = list(given) if given is not None else sys.argv[1:]
+        if not argv:
+            print(
+                "featureaudit: error: no command given; use one of "
+                f"{', '.join(sorted(self.commands))}, e.g. `featureaudit scan TABLE --target "
+                "COL`, or `featureaudit --help`.",
+                file=sys.stderr,
+            )
+            sys.exit(2)
+        previous = _raise_on_signals()
         try:
             rv = super().main(*args, **kwargs)
+        except Interrupted as exc:
+            from featureaudit.writer import swapped
+
+            print(_interrupted_line(exc.signum, argv, bool(swapped)), file=sys.stderr)
+            sys.exit(128 + exc.signum)
         except FeatureAuditError as exc:
             _fail(exc)
         except usage_error as exc:
@@ -46,7 +95,7 @@ class _OneLineErrors(TyperGroup):
             print(f"featureaudit: error: {exc.format_message()}{hint}", file=sys.stderr)
             sys.exit(2)
         except KeyboardInterrupt:
-            print("featureaudit: interrupted; no report was written.", file=sys.stderr)
+            print(_interrupted_line(signal.SIGINT, argv, False), file=sys.stderr)
             sys.exit(130)
         except Exception as exc:  # noqa: BLE001 — a bug: one line, no traceback, exit 3
             print(
@@ -55,7 +104,27 @@ class _OneLineErrors(TyperGroup):
                 file=sys.stderr,
             )
             sys.exit(3)
+        finally:
+            for sig, handler in previous.items():
+                signal.signal(sig, handler)
         sys.exit(rv if isinstance(rv, int) else 0)
+
+
+def _raise_on_signals() -> dict[int, Any]:
+    """From here on SIGINT and SIGTERM raise :class:`Interrupted`, so the writer can clean up."""
+
+    def handler(signum: int, frame: object) -> None:
+        raise Interrupted(signum)
+
+    if threading_main():
+        return {sig: signal.signal(sig, handler) for sig in _SIGNALS}
+    return {}
+
+
+def threading_main() -> bool:
+    import threading
+
+    return threading.current_thread() is threading.main_thread()
 
 
 app = typer.Typer(
@@ -64,8 +133,27 @@ app = typer.Typer(
     rich_markup_mode=None,
     pretty_exceptions_enable=False,
     no_args_is_help=True,
+    context_settings={"help_option_names": ["-h", "--help"]},
     help="Audit a training table and its split for target leakage.",
 )
+
+
+def _show_version(value: bool) -> None:
+    if value:
+        print(__version__)
+        raise typer.Exit(0)
+
+
+@app.callback()
+def _options(
+    version: Annotated[
+        bool,
+        typer.Option(
+            "--version", callback=_show_version, is_eager=True, help="Print the version and exit."
+        ),
+    ] = False,
+) -> None:
+    """Audit a training table and its split for target leakage."""
 
 
 def _fail(exc: BaseException) -> None:
@@ -107,7 +195,8 @@ def scan(
         str | None, typer.Option(help="Report folder [default: featureaudit-report].")
     ] = None,
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+        str | None,
+        typer.Option(help="Exit 1 when a finding reaches this level: critical, high, medium, low."),
     ] = None,
     seed: Annotated[
         int | None, typer.Option(help="Seed of folds and samples [default: 0].")
@@ -131,83 +220,33 @@ def scan(
     """
     from featureaudit.api import audit
 
-    given = {
-        "test": test,
-        "split_column": split_column,
-        "train_value": train_value,
-        "target": target,
-        "task": task,
-        "dictionary": dictionary,
-        "label_time": label_time,
-        "cutoff_time": cutoff_time,
-        "horizon": horizon,
-        "entity": entity,
-        "out": out,
-        "fail_at": fail_at,
-        "seed": seed,
-        "fail_at_impact": fail_at_impact,
-        "code": code or None,
-    }
-    opts = dict(read_config(config)) if config else {}
-    settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
-    opts.update({k: v for k, v in given.items() if v is not None})
-    fail = check_level(opts["fail_at"], flag="--fail-at") if opts.get("fail_at") else None
-    gate = opts.get("fail_at_impact")
-    if gate is not None:
-        from featureaudit.impact import check_fail_at_impact
-
-        gate = check_fail_at_impact(gate)
-    seed_value = _int(opts.get("seed", 0), "--seed")
-    try:
-        settings = Settings(seed=seed_value, **settings_over)
-    except TypeError as exc:
-        raise SettingError(f"config {config!r} has a setting of the wrong type: {exc}.") from exc
-    result = audit(
-        str(table),
-        test=opts.get("test"),
-        split_column=opts.get("split_column"),
-        train_value=str(opts.get("train_value", "train")),
-        target=opts.get("target"),
-        task=opts.get("task"),
-        dictionary=opts.get("dictionary"),
-        label_time=opts.get("label_time"),
-        cutoff_time=opts.get("cutoff_time"),
-        horizon=opts.get("horizon"),
-        entity=opts.get("entity"),
-        seed=seed_value,
-        settings=settings,
-        code=_paths(opts.get("code")),
-    )
-    out_dir = Path(opts.get("out") or "featureaudit-report")
+    flags = {k: v for k, v in locals().items() if k not in ("table", "config", "audit")}
+    flags["code"] = flags.get("code") or None
+    inputs, settings = _inputs_and_settings(flags, config)
+    result = audit(str(table), **inputs.table_inputs(), settings=settings)
+    out_dir = Path(inputs.out or "featureaudit-report")
     result.write(out_dir)
     _print_outcome(result.document, out_dir)
+    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
     if fail and _reached(result.document, fail):
         return 1
-    if gate is not None:
+    if inputs.fail_at_impact is not None:
         from featureaudit.impact import largest_lift
 
         lift = largest_lift(result.document)
-        if lift is not None and lift > gate:
+        if lift is not None and lift > float(inputs.fail_at_impact):
             return 1
     return 0
 
 
-def _paths(value: Any) -> list[str] | None:
-    """``--code`` (or the config's ``code``): one path or a list of them."""
-    if value in (None, "", []):
-        return None
-    if isinstance(value, str):
-        return [value]
-    if isinstance(value, list) and all(isinstance(v, str) for v in value):
-        return value
-    raise SettingError(f"code in the config must be a path or a list of paths; got {value!r}.")
-
-
-def _int(value: Any, flag: str) -> int:
-    try:
-        return int(value)
-    except (TypeError, ValueError) as exc:
-        raise SettingError(f"{flag} must be a whole number; got {value!r}.") from exc
+def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inputs, Settings]:
+    """The config file's values under the flags given (flags win), checked once, here."""
+    values = dict(read_config(config)) if config else {}
+    values.update({k: v for k, v in flags.items() if v is not None})
+    names = set(Settings.names())
+    inputs = Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="scan")
+    settings = Settings(**{k: v for k, v in values.items() if k in names})
+    return inputs, settings
 
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
@@ -215,9 +254,14 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     from featureaudit.report import verdict_line
 
     d = doc["dataset"]
+    target = (
+        f"target {d['target']} ({d['task']})"
+        if d["target"] is not None
+        else "no target (probes that need one are skipped; pass --target)"
+    )
     print(
         f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-        f"{d['heldout_rows']} held out), target {d['target']} ({d['task']})"
+        f"{d['heldout_rows']} held out), {target}"
     )
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]

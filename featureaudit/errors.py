@@ -15,6 +15,8 @@ __all__ = [
     "SettingError",
     "TargetError",
     "ProbeFailed",
+    "Interrupted",
+    "TooFewRows",
 ]
 
 
@@ -41,12 +43,24 @@ class DurationError(FeatureAuditError, ValueError):
     """A duration such as ``--horizon`` or ``known_at`` that is not in an accepted spelling."""
 
 
-class SettingError(FeatureAuditError, ValueError):
-    """A flag or config value outside what is allowed."""
+class SettingError(FeatureAuditError, ValueError, TypeError):
+    """A flag, config or argument value outside what is allowed (a wrong value or type)."""
 
 
 class TargetError(FeatureAuditError, ValueError):
     """A target that cannot be audited: all missing, a single class, or the wrong task."""
+
+
+class TooFewRows(FeatureAuditError, ValueError):
+    """A table with too few rows for any probe to compare parts of it."""
+
+
+class Interrupted(BaseException):
+    """SIGINT or SIGTERM arrived; raised by the CLI's handler so the report is left whole."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(f"signal {signum}")
+        self.signum = signum
 
 
 class ProbeFailed(RuntimeError):

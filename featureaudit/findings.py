@@ -95,7 +95,34 @@ def load_findings(path: str | Path) -> Findings:
                 f"findings file {str(p)!r} has no {key!r} list; it is "
                 "incomplete. Re-run `featureaudit scan`."
             )
+    for key, required in (("columns", "column"), ("dataset_findings", "kind")):
+        for i, entry in enumerate(doc[key]):
+            problem = _entry_problem(entry, required)
+            if problem:
+                raise InputFileError(
+                    f"findings file {str(p)!r}: entry {key}[{i}] {problem}; fix or remove "
+                    "that entry, or re-run `featureaudit scan`."
+                )
     return Findings(doc)
+
+
+def _entry_problem(entry: object, required: str) -> str | None:
+    """What is wrong with one column or dataset finding read from a file, or None."""
+    from featureaudit.levels import LEVEL_NAMES
+
+    if not isinstance(entry, dict):
+        return f"is a {type(entry).__name__}, not an object"
+    if not isinstance(entry.get(required), str):
+        return f"has no text {required!r} (got {entry.get(required)!r})"
+    level = entry.get("level", "none")
+    if level not in LEVEL_NAMES:
+        return f"has level {level!r}, not one of {', '.join(LEVEL_NAMES)}"
+    score = entry.get("score")
+    if score is not None and (
+        isinstance(score, bool) or not isinstance(score, int | float) or score != score
+    ):
+        return f"has score {score!r}, not a number"
+    return None
 
 
 def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False) -> list[str]:

@@ -8,7 +8,7 @@ from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
 from featureaudit import __version__
-from featureaudit.errors import FeatureAuditError, ProbeFailed
+from featureaudit.errors import FeatureAuditError, ProbeFailed, TooFewRows
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
@@ -19,7 +19,10 @@ from featureaudit.table import AuditTable
 if TYPE_CHECKING:
     from featureaudit.code.audit import CodeAudit
 
-__all__ = ["run_audit"]
+__all__ = ["run_audit", "MIN_ROWS"]
+
+# common practice, no source: with fewer rows no part can be held out and compared
+MIN_ROWS = 3
 
 
 def run_audit(
@@ -35,6 +38,11 @@ def run_audit(
     A probe that raises anything but a :class:`FeatureAuditError` is a bug: the audit stops
     with :class:`ProbeFailed`, so no run reports findings with a probe missing.
     """
+    if table.n_rows < MIN_ROWS:
+        raise TooFewRows(
+            f"table {table.source!r} has {table.n_rows} row{'s' * (table.n_rows != 1)}: too few "
+            f"rows to audit (at least {MIN_ROWS} are needed); pass the whole table."
+        )
     available = registered()
     names = list(available) if probes is None else list(probes)
     unknown = [n for n in names if n not in available]

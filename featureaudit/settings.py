@@ -10,29 +10,19 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.errors import InputFileError, SettingError
+from featureaudit.inputs import TASKS
 from featureaudit.levels import LEVEL_NAMES, Level
 
-__all__ = ["Settings", "read_config", "CONFIG_KEYS"]
+__all__ = ["Settings", "read_config", "config_keys", "TASKS"]
 
-TASKS = ("binary", "multiclass", "numeric")
+SEED_SPAN = 2**31 - 1  # seeds are mapped into [0, 2**31 - 1): every library here takes them
 
-# Keys of the config file: every scan flag, with '-' written as '_'.
-CONFIG_KEYS = (
-    "test",
-    "split_column",
-    "train_value",
-    "target",
-    "task",
-    "dictionary",
-    "label_time",
-    "cutoff_time",
-    "horizon",
-    "entity",
-    "out",
-    "fail_at",
-    "seed",
-    "fail_at_impact",
-)
+
+def config_keys() -> tuple[str, ...]:
+    """Keys of the config file: every scan input, with '-' written as '_', then the settings."""
+    from featureaudit.inputs import input_specs
+
+    return tuple(s.config_key for s in input_specs()) + Settings.names()
 
 
 def _default_jobs() -> int:
@@ -55,22 +45,26 @@ class Settings:
     n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
 
     def __post_init__(self) -> None:
-        if self.folds < 2:
-            raise SettingError(f"folds must be at least 2; got {self.folds}.")
-        if not 2 <= self.bins <= 256:
-            raise SettingError(f"bins must be between 2 and 256; got {self.bins}.")
-        if not 0 <= self.share_tolerance < 1:
-            raise SettingError(f"share_tolerance must be in [0, 1); got {self.share_tolerance}.")
+        _whole(self, "seed", None, None, "any whole number")
+        if not 0 <= self.seed < SEED_SPAN:  # numpy takes any size, other libraries do not
+            object.__setattr__(self, "seed", int(self.seed) % SEED_SPAN)
+        _whole(self, "folds", 2, None, "a whole number, at least 2")
+        _whole(self, "bins", 2, 256, "a whole number from 2 to 256")
+        _whole(self, "reference_rows", 100, None, "a whole number, at least 100")
+        _whole(self, "min_rows", 0, None, "a whole number, at least 0")
+        _whole(self, "n_jobs", 1, None, "a whole number, at least 1")
+        share = self.share_tolerance
+        if not _is_number(share) or not 0 <= share < 1:
+            raise SettingError(_bad("share_tolerance", share, "a number in [0, 1)"))
+        object.__setattr__(self, "share_tolerance", float(share))
+        if not isinstance(self.time_tolerance, str):
+            raise SettingError(_bad("time_tolerance", self.time_tolerance, '"auto" or a duration'))
         from featureaudit.durations import parse_duration
 
         if self.time_tolerance != "auto" and parse_duration(
             self.time_tolerance, what="time_tolerance"
         ) < pd.Timedelta(0):
-            raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
-        if self.n_jobs < 1:
-            raise SettingError(f"n_jobs must be at least 1; got {self.n_jobs}.")
-        if self.reference_rows < 100:
-            raise SettingError(f"reference_rows must be at least 100; got {self.reference_rows}.")
+            raise SettingError(_bad("time_tolerance", self.time_tolerance, "not negative"))
 
     def to_dict(self) -> dict[str, Any]:
         return asdict(self)
@@ -91,13 +85,35 @@ def read_config(path: str | Path) -> dict[str, Any]:
         raise SettingError(
             f"config {str(p)!r} is not valid TOML: {exc}; fix the line it names."
         ) from exc
-    unknown = sorted(set(data) - set(CONFIG_KEYS) - set(Settings.names()))
+    unknown = sorted(set(data) - set(config_keys()))
     if unknown:
         raise SettingError(
             f"config {str(p)!r} has unknown keys {unknown}; known keys are "
-            f"{', '.join(CONFIG_KEYS + Settings.names())}."
+            f"{', '.join(config_keys())}."
         )
     return data
+
+
+def _is_number(value: Any) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool) and value == value
+
+
+def _bad(name: str, value: Any, allowed: str) -> str:
+    where = "--seed" if name == "seed" else f"setting {name}"
+    return f"{where} (config key {name}) must be {allowed}; got {value!r} ({type(value).__name__})."
+
+
+def _whole(settings: Settings, name: str, low: int | None, high: int | None, allowed: str) -> None:
+    """Check that a setting is a whole number within [low, high]; numpy integers become int."""
+    import numbers
+
+    given = getattr(settings, name)
+    if not isinstance(given, numbers.Integral) or isinstance(given, bool):
+        raise SettingError(_bad(name, given, allowed))
+    value = int(given)
+    if (low is not None and value < low) or (high is not None and value > high):
+        raise SettingError(_bad(name, value, allowed))
+    object.__setattr__(settings, name, value)
 
 
 def check_level(value: str, *, flag: str) -> str:

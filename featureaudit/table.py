@@ -9,15 +9,16 @@ from __future__ import annotations
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
 
-from featureaudit.dictionary import DataDictionary, guess_role, read_dictionary
+from featureaudit.dictionary import DataDictionary, guess_role, parse_dictionary, read_dictionary
 from featureaudit.durations import parse_duration
 from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
+from featureaudit.inputs import Inputs
 from featureaudit.io import as_frame, normalise_frame
-from featureaudit.settings import TASKS
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
@@ -74,41 +75,23 @@ class AuditTable:
         return 0 if self.heldout is None else int(self.heldout.sum())
 
 
-def build_table(
-    data: object,
-    *,
-    test: object | None = None,
-    split_column: str | None = None,
-    train_value: str = "train",
-    target: str | None = None,
-    task: str | None = None,
-    dictionary: str | os.PathLike[str] | DataDictionary | None = None,
-    label_time: str | None = None,
-    cutoff_time: str | None = None,
-    horizon: str | None = None,
-    entity: str | None = None,
-    source: str | None = None,
-) -> AuditTable:
-    """Load and validate every input into an :class:`AuditTable` (raises on bad input)."""
-    if test is not None and split_column is not None:
-        raise SettingError(
-            "--test and --split-column were both given; pass one way of naming the held-out rows."
-        )
-    if cutoff_time is not None and horizon is not None:
-        raise SettingError("--cutoff-time and --horizon were both given; pass one of them.")
-    if task is not None and task not in TASKS:
-        raise SettingError(f"--task {task!r} is not one of {', '.join(TASKS)}.")
+def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> AuditTable:
+    """Load and validate every input into an :class:`AuditTable` (raises on bad input).
+
+    The inputs are an :class:`Inputs` or its fields as keywords (checked on creation).
+    """
+    spec = (inputs or Inputs()).replace(**given) if given else (inputs or Inputs())
+    test, split_column, target, task = spec.test, spec.split_column, spec.target, spec.task
+    train_value = spec.train_value if spec.train_value is not None else "train"
+    dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
+    horizon, entity, source = spec.horizon, spec.entity, spec.source
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
     frame = as_frame(data, what=src)
     if len(frame) == 0:
         raise TargetError(f"table {src!r} has no rows; pass a table with data rows.")
     warnings: list[str] = []
 
-    ddict = (
-        read_dictionary(Path(dictionary))
-        if isinstance(dictionary, (str, os.PathLike))
-        else dictionary
-    )
+    ddict = _dictionary(dictionary)
     heldout = None
     split_desc = "none"
     partitions: dict[str, int] = {}
@@ -180,6 +163,7 @@ def build_table(
             split_desc = f"column:{col}"
             partitions = {str(train_value): int(is_train.sum())}
             held_names = np.where(codes >= 0, names[codes], "(missing)")[heldout]
+            _warn_missing_split(codes, col, warnings)
             values, counts = np.unique(held_names.astype(str), return_counts=True)
             partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
 
@@ -205,6 +189,25 @@ def build_table(
         elif role not in NON_FEATURE_ROLES:
             table.features.append(name)
     return table
+
+
+def _dictionary(given: object) -> DataDictionary | None:
+    """A dictionary from a CSV path, a DataFrame with the same headers, or as it is."""
+    if isinstance(given, (str, os.PathLike)):
+        return read_dictionary(Path(given))
+    if isinstance(given, pd.DataFrame):
+        text = given.astype(object).where(given.notna(), "").to_csv(index=False)
+        return parse_dictionary(text, source="DataFrame dictionary")
+    return given  # type: ignore[return-value]
+
+
+def _warn_missing_split(codes: np.ndarray, col: str, warnings: list[str]) -> None:
+    """Rows without a split value are held out; say how many, since it is easy to miss."""
+    if (missing := int((codes < 0).sum())) > 0:
+        warnings.append(
+            f"{missing} rows of split column {col!r} have no value; they are held out as "
+            "partition '(missing)'. Fill the column if they are training rows."
+        )
 
 
 def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
@@ -333,7 +336,7 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
             )
     if present.nunique() < 2:
         table.target_problem = (
-            f"target {target!r} has a single value ({present.iloc[0]!r}) in the labelled rows"
+            f"target {target!r} has a single value ({str(present.iloc[0])!r}) in the labelled rows"
         )
         table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
 

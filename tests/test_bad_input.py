@@ -271,3 +271,281 @@ def test_every_error_is_a_featureaudit_error_and_a_builtin():
     ]:
         assert issubclass(cls, FeatureAuditError) and issubclass(cls, builtin)
     assert str(ColumnNotFound("column 'x' missing")) == "column 'x' missing"
+
+
+# --- settings checked at the edge, once (issue 11 item 1) --------------------------------
+@pytest.mark.parametrize(
+    "line, fragment",
+    [
+        ("seed = 1.7", "1.7"),
+        ('seed = "abc"', "'abc'"),
+        ("bins = 3.5", "3.5"),
+        ('min_rows = "many"', "'many'"),
+        ('folds = "five"', "'five'"),
+        ('split_column = ["split"]', "['split']"),
+        ('target = ["y"]', "--target"),
+        ("fail_at_impact = true", "--fail-at-impact"),
+    ],
+)
+def test_bad_config_values_stop_before_any_work(good_csv, tmp_path, line, fragment):
+    cfg = tmp_path / "c.toml"
+    cfg.write_text(line + "\n")
+    out = tmp_path / "r"
+    result = cli("scan", good_csv, "--config", cfg, "--out", out)
+    key = line.split(" ")[0]
+    assert_one_line_exit_2(result, fragment, f"config key {key}", "must be")
+    assert not out.exists()
+
+
+@pytest.mark.parametrize(
+    "kwargs, fragment",
+    [
+        ({"folds": 2.5}, "folds"),
+        ({"folds": "five"}, "folds"),
+        ({"bins": 3.5}, "bins"),
+        ({"min_rows": "many"}, "min_rows"),
+        ({"seed": 1.7}, "seed"),
+        ({"seed": "abc"}, "seed"),
+        ({"seed": None}, "seed"),
+        ({"n_jobs": True}, "n_jobs"),
+        ({"share_tolerance": "0.1"}, "share_tolerance"),
+        ({"time_tolerance": 3}, "time_tolerance"),
+    ],
+)
+def test_settings_reject_wrong_types_as_value_and_type_errors(kwargs, fragment):
+    from featureaudit.settings import Settings
+
+    with pytest.raises(SettingError, match=fragment) as info:
+        Settings(**kwargs)
+    assert isinstance(info.value, ValueError) and isinstance(info.value, TypeError)
+
+
+@pytest.mark.parametrize("seed", [-1, 2**32, 2**64 + 5, np.int64(7)])
+def test_any_whole_seed_is_mapped_not_rejected(seed):
+    from featureaudit.settings import SEED_SPAN, Settings
+
+    mapped = Settings(seed=seed).seed
+    assert type(mapped) is int and 0 <= mapped < SEED_SPAN
+    np.random.default_rng(mapped)  # reference: numpy takes any non-negative int
+    assert Settings(seed=seed).seed == mapped  # the same seed maps the same way
+
+
+def test_cli_seeds_outside_32_bits_run(good_csv, tmp_path):
+    for seed in ("-1", "4294967296"):
+        result = cli("scan", good_csv, "--target", "y", "--seed", seed, "--out", tmp_path / seed)
+        assert result.exit_code == 0, result.stderr
+
+
+@pytest.mark.parametrize(
+    "kwargs, fragment",
+    [
+        ({"target": ["t"]}, "--target"),
+        ({"split_column": ["split"]}, "--split-column"),
+        ({"settings": {"folds": 3}}, "Settings"),
+        ({"task": "regression"}, "--task"),
+        ({"dictionary": 3}, "--dictionary"),
+        ({"probes": "solo"}, "probes"),
+        ({"seed": 1.5}, "seed"),
+    ],
+)
+def test_api_rejects_bad_arguments_before_reading(kwargs, fragment):
+    frame = pd.DataFrame({"a": np.arange(40.0), "y": [0, 1] * 20})
+    with pytest.raises(SettingError, match=fragment) as info:
+        fa.audit(frame, **kwargs)
+    assert isinstance(info.value, TypeError) and isinstance(info.value, ValueError)
+
+
+def test_api_takes_a_dataframe_dictionary_like_its_csv(tmp_path):
+    rng = np.random.default_rng(4)
+    frame = pd.DataFrame({"a": rng.normal(size=120), "k": np.arange(120), "y": [0, 1] * 60})
+    ddf = pd.DataFrame({"column": ["k", "y"], "role": ["ignore", "target"], "known_at": ""})
+    ddf.to_csv(tmp_path / "d.csv", index=False)
+    from_frame = fa.audit(frame, dictionary=ddf)
+    from_csv = fa.audit(frame, dictionary=tmp_path / "d.csv")
+    assert from_frame.document["dataset"]["target"] == "y"
+    assert list(from_frame.columns["column"]) == list(from_csv.columns["column"])
+    assert "k" not in set(from_frame.columns["column"])
+
+
+# --- the report is one unit (issue 11 item 3) --------------------------------------------
+REPORT = {
+    "dossier.html": "<p>new</p>",
+    "findings.json": "{}",
+    "droplist.txt": "",
+    "summary.md": "#",
+}
+
+
+def _earlier_report(out):
+    out.mkdir()
+    for name in REPORT:
+        (out / name).write_text(f"earlier {name}")
+
+
+def _assert_earlier_and_no_leftovers(out):
+    assert {p.name: p.read_text() for p in out.iterdir()} == {
+        name: f"earlier {name}" for name in REPORT
+    }
+    assert [p.name for p in out.parent.iterdir() if p.name.startswith(".")] == []
+
+
+def test_write_replaces_the_whole_folder(tmp_path):
+    from featureaudit.writer import write_files
+
+    out = tmp_path / "r"
+    _earlier_report(out)
+    write_files(out, REPORT)
+    assert {p.name: p.read_text() for p in out.iterdir()} == REPORT
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["r"]
+
+
+def test_full_disk_leaves_the_earlier_report(tmp_path, monkeypatch):
+    import builtins
+    import errno
+
+    from featureaudit import writer
+
+    out = tmp_path / "r"
+    _earlier_report(out)
+    real_open, calls = builtins.open, []
+
+    def open_until_full(path, *args, **kwargs):
+        calls.append(path)
+        if len(calls) == 3:
+            raise OSError(errno.ENOSPC, "No space left on device")
+        return real_open(path, *args, **kwargs)
+
+    monkeypatch.setattr(writer, "open", open_until_full, raising=False)
+    with pytest.raises(InputFileError, match="No space left.*earlier report is unchanged"):
+        writer.write_files(out, REPORT)
+    _assert_earlier_and_no_leftovers(out)
+
+
+def test_a_folder_that_cannot_be_swapped_in_leaves_the_earlier_report(tmp_path, monkeypatch):
+    import errno
+
+    from featureaudit import writer
+
+    out = tmp_path / "r"
+    _earlier_report(out)
+    real_rename = writer.os.rename
+
+    def refuse_the_new_folder(src, dst):
+        if ".new-" in str(src):
+            raise OSError(errno.EBUSY, "Device or resource busy")
+        return real_rename(src, dst)
+
+    monkeypatch.setattr(writer.os, "rename", refuse_the_new_folder)
+    with pytest.raises(InputFileError, match="busy"):
+        writer.write_files(out, REPORT)
+    _assert_earlier_and_no_leftovers(out)
+
+
+def test_a_folder_with_other_files_keeps_them_and_is_all_or_nothing(tmp_path, monkeypatch):
+    import errno
+
+    from featureaudit import writer
+
+    out = tmp_path / "r"
+    _earlier_report(out)
+    (out / "notes.txt").write_text("mine")
+    real_replace, done = writer.os.replace, []
+
+    def fail_third(src, dst):
+        done.append(dst)
+        if len(done) == 3:
+            raise OSError(errno.EACCES, "Permission denied")
+        return real_replace(src, dst)
+
+    monkeypatch.setattr(writer.os, "replace", fail_third)
+    with pytest.raises(InputFileError, match="Permission denied"):
+        writer.write_files(out, REPORT)
+    (out / "notes.txt").unlink()
+    _assert_earlier_and_no_leftovers(out)
+    (out / "notes.txt").write_text("mine")
+    monkeypatch.setattr(writer.os, "replace", real_replace)
+    writer.write_files(out, REPORT)
+    assert (out / "notes.txt").read_text() == "mine" and (out / "summary.md").read_text() == "#"
+
+
+def test_an_out_path_that_is_a_file_is_refused(tmp_path):
+    from featureaudit.writer import write_files
+
+    (tmp_path / "f").write_text("x")
+    with pytest.raises(InputFileError, match="is a file"):
+        write_files(tmp_path / "f", REPORT)
+    assert (tmp_path / "f").read_text() == "x"
+
+
+# --- findings files from elsewhere (issue 11 item 6) -------------------------------------
+@pytest.mark.parametrize(
+    "entry, fragment",
+    [
+        ({"score": 0.5, "level": "high"}, "no text 'column'"),
+        ({"column": "a", "score": "high", "level": "high"}, "score 'high'"),
+        ({"column": "a", "score": 0.5, "level": "severe"}, "level 'severe'"),
+        ("a", "is a str"),
+    ],
+)
+def test_findings_with_a_malformed_entry_exit_2_naming_it(tmp_path, entry, fragment):
+    import json
+
+    doc = {"schema": "featureaudit.findings/2", "columns": [entry], "dataset_findings": []}
+    (tmp_path / "f.json").write_text(json.dumps(doc))
+    good = {**doc, "columns": []}
+    (tmp_path / "g.json").write_text(json.dumps(good))
+    assert_one_line_exit_2(cli("droplist", tmp_path / "f.json"), "columns[0]", fragment)
+    assert_one_line_exit_2(cli("diff", tmp_path / "g.json", tmp_path / "f.json"), "columns[0]")
+
+
+def test_findings_with_a_malformed_dataset_finding(tmp_path):
+    import json
+
+    doc = {
+        "schema": "featureaudit.findings/1",
+        "columns": [],
+        "dataset_findings": [{"kind": "duplicate_rows_across_split", "level": "huge"}],
+    }
+    (tmp_path / "f.json").write_text(json.dumps(doc))
+    assert_one_line_exit_2(
+        cli("diff", tmp_path / "f.json", tmp_path / "f.json"), "dataset_findings[0]"
+    )
+
+
+# --- small things users met (issue 11 item 8) --------------------------------------------
+def test_fail_at_none_and_empty_out_are_refused(good_csv, tmp_path):
+    assert_one_line_exit_2(
+        cli("scan", good_csv, "--target", "y", "--fail-at", "none", "--out", tmp_path / "r"),
+        "--fail-at",
+        "'none'",
+    )
+    assert_one_line_exit_2(cli("scan", good_csv, "--target", "y", "--out", ""), "--out", "''")
+    assert not (tmp_path / "r").exists()
+
+
+@pytest.mark.parametrize("rows", [1, 2])
+def test_one_and_two_row_tables_are_too_few(tmp_path, rows):
+    path = tmp_path / "tiny.csv"
+    pd.DataFrame({"a": [1.0, 2.0][:rows], "y": [0, 1][:rows]}).to_csv(path, index=False)
+    assert_one_line_exit_2(cli("scan", path, "--target", "y"), "tiny.csv", "too few rows to audit")
+
+
+def test_no_target_is_said_in_words(good_csv, tmp_path):
+    result = cli("scan", good_csv, "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    assert "target None" not in result.stdout and "no target" in result.stdout
+
+
+def test_one_class_warning_shows_the_value_not_its_numpy_type():
+    frame = pd.DataFrame({"a": np.arange(50.0), "y": np.ones(50, dtype=np.int64)})
+    warning = " ".join(fa.audit(frame, target="y").document["warnings"])
+    assert "np.int64" not in warning and "('1')" in warning
+
+
+def test_missing_split_values_are_held_out_with_a_warning():
+    frame = pd.DataFrame(
+        {"a": np.arange(60.0), "y": [0, 1] * 30, "s": ["train"] * 40 + [None] * 8 + ["test"] * 12}
+    )
+    result = fa.audit(frame, target="y", split_column="s")
+    assert any("8 rows of split column 's' have no value" in w for w in result.document["warnings"])
+    assert result.document["dataset"]["partitions"]["(missing)"] == 8

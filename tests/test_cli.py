@@ -294,3 +294,107 @@ def test_a_heldout_file_with_no_rows_exits_2(leaky_csv, tmp_path):
     assert result.exit_code == 2 and result.stderr.count("\n") == 1
     assert "empty_test.csv" in result.stderr and "no rows" in result.stderr
     assert not (tmp_path / "r").exists()
+
+
+# --- commands, help and version (issue 11 item 8) ----------------------------------------
+def test_no_command_is_one_line_exit_2():
+    result = run()
+    assert result.exit_code == 2 and result.stderr.count("\n") == 1
+    assert "no command given" in result.stderr and "scan" in result.stderr
+
+
+@pytest.mark.parametrize("flag", ["-h", "--help"])
+def test_short_and_long_help(flag):
+    for args in ([flag], ["scan", flag]):
+        result = run(*args)
+        assert result.exit_code == 0 and "Usage:" in result.stdout, result.stderr
+
+
+def test_version_flag_and_command_agree():
+    from featureaudit import __version__
+
+    assert run("--version").stdout.strip() == __version__ == run("version").stdout.strip()
+
+
+# --- interrupts (issue 11 item 3) --------------------------------------------------------
+def _default_signals():
+    import signal
+
+    for sig in (signal.SIGINT, signal.SIGTERM):
+        signal.signal(sig, signal.SIG_DFL)
+
+
+def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
+    """SIGINT/SIGTERM during imports, the audit or the write: exit 130/143, one line, and
+    the earlier report (or, after the swap, the new one) whole, with nothing left beside it."""
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    exe = [sys.executable, "-c", "import sys; from featureaudit.cli import main; main()"]
+    out = tmp_path / "r"
+    out.mkdir()
+    earlier = {n: f"earlier {n}" for n in ("dossier.html", "findings.json", "droplist.txt")}
+    for name, text in earlier.items():
+        (out / name).write_text(text)
+    plan = [(0.0, signal.SIGINT), (0.1, signal.SIGTERM), (0.3, signal.SIGINT)]
+    plan += [(1.0, signal.SIGTERM), (2.5, signal.SIGINT), (5.0, signal.SIGTERM)]
+    handled = 0
+    for delay, sig in plan:
+        proc = subprocess.Popen(
+            [*exe, "scan", str(leaky_csv), "--target", "y", "--out", str(out)],
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+            preexec_fn=_default_signals,  # a shell's `&` would leave SIGINT ignored
+        )
+        time.sleep(delay)
+        proc.send_signal(sig)
+        _, err = proc.communicate(timeout=120)
+        files = {p.name: p.read_text() for p in out.iterdir()}
+        if "Traceback" in err:  # Python's own start-up (site, .pth files) ran, not ours yet
+            assert "featureaudit" not in err and files == earlier, (delay, err)
+            continue
+        files = {p.name: p.read_text() for p in out.iterdir()}
+        assert [p.name for p in tmp_path.iterdir()] == ["r"], (delay, list(tmp_path.iterdir()))
+        if proc.returncode == 0:  # finished before the signal: the new report, whole
+            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            json.loads(files["findings.json"])
+            continue
+        if proc.returncode == -sig:  # before Python ran any of ours, or while it shut down
+            # after a finished run (the interpreter restores the default handlers at exit):
+            # killed silently, with the earlier report or the new one, each whole
+            whole = sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            assert err == "" and (files == earlier or whole), (delay, err)
+            continue
+        assert proc.returncode == 128 + sig, (delay, proc.returncode, err)
+        assert err.count("\n") == 1 and "featureaudit: interrupted; the " in err, err
+        handled += 1
+        if "earlier report" in err:
+            assert files == earlier, delay
+            assert f"the earlier report in {out} is unchanged" in err
+        else:
+            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+    assert handled >= 3, "too few runs were interrupted inside featureaudit to test anything"
+
+
+# --- the inputs, declared once (issue 9 item 3) ------------------------------------------
+def test_inputs_are_declared_once_and_every_door_takes_the_same():
+    """audit(), scan and the config keys name exactly the fields of featureaudit.inputs."""
+    import inspect
+
+    from featureaudit.api import audit
+    from featureaudit.cli import scan
+    from featureaudit.inputs import input_specs
+    from featureaudit.settings import Settings, config_keys
+
+    specs = input_specs()
+    table_inputs = {s.name for s in specs if not s.scan_only}
+    assert set(inspect.signature(audit).parameters) - {"data", "seed", "probes", "settings"} == (
+        table_inputs
+    )
+    flags = set(inspect.signature(scan).parameters) - {"table", "config", "seed"}
+    assert flags == {s.name for s in specs} - {"source"}
+    assert all(s.flag == "--" + s.name.replace("_", "-") for s in specs if s.name in flags)
+    assert set(config_keys()) == {s.name for s in specs} | set(Settings.names())
