@@ -125,6 +125,8 @@ def audit(
     probes: list[str] | None = None,
     settings: Settings | None = None,
     source: str | None = None,
+    encoding: str | None = None,
+    normalise_labels: bool = False,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -146,6 +148,10 @@ def audit(
         As the scan flags of the same names.
     seed : int, default 0
         Seeds every sample and fold, so the same inputs give the same findings.
+    encoding : str, optional
+        Encoding of text files that are neither UTF-8 nor marked by a byte-order mark.
+    normalise_labels : bool, default False
+        Merge class labels that differ only in case or surrounding spaces.
 
     Returns
     -------
@@ -175,6 +181,8 @@ def audit(
         horizon=horizon,
         entity=entity,
         source=source,
+        encoding=encoding,
+        normalise_labels=normalise_labels,
     )
     if settings is None:
         settings = Settings(seed=seed)

@@ -120,6 +120,16 @@ def scan(
         ),
     ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
+    encoding: Annotated[
+        str | None,
+        typer.Option(help="Encoding of CSV files that are not UTF-8 (e.g. latin-1, cp1252)."),
+    ] = None,
+    normalise_labels: Annotated[
+        bool,
+        typer.Option(
+            "--normalise-labels", help="Merge target labels differing only in case or spaces."
+        ),
+    ] = False,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -143,6 +153,8 @@ def scan(
         "fail_at": fail_at,
         "seed": seed,
         "fail_at_impact": fail_at_impact,
+        "encoding": encoding,
+        "normalise_labels": normalise_labels or None,
     }
     opts = dict(read_config(config)) if config else {}
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
@@ -167,6 +179,8 @@ def scan(
         entity=opts.get("entity"),
         seed=seed_value,
         settings=settings,
+        encoding=opts.get("encoding"),
+        normalise_labels=bool(opts.get("normalise_labels", False)),
     )
     out_dir = Path(opts.get("out") or "featureaudit-report")
     result.write(out_dir)
@@ -191,6 +205,7 @@ def _int(value: Any, flag: str) -> int:
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     from featureaudit.findings import Findings
+    from featureaudit.names import quote_name
     from featureaudit.report import verdict_line
 
     d = doc["dataset"]
@@ -201,7 +216,7 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
-        print(f"  {c['level']:<8} {c['score']:.2f}  {c['column']}: {c['summary']}")
+        print(f"  {c['level']:<8} {c['score']:.2f}  {quote_name(c['column'])}: {c['summary']}")
     for f in doc["dataset_findings"]:
         if Level.parse(f["level"]) >= Level.MEDIUM:
             print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
@@ -227,8 +242,10 @@ def droplist_cmd(
     if format == "json":
         print(json.dumps(names, ensure_ascii=False))
     else:
+        from featureaudit.names import quote_name
+
         for name in names:
-            print(name)
+            print(quote_name(name))
     return 0
 
 
@@ -265,6 +282,10 @@ def diff(
 def dictionary_cmd(
     table: Annotated[Path, typer.Argument(help="The table to describe.")],
     target: Annotated[str | None, typer.Option(help="Mark this column as the target.")] = None,
+    encoding: Annotated[
+        str | None,
+        typer.Option(help="Encoding of a CSV that is not UTF-8 (e.g. latin-1, cp1252)."),
+    ] = None,
 ) -> int:
     """Print a draft data dictionary CSV for TABLE: every column with a guessed role.
 
@@ -273,7 +294,7 @@ def dictionary_cmd(
     from featureaudit.dictionary import draft_dictionary
     from featureaudit.io import read_table
 
-    frame = read_table(table)
+    frame = read_table(table, encoding=encoding)
     if target is not None and target not in frame.columns:
         from featureaudit.errors import ColumnNotFound
 
