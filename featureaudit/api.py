@@ -129,6 +129,8 @@ def audit(
     settings: Settings | None = None,
     source: str | None = None,
     code: Sequence[str | os.PathLike[str]] | None = None,
+    encoding: str | None = None,
+    normalise_labels: bool = False,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -157,6 +159,10 @@ def audit(
     code : list of paths, optional
         Training scripts or notebooks, audited as by ``featureaudit code``; their findings
         go into ``code_findings`` and, on named columns, into those columns' evidence.
+    encoding : str, optional
+        Encoding of text files that are neither UTF-8 nor marked by a byte-order mark.
+    normalise_labels : bool, default False
+        Merge class labels that differ only in case or surrounding spaces.
 
     Returns
     -------
@@ -188,6 +194,8 @@ def audit(
         entity=entity,
         source=source,
         code=code or None,
+        encoding=encoding,
+        normalise_labels=normalise_labels or None,
     )
     chosen = _settings(settings, seed)
     if probes is not None and (

@@ -212,6 +212,16 @@ def scan(
     code: Annotated[
         list[str] | None, typer.Option(help="Training script or notebook to audit (repeatable).")
     ] = None,
+    encoding: Annotated[
+        str | None,
+        typer.Option(help="Encoding of CSV files that are not UTF-8 (e.g. latin-1, cp1252)."),
+    ] = None,
+    normalise_labels: Annotated[
+        bool,
+        typer.Option(
+            "--normalise-labels", help="Merge target labels differing only in case or spaces."
+        ),
+    ] = False,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -222,6 +232,7 @@ def scan(
 
     flags = {k: v for k, v in locals().items() if k not in ("table", "config", "audit")}
     flags["code"] = flags.get("code") or None
+    flags["normalise_labels"] = flags.get("normalise_labels") or None
     inputs, settings = _inputs_and_settings(flags, config)
     result = audit(str(table), **inputs.table_inputs(), settings=settings)
     out_dir = Path(inputs.out or "featureaudit-report")
@@ -251,6 +262,7 @@ def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inp
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     from featureaudit.findings import Findings
+    from featureaudit.names import quote_name
     from featureaudit.report import verdict_line
 
     d = doc["dataset"]
@@ -266,7 +278,7 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
-        print(f"  {c['level']:<8} {c['score']:.2f}  {c['column']}: {c['summary']}")
+        print(f"  {c['level']:<8} {c['score']:.2f}  {quote_name(c['column'])}: {c['summary']}")
     for f in doc["dataset_findings"]:
         if Level.parse(f["level"]) >= Level.MEDIUM:
             print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
@@ -292,8 +304,10 @@ def droplist_cmd(
     if format == "json":
         print(json.dumps(names, ensure_ascii=False))
     else:
+        from featureaudit.names import quote_name
+
         for name in names:
-            print(name)
+            print(quote_name(name))
     return 0
 
 
@@ -330,6 +344,10 @@ def diff(
 def dictionary_cmd(
     table: Annotated[Path, typer.Argument(help="The table to describe.")],
     target: Annotated[str | None, typer.Option(help="Mark this column as the target.")] = None,
+    encoding: Annotated[
+        str | None,
+        typer.Option(help="Encoding of a CSV that is not UTF-8 (e.g. latin-1, cp1252)."),
+    ] = None,
 ) -> int:
     """Print a draft data dictionary CSV for TABLE: every column with a guessed role.
 
@@ -338,7 +356,7 @@ def dictionary_cmd(
     from featureaudit.dictionary import draft_dictionary
     from featureaudit.io import read_table
 
-    frame = read_table(table)
+    frame = read_table(table, encoding=encoding)
     if target is not None and target not in frame.columns:
         from featureaudit.errors import ColumnNotFound
 

@@ -1,7 +1,9 @@
 """The data dictionary: parse and validate its CSV, and draft one from a table.
 
 A row's ``known_at`` is blank, the name of a datetime column, or a signed duration relative
-to the row's label time. Errors name the file, the line and the value.
+to the row's label time. Errors name the file, the line and the value. A ``column`` cell
+that is a JSON string (``" leak "``) names the column exactly, spaces included: the draft
+writes names that would otherwise be trimmed or lost that way.
 """
 
 from __future__ import annotations
@@ -15,6 +17,7 @@ import pandas as pd
 
 from featureaudit.durations import parse_duration
 from featureaudit.errors import DictionaryError, DurationError, InputFileError
+from featureaudit.names import quote_name, unquote_name
 
 __all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
 
@@ -62,20 +65,31 @@ class DataDictionary:
         return [c for c, e in self.entries.items() if e.role == role]
 
 
-def read_dictionary(path: str | Path) -> DataDictionary:
-    """Read and validate a dictionary CSV; raise :class:`DictionaryError` naming file and line."""
+def read_dictionary(path: str | Path, *, encoding: str | None = None) -> DataDictionary:
+    """Read and validate a dictionary CSV; raise :class:`DictionaryError` naming file and line.
+
+    The text is read as its byte-order mark says (UTF-8, UTF-16), else as UTF-8, else as
+    ``encoding`` (the ``--encoding`` flag).
+    """
+    from featureaudit.io import check_encoding, decode_text
+
     p = Path(path)
+    if p.is_dir():
+        raise InputFileError(
+            f"dictionary {str(p)!r} is a folder, not a file; pass --dictionary with a CSV "
+            "file (draft one with `featureaudit dictionary TABLE`)."
+        )
     if not p.is_file():
         raise InputFileError(
             f"dictionary {str(p)!r} does not exist; pass --dictionary with a CSV "
             "file (draft one with `featureaudit dictionary TABLE`)."
         )
+    encoding = check_encoding(encoding)
     try:
-        text = p.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputFileError(
-            f"cannot read dictionary {str(p)!r}: {exc}; save it as UTF-8 CSV."
-        ) from exc
+        raw = p.read_bytes()
+    except OSError as exc:
+        raise InputFileError(f"cannot read dictionary {str(p)!r}: {exc.strerror}.") from exc
+    text = decode_text(raw, what=f"dictionary {str(p)!r}", encoding=encoding)
     return parse_dictionary(text, source=str(p))
 
 
@@ -106,8 +120,9 @@ def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary
             i = index.get(name)
             return row[i].strip() if i is not None and i < len(row) else ""
 
-        column = cell("column")
-        if not column:
+        raw_column = cell("column")
+        column = unquote_name(raw_column)  # the drafted dictionary quotes awkward names
+        if not raw_column:
             raise DictionaryError(
                 f"dictionary {source!r} line {line_no}: the 'column' cell is "
                 "empty; name a column of the table or delete the line."
@@ -159,7 +174,7 @@ def _parse_known_at(
                 f"column {column!r} is neither a duration nor a column name; "
                 f"{str(exc).split('; ', 1)[-1]}"
             ) from exc
-    return None, value
+    return None, unquote_name(value)
 
 
 def draft_dictionary(frame: pd.DataFrame, *, target: str | None = None) -> str:
@@ -168,7 +183,8 @@ def draft_dictionary(frame: pd.DataFrame, *, target: str | None = None) -> str:
     writer = csv.writer(buf, lineterminator="\n")
     writer.writerow(STANDARD)
     for name in frame.columns:
-        writer.writerow([name, guess_role(frame[name], name, target=target), "", ""])
+        role = guess_role(frame[name], name, target=target)
+        writer.writerow([quote_name(name), role, "", ""])
     return buf.getvalue()
 
 

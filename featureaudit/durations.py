@@ -39,6 +39,17 @@ _ISO = re.compile(
     r"(?:T(?:(\d+(?:\.\d+)?)H)?(?:(\d+(?:\.\d+)?)M)?(?:(\d+(?:\.\d+)?)S)?)?$"
 )
 ACCEPTED = "e.g. 30d, 30 days, -12h, +2 weeks, P30D or -P1DT12H"
+# pandas holds a Timedelta in nanoseconds: about 292 years either way
+MAX_SECONDS = (2**63 - 1) // 10**9
+
+
+def _timedelta(seconds: float, raw: str, what: str) -> pd.Timedelta:
+    if abs(seconds) >= MAX_SECONDS:
+        raise DurationError(
+            f"{what} {raw!r} is longer than the 292 years a duration can span; write a "
+            f"shorter one, {ACCEPTED}."
+        )
+    return pd.Timedelta(seconds=seconds)
 
 
 def parse_duration(text: str, *, what: str = "duration") -> pd.Timedelta:
@@ -58,9 +69,9 @@ def parse_duration(text: str, *, what: str = "duration") -> pd.Timedelta:
         sign = -1 if iso.group(1) == "-" else 1
         weeks, days, hours, minutes, seconds = (float(g) if g else 0.0 for g in iso.groups()[1:])
         total = (((weeks * 7 + days) * 24 + hours) * 60 + minutes) * 60 + seconds
-        return pd.Timedelta(seconds=sign * total)
+        return _timedelta(sign * total, raw, what)
     plain = _PLAIN.match(raw.lower())
     if plain and plain.group(3) in _UNIT_SECONDS:
         sign = -1 if plain.group(1) == "-" else 1
-        return pd.Timedelta(seconds=sign * float(plain.group(2)) * _UNIT_SECONDS[plain.group(3)])
+        return _timedelta(sign * float(plain.group(2)) * _UNIT_SECONDS[plain.group(3)], raw, what)
     raise DurationError(f"{what} {raw!r} is not a duration; write it as {ACCEPTED}.")

@@ -70,6 +70,11 @@ def build_document(
 def load_findings(path: str | Path) -> Findings:
     """Read a findings file, checking that it is one of ours and of a schema we read."""
     p = Path(path)
+    if p.is_dir():
+        raise InputFileError(
+            f"findings file {str(p)!r} is a folder, not a file; pass the findings.json "
+            "inside it that `featureaudit scan` wrote."
+        )
     if not p.is_file():
         raise InputFileError(
             f"findings file {str(p)!r} does not exist; pass the findings.json "

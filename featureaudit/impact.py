@@ -444,7 +444,7 @@ def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict
         times = table.cutoff_time if table.cutoff_time is not None else table.label_time
         if times is None:
             return None
-        t = times.iloc[bench.rows].to_numpy(dtype="datetime64[ns]").astype("int64")
+        t = times.iloc[bench.rows].to_numpy(dtype="datetime64[us]").astype("int64")
         order = np.argsort(t, kind="stable")
         cut = int(0.8 * len(order))
         early, late = order[:cut], order[cut:]

@@ -82,6 +82,18 @@ def _paths(value: Any) -> bool:
     return _path(value)
 
 
+def _encoding(value: Any) -> bool:
+    import codecs
+
+    if not _text(value):
+        return False
+    try:
+        codecs.lookup(value)
+    except LookupError:
+        return False
+    return True
+
+
 def _value(value: Any) -> bool:
     return isinstance(value, str) or _number(value)
 
@@ -124,6 +136,12 @@ class Inputs:
         "a score difference of 0 or more, such as 0.02",
         _difference,
         scan_only=True,
+    )
+    encoding: str | None = _declare(
+        "--encoding", "a text encoding Python knows, e.g. latin-1", _encoding
+    )
+    normalise_labels: bool | None = _declare(
+        "--normalise-labels", "true or false", lambda v: isinstance(v, bool)
     )
     code: Any = _declare("--code", "a script or notebook path, or a list of them", _paths)
 

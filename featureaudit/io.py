@@ -6,6 +6,7 @@ become categoricals, and every unreadable input raises one :class:`InputFileErro
 
 from __future__ import annotations
 
+import codecs
 import os
 import re
 from collections import Counter
@@ -15,9 +16,18 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 
-from featureaudit.errors import InputFileError
+from featureaudit.errors import InputFileError, SettingError
 
-__all__ = ["read_table", "as_frame", "normalise_frame", "SUFFIXES"]
+__all__ = [
+    "read_table",
+    "as_frame",
+    "normalise_frame",
+    "decode_text",
+    "detect_encoding",
+    "check_encoding",
+    "UNPARSED_DATES",
+    "SUFFIXES",
+]
 
 SUFFIXES = (".csv", ".tsv", ".parquet", ".pq", ".feather", ".arrow", ".ipc")
 _ISO_DATE = re.compile(
@@ -25,11 +35,77 @@ _ISO_DATE = re.compile(
 )
 CATEGORY_MAX_LEVELS = 200  # common practice, no source: beyond this a string column stays text
 CATEGORY_MAX_SHARE = 0.5  # ...or when more than half of its values are distinct
+# A text column whose values are ISO dates but for at most this share (and at least
+# DATE_MIN_VALUES of them parse) is a date column with a few bad entries: they are read as
+# missing and counted (common practice, no source).
+DATE_MAX_BAD_SHARE = 0.01
+DATE_MIN_VALUES = 50
+UNPARSED_DATES = "featureaudit_unparsed_dates"  # frame.attrs key: column -> (count, example)
+ENCODING_HINT = "pass --encoding with the file's encoding, e.g. --encoding latin-1 or cp1252"
+_BOMS = (
+    (codecs.BOM_UTF8, "utf-8-sig"),
+    (codecs.BOM_UTF16_LE, "utf-16"),
+    (codecs.BOM_UTF16_BE, "utf-16"),
+)
 
 
-def read_table(path: str | os.PathLike[str]) -> pd.DataFrame:
-    """Read one table file or a folder of Parquet files into a normalised DataFrame."""
+def check_encoding(encoding: str | None) -> str | None:
+    """The codec name of ``--encoding``, or a :class:`SettingError` naming the flag."""
+    if encoding is None:
+        return None
+    try:
+        return codecs.lookup(str(encoding)).name
+    except LookupError as exc:
+        raise SettingError(
+            f"--encoding {encoding!r} is not a text encoding Python knows; pass e.g. "
+            "--encoding latin-1, cp1252 or utf-16."
+        ) from exc
+
+
+def detect_encoding(head: bytes) -> str | None:
+    """The encoding a byte-order mark announces (UTF-8 or UTF-16), else None."""
+    for bom, name in _BOMS:
+        if head.startswith(bom):
+            return name
+    return None
+
+
+def decode_text(raw: bytes, *, what: str, encoding: str | None = None) -> str:
+    """Text of a whole file: its BOM's encoding, else UTF-8, else ``encoding``, else an error."""
+    bom = detect_encoding(raw[:4])
+    if bom is not None:
+        try:
+            return raw.decode(bom)
+        except UnicodeDecodeError as exc:
+            raise InputFileError(
+                f"{what} starts with a {bom} byte-order mark but is not {bom} text "
+                f"({exc.reason} at byte {exc.start}); save it again as UTF-8."
+            ) from exc
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        if encoding in (None, "utf-8"):
+            raise InputFileError(
+                f"{what} is not UTF-8 text (byte {raw[exc.start]:#04x} at position "
+                f"{exc.start}); {ENCODING_HINT}."
+            ) from exc
+    try:
+        return raw.decode(encoding)
+    except UnicodeDecodeError as exc:
+        raise InputFileError(
+            f"{what} is neither UTF-8 nor {encoding} text ({exc.reason} at byte "
+            f"{exc.start}); {ENCODING_HINT}."
+        ) from exc
+
+
+def read_table(path: str | os.PathLike[str], *, encoding: str | None = None) -> pd.DataFrame:
+    """Read one table file or a folder of Parquet files into a normalised DataFrame.
+
+    CSV/TSV text is read as its byte-order mark says (UTF-8, UTF-16), else as UTF-8, else
+    as ``encoding`` (the ``--encoding`` flag); otherwise one error naming the flag.
+    """
     p = Path(path)
+    encoding = check_encoding(encoding)
     if not p.exists():
         raise InputFileError(
             f"table {str(p)!r} does not exist; pass a .csv, .tsv, .parquet, "
@@ -49,8 +125,8 @@ def read_table(path: str | os.PathLike[str]) -> pd.DataFrame:
                 [pq.read_table(f, pre_buffer=False) for f in files], promote_options="default"
             )
         else:
-            table = _read_file(p)
-    except InputFileError:
+            table = _read_file(p, encoding)
+    except (InputFileError, SettingError):
         raise
     except (pa.ArrowInvalid, pa.ArrowTypeError, OSError, ValueError) as exc:
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
@@ -65,23 +141,28 @@ def read_table(path: str | os.PathLike[str]) -> pd.DataFrame:
     return normalise_frame(frame, source=p.name)
 
 
-def _read_file(p: Path) -> pa.Table:
+def _read_file(p: Path, encoding: str | None = None) -> pa.Table:
     suffix = p.suffix.lower()
     if suffix in (".csv", ".tsv"):
-        import pyarrow.csv as pcsv
-
         if p.stat().st_size == 0:
             raise InputFileError(f"table {str(p)!r} is empty; pass a table with a header row.")
-        _check_header(p, "\t" if suffix == ".tsv" else ",")
-        return pcsv.read_csv(
-            p,
-            parse_options=pcsv.ParseOptions(delimiter="\t" if suffix == ".tsv" else ","),
-            convert_options=pcsv.ConvertOptions(
-                timestamp_parsers=[],
-                strings_can_be_null=True,
-                null_values=["", "NA", "N/A", "NaN", "nan", "null", "NULL", "None"],
-            ),
-        )
+        with p.open("rb") as fh:
+            bom = detect_encoding(fh.read(4))
+        if bom is not None:
+            return _read_csv(p, suffix, bom)
+        try:
+            return _read_csv(p, suffix, "utf-8")
+        except _NotUtf8 as exc:
+            if encoding in (None, "utf-8"):
+                raise InputFileError(
+                    f"table {str(p)!r} is not UTF-8 text ({exc}); {ENCODING_HINT}."
+                ) from None
+        try:
+            return _read_csv(p, suffix, encoding)
+        except _NotUtf8 as exc:
+            raise InputFileError(
+                f"table {str(p)!r} is neither UTF-8 nor {encoding} text ({exc}); {ENCODING_HINT}."
+            ) from None
     if suffix in (".parquet", ".pq"):
         import pyarrow.parquet as pq
 
@@ -98,9 +179,46 @@ def _read_file(p: Path) -> pa.Table:
     )
 
 
-def _check_header(p: Path, sep: str) -> None:
+class _NotUtf8(Exception):
+    """The bytes of a CSV are not text in the encoding tried."""
+
+
+def _read_csv(p: Path, suffix: str, encoding: str) -> pa.Table:
+    """One CSV read in ``encoding``; :class:`_NotUtf8` when its bytes are not that text."""
+    import pyarrow.csv as pcsv
+
+    sep = "\t" if suffix == ".tsv" else ","
+    try:
+        _check_header(p, sep, encoding)
+    except UnicodeDecodeError as exc:
+        raise _NotUtf8(f"byte {exc.object[exc.start]:#04x} in the header row") from exc
+    # pyarrow reads UTF-8 itself and transcodes any other encoding through Python's codecs
+    native = encoding in ("utf-8", "utf-8-sig")  # pyarrow's own reader skips a UTF-8 BOM
+    read_options = pcsv.ReadOptions(encoding="utf8" if native else encoding)
+    try:
+        table = pcsv.read_csv(
+            p,
+            read_options=read_options,
+            parse_options=pcsv.ParseOptions(delimiter=sep),
+            convert_options=pcsv.ConvertOptions(
+                timestamp_parsers=[],
+                strings_can_be_null=True,
+                null_values=["", "NA", "N/A", "NaN", "nan", "null", "NULL", "None"],
+            ),
+        )
+    except UnicodeDecodeError as exc:
+        raise _NotUtf8(f"{exc.reason} at byte {exc.start}") from exc
+    # a CSV column that is not valid text comes back as binary
+    binary = [f.name for f in table.schema if pa.types.is_binary(f.type)]
+    if binary:
+        raise _NotUtf8(f"column {binary[0]!r} holds bytes that are not {encoding} text")
+    return table
+
+
+def _check_header(p: Path, sep: str, encoding: str = "utf-8") -> None:
     """Reject duplicate header names before pyarrow silently keeps both."""
-    with p.open("r", encoding="utf-8", errors="replace") as fh:
+    codec = "utf-8-sig" if encoding in ("utf-8", "utf-8-sig") else encoding
+    with p.open("r", encoding=codec, newline="") as fh:
         header = fh.readline().rstrip("\r\n").split(sep)
     dupes = [name for name, n in Counter(h.strip('"') for h in header).items() if n > 1]
     if dupes:
@@ -122,7 +240,7 @@ def _to_pandas(table: pa.Table, *, source: str) -> pd.DataFrame:
     return table.to_pandas(split_blocks=True, self_destruct=True)
 
 
-def as_frame(data: object, *, what: str = "table") -> pd.DataFrame:
+def as_frame(data: object, *, what: str = "table", encoding: str | None = None) -> pd.DataFrame:
     """Accept a path, a DataFrame or a pyarrow Table and return a normalised DataFrame."""
     if isinstance(data, pd.DataFrame):
         dupes = [str(n) for n, c in Counter(data.columns).items() if c > 1]
@@ -135,7 +253,7 @@ def as_frame(data: object, *, what: str = "table") -> pd.DataFrame:
     if isinstance(data, pa.Table):
         return normalise_frame(_to_pandas(data, source=what), source=what)
     if isinstance(data, (str, os.PathLike)):
-        return read_table(data)
+        return read_table(data, encoding=encoding)
     raise InputFileError(
         f"{what} must be a file path, a pandas.DataFrame or a pyarrow.Table; "
         f"got {type(data).__name__}."
@@ -143,39 +261,89 @@ def as_frame(data: object, *, what: str = "table") -> pd.DataFrame:
 
 
 def normalise_frame(frame: pd.DataFrame, *, source: str) -> pd.DataFrame:
-    """Give every column one usable dtype: datetimes parsed, strings as text or categoricals."""
-    frame.columns = [str(c) for c in frame.columns]
+    """Give every column one usable dtype: datetimes parsed, strings as text or categoricals.
+
+    Named index levels (a pyarrow table written from ``df.set_index(...)`` keeps its key
+    there) become ordinary columns; an unnamed index is only a row position and is dropped.
+    Date columns with a few values that are not dates keep their dates; the bad values are
+    read as missing and counted in ``frame.attrs[UNPARSED_DATES]``.
+    """
+    frame = _index_as_columns(frame, source=source)
+    names = [str(c) for c in frame.columns]
+    clashes = [n for n, c in Counter(names).items() if c > 1]
+    if clashes:
+        originals = [repr(c) for c in frame.columns if str(c) == clashes[0]]
+        raise InputFileError(
+            f"{source} has columns {' and '.join(originals)}, which both read as column "
+            f"{clashes[0]!r}; rename one so every column name is unique as text."
+        )
+    frame.columns = names
     frame = frame.reset_index(drop=True)
     out = {}
-    for name in frame.columns:
-        out[name] = _normalise_column(frame[name])
-    return pd.DataFrame(out, index=frame.index, copy=False)
+    unparsed: dict[str, tuple[int, str]] = {}
+    for i, name in enumerate(frame.columns):
+        column = frame.iloc[:, i]
+        out[name], bad = _normalise_column(column)
+        if bad is not None:
+            unparsed[name] = bad
+    result = pd.DataFrame(out, index=frame.index, copy=False)
+    result.attrs[UNPARSED_DATES] = unparsed
+    return result
 
 
-def _normalise_column(s: pd.Series) -> pd.Series:
+def _index_as_columns(frame: pd.DataFrame, *, source: str) -> pd.DataFrame:
+    named = [n for n in frame.index.names if n is not None]
+    if not named:
+        return frame
+    taken = [n for n in named if n in frame.columns or str(n) in map(str, frame.columns)]
+    if taken:
+        raise InputFileError(
+            f"{source} has index level {taken[0]!r} and a column of the same name; "
+            "rename one (or reset the index) so every column name is unique."
+        )
+    keep = [i for i, n in enumerate(frame.index.names) if n is not None]
+    drop = [i for i, n in enumerate(frame.index.names) if n is None]
+    if drop:
+        frame = frame.reset_index(level=drop, drop=True)
+    return frame.reset_index(level=None if not drop else list(range(len(keep))))
+
+
+def _normalise_column(s: pd.Series) -> tuple[pd.Series, tuple[int, str] | None]:
     if isinstance(s.dtype, pd.CategoricalDtype):
-        return s
+        return s, None
     if pd.api.types.is_bool_dtype(s.dtype):
-        return s
+        return s, None
     if pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_datetime64_any_dtype(s.dtype):
-        return s
+        return s, None
     if isinstance(s.dtype, pd.ArrowDtype):
         s = s.astype(object)
     values = s.dropna()
     if values.empty:
-        return s.astype("float64")
+        return s.astype("float64"), None
     if not all(isinstance(v, str) for v in values.iloc[:1000]):
         values = values.astype(str)
         s = s.where(s.isna(), s.astype(str))
     as_text = values.astype(str)
-    if as_text.str.match(_ISO_DATE).all():
-        parsed = _parse_iso(s)
+    is_iso = as_text.str.match(_ISO_DATE)
+    n_bad = int((~is_iso).sum())
+    if n_bad == 0 or (
+        int(is_iso.sum()) >= DATE_MIN_VALUES and n_bad <= DATE_MAX_BAD_SHARE * len(values)
+    ):
+        if n_bad == 0:
+            parsed = _parse_iso(s)
+            if parsed is not None:
+                return parsed, None
+        else:
+            bad_mask = pd.Series(False, index=s.index)
+            bad_mask[values.index[~is_iso.to_numpy()]] = True
+            parsed = _parse_iso(s.where(~bad_mask, None))
         if parsed is not None:
-            return parsed
+            examples = sorted(set(as_text[~is_iso.to_numpy()]))
+            return parsed, (n_bad, examples[0])
     n_levels = as_text.nunique()
     if n_levels <= CATEGORY_MAX_LEVELS and n_levels <= max(2, CATEGORY_MAX_SHARE * len(values)):
-        return s.astype("category")
-    return s.astype(object)
+        return s.astype("category"), None
+    return s.astype(object), None
 
 
 def _parse_iso(s: pd.Series) -> pd.Series | None:
@@ -197,12 +365,13 @@ def numeric_view(s: pd.Series) -> np.ndarray | None:
     if pd.api.types.is_bool_dtype(s.dtype):
         return s.astype("float64").to_numpy()
     if pd.api.types.is_datetime64_any_dtype(s.dtype):
+        # microseconds hold years far outside pandas' nanosecond range (1677-2262)
         values = (
-            s.to_numpy(dtype="datetime64[ns]")
+            s.to_numpy(dtype="datetime64[us]")
             if getattr(s.dt, "tz", None) is None
-            else s.dt.tz_convert("UTC").dt.tz_localize(None).to_numpy(dtype="datetime64[ns]")
+            else s.dt.tz_convert("UTC").dt.tz_localize(None).to_numpy(dtype="datetime64[us]")
         )
-        out = values.astype("int64").astype("float64") / 1e9
+        out = values.astype("int64").astype("float64") / 1e6
         out[np.isnat(values)] = np.nan
         return out
     if s.dtype == np.float64:

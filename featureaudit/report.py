@@ -10,6 +10,7 @@ import jinja2
 
 from featureaudit.findings import Findings, droplist
 from featureaudit.levels import Level
+from featureaudit.names import quote_name
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
 
@@ -171,7 +172,7 @@ def render_all(findings: Findings) -> dict[str, str]:
     drops = droplist(findings, "high")
     return {
         "findings.json": findings.to_json(),
-        "droplist.txt": "".join(f"{c}\n" for c in drops),
+        "droplist.txt": "".join(f"{quote_name(c)}\n" for c in drops),
         "summary.md": render_summary(findings),
         "dossier.html": render_dossier(findings),
     }

@@ -77,6 +77,10 @@ class Settings:
 def read_config(path: str | Path) -> dict[str, Any]:
     """Read a TOML settings file; unknown keys are an error that lists the known ones."""
     p = Path(path)
+    if p.is_dir():
+        raise InputFileError(
+            f"config {str(p)!r} is a folder, not a file; pass --config with a TOML file."
+        )
     if not p.is_file():
         raise InputFileError(f"config {str(p)!r} does not exist; pass --config with a TOML file.")
     try:

@@ -18,7 +18,7 @@ from featureaudit.dictionary import DataDictionary, guess_role, parse_dictionary
 from featureaudit.durations import parse_duration
 from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
 from featureaudit.inputs import Inputs
-from featureaudit.io import as_frame, normalise_frame
+from featureaudit.io import UNPARSED_DATES, as_frame, normalise_frame
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
@@ -52,6 +52,8 @@ class AuditTable:
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None  # why target-based probes cannot run
     partitions: dict[str, int] = field(default_factory=dict)  # rows per partition (schema 2)
+    # date columns with a few values that are not dates: column -> (count, an example)
+    unparsed_dates: dict[str, tuple[int, str]] = field(default_factory=dict)
 
     @property
     def n_rows(self) -> int:
@@ -85,20 +87,21 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     train_value = spec.train_value if spec.train_value is not None else "train"
     dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
     horizon, entity, source = spec.horizon, spec.entity, spec.source
+    encoding, normalise_labels = spec.encoding, bool(spec.normalise_labels)
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
-    frame = as_frame(data, what=src)
+    frame = as_frame(data, what=src, encoding=encoding)
     if len(frame) == 0:
         raise TargetError(f"table {src!r} has no rows; pass a table with data rows.")
     warnings: list[str] = []
 
-    ddict = _dictionary(dictionary)
+    ddict = _dictionary(dictionary, encoding)
     heldout = None
     split_desc = "none"
     partitions: dict[str, int] = {}
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
         frame, heldout = _append_test(
-            frame, as_frame(test, what=tsrc), src, tsrc, target, ddict, warnings
+            frame, as_frame(test, what=tsrc, encoding=encoding), src, tsrc, target, ddict, warnings
         )
         split_desc = f"test:{tsrc}"
         partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
@@ -179,8 +182,15 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         warnings=warnings,
         entity=chosen["entity"],
         partitions=partitions,
+        unparsed_dates=dict(frame.attrs.get(UNPARSED_DATES, {})),
     )
-    _set_target(table, chosen["target"], task)
+    for name, (count, example) in sorted(table.unparsed_dates.items()):
+        rest = int(frame[name].notna().sum())
+        warnings.append(
+            f"column {name!r}: {count} value{'s are' if count != 1 else ' is'} not a date "
+            f"(e.g. {example!r}) and read as missing; the other {rest} are dates."
+        )
+    _set_target(table, chosen["target"], task, normalise_labels)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
     for name in frame.columns:
         role = roles.get(name, "feature")
@@ -191,10 +201,10 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     return table
 
 
-def _dictionary(given: object) -> DataDictionary | None:
+def _dictionary(given: object, encoding: str | None = None) -> DataDictionary | None:
     """A dictionary from a CSV path, a DataFrame with the same headers, or as it is."""
     if isinstance(given, (str, os.PathLike)):
-        return read_dictionary(Path(given))
+        return read_dictionary(Path(given), encoding=encoding)
     if isinstance(given, pd.DataFrame):
         text = given.astype(object).where(given.notna(), "").to_csv(index=False)
         return parse_dictionary(text, source="DataFrame dictionary")
@@ -250,9 +260,55 @@ def _append_test(
             "they are not audited."
         )
     test = test[[c for c in frame.columns if c in test.columns]]
+    for name in sorted(targets):
+        if name in frame.columns and name in test.columns:
+            _same_coding(frame[name], test[name], name, src, tsrc)
     both = pd.concat([_plain(frame), _plain(test)], ignore_index=True)
     heldout = np.r_[np.zeros(len(frame), bool), np.ones(len(test), bool)]
     return normalise_frame(both, source=src), heldout
+
+
+def _same_coding(train: pd.Series, held: pd.Series, name: str, src: str, tsrc: str) -> None:
+    """Reject a held-out target written in other labels than training's (pos/neg vs 0/1).
+
+    Two numeric targets are compared only when both look like class codes (few whole
+    values); text labels are compared ignoring case and surrounding spaces.
+    """
+    a, b = train.dropna(), held.dropna()
+    if a.empty or b.empty:
+        return
+    numeric_a, numeric_b = (_is_number(x) for x in (a, b))
+    if numeric_a and numeric_b:
+        if not (_few_codes(a) and _few_codes(b)):
+            return
+        overlap = bool(set(a.astype("float64")) & set(b.astype("float64")))
+    elif numeric_a != numeric_b:
+        overlap = False
+    else:
+        overlap = bool(set(_label_keys(a)) & set(_label_keys(b)))
+    if not overlap:
+        raise TargetError(
+            f"target {name!r} is coded differently in {src} ({_coding(a)}) and in held-out "
+            f"table {tsrc!r} ({_coding(b)}); recode one so both use the same labels."
+        )
+
+
+def _is_number(s: pd.Series) -> bool:
+    return pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype)
+
+
+def _few_codes(s: pd.Series) -> bool:
+    values = s.astype("float64")
+    return bool(values.nunique() <= FEW_CLASSES and np.all(values == np.round(values)))
+
+
+def _label_keys(s: pd.Series) -> list[str]:
+    return [str(v).strip().casefold() for v in pd.unique(s.astype(object))]
+
+
+def _coding(s: pd.Series) -> str:
+    values = sorted({str(v) for v in pd.unique(s.astype(object))}, key=_natural)
+    return ", ".join(values[:6]) + (f", … {len(values)} values" if len(values) > 6 else "")
 
 
 def _plain(frame: pd.DataFrame) -> pd.DataFrame:
@@ -302,16 +358,27 @@ def infer_task(values: pd.Series) -> str:
     return "multiclass"
 
 
-def _set_target(table: AuditTable, target: str | None, task: str | None) -> None:
+def _set_target(
+    table: AuditTable, target: str | None, task: str | None, normalise_labels: bool = False
+) -> None:
     if target is None:
         return
     s = table.frame[target]
+    if pd.api.types.is_datetime64_any_dtype(s.dtype):
+        raise TargetError(
+            f"target column {target!r} of {table.source} holds dates: a datetime cannot be "
+            "a target; did you mean --label-time? Pass --target with the outcome column."
+        )
+    s = _finite_target(table, s, target)
     present = s.dropna()
     if present.empty:
         raise TargetError(
             f"target column {target!r} of {table.source} has no values; pass "
             "--target with a column that holds the outcome."
         )
+    if not _is_number(s) and not pd.api.types.is_bool_dtype(s.dtype):
+        s = _label_variants(table, s, target, normalise_labels)
+        present = s.dropna()
     table.target = target
     table.task = task or infer_task(s)
     if table.task == "numeric":
@@ -330,15 +397,78 @@ def _set_target(table: AuditTable, target: str | None, task: str | None) -> None
         table.y = remap[codes]  # code -1 (missing) picks the trailing -1
         table.classes = classes
         if table.task == "binary" and len(classes) > 2:
+            hint = (
+                " or --normalise-labels to merge labels that differ only in case or spaces"
+                if _has_variants(present)
+                else ""
+            )
             raise TargetError(
                 f"target column {target!r} has {len(classes)} values, so --task "
-                "binary cannot apply; pass --task multiclass."
+                f"binary cannot apply; pass --task multiclass{hint}."
             )
     if present.nunique() < 2:
+        only = present.iloc[0]
+        shown = only.item() if isinstance(only, np.generic) else only
         table.target_problem = (
-            f"target {target!r} has a single value ({str(present.iloc[0])!r}) in the labelled rows"
+            f"target {target!r} has a single value ({shown!r}) in the labelled rows"
         )
         table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
+
+
+def _finite_target(table: AuditTable, s: pd.Series, target: str) -> pd.Series:
+    """inf and -inf in a numeric target are unlabelled rows, counted in a warning."""
+    if not _is_number(s):
+        return s
+    values = pd.to_numeric(s, errors="coerce").astype("float64")
+    infinite = np.isinf(values.to_numpy())
+    missing = values.isna().to_numpy().copy()
+    if table.heldout is not None:
+        missing &= ~table.heldout  # held-out rows may leave the target out by design
+    if infinite.any():
+        table.warnings.append(
+            f"target {target!r} has {int(infinite.sum() + missing.sum())} rows without a "
+            f"finite value ({int(infinite.sum())} inf or -inf, {int(missing.sum())} missing); "
+            "they are treated as unlabelled."
+        )
+        return values.where(~infinite, np.nan)
+    return s
+
+
+def _has_variants(present: pd.Series) -> bool:
+    raw = {str(v) for v in pd.unique(present.astype(object))}
+    return len({v.strip().casefold() for v in raw}) < len(raw)
+
+
+def _label_variants(table: AuditTable, s: pd.Series, target: str, normalise: bool) -> pd.Series:
+    """Labels that differ only in case or surrounding spaces: warn, merge only when told.
+
+    Merged labels take the spelling most rows use (ties: the first in sorted order), so the
+    result never depends on the order of the rows.
+    """
+    present = s.dropna().astype(str)
+    counts = present.value_counts()
+    groups: dict[str, list[tuple[int, str]]] = {}
+    for label, n in counts.items():
+        groups.setdefault(str(label).strip().casefold(), []).append((-int(n), str(label)))
+    merged = {k: sorted(v) for k, v in groups.items() if len(v) > 1}
+    if not merged:
+        return s
+    examples = "; ".join(
+        ", ".join(repr(lab) for _, lab in v) for _, v in sorted(merged.items())[:3]
+    )
+    if not normalise:
+        table.warnings.append(
+            f"target {target!r} has labels that differ only in case or spaces ({examples}); "
+            "they are kept as separate classes. Pass --normalise-labels to merge them."
+        )
+        return s
+    canonical = {lab: v[0][1].strip() for v in merged.values() for _, lab in v}
+    table.warnings.append(
+        f"target {target!r}: labels that differ only in case or spaces were merged "
+        f"(--normalise-labels): {examples}."
+    )
+    text = s.astype(object).where(s.isna(), s.astype(str))
+    return text.map(lambda v: canonical.get(v, v) if isinstance(v, str) else v)
 
 
 def _natural(text: str) -> tuple[int, float, str]:
@@ -368,7 +498,13 @@ def _set_times(
                 "--horizon needs a label time to count back from; pass "
                 "--label-time or give a column the role label_time."
             )
-        table.cutoff_time = table.label_time - delta
+        try:
+            table.cutoff_time = table.label_time - delta
+        except (OverflowError, pd.errors.OutOfBoundsDatetime) as exc:
+            raise SettingError(
+                f"--horizon {horizon!r} puts the cutoff outside the dates a table can "
+                "hold; pass a shorter --horizon."
+            ) from exc
         table.cutoff_source = f"horizon:{horizon}"
     elif table.label_time is not None:
         table.cutoff_time = table.label_time

@@ -101,9 +101,11 @@ def resolution(ns: np.ndarray) -> tuple[str, float]:
     t = ns[np.isfinite(ns)]
     if t.size == 0:
         return UNITS[0]
-    whole = t.astype(np.int64)
+    # whole milliseconds: exact for every unit tested here, and within int64 for any year
+    # (float nanoseconds of years outside 1677-2262 do not fit an int64)
+    whole = np.round(t / 1e6).astype(np.int64)
     for name, unit in UNITS[:-1]:
-        if np.all(whole % int(unit) == 0):
+        if np.all(whole % int(unit // 1e6) == 0):
             return name, unit
     return UNITS[-1]
 
@@ -161,9 +163,13 @@ def _amount(value: float, unit_plural: str) -> str:
 
 
 def _ns(times: pd.Series) -> np.ndarray:
-    """Naive UTC datetimes as float nanoseconds, NaN where missing."""
-    values = times.to_numpy(dtype="datetime64[ns]")
-    out = values.astype("int64").astype(np.float64)
+    """Naive UTC datetimes as float nanoseconds, NaN where missing.
+
+    Read through microseconds: years outside the int64 nanosecond range (before 1677, after
+    2262) still convert, as floats.
+    """
+    values = times.to_numpy(dtype="datetime64[us]")
+    out = values.astype("int64").astype(np.float64) * 1000.0
     out[np.isnat(values)] = np.nan
     return out
 
@@ -391,6 +397,7 @@ class Timing(Probe):
         detail: dict = {
             "basis": basis,
             "rows_checked": int(ok.sum()),
+            **_not_dates(table, name),
             "rows_missing_time": int((~ok).sum()),
             "rows_after_cutoff": int(after.sum()),
             "share_after_cutoff": share,
@@ -538,6 +545,17 @@ def _per_entity(
     }
 
 
+def _not_dates(table: AuditTable, name: str) -> dict:
+    """Values of the column (or of its known_at column) that were not dates, read as missing,
+    so a few bad entries show in the evidence instead of silently shrinking what is checked."""
+    entry = table.dictionary.entries.get(name) if table.dictionary is not None else None
+    source = entry.known_at_column if entry is not None and entry.known_at_column else name
+    bad = table.unparsed_dates.get(source)
+    if bad is None:
+        return {}
+    return {"values_not_dates": bad[0], "example_not_date": bad[1], "not_dates_column": source}
+
+
 def _datetime_like(s: pd.Series) -> bool:
     if pd.api.types.is_datetime64_any_dtype(s.dtype):
         return True
@@ -548,4 +566,4 @@ def _datetime_like(s: pd.Series) -> bool:
 
 
 def _iso(ns: float) -> str:
-    return pd.Timestamp(int(ns)).isoformat()
+    return pd.Timestamp(int(ns // 1000), unit="us").isoformat()

@@ -539,7 +539,7 @@ def test_no_target_is_said_in_words(good_csv, tmp_path):
 def test_one_class_warning_shows_the_value_not_its_numpy_type():
     frame = pd.DataFrame({"a": np.arange(50.0), "y": np.ones(50, dtype=np.int64)})
     warning = " ".join(fa.audit(frame, target="y").document["warnings"])
-    assert "np.int64" not in warning and "('1')" in warning
+    assert "np.int64" not in warning and "single value (1)" in warning
 
 
 def test_missing_split_values_are_held_out_with_a_warning():
@@ -549,3 +549,210 @@ def test_missing_split_values_are_held_out_with_a_warning():
     result = fa.audit(frame, target="y", split_column="s")
     assert any("8 rows of split column 's' have no value" in w for w in result.document["warnings"])
     assert result.document["dataset"]["partitions"]["(missing)"] == 8
+
+
+# === inputs that used to lie, and text encodings (issue 11 items 4 and 5) ==================
+def _frame(n=300, seed=0):
+    rng = np.random.default_rng(seed)
+    return pd.DataFrame(
+        {"a": rng.normal(size=n), "b": rng.integers(0, 5, n), "y": rng.integers(0, 2, n)}
+    )
+
+
+def test_non_finite_target_rows_are_unlabelled_and_counted():
+    frame = _frame().astype({"y": float})
+    frame.loc[:4, "y"] = np.inf
+    frame.loc[5, "y"] = -np.inf
+    for task in (None, "numeric"):
+        t = fa.table.build_table(frame, target="y", task=task)
+        assert t.labelled.sum() == len(frame) - 6  # inf no longer a third class
+        assert any("6 rows without a finite value" in w for w in t.warnings), t.warnings
+    assert fa.table.build_table(frame, target="y").classes == ["0.0", "1.0"]
+
+
+def test_label_variants_warn_and_merge_only_when_told():
+    frame = _frame()
+    labels = np.array(["yes", " yes", "YES ", "no", "no", "No"])
+    frame["y"] = labels[np.arange(len(frame)) % 6]
+    kept = fa.table.build_table(frame, target="y")
+    assert len(kept.classes) == 5 and any("--normalise-labels" in w for w in kept.warnings)
+    with pytest.raises(TargetError, match="--normalise-labels"):
+        fa.table.build_table(frame, target="y", task="binary")
+    merged = fa.table.build_table(frame, target="y", task="binary", normalise_labels=True)
+    # the most frequent spelling names the class (ties: sorted order, trimmed); counts, not
+    # row order, decide
+    assert merged.classes == ["no", "yes"] and np.bincount(merged.y).tolist() == [150, 150]
+    shuffled = frame.sample(frac=1, random_state=1)
+    again = fa.table.build_table(shuffled, target="y", task="binary", normalise_labels=True)
+    assert again.classes == merged.classes
+
+
+def test_datetime_target_points_to_label_time(tmp_path):
+    frame = _frame()
+    frame["y"] = pd.date_range("2025-01-01", periods=len(frame)).strftime("%Y-%m-%d")
+    frame.to_csv(tmp_path / "t.csv", index=False)
+    result = cli("scan", tmp_path / "t.csv", "--target", "y", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "a datetime cannot be a target", "did you mean --label-time?")
+
+
+def test_heldout_target_coded_differently(tmp_path):
+    _frame().to_csv(tmp_path / "train.csv", index=False)
+    test = _frame(100, seed=1)
+    test["y"] = np.where(test["y"] == 1, "pos", "neg")
+    test.to_csv(tmp_path / "test.csv", index=False)
+    args = ["scan", tmp_path / "train.csv", "--test", tmp_path / "test.csv", "--target", "y"]
+    result = cli(*args, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "coded differently", "(0, 1)", "(neg, pos)")
+    # a numeric target with continuous values is not a coding: no false alarm
+    train, held = _frame().assign(y=lambda f: f["a"] * 2), _frame(50, 1).assign(y=0.5)
+    assert fa.table.build_table(train, test=held, target="y").heldout_rows == 50
+
+
+def test_one_bad_date_among_thousands_is_counted_not_dropped(tmp_path):
+    rng = np.random.default_rng(0)
+    n = 3000
+    decided = pd.Timestamp("2025-01-01") + pd.to_timedelta(rng.integers(0, 300, n), unit="D")
+    frame = pd.DataFrame(
+        {
+            "a": rng.normal(size=n),
+            "decided": decided.strftime("%Y-%m-%d"),
+            "paid": (decided + pd.Timedelta(days=5)).strftime("%Y-%m-%d"),
+            "y": rng.integers(0, 2, n),
+        }
+    )
+    frame.loc[17, "paid"] = "not a date"
+    frame.to_csv(tmp_path / "t.csv", index=False)
+    result = fa.audit(str(tmp_path / "t.csv"), target="y", label_time="decided", probes=["timing"])
+    paid = next(c for c in result.document["columns"] if c["column"] == "paid")
+    assert paid["level"] == "critical"  # recorded 5 days after the label time
+    detail = paid["evidence"][0]["detail"]
+    assert detail["values_not_dates"] == 1 and detail["example_not_date"] == "not a date"
+    assert any("1 value is not a date" in w for w in result.document["warnings"])
+
+
+@pytest.mark.parametrize("year", [1600, 2300])
+def test_years_outside_the_nanosecond_range(tmp_path, year):
+    frame = _frame()
+    frame["when"] = [f"{year}-01-{1 + i % 28:02d}" for i in range(len(frame))]
+    frame["decided"] = pd.date_range("2025-01-01", periods=len(frame)).strftime("%Y-%m-%d")
+    frame.to_csv(tmp_path / "t.csv", index=False)
+    for label in ("decided", "when"):  # as a feature, then as the label time itself
+        result = cli(
+            "scan", tmp_path / "t.csv", "--target", "y", "--label-time", label,
+            "--out", tmp_path / label,
+        )  # fmt: skip
+        assert result.exit_code == 0, result.stderr
+    doc = fa.findings.load_findings(tmp_path / "decided" / "findings.json").document
+    when = next(c for c in doc["columns"] if c["column"] == "when")
+    expected = "critical" if year == 2300 else "none"  # 2300 is long after every label time
+    assert when["level"] == expected, when
+
+
+def test_label_time_in_several_formats():
+    frame = _frame().assign(decided=["2025-01-05", "05/01/2025", "Jan 5 2025"] * 100)
+    with pytest.raises(SettingError, match="several date formats"):
+        fa.table.build_table(frame, target="y", label_time="decided")
+    zoned = _frame().assign(decided=["2025-01-05", "2025-01-05T10:00:00+01:00", "05/01/2025"] * 100)
+    with pytest.raises(SettingError, match="several date formats"):
+        fa.table.build_table(zoned, target="y", label_time="decided")
+
+
+def test_horizon_longer_than_a_timedelta(good_csv, tmp_path):
+    for horizon in ("999999999d", "P999999999D"):
+        result = cli(
+            "scan", good_csv, "--target", "y", "--label-time", "when", "--horizon", horizon,
+            "--out", tmp_path / "r",
+        )  # fmt: skip
+        assert_one_line_exit_2(result, "--horizon", horizon)
+    # 290 years still fits: the cutoff lands in 1735, which microsecond times hold
+    t = fa.table.build_table(good_csv, target="y", label_time="when", horizon="106000d")
+    assert t.cutoff_time.min().year == 1734
+
+
+def test_newline_in_a_column_name_is_quoted(tmp_path):
+    frame = _frame()
+    frame["leak\nx"] = frame["y"] + np.random.default_rng(1).normal(0, 0.01, len(frame))
+    frame.to_parquet(tmp_path / "t.parquet")
+    result = cli("scan", tmp_path / "t.parquet", "--target", "y", "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    assert (tmp_path / "r" / "droplist.txt").read_text() == '"leak\\nx"\n'
+    assert '  "leak\\nx": ' in result.stdout
+    again = cli("droplist", tmp_path / "r" / "findings.json")
+    assert again.stdout == '"leak\\nx"\n'
+
+
+def test_pyarrow_index_column_is_audited():
+    import pyarrow as pa
+
+    frame = _frame().assign(key=[f"k{i % 40}" for i in range(300)]).set_index("key")
+    result = fa.audit(pa.Table.from_pandas(frame), target="y")
+    assert "key" in list(result.columns["column"])
+    unnamed = fa.audit(frame.reset_index(drop=True).iloc[10:], target="y")  # row positions only
+    assert "index" not in list(unnamed.columns["column"])
+
+
+def test_columns_one_and_text_one_clash():
+    frame = pd.DataFrame({1: [1, 2, 3] * 20, "1": [4, 5, 6] * 20, "y": [0, 1] * 30})
+    with pytest.raises(InputFileError, match="columns 1 and '1'"):
+        fa.audit(frame, target="y")
+
+
+def test_drafted_dictionary_reads_back_unchanged(tmp_path):
+    names = ["", " leak ", "a,b", 'q"t', '"quoted"', "two\nlines", "y"]
+    frame = pd.DataFrame({n: [1.5, 2.5] * 30 for n in names}).assign(y=[0, 1] * 30)
+    frame.to_parquet(tmp_path / "t.parquet")
+    drafted = cli("dictionary", tmp_path / "t.parquet", "--target", "y")
+    assert drafted.exit_code == 0, drafted.stderr
+    (tmp_path / "d.csv").write_text(drafted.stdout)
+    back = fa.dictionary.read_dictionary(tmp_path / "d.csv")
+    assert list(back.entries) == names and back.entries["y"].role == "target"
+    table = fa.table.build_table(tmp_path / "t.parquet", dictionary=tmp_path / "d.csv")
+    assert table.target == "y" and not table.warnings
+
+
+ACCENTED = pd.DataFrame({"café": ["Zürich", "Genève", "Köln"] * 40, "y": [0, 1] * 60})
+
+
+@pytest.mark.parametrize("encoding", ["utf-8", "utf-8-sig", "utf-16", "utf-16-be"])
+def test_text_with_a_bom_or_in_utf8_is_read(tmp_path, encoding):
+    path = tmp_path / "t.csv"
+    text = ACCENTED.to_csv(index=False)
+    bom = "\ufeff" if encoding == "utf-16-be" else ""  # utf-16 writes its own BOM
+    path.write_bytes((bom + text).encode(encoding))
+    got = fa.io.read_table(path)
+    assert list(got.columns) == ["café", "y"] and got["café"].astype(str).iloc[1] == "Genève"
+    drafted = cli("dictionary", path)
+    assert drafted.exit_code == 0 and drafted.stdout.splitlines()[1].startswith("café,")
+    d = tmp_path / "d.csv"
+    d.write_bytes((bom + "column,role\ny,target\n").encode(encoding))
+    assert fa.dictionary.read_dictionary(d).entries["y"].role == "target"
+
+
+def test_latin1_needs_the_encoding_flag(tmp_path):
+    path = tmp_path / "t.csv"
+    ACCENTED.to_csv(path, index=False, encoding="latin-1")
+    for args in (["scan", path, "--target", "y", "--out", tmp_path / "r"], ["dictionary", path]):
+        assert_one_line_exit_2(cli(*args), "not UTF-8", "--encoding")
+        ok = cli(*args, "--encoding", "latin-1")
+        assert ok.exit_code == 0, ok.stderr
+    assert ok.stdout.splitlines()[1].startswith("café,")  # the drafted dictionary
+    columns = fa.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
+    assert "café" in [c["column"] for c in columns]
+    assert_one_line_exit_2(cli("dictionary", path, "--encoding", "klingon"), "--encoding")
+    d = tmp_path / "d.csv"
+    d.write_bytes("column,role\ncafé,feature\ny,target\n".encode("latin-1"))
+    ACCENTED.to_csv(tmp_path / "u.csv", index=False)  # UTF-8 table, Latin-1 dictionary
+    bad = cli("scan", tmp_path / "u.csv", "--dictionary", d, "--out", tmp_path / "q")
+    assert_one_line_exit_2(bad, "d.csv", "not UTF-8", "--encoding")
+    good = fa.table.build_table(path, dictionary=d, encoding="latin-1")
+    assert good.target == "y" and good.roles["café"] == "feature"
+
+
+def test_a_folder_where_a_file_is_expected(good_csv, tmp_path):
+    folder = tmp_path / "folder"
+    folder.mkdir()
+    for flag in ("--dictionary", "--config"):
+        result = cli("scan", good_csv, "--target", "y", flag, folder, "--out", tmp_path / "r")
+        assert_one_line_exit_2(result, "is a folder, not a file", flag)
+    assert_one_line_exit_2(cli("droplist", folder), "is a folder, not a file")
+    assert_one_line_exit_2(cli("scan", folder), "folder", "holds no .parquet files")

@@ -121,3 +121,53 @@ def test_horizon_sets_the_cutoff(frame):
     t = build_table(frame, target="y", label_time="decided", horizon="30d")
     assert (t.cutoff_time == pd.Timestamp("2025-05-02")).all()
     assert t.cutoff_source == "horizon:30d"
+
+
+def test_named_index_levels_become_columns_unnamed_ones_do_not():
+    from featureaudit.io import as_frame
+
+    keyed = pd.DataFrame({"a": [1, 2, 3], "k": ["x", "y", "z"], "j": [4, 5, 6]})
+    assert as_frame(pa.Table.from_pandas(keyed.set_index("k"))).columns.tolist() == ["k", "a", "j"]
+    assert as_frame(keyed.set_index(["k", "j"])).columns.tolist() == ["k", "j", "a"]
+    assert as_frame(keyed.iloc[[2, 0]]).columns.tolist() == ["a", "k", "j"]  # positions only
+    clash = keyed.set_index("k").assign(k=0)
+    with pytest.raises(Exception, match="index level 'k'"):
+        as_frame(clash)
+
+
+def test_a_few_bad_dates_keep_the_column_a_date_column():
+    from featureaudit.io import UNPARSED_DATES, normalise_frame
+
+    days = pd.Series([f"2025-01-{1 + i % 28:02d}" for i in range(300)])
+    few, many = days.copy(), days.copy()
+    few[[3, 40]] = ["soon", "n/a?"]
+    many[:10] = "soon"  # 10 of 300 is more than 1%: left as text
+    got = normalise_frame(pd.DataFrame({"few": few, "many": many}), source="t")
+    assert pd.api.types.is_datetime64_any_dtype(got["few"]) and got["few"].isna().sum() == 2
+    assert not pd.api.types.is_datetime64_any_dtype(got["many"])
+    assert got.attrs[UNPARSED_DATES] == {"few": (2, "n/a?")}
+    # pandas' own parse of the good values is what we keep
+    assert (got["few"].dropna() == pd.to_datetime(few.drop([3, 40]))).all()
+
+
+def test_times_outside_the_nanosecond_range_convert():
+    from featureaudit.io import numeric_view
+    from featureaudit.times import as_datetime
+
+    times = as_datetime(pd.Series(["1600-03-01", "2300-03-01", None]), column="t")
+    assert [t.year for t in times.dropna()] == [1600, 2300]
+    seconds = numeric_view(times)
+    # days between the two dates, from Python's own calendar arithmetic
+    import datetime as dt
+
+    gap = (dt.date(2300, 3, 1) - dt.date(1600, 3, 1)).days
+    assert (seconds[1] - seconds[0]) / 86400 == gap and np.isnan(seconds[2])
+
+
+@pytest.mark.parametrize("name", ["", " leak ", "a\nb", '"x"', "tab\there", "plain", "a,b"])
+def test_quoted_names_read_back(name):
+    from featureaudit.names import quote_name, unquote_name
+
+    written = quote_name(name)
+    assert "\n" not in written and unquote_name(written) == name
+    assert (written == name) == (name in ("plain", "a,b"))

@@ -208,6 +208,13 @@ def _reference_fit(
     from sklearn.metrics import r2_score, roc_auc_score
     from sklearn.model_selection import KFold, StratifiedKFold
 
+    if task != "numeric":
+        # stratified folds need every class in every fold: fewer folds for rare classes, and
+        # no reference at all when a class has a single row (nothing to learn it from)
+        counts = np.bincount(y.astype(np.int64))
+        folds = min(folds, int(counts[counts > 0].min()))
+    if folds < 2 or len(y) < folds:
+        return 0.0
     if task == "numeric":
         split = KFold(folds, shuffle=True, random_state=seed).split(x)
         pred = np.zeros(len(y))
