@@ -121,6 +121,7 @@ def audit(
     cutoff_time: str | None = None,
     horizon: str | None = None,
     entity: str | None = None,
+    fold_column: str | None = None,
     seed: int = 0,
     probes: list[str] | None = None,
     settings: Settings | None = None,
@@ -144,6 +145,9 @@ def audit(
         The data dictionary CSV (roles, ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
+    fold_column : str, optional
+        The cross-validation fold of each training row; each fold is audited against the
+        other training rows.
     seed : int, default 0
         Seeds every sample and fold, so the same inputs give the same findings.
 
@@ -175,6 +179,7 @@ def audit(
         horizon=horizon,
         entity=entity,
         source=source,
+        fold_column=fold_column,
     )
     if settings is None:
         settings = Settings(seed=seed)

@@ -103,6 +103,9 @@ def scan(
         str | None, typer.Option(help="Cutoff = label time minus this, e.g. 30d.")
     ] = None,
     entity: Annotated[str | None, typer.Option(help="Customer, patient… a row belongs to.")] = None,
+    fold_column: Annotated[
+        str | None, typer.Option(help="The cross-validation fold of each training row.")
+    ] = None,
     out: Annotated[
         str | None, typer.Option(help="Report folder [default: featureaudit-report].")
     ] = None,
@@ -139,6 +142,7 @@ def scan(
         "cutoff_time": cutoff_time,
         "horizon": horizon,
         "entity": entity,
+        "fold_column": fold_column,
         "out": out,
         "fail_at": fail_at,
         "seed": seed,
@@ -165,6 +169,7 @@ def scan(
         cutoff_time=opts.get("cutoff_time"),
         horizon=opts.get("horizon"),
         entity=opts.get("entity"),
+        fold_column=opts.get("fold_column"),
         seed=seed_value,
         settings=settings,
     )

@@ -51,6 +51,9 @@ class AuditTable:
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None  # why target-based probes cannot run
     partitions: dict[str, int] = field(default_factory=dict)  # rows per partition (schema 2)
+    partition_of: np.ndarray | None = None  # partition name per row (str); None as one pool
+    folds: np.ndarray | None = None  # CV fold name per row (str), "" on held-out rows
+    fold_column: str | None = None
 
     @property
     def n_rows(self) -> int:
@@ -88,6 +91,7 @@ def build_table(
     horizon: str | None = None,
     entity: str | None = None,
     source: str | None = None,
+    fold_column: str | None = None,
 ) -> AuditTable:
     """Load and validate every input into an :class:`AuditTable` (raises on bad input)."""
     if test is not None and split_column is not None:
@@ -112,6 +116,7 @@ def build_table(
     heldout = None
     split_desc = "none"
     partitions: dict[str, int] = {}
+    partition_of: np.ndarray | None = None
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
         frame, heldout = _append_test(
@@ -119,6 +124,7 @@ def build_table(
         )
         split_desc = f"test:{tsrc}"
         partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
+        partition_of = np.where(heldout, "test", "train").astype(object)
 
     roles = _resolve_roles(frame, ddict, warnings)
     flags = {
@@ -182,6 +188,7 @@ def build_table(
             held_names = np.where(codes >= 0, names[codes], "(missing)")[heldout]
             values, counts = np.unique(held_names.astype(str), return_counts=True)
             partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
+            partition_of = _partition_names(codes, names, is_train, str(train_value))
 
     table = AuditTable(
         frame=frame,
@@ -195,7 +202,10 @@ def build_table(
         warnings=warnings,
         entity=chosen["entity"],
         partitions=partitions,
+        partition_of=partition_of,
     )
+    if fold_column is not None:
+        _set_folds(table, fold_column, src)
     _set_target(table, chosen["target"], task)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
     for name in frame.columns:
@@ -205,6 +215,43 @@ def build_table(
         elif role not in NON_FEATURE_ROLES:
             table.features.append(name)
     return table
+
+
+def _partition_names(
+    codes: np.ndarray, names: np.ndarray, is_train: np.ndarray, train_value: str
+) -> np.ndarray:
+    """Each row's partition: the training value, or its own held-out value ("(missing)")."""
+    held = np.where(codes >= 0, names[codes], "(missing)").astype(str).astype(object)
+    return np.where(is_train, train_value, held).astype(object)
+
+
+def _set_folds(table: AuditTable, column: str, src: str) -> None:
+    """Read --fold-column: each training row's CV fold (any values, at least two folds)."""
+    _require(table.frame, column, "--fold-column", src)
+    if table.roles.get(column) in ("target", "split", "entity", "label_time", "cutoff_time"):
+        raise SettingError(
+            f"--fold-column {column!r} already has the role {table.roles[column]!r}; "
+            "pass a column that holds only the CV fold of each training row."
+        )
+    train = np.ones(table.n_rows, bool) if table.heldout is None else ~table.heldout
+    values = table.frame[column]
+    missing = train & values.isna().to_numpy()
+    if missing.any():
+        raise SettingError(
+            f"--fold-column {column!r} is blank on {int(missing.sum())} training rows; "
+            "give every training row its fold."
+        )
+    names = values.astype(str).to_numpy(dtype=object)
+    folds = np.where(train, names, "").astype(object)
+    n_folds = np.unique(folds[train].astype(str)).size
+    if n_folds < 2:
+        raise SettingError(
+            f"--fold-column {column!r} has {n_folds} fold on the training rows; "
+            "pass a column with at least two folds."
+        )
+    table.folds = folds
+    table.fold_column = column
+    table.roles[column] = "split"
 
 
 def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:
