@@ -241,7 +241,7 @@ def _set_folds(table: AuditTable, column: str, src: str) -> None:
             f"--fold-column {column!r} is blank on {int(missing.sum())} training rows; "
             "give every training row its fold."
         )
-    names = values.astype(str).to_numpy(dtype=object)
+    names = _fold_names(values)
     folds = np.where(train, names, "").astype(object)
     n_folds = np.unique(folds[train].astype(str)).size
     if n_folds < 2:
@@ -252,6 +252,18 @@ def _set_folds(table: AuditTable, column: str, src: str) -> None:
     table.folds = folds
     table.fold_column = column
     table.roles[column] = "split"
+
+
+def _fold_names(values: pd.Series) -> np.ndarray:
+    """Fold values as text; whole numbers stored as floats (blank held-out rows) print as
+    integers, so fold 2 is "fold 2", not "fold 2.0"."""
+    if pd.api.types.is_float_dtype(values.dtype):
+        v = values.to_numpy(dtype="float64")
+        finite = np.isfinite(v)
+        if np.all(v[finite] == np.round(v[finite])):
+            text = np.array([str(int(x)) if f else "" for x, f in zip(v, finite, strict=True)])
+            return text.astype(object)
+    return values.astype(str).to_numpy(dtype=object)
 
 
 def _require(frame: pd.DataFrame, column: str, flag: str, src: str) -> None:

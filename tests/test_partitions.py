@@ -123,7 +123,7 @@ def test_scaler_on_all_training_rows_before_kfold_is_caught_per_fold(breast_canc
     assert result.document["dataset"]["folds"] == 5
     found = _fit_findings(result, Level.HIGH)
     folds = {p for p in _pairs(found) if p[0].startswith("fold")}
-    assert folds == {(f"fold {k}.0", "other folds") for k in range(5)}
+    assert folds == {(f"fold {k}", "other folds") for k in range(5)}
     fold_found = [e for e in found if e["detail"].get("biases")]
     assert all("cross-validated score, not the test score" in e["summary"] for e in fold_found)
     assert "fold" not in {c["column"] for c in result.document["columns"]}
@@ -141,7 +141,7 @@ def test_unscaled_folds_are_clean(breast_cancer):
     ]
     assert loud == []
     pairs = {tuple(f["partitions"]) for f in result.document["dataset_findings"]}
-    assert ("fold 0.0", "other folds") in pairs
+    assert ("fold 0", "other folds") in pairs
 
 
 def test_fold_column_errors(breast_cancer):
@@ -157,3 +157,26 @@ def test_fold_column_errors(breast_cancer):
         fa.audit(one, target="malignant", split_column="split", fold_column="fold")
     with pytest.raises(SettingError, match="role 'target'"):
         fa.audit(frame, target="malignant", split_column="split", fold_column="malignant")
+
+
+def test_dossier_groups_split_findings_by_pair(wine, tmp_path):
+    from featureaudit.report import render_dossier
+
+    frame = _three_way(wine, 4)
+    result = fa.audit(frame, target="cultivar", split_column="split", probes=["twins"])
+    html = render_dossier(result.findings)
+    heads = [h for h in html.split('<h3 class="pair">')[1:]]
+    names = [h.split("</h3>")[0] for h in heads]
+    assert {"train vs valid", "train vs test", "valid vs test"} <= set(names)
+    assert len(names) == len(set(names))  # each pair once
+
+
+def test_one_heldout_partition_has_no_pair_headings(wine):
+    from featureaudit.report import render_dossier
+
+    frame = wine.assign(split=np.where(np.arange(len(wine)) % 4 == 0, "test", "train"))
+    result = fa.audit(frame, target="cultivar", split_column="split", probes=["twins"])
+    assert '<h3 class="pair">' not in render_dossier(result.findings)
+    assert {tuple(f["partitions"]) for f in result.document["dataset_findings"]} == {
+        ("train", "test")
+    }
