@@ -180,3 +180,49 @@ def test_one_heldout_partition_has_no_pair_headings(wine):
     assert {tuple(f["partitions"]) for f in result.document["dataset_findings"]} == {
         ("train", "test")
     }
+
+
+def test_copies_between_valid_and_test_are_named_with_that_pair(breast_cancer):
+    # real rows (sklearn's breast-cancer set); 20 validation rows copied into the test part
+    frame = _three_way(breast_cancer, 5)
+    copies = frame[frame.split == "valid"].iloc[:20].assign(split="test")
+    planted = pd.concat([frame, copies], ignore_index=True)
+    result = fa.audit(planted, target="malignant", split_column="split", probes=["twins"])
+    levels = {
+        tuple(f["partitions"]): f["level"]
+        for f in result.document["dataset_findings"]
+        if f["statistic"] == "heldout_share_with_twin"
+    }
+    assert levels[("valid", "test")] in ("high", "critical")
+    assert levels[("train", "test")] == "none"
+    assert levels[("train", "valid")] == "none"
+
+
+def test_shared_entities_across_folds(breast_cancer):
+    from sklearn.model_selection import GroupKFold
+
+    # an invented grouping: three consecutive rows per entity
+    frame = breast_cancer.assign(entity=np.arange(len(breast_cancer)) // 3)
+    row_folds = _with_folds(frame, 6).fold
+    grouped = np.zeros(len(frame))
+    for k, (_, part) in enumerate(GroupKFold(5).split(frame, groups=frame.entity)):
+        grouped[part] = k
+    for folds, loud in ((row_folds, True), (grouped, False)):
+        data = frame.assign(fold=folds, split=np.where(np.isnan(folds), "test", "train"))
+        if not loud:
+            data["split"] = "train"
+        result = fa.audit(
+            data,
+            target="malignant",
+            split_column="split" if loud else None,
+            fold_column="fold",
+            entity="entity",
+            probes=["twins"],
+        )
+        fold_levels = [
+            Level.parse(f["level"])
+            for f in result.document["dataset_findings"]
+            if f["kind"] == "shared_entities_across_split" and f["partitions"][0].startswith("fold")
+        ]
+        assert len(fold_levels) == 5
+        assert (min(fold_levels) >= Level.HIGH) if loud else (max(fold_levels) == Level.NONE)
