@@ -28,6 +28,7 @@ CONFIG_KEYS = (
     "cutoff_time",
     "horizon",
     "entity",
+    "fold_column",
     "out",
     "fail_at",
     "seed",

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -226,3 +228,25 @@ def test_shared_entities_across_folds(breast_cancer):
         ]
         assert len(fold_levels) == 5
         assert (min(fold_levels) >= Level.HIGH) if loud else (max(fold_levels) == Level.NONE)
+
+
+def test_fold_column_on_the_command_line(breast_cancer, tmp_path):
+    from typer.testing import CliRunner
+
+    from featureaudit.cli import app
+
+    path = tmp_path / "cv.csv"
+    _with_folds(breast_cancer, 7).to_csv(path, index=False)
+    runner = CliRunner()
+    base = ["scan", str(path), "--target", "malignant", "--split-column", "split"]
+    bad = runner.invoke(app, [*base, "--fold-column", "nope", "--out", str(tmp_path / "bad")])
+    assert bad.exit_code == 2
+    assert "--fold-column" in bad.stderr and len(bad.stderr.strip().splitlines()) == 1
+    assert not (tmp_path / "bad" / "findings.json").exists()
+    out = tmp_path / "report"
+    config = tmp_path / "settings.toml"
+    config.write_text('fold_column = "fold"\n')
+    good = runner.invoke(app, [*base, "--config", str(config), "--out", str(out)])
+    assert good.exit_code == 0, good.stderr
+    doc = json.loads((out / "findings.json").read_text())
+    assert doc["dataset"]["folds"] == 5
