@@ -124,6 +124,7 @@ def audit(
     cutoff_time: str | None = None,
     horizon: str | None = None,
     entity: str | None = None,
+    fold_column: str | None = None,
     seed: int = 0,
     probes: list[str] | None = None,
     settings: Settings | None = None,
@@ -151,6 +152,9 @@ def audit(
         ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
+    fold_column : str, optional
+        The cross-validation fold of each training row; each fold is audited against the
+        other training rows.
     seed : int, default 0
         Seeds every sample and fold, so the same inputs give the same findings. Any whole
         number; one outside [0, 2**31 - 1) is mapped into it.
@@ -196,6 +200,7 @@ def audit(
         code=code or None,
         encoding=encoding,
         normalise_labels=normalise_labels or None,
+        fold_column=fold_column,
     )
     chosen = _settings(settings, seed)
     if probes is not None and (

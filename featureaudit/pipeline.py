@@ -66,6 +66,7 @@ def run_audit(
         timings[name] = round(time.perf_counter() - start, 3)
         evidence.extend(found)
         skipped.extend(skips)
+    evidence.extend(_audit_pairs(table, settings, names, available, timings))
     if code is not None:  # the training code's findings on named columns join their evidence
         from featureaudit.code.join import code_evidence
 
@@ -85,11 +86,11 @@ def run_audit(
         "entity": table.entity,
         "audited_columns": len(verdicts),
         "partitions": table.partitions or {"all rows": table.n_rows},
-        "folds": None,
+        "folds": _fold_count(table),
     }
     columns = [v.to_dict() for v in verdicts]
     pair = _compared_pair(table)
-    split_findings = [{**e.to_dict(), "partitions": pair} for e in dataset_findings]
+    split_findings = [_with_pair(e.to_dict(), pair) for e in dataset_findings]
     for c in columns:
         c.setdefault("accepted", None)
     # after the ranker: remedies and measured impact (never change what a probe measured)
@@ -119,6 +120,71 @@ def run_audit(
         findings.document["code_findings"] = code_entries(code)
         findings.document["settings"]["code_files"] = [str(f["file"]) for f in code.files]
     return findings
+
+
+# What a pair's view contributes: the findings about the two sides, and fits on all rows.
+# Everything else (a column's own power, its timing) is the same on every pair and comes
+# from the run over the whole table.
+_PAIR_KINDS = (
+    "duplicate_rows_across_split",
+    "shared_entities_across_split",
+    "time_overlap_across_split",
+    "split_shift",
+    "fit_on_all_rows",
+)
+_FOLD_NOTE = "; this biases the cross-validated score, not the test score"
+
+
+def _audit_pairs(
+    table: AuditTable,
+    settings: Settings,
+    names: list[str],
+    available: dict,
+    timings: dict[str, float],
+) -> list[Evidence]:
+    """Run the side-comparing probes on each further pair (each partition, each fold) and
+    tag what they found with the pair; nothing when the table is a single pair."""
+    from dataclasses import replace
+
+    from featureaudit.splits import pair_views
+
+    out: list[Evidence] = []
+    for view in pair_views(table):
+        for name in view.probes:
+            if name not in names:
+                continue
+            start = time.perf_counter()
+            try:
+                found, _ = available[name]().run(view.table, settings)
+            except FeatureAuditError:
+                raise
+            except Exception as exc:
+                raise ProbeFailed(name, exc) from exc
+            timings[name] = round(timings.get(name, 0.0) + time.perf_counter() - start, 3)
+            label = f" ({view.sides[0]} vs {view.sides[1]})"
+            for e in found:
+                if e.kind not in _PAIR_KINDS or (e.column is not None and e.rank < 1):
+                    continue
+                summary = (e.summary or e.statistic) + label + (_FOLD_NOTE if view.fold else "")
+                detail = {**e.detail, "partitions": list(view.sides)}
+                if view.fold:
+                    detail["biases"] = "cross-validated score"
+                out.append(replace(e, summary=summary, detail=detail))
+    return out
+
+
+def _fold_count(table: AuditTable) -> int | None:
+    if table.folds is None:
+        return None
+    train = table.folds != ""
+    return int(len(set(table.folds[train].tolist())))
+
+
+def _with_pair(finding: dict, pair: list[str]) -> dict:
+    """A dataset finding with its ``partitions``: the pair its probe ran on."""
+    detail = dict(finding.get("detail") or {})
+    own = detail.pop("partitions", None)
+    return {**finding, "detail": detail, "partitions": list(own) if own else pair}
 
 
 def _compared_pair(table: AuditTable) -> list[str]:

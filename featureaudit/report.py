@@ -139,6 +139,7 @@ def render_dossier(findings: Findings) -> str:
             clean=[c for c in doc["columns"] if c["level"] == "none"],
             drops=droplist(findings, "high"),
             refits=_refits(doc),
+            split_groups=split_groups(doc["dataset_findings"]),
             methods=list(doc.get("settings", {}).get("methods", {}).items()),
         )
     )
@@ -160,6 +161,16 @@ def render_summary(findings: Findings) -> str:
             refits=_refits(doc),
         )
     )
+
+
+def split_groups(found: list[dict[str, Any]]) -> list[tuple[str, list[dict[str, Any]]]]:
+    """Split findings grouped by the pair they compare, each group in the findings' order,
+    groups in the order their first finding appears (the most severe first)."""
+    groups: dict[str, list[dict[str, Any]]] = {}
+    for f in found:
+        pair = f.get("partitions") or []
+        groups.setdefault(" vs ".join(str(p) for p in pair), []).append(f)
+    return list(groups.items())
 
 
 def _refits(doc: dict[str, Any]) -> list[str]:

@@ -54,6 +54,9 @@ class AuditTable:
     partitions: dict[str, int] = field(default_factory=dict)  # rows per partition (schema 2)
     # date columns with a few values that are not dates: column -> (count, an example)
     unparsed_dates: dict[str, tuple[int, str]] = field(default_factory=dict)
+    partition_of: np.ndarray | None = None  # partition name per row (str); None as one pool
+    folds: np.ndarray | None = None  # CV fold name per row (str), "" on held-out rows
+    fold_column: str | None = None
 
     @property
     def n_rows(self) -> int:
@@ -88,6 +91,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
     horizon, entity, source = spec.horizon, spec.entity, spec.source
     encoding, normalise_labels = spec.encoding, bool(spec.normalise_labels)
+    fold_column = spec.fold_column
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
     frame = as_frame(data, what=src, encoding=encoding)
     if len(frame) == 0:
@@ -98,6 +102,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     heldout = None
     split_desc = "none"
     partitions: dict[str, int] = {}
+    partition_of: np.ndarray | None = None
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
         frame, heldout = _append_test(
@@ -105,6 +110,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         )
         split_desc = f"test:{tsrc}"
         partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
+        partition_of = np.where(heldout, "test", "train").astype(object)
 
     roles = _resolve_roles(frame, ddict, warnings)
     flags = {
@@ -169,6 +175,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
             _warn_missing_split(codes, col, warnings)
             values, counts = np.unique(held_names.astype(str), return_counts=True)
             partitions.update({str(v): int(c) for v, c in zip(values, counts, strict=True)})
+            partition_of = _partition_names(codes, names, is_train, str(train_value))
 
     table = AuditTable(
         frame=frame,
@@ -183,6 +190,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         entity=chosen["entity"],
         partitions=partitions,
         unparsed_dates=dict(frame.attrs.get(UNPARSED_DATES, {})),
+        partition_of=partition_of,
     )
     for name, (count, example) in sorted(table.unparsed_dates.items()):
         rest = int(frame[name].notna().sum())
@@ -190,6 +198,8 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
             f"column {name!r}: {count} value{'s are' if count != 1 else ' is'} not a date "
             f"(e.g. {example!r}) and read as missing; the other {rest} are dates."
         )
+    if fold_column is not None:
+        _set_folds(table, fold_column, src)
     _set_target(table, chosen["target"], task, normalise_labels)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
     for name in frame.columns:
@@ -518,3 +528,52 @@ def _has_relative_known_at(table: AuditTable) -> bool:
         for c, e in table.dictionary.entries.items()
         if c in table.frame.columns
     )
+
+
+def _partition_names(
+    codes: np.ndarray, names: np.ndarray, is_train: np.ndarray, train_value: str
+) -> np.ndarray:
+    """Each row's partition: the training value, or its own held-out value ("(missing)")."""
+    held = np.where(codes >= 0, names[codes], "(missing)").astype(str).astype(object)
+    return np.where(is_train, train_value, held).astype(object)
+
+
+def _set_folds(table: AuditTable, column: str, src: str) -> None:
+    """Read --fold-column: each training row's CV fold (any values, at least two folds)."""
+    _require(table.frame, column, "--fold-column", src)
+    if table.roles.get(column) in ("target", "split", "entity", "label_time", "cutoff_time"):
+        raise SettingError(
+            f"--fold-column {column!r} already has the role {table.roles[column]!r}; "
+            "pass a column that holds only the CV fold of each training row."
+        )
+    train = np.ones(table.n_rows, bool) if table.heldout is None else ~table.heldout
+    values = table.frame[column]
+    missing = train & values.isna().to_numpy()
+    if missing.any():
+        raise SettingError(
+            f"--fold-column {column!r} is blank on {int(missing.sum())} training rows; "
+            "give every training row its fold."
+        )
+    names = _fold_names(values)
+    folds = np.where(train, names, "").astype(object)
+    n_folds = np.unique(folds[train].astype(str)).size
+    if n_folds < 2:
+        raise SettingError(
+            f"--fold-column {column!r} has {n_folds} fold on the training rows; "
+            "pass a column with at least two folds."
+        )
+    table.folds = folds
+    table.fold_column = column
+    table.roles[column] = "split"
+
+
+def _fold_names(values: pd.Series) -> np.ndarray:
+    """Fold values as text; whole numbers stored as floats (blank held-out rows) print as
+    integers, so fold 2 is "fold 2", not "fold 2.0"."""
+    if pd.api.types.is_float_dtype(values.dtype):
+        v = values.to_numpy(dtype="float64")
+        finite = np.isfinite(v)
+        if np.all(v[finite] == np.round(v[finite])):
+            text = np.array([str(int(x)) if f else "" for x, f in zip(v, finite, strict=True)])
+            return text.astype(object)
+    return values.astype(str).to_numpy(dtype=object)

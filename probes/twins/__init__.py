@@ -28,6 +28,7 @@ import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.levels import Ladder, Level
+from featureaudit.probes.twins._interpolated import interpolated_rows
 from featureaudit.probes.twins._nearcopy import near_copies, row_labels
 from featureaudit.probes.twins.hashing import column_codes, member, row_hashes
 from featureaudit.registry import Probe, ProbeOutput, register
@@ -218,6 +219,7 @@ class Twins(Probe):
             evidence.append(self._within(table, cols, settings))
         else:
             evidence.append(self._across(table, cols, heldout, rng, settings))
+            evidence.extend(self._interpolated(table, cols, heldout, settings))
         if table.entity is not None:
             evidence.append(self._entities(table, heldout, simulated))
         return evidence, skipped
@@ -337,6 +339,37 @@ class Twins(Probe):
             severity=min(1.0, excess * 5),
             detail=detail,
         )
+
+    def _interpolated(
+        self, table: AuditTable, cols: list[str], heldout: np.ndarray, settings: Settings
+    ) -> list[Evidence]:
+        """Held-out rows on a segment between two training rows of their class (or the
+        reverse): oversampling before the split. Reported only when some are found."""
+        t = self.thresholds
+        found = interpolated_rows(table, cols, heldout, row_hashes(table.frame, cols, 1))
+        if found is None or found["heldout_rows_explained"] == 0:
+            return []
+        share = found["share"]
+        level, notes = copy_level(share, found["heldout_rows_explained"], None, None, t)
+        return [
+            Evidence(
+                self.name,
+                "duplicate_rows_across_split",
+                "heldout_share_interpolated",
+                share,
+                t.copies.floor(Level.HIGH),
+                level,
+                summary=(
+                    f"{share:.1%} of held-out rows are explained by interpolation across the "
+                    f"split ({found['heldout_rows_between_training_rows']} held-out rows lie "
+                    "between two training rows of their class, "
+                    f"{found['training_rows_between_heldout_rows']} training rows between two "
+                    "held-out rows): rows were oversampled before the split"
+                ),
+                severity=min(1.0, share * 5),
+                detail={**found, "notes": notes},
+            )
+        ]
 
     def _entities(self, table: AuditTable, heldout: np.ndarray, simulated: bool) -> Evidence:
         assert table.entity is not None

@@ -360,3 +360,43 @@ def test_describe_quotes_the_tolerance_in_force():
     assert "3d" in Timing.describe(Settings(time_tolerance="3d"))
     auto = Timing.describe(Settings())
     assert "resolution" in auto and "10 %" in auto and "50 %" in auto
+
+
+# --- partitions: time order between each pair ----------------------------------------------
+
+
+def _dated_three_way(order: tuple[str, str, str]) -> pd.DataFrame:
+    """statsmodels' bundled macrodata quarters (real dates), cut 60/20/20 in time and
+    named in ``order`` from earliest to latest."""
+    macro = sm.datasets.macrodata.load_pandas().data
+    dates = pd.PeriodIndex.from_fields(
+        year=macro.year.astype(int), quarter=macro.quarter.astype(int), freq="Q"
+    ).to_timestamp()
+    frame = pd.DataFrame({"realgdp": macro.realgdp, "infl": macro.infl, "when": dates})
+    n = len(frame)
+    cut = np.array([0.6 * n, 0.8 * n])
+    pos = np.arange(n)
+    frame["split"] = np.where(pos < cut[0], order[0], np.where(pos < cut[1], order[1], order[2]))
+    return frame
+
+
+def _overlaps(frame: pd.DataFrame) -> dict[tuple[str, ...], str]:
+    result = fa.audit(frame, split_column="split", label_time="when", probes=["timing"])
+    return {
+        tuple(f["partitions"]): f["level"]
+        for f in result.document["dataset_findings"]
+        if f["kind"] == "time_overlap_across_split"
+    }
+
+
+def test_chronological_train_valid_test_is_clean():
+    found = _overlaps(_dated_three_way(("train", "valid", "test")))
+    assert {("train", "valid"), ("train", "test"), ("valid", "test")} <= set(found)
+    assert set(found.values()) == {"none"}
+
+
+def test_test_earlier_than_valid_is_caught_on_that_pair():
+    found = _overlaps(_dated_three_way(("train", "test", "valid")))
+    assert found[("valid", "test")] in ("high", "critical")  # every test row precedes valid
+    assert found[("train", "valid")] == "none"
+    assert found[("train", "test")] == "none"

@@ -217,3 +217,91 @@ def test_copy_excess_matches_a_hand_count_and_levels_are_pure():
     assert entity_level(0.6, simulated=True) == Level.LOW
     assert entity_level(0.6, simulated=False) == Level.CRITICAL
     assert THRESHOLDS.copies.floor(Level.HIGH) == 0.015
+
+
+# --- oversampling before the split ----------------------------------------------------------
+
+
+def _smote_frame(loader, seed: int, before: bool, tmp_path=None) -> pd.DataFrame:
+    """imbalanced-learn's SMOTE on a bundled scikit-learn dataset, applied before or after
+    scikit-learn's train_test_split (after: on the training rows only)."""
+    from imblearn.over_sampling import SMOTE
+    from sklearn.model_selection import train_test_split
+
+    data = loader(as_frame=True)
+    x, y = data.data, data.target
+    if before:
+        x, y = SMOTE(random_state=seed).fit_resample(x, y)
+    x_tr, x_te, y_tr, y_te = train_test_split(x, y, test_size=0.25, random_state=seed, stratify=y)
+    if not before:
+        x_tr, y_tr = SMOTE(random_state=seed).fit_resample(x_tr, y_tr)
+    frame = pd.concat(
+        [
+            x_tr.assign(y=np.asarray(y_tr), split="train"),
+            x_te.assign(y=np.asarray(y_te), split="test"),
+        ],
+        ignore_index=True,
+    )
+    if tmp_path is not None:  # a CSV round trip
+        path = tmp_path / f"smote_{seed}.csv"
+        frame.to_csv(path, index=False)
+        frame = pd.read_csv(path)
+    return frame
+
+
+def _interpolated(frame: pd.DataFrame) -> list[dict]:
+    result = fa.audit(frame, target="y", split_column="split", probes=["twins"])
+    return [
+        f
+        for f in result.document["dataset_findings"]
+        if f["statistic"] == "heldout_share_interpolated"
+    ]
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_smote_before_the_split_is_caught_at_high(seed, tmp_path):
+    # Vandewiele et al. 2021 (Artif. Intell. Med. 111:101987): oversampling before
+    # partitioning puts synthetic rows between real rows on both sides. Real data:
+    # scikit-learn's bundled breast-cancer set, oversampled by imbalanced-learn's SMOTE.
+    from sklearn.datasets import load_breast_cancer
+
+    found = _interpolated(_smote_frame(load_breast_cancer, seed, before=True, tmp_path=tmp_path))
+    assert len(found) == 1
+    f = found[0]
+    assert f["kind"] == "duplicate_rows_across_split"
+    assert f["level"] in ("high", "critical")
+    # SMOTE adds 145 rows to 569; a quarter of the 714 is held out, so about 36 synthetic
+    # held-out rows, 64 % of them with both ends in training (0.8² … 0.75²): ~10 % of 179.
+    assert 0.04 <= f["value"] <= 0.25
+    assert f["partitions"] == ["train", "test"]
+    assert f["detail"]["pairs"] and len(f["detail"]["pairs"][0]) == 3
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_smote_after_the_split_on_training_rows_is_clean(seed):
+    from sklearn.datasets import load_breast_cancer, load_wine
+
+    for loader in (load_breast_cancer, load_wine):
+        assert _interpolated(_smote_frame(loader, seed, before=False)) == []
+
+
+def test_a_row_at_a_known_point_of_a_segment_is_found():
+    # SMOTE's rule x_new = x_i + λ (x_nn − x_i) (Chawla et al. 2002), λ = 0.3, by hand
+    rng = np.random.default_rng(0)
+    train = rng.normal(size=(300, 5))
+    held = rng.normal(size=(60, 5))
+    # as SMOTE does, the other end is the nearest neighbour of row 10 (by numpy, by hand)
+    j = int(np.argsort(((train - train[10]) ** 2).sum(axis=1))[1])
+    held[0] = train[10] + 0.3 * (train[j] - train[10])
+    frame = pd.DataFrame(np.vstack([train, held]), columns=list("abcde"))
+    frame["split"] = ["train"] * 300 + ["test"] * 60
+    result = fa.audit(frame, split_column="split", probes=["twins"])
+    found = [
+        f
+        for f in result.document["dataset_findings"]
+        if f["statistic"] == "heldout_share_interpolated"
+    ]
+    assert len(found) == 1
+    assert found[0]["value"] == pytest.approx(1 / 60)
+    assert sorted(found[0]["detail"]["pairs"][0]) == sorted(["row 10", "row 300", f"row {j}"])
+    assert found[0]["level"] == "low"  # a single row: fewer than five twins give low at most
