@@ -688,7 +688,8 @@ def _peer_figures(
             "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
             "without": [features[k] for k in suspects if k != i and k in keep],
         }
-        shares[features[i]]["others_power"] = without.power
+    for i in strong:  # what all the other columns reach together, for the match rule
+        shares[features[i]]["others_power"] = fit(keep[keep != i]).power
     return shares, ref
 
 
