@@ -13,7 +13,27 @@ tell a leak from a strong honest feature, so three more figures decide the level
 - ``reference``: an out-of-fold LightGBM on the columns that are not suspects; a column
   that alone matches what all of them reach together is suspect;
 - near-determinism: an out-of-fold Gini of 0.98 (AUC 0.99) or R² of 0.98 alone is
-  critical (common practice, no source: honest tabular features rarely reach it).
+  critical (common practice, no source: honest tabular features rarely reach it);
+- ``unique_lift``: what the column adds to the rest of the table. For the suspects (the
+  columns that a large lift would raise to high) and the strongest columns, at most
+  ``lift_columns`` of them, the reference model is fitted on the other columns without
+  and with the column, the other suspects left out of both, so two leaks cannot clear
+  each other. A leak matters through what it adds: "almost a function of the target"
+  alone is no leak when the lift is nil (an honest site code the class nearly fixes);
+- calibration: each share is placed among the same share of the table's other columns
+  (robust z on the log residual-variance scale), so a share 20 times the typical one
+  is high even under a fixed floor, and one that does not stand out is not;
+- presence: one bin alone (the missing values, or one pile such as the zeros) that tells
+  the two classes apart, with a large unique lift, is high: a value filled in only
+  when the outcome happened.
+
+Evidence ``detail["unique_lift"]`` (also read for a column's impact) is ``{"value",
+"low", "high", "statistic", "folds", "error_without", "error_with", "without"}``:
+``value`` is 1 − error_with / error_without on the pooled out-of-fold predictions of the
+seeded reference model (error = 1 − AUC, macro one-vs-rest for several classes, or
+1 − R²; ``statistic`` says which), ``low`` and ``high`` the smallest and largest of the
+same ratio per fold (``folds`` of them, the same folds in both fits), ``without`` the
+other suspects left out of both fits. Columns that were not examined carry ``None``.
 
 Identifiers and the row position are audited for ``row_order_tells_target``: they have no
 business predicting anything, so the level follows the effect size and a z-test against
@@ -71,6 +91,24 @@ class SoloThresholds:
       table, and how many strong columns get their own leave-one-out reference fit (cost).
     - ``order_power`` / ``order_z``: identifiers and row position; z against the Mann–Whitney
       null (z >= 4 for high is common practice for many parallel tests, no source).
+    - ``lift_columns`` / ``lift_power``: how many suspects or strong columns get a unique
+      lift (two reference fits each; cost), and the power a column needs to get one.
+    - ``lift_nil`` / ``lift_large``: a relative error reduction under 0.1 is nil, from 0.3
+      (with every fold positive) large. On the bench (3 seeds, 14 tables) planted leaks add
+      0.5–1.0 and honest codes the class nearly fixes 0.1 or less where measurable; common
+      practice for "adds nothing" otherwise, no source.
+    - ``lift_error_floor``: when the rest of the table already predicts the target with
+      1 − AUC (or 1 − R²) under 0.005 the lift cannot be measured (palmerpenguins: the
+      measurements tell the species at 1 − AUC ≈ 0.002, measured); determinism then needs
+      a share beyond the typical one to reach high.
+    - ``share_z_high``: the share's robust z (median, 1.4826·MAD, scale at least
+      ``share_scale_floor``) among the table's other columns on the −log(1 − share) scale,
+      needed for high by a share: breast cancer's 5 %-flipped, jittered copy stands at
+      z ≈ 7 (share 0.6 against a typical 0.02); honest columns that stand out as far (z up
+      to 8 there) are explained by their peers beyond the target and stay below high;
+      digits' honest pixels stand at z ≈ 2 (measured, 3 was chosen between).
+    - ``presence_power``: |TPR − FPR| of one bin's indicator; filled-only-when-positive
+      columns reach 0.9 or more, honest columns on the bench 0.6 or less (measured).
     """
 
     share_floors: tuple[tuple[Level, float], ...] = (
@@ -285,6 +323,16 @@ class Solo(Probe):
             f"alone within {th.match_margin:g} of an out-of-fold LightGBM on the other "
             f"columns (power {th.match_power:g} or more) is high; almost a function of the "
             f"target (Theil's U): {func}; power {th.deterministic:g} alone is critical. "
+            f"A share reaches high only {th.share_z_high:g} robust z above the table's other "
+            f"shares (on the log residual-variance scale), and then even under the fixed "
+            f"floor. For at most {th.lift_columns} suspects or strong columns the unique lift "
+            f"is measured: the relative reduction of 1 − AUC (or 1 − R²) when the column "
+            f"joins the other columns (other suspects left out) in the same reference model, "
+            f"with its range over the folds; under {th.lift_nil:g} it is nil and holds "
+            f"determinism at low and other rules at medium; when the others already reach an "
+            f"error under {th.lift_error_floor:g} it cannot be measured. One bin alone (missing "
+            f"values or one pile) separating the classes by {th.presence_power:g} with a lift "
+            f"of {th.lift_large:g} or more is high. "
             f"Identifiers and the row position tell the target when the Mann–Whitney z "
             f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
             f"Under {settings.min_rows} labelled rows levels stop at medium."
@@ -686,7 +734,7 @@ def _peer_figures(
         shares[features[i]]["unique_lift"] = {
             **unique_lift(without, with_),
             "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
-            "without": [features[k] for k in suspects if k != i and k in keep],
+            "without": sorted(({features[k] for k in suspects} | flagged) - {features[i]}),
         }
     for i in strong:  # what all the other columns reach together, for the match rule
         shares[features[i]]["others_power"] = fit(keep[keep != i]).power
