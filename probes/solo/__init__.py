@@ -602,7 +602,6 @@ def _proxy_evidence(
         "decided_by": why,
         "share_z": peer.get("share_z"),
         "presence_power": figures.presence,
-        "tested_without": peer.get("tested_without") or [],
         "unique_lift": peer.get("unique_lift"),
     }
     severity = 0.5 * power + 0.5 * min(1.0, (share or 0.0) / 0.5)

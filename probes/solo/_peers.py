@@ -29,9 +29,6 @@ __all__ = [
 
 RIDGE = 1e-3  # on correlations; keeps near-collinear peers invertible
 COPY_CORR = 0.995  # a peer this correlated is a copy of the column, not evidence about it
-# Two strong columns this correlated may explain each other away; each is then also tested
-# against the peers without the other (common practice, no source).
-PARTNER_CORR = 0.6
 MAX_PEERS = 200  # the most powerful columns serve as peers beyond this many
 
 
@@ -143,7 +140,6 @@ def dependence_shares(
                     "flag_round": None,
                     "peers": 0,
                     "typical_share": None,
-                    "tested_without": [],
                 }
                 continue
             peers = np.array(
@@ -155,26 +151,10 @@ def dependence_shares(
                 dtype=np.int64,
             )
             figs = _figures(corr, j, peers, ys)
-            partners = [
-                k
-                for k in peers
-                if inp.power[k] >= flag_power
-                and inp.power[j] >= flag_power
-                and abs(corr[j, k]) >= PARTNER_CORR
-            ]
-            group: list[str] = []
-            if partners:
-                alone = _figures(corr, j, np.array([k for k in peers if k not in partners]), ys)
-                if (
-                    alone["share"] - alone["peers_beyond_target"]
-                    > figs["share"] - figs["peers_beyond_target"]
-                ):
-                    figs, group = alone, [inp.names[k] for k in partners]
             out[inp.names[j]] = {
                 **figs,
                 "flag_round": flagged.get(j),
-                "peers": int(peers.size) - len(group),
-                "tested_without": group,
+                "peers": int(peers.size),
             }
         new = []
         for j, name in enumerate(inp.names):
