@@ -17,7 +17,15 @@ from scipy.special import ndtri
 
 from featureaudit.threads import limited_blas, model_threads
 
-__all__ = ["PeerInput", "dependence_shares", "reference_power", "normal_scores"]
+__all__ = [
+    "PeerInput",
+    "RefFit",
+    "dependence_shares",
+    "reference_fit",
+    "reference_power",
+    "normal_scores",
+    "unique_lift",
+]
 
 RIDGE = 1e-3  # on correlations; keeps near-collinear peers invertible
 COPY_CORR = 0.995  # a peer this correlated is a copy of the column, not evidence about it
@@ -142,8 +150,9 @@ def dependence_shares(
                 ][:MAX_PEERS],
                 dtype=np.int64,
             )
+            figs = _figures(corr, j, peers, ys)
             out[inp.names[j]] = {
-                **_figures(corr, j, peers, ys),
+                **figs,
                 "flag_round": flagged.get(j),
                 "peers": int(peers.size),
             }
@@ -168,6 +177,19 @@ def dependence_shares(
     return out
 
 
+@dataclass(frozen=True)
+class RefFit:
+    """An out-of-fold reference fit: its power, and its error overall and per fold.
+
+    The error is 1 − AUC (macro one-vs-rest for several classes) or 1 − R²; every fit on
+    the same sample uses the same seeded folds, so fold errors of two fits pair up.
+    """
+
+    power: float
+    error: float
+    fold_errors: tuple[float, ...]
+
+
 def reference_power(
     inp: PeerInput,
     columns: np.ndarray,
@@ -178,8 +200,25 @@ def reference_power(
     n_jobs: int = 1,
 ) -> float:
     """Out-of-fold LightGBM on the given columns of the sample: Gini of its AUC, or its R²."""
+    return reference_fit(inp, columns, task, n_classes, seed, folds, n_jobs).power
+
+
+def reference_fit(
+    inp: PeerInput,
+    columns: np.ndarray,
+    task: str,
+    n_classes: int,
+    seed: int,
+    folds: int = 3,
+    n_jobs: int = 1,
+) -> RefFit:
+    """Out-of-fold LightGBM on the given columns of the sample, seeded and deterministic."""
     if columns.size == 0:
-        return 0.0
+        return RefFit(
+            0.0,
+            1.0 if task == "numeric" else 0.5,
+            tuple([1.0 if task == "numeric" else 0.5] * folds),
+        )
     x = inp.z_tree[:, columns]
     y = inp.y_codes
     params: dict[str, Any] = dict(
@@ -201,11 +240,52 @@ def reference_power(
         return _reference_fit(x, y, params, task, n_classes, seed, folds)
 
 
+def unique_lift(without: RefFit, with_: RefFit) -> dict[str, Any]:
+    """What a column adds to the other columns: the relative reduction of the reference error.
+
+    ``value`` = 1 − error_with / error_without on the pooled out-of-fold predictions; ``low``
+    and ``high`` are the smallest and largest of the same ratio per fold (the spread over
+    folds); an error that was already 0 leaves nothing to reduce (lift 0).
+    """
+
+    def lift(a: float, b: float) -> float:
+        return 1.0 - b / a if a > 1e-12 else 0.0
+
+    per_fold = [lift(a, b) for a, b in zip(without.fold_errors, with_.fold_errors, strict=True)]
+    return {
+        "value": lift(without.error, with_.error),
+        "low": float(min(per_fold)),
+        "high": float(max(per_fold)),
+        "folds": len(per_fold),
+        "error_without": without.error,
+        "error_with": with_.error,
+    }
+
+
+def _errors(y: np.ndarray, pred: np.ndarray, task: str, n_classes: int) -> float:
+    from sklearn.metrics import r2_score, roc_auc_score
+
+    if task == "numeric":
+        return 1.0 - max(0.0, float(r2_score(y, pred)))
+    if len(np.unique(y)) < 2:
+        return 0.5
+    if n_classes == 2:
+        return 1.0 - max(0.5, float(roc_auc_score(y, pred[:, 1])))
+    prob = pred / np.maximum(pred.sum(1, keepdims=True), 1e-12)
+    present = np.unique(y)
+    if present.size < n_classes:  # a fold without some class: score the classes it holds
+        prob = prob[:, present] / np.maximum(prob[:, present].sum(1, keepdims=True), 1e-12)
+        y = np.searchsorted(present, y)
+        if present.size == 2:
+            return 1.0 - max(0.5, float(roc_auc_score(y, prob[:, 1])))
+    auc = roc_auc_score(y, prob, multi_class="ovr", average="macro", labels=range(prob.shape[1]))
+    return 1.0 - max(0.5, float(auc))
+
+
 def _reference_fit(
     x: np.ndarray, y: np.ndarray, params: dict, task: str, n_classes: int, seed: int, folds: int
-) -> float:
+) -> RefFit:
     import lightgbm as lgb
-    from sklearn.metrics import r2_score, roc_auc_score
     from sklearn.model_selection import KFold, StratifiedKFold
 
     if task != "numeric":
@@ -216,19 +296,18 @@ def _reference_fit(
     if folds < 2 or len(y) < folds:
         return 0.0
     if task == "numeric":
-        split = KFold(folds, shuffle=True, random_state=seed).split(x)
+        split = list(KFold(folds, shuffle=True, random_state=seed).split(x))
         pred = np.zeros(len(y))
         for tr, te in split:
             pred[te] = lgb.LGBMRegressor(**params).fit(x[tr], y[tr]).predict(x[te])
-        return max(0.0, float(r2_score(y, pred)))
-    split = StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, y)
+        error = _errors(y, pred, task, n_classes)
+        fold_errors = tuple(_errors(y[te], pred[te], task, n_classes) for _, te in split)
+        return RefFit(1.0 - error, error, fold_errors)
+    split = list(StratifiedKFold(folds, shuffle=True, random_state=seed).split(x, y))
     prob = np.zeros((len(y), n_classes))
     for tr, te in split:
         model = lgb.LGBMClassifier(**params).fit(x[tr], y[tr])
         prob[np.ix_(te, model.classes_)] = model.predict_proba(x[te])
-    if n_classes == 2:
-        auc = roc_auc_score(y, prob[:, 1])
-    else:
-        prob = prob / np.maximum(prob.sum(1, keepdims=True), 1e-12)
-        auc = roc_auc_score(y, prob, multi_class="ovr", average="macro", labels=range(n_classes))
-    return max(0.0, 2 * float(auc) - 1)
+    error = _errors(y, prob, task, n_classes)
+    fold_errors = tuple(_errors(y[te], prob[te], task, n_classes) for _, te in split)
+    return RefFit(max(0.0, 1.0 - 2 * error), error, fold_errors)
