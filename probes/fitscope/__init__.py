@@ -26,6 +26,7 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
 from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._piles import capped as _capped
@@ -140,6 +141,7 @@ CHECK_NAMES = {
     "_minmax": "min-max scaling",
     "imputed": "imputation piles",
     "capped": "quantile caps",
+    "grid_capped": "percentile caps on the rounding grid",
     "_quantile": "rank or quantile transform",
 }
 
@@ -177,6 +179,7 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
     checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
         checks.append(_capped)
+        checks.append(_grid_capped)
     if (lo >= 0 and hi <= 1) or min(abs(lo + NORMAL_BOUND), abs(hi - NORMAL_BOUND)) < 1e-6:
         checks.append(_quantile)
     return checks

@@ -1,0 +1,132 @@
+"""Caps at percentiles in columns written on a grid (measurements rounded to a few decimals).
+
+``np.clip(x, *np.percentile(x, [p, 100 - p]))`` sets the cap between two sorted values by
+linear interpolation: ``hi = x[j] + f * (x[j+1] - x[j])``. The rows above ``x[j]`` all become
+``hi``, so ``x[j]`` is the largest value left and the lost ``x[j+1] = x[j] + (hi - x[j]) / f``
+can be recovered. In a column rounded to a grid that recovered value lies on the grid for the
+rows the cap was fitted on, and almost never for another set of rows; the pile at the cap also
+holds exactly the rows the percentile's position leaves above it. Both are tested for every
+usual percentile over all rows and over the training rows, within the storage rounding
+(``_precision``), so tiny piles of 2-4 rows are evidence where counts alone cannot tell.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+from featureaudit.probes.fitscope._thresholds import THRESHOLDS
+
+__all__ = ["grid_capped", "grid_step"]
+
+
+def grid_step(values: np.ndarray, float32: bool) -> float | None:
+    """The decimal grid (10**-d, d <= 6) every value sits on, allowing float32 storage."""
+    if values.size == 0:
+        return None
+    for d in range(0, 7):
+        r = np.round(values, d)
+        same = (r.astype(np.float32) == values.astype(np.float32)) if float32 else (r == values)
+        if np.all(same):
+            return 10.0**-d
+    return None
+
+
+def _off_grid(x: float, q: float) -> float:
+    """Distance of ``x`` from the nearest grid point."""
+    return abs(x - round(x / q) * q)
+
+
+def _side_fits(
+    x: np.ndarray, cap: float, upper: bool, q: float, err: float, levels: tuple[float, ...]
+) -> tuple[list[float], bool]:
+    """Percentile levels whose clip of the rows ``x`` leaves exactly this pile at ``cap`` and a
+    recovered lost value on the grid; and whether some level matching the pile's size could
+    not be judged within the rounding (then a fit on these rows cannot be ruled out)."""
+    n = x.size
+    s = np.sort(x)
+    count = int((x == cap).sum())
+    fits, unjudged = [], False
+    for p in levels:
+        pos = (1 - p) * (n - 1) if upper else p * (n - 1)
+        j = int(np.floor(pos + 1e-9))
+        f = pos - j
+        if f < 1e-9 or f > 1 - 1e-9:
+            continue  # the cap is a value of the data: on the grid, no fingerprint
+        if upper:
+            if count != n - 1 - j or j < 0:
+                continue
+            kept = float(s[j])
+            lost = kept + (cap - kept) / f
+            tol = 2 * (2 * err / f + err)
+        else:
+            if count != j + 1 or j + 1 >= n:
+                continue
+            kept = float(s[j + 1])
+            lost = kept - (kept - cap) / (1 - f)
+            tol = 2 * (2 * err / (1 - f) + err)
+        if tol >= q / 4:
+            unjudged = True
+            continue
+        beyond = lost >= cap - tol if upper else lost <= cap + tol
+        if beyond and _off_grid(lost, q) <= tol:
+            fits.append(p)
+    return fits, unjudged
+
+
+def grid_capped(name, values, err, ok, train, split):
+    """Caps at usual percentiles recovered exactly from all rows but not from the training
+    rows (a leak), or the reverse (clean). Thresholds: ``cap_grid_levels``."""
+    v = values[ok]
+    lo, hi = float(v.min()), float(v.max())
+    inner = v[(v > lo) & (v < hi)]
+    float32 = values.dtype == np.float32
+    q = grid_step(inner[:: max(1, inner.size // 5000)], float32)
+    if q is None or inner.size < 2 * THRESHOLDS.min_side:
+        return None
+    levels = THRESHOLDS.cap_grid_levels
+    sides = []
+    for upper, cap in ((True, hi), (False, lo)):
+        e = float(err[ok & (values == cap)][0])
+        e = max(e, float(np.max(err[ok & (values > lo) & (values < hi)][:1])))
+        if int((v == cap).sum()) < 2 or _off_grid(cap, q) <= 4 * e:
+            continue  # a cap on the grid is a value of the data: no fingerprint
+        fits_all, un_all = _side_fits(v, cap, upper, q, e, levels)
+        fits_tr, un_tr = _side_fits(values[ok & train], cap, upper, q, e, levels)
+        sides.append(
+            {
+                "side": "upper" if upper else "lower",
+                "cap_value": cap,
+                "rows_at_cap": int((v == cap).sum()),
+                "training_rows_at_cap": int((values[ok & train] == cap).sum()),
+                "grid_step": q,
+                "levels_fitting_all_rows": fits_all,
+                "levels_fitting_training_rows": fits_tr,
+                "training_rows_unjudged": un_tr,
+            }
+        )
+    if not sides:
+        return None
+    all_exact = any(s["levels_fitting_all_rows"] for s in sides)
+    train_exact = any(
+        s["levels_fitting_training_rows"] or s["training_rows_unjudged"] for s in sides
+    )
+    if not all_exact and not train_exact:
+        return None
+    fitted = [s for s in sides if s["levels_fitting_all_rows"] or s["levels_fitting_training_rows"]]
+    what = " and ".join(
+        f"{s['side']} {(s['levels_fitting_all_rows'] or s['levels_fitting_training_rows'])[0]:.1%}"
+        for s in fitted
+    )
+    return _verdict(
+        name,
+        (f"capped at the {what} percentile" if what else "capped at a usual percentile")
+        + f" (lost value recovered on the {sides[0]['grid_step']:g} grid)",
+        all_exact,
+        train_exact,
+        True,
+        split,
+        {"piles": sides},
+        "training_rows_at_cap",
+        float(sides[0]["training_rows_at_cap"]),
+    )
