@@ -26,12 +26,15 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.probes.fitscope._bins import looks_binned, quantile_binned
 from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
 from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+from featureaudit.probes.fitscope._maxabs import looks_maxabs, maxabs_scaled
 from featureaudit.probes.fitscope._piles import capped as _capped
 from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
+from featureaudit.probes.fitscope._robust import looks_robust, robust_scaled
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
@@ -142,6 +145,9 @@ CHECK_NAMES = {
     "imputed": "imputation piles",
     "capped": "quantile caps",
     "grid_capped": "percentile caps on the rounding grid",
+    "robust_scaled": "robust scaling",
+    "maxabs_scaled": "max-abs scaling",
+    "quantile_binned": "equal-frequency bins",
     "_quantile": "rank or quantile transform",
 }
 
@@ -176,6 +182,12 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
         checks.append(_standardised)
     if abs(lo) <= 1e-3 and abs(hi - 1) <= 1e-3:
         checks.append(_minmax)
+    if looks_robust(v, v_tr):
+        checks.append(robust_scaled)
+    if looks_maxabs(v):
+        checks.append(maxabs_scaled)
+    if looks_binned(v):
+        checks.append(quantile_binned)
     checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
         checks.append(_capped)

@@ -20,14 +20,16 @@ from featureaudit.probes.fitscope._thresholds import THRESHOLDS
 __all__ = ["grid_capped", "grid_step"]
 
 
-def grid_step(values: np.ndarray, float32: bool) -> float | None:
-    """The decimal grid (10**-d, d <= 6) every value sits on, allowing float32 storage."""
+def grid_step(values: np.ndarray) -> float | None:
+    """The decimal grid (10**-d, d <= 6) every value sits on, exactly or, for values that are
+    float32 numbers, once stored as float32."""
     if values.size == 0:
         return None
+    as32 = values.astype(np.float32)
+    float32 = bool(np.all(as32.astype(np.float64) == values))
     for d in range(0, 7):
         r = np.round(values, d)
-        same = (r.astype(np.float32) == values.astype(np.float32)) if float32 else (r == values)
-        if np.all(same):
+        if np.all(r == values) or (float32 and np.all(r.astype(np.float32) == as32)):
             return 10.0**-d
     return None
 
@@ -39,14 +41,15 @@ def _off_grid(x: float, q: float) -> float:
 
 def _side_fits(
     x: np.ndarray, cap: float, upper: bool, q: float, err: float, levels: tuple[float, ...]
-) -> tuple[list[float], bool]:
+) -> tuple[list[float], list[float]]:
     """Percentile levels whose clip of the rows ``x`` leaves exactly this pile at ``cap`` and a
     recovered lost value on the grid; and whether some level matching the pile's size could
     not be judged within the rounding (then a fit on these rows cannot be ruled out)."""
     n = x.size
     s = np.sort(x)
     count = int((x == cap).sum())
-    fits, unjudged = [], False
+    fits: list[float] = []
+    unjudged: list[float] = []
     for p in levels:
         pos = (1 - p) * (n - 1) if upper else p * (n - 1)
         j = int(np.floor(pos + 1e-9))
@@ -66,7 +69,7 @@ def _side_fits(
             lost = kept - (kept - cap) / (1 - f)
             tol = 2 * (2 * err / (1 - f) + err)
         if tol >= q / 4:
-            unjudged = True
+            unjudged.append(p)
             continue
         beyond = lost >= cap - tol if upper else lost <= cap + tol
         if beyond and _off_grid(lost, q) <= tol:
@@ -80,8 +83,7 @@ def grid_capped(name, values, err, ok, train, split):
     v = values[ok]
     lo, hi = float(v.min()), float(v.max())
     inner = v[(v > lo) & (v < hi)]
-    float32 = values.dtype == np.float32
-    q = grid_step(inner[:: max(1, inner.size // 5000)], float32)
+    q = grid_step(inner[:: max(1, inner.size // 5000)])
     if q is None or inner.size < 2 * THRESHOLDS.min_side:
         return None
     levels = THRESHOLDS.cap_grid_levels
@@ -107,20 +109,20 @@ def grid_capped(name, values, err, ok, train, split):
         )
     if not sides:
         return None
-    all_exact = any(s["levels_fitting_all_rows"] for s in sides)
-    train_exact = any(
-        s["levels_fitting_training_rows"] or s["training_rows_unjudged"] for s in sides
+    # caps come in pairs at p and 1 - p: a set of rows explains the piles at a level that
+    # fits every examined side (a level that could not be judged counts as fitting)
+    common_all = set.intersection(*(set(s["levels_fitting_all_rows"]) for s in sides))
+    common_tr = set.intersection(
+        *(set(s["levels_fitting_training_rows"]) | set(s["training_rows_unjudged"]) for s in sides)
     )
+    all_exact, train_exact = bool(common_all), bool(common_tr)
     if not all_exact and not train_exact:
         return None
-    fitted = [s for s in sides if s["levels_fitting_all_rows"] or s["levels_fitting_training_rows"]]
-    what = " and ".join(
-        f"{s['side']} {(s['levels_fitting_all_rows'] or s['levels_fitting_training_rows'])[0]:.1%}"
-        for s in fitted
-    )
+    level = min(common_all or common_tr)
+    what = " and ".join(f"{s['side']} {level:.1%}" for s in sides)
     return _verdict(
         name,
-        (f"capped at the {what} percentile" if what else "capped at a usual percentile")
+        f"capped at the {what} percentile"
         + f" (lost value recovered on the {sides[0]['grid_step']:g} grid)",
         all_exact,
         train_exact,
