@@ -19,6 +19,8 @@ from featureaudit.probes.fitscope._thresholds import THRESHOLDS
 
 __all__ = ["grid_capped", "grid_step"]
 
+_EPS64 = float(np.finfo(np.float64).eps)
+
 
 def grid_step(values: np.ndarray) -> float | None:
     """The decimal grid (10**-d, d <= 6) every value sits on, exactly or, for values that are
@@ -32,6 +34,20 @@ def grid_step(values: np.ndarray) -> float | None:
         if np.all(r == values) or (float32 and np.all(r.astype(np.float32) == as32)):
             return 10.0**-d
     return None
+
+
+def _cap_error(cap: float, float32: bool) -> float:
+    """The rounding a cap value may carry: half a unit of the shortest spelling (up to 15
+    significant digits) that reads back as exactly this number, else float storage. The
+    kept grid values are exact up to float storage, which the same floor covers."""
+    floor = (0.5 * float(np.finfo(np.float32).eps) if float32 else 4 * _EPS64) * abs(cap)
+    mag = np.floor(np.log10(abs(cap))) if cap != 0 else 0.0
+    for k in range(1, 16):
+        text = f"{cap:.{k}g}"
+        back = float(np.float32(text)) if float32 else float(text)
+        if back == cap:
+            return max(floor, 0.5 * 10.0 ** (mag - k + 1))
+    return floor + 1e-300
 
 
 def _off_grid(x: float, q: float) -> float:
@@ -68,7 +84,7 @@ def _side_fits(
             kept = float(s[j + 1])
             lost = kept - (kept - cap) / (1 - f)
             tol = 2 * (2 * err / (1 - f) + err)
-        if tol >= q / 4:
+        if tol >= q / 20:  # coincidences on the grid would be common
             unjudged.append(p)
             continue
         beyond = lost >= cap - tol if upper else lost <= cap + tol
@@ -89,8 +105,7 @@ def grid_capped(name, values, err, ok, train, split):
     levels = THRESHOLDS.cap_grid_levels
     sides = []
     for upper, cap in ((True, hi), (False, lo)):
-        e = float(err[ok & (values == cap)][0])
-        e = max(e, float(np.max(err[ok & (values > lo) & (values < hi)][:1])))
+        e = _cap_error(cap, bool(np.all(inner.astype(np.float32) == inner)))
         if int((v == cap).sum()) < 2 or _off_grid(cap, q) <= 4 * e:
             continue  # a cap on the grid is a value of the data: no fingerprint
         fits_all, un_all = _side_fits(v, cap, upper, q, e, levels)
@@ -105,21 +120,30 @@ def grid_capped(name, values, err, ok, train, split):
                 "levels_fitting_all_rows": fits_all,
                 "levels_fitting_training_rows": fits_tr,
                 "training_rows_unjudged": un_tr,
+                "all_rows_unjudged": un_all,
             }
         )
     if not sides:
         return None
+
     # caps come in pairs at p and 1 - p: a set of rows explains the piles at a level that
-    # fits every examined side (a level that could not be judged counts as fitting)
-    common_all = set.intersection(*(set(s["levels_fitting_all_rows"]) for s in sides))
-    common_tr = set.intersection(
-        *(set(s["levels_fitting_training_rows"]) | set(s["training_rows_unjudged"]) for s in sides)
-    )
+    # fits every examined side where it can be judged, and at least one side judged
+    def explained(fit: str, unjudged: str) -> set[float]:
+        possible = set.intersection(*(set(s[fit]) | set(s[unjudged]) for s in sides))
+        return {p for p in possible if any(p in s[fit] for s in sides)}
+
+    common_all = explained("levels_fitting_all_rows", "all_rows_unjudged")
+    common_tr = explained("levels_fitting_training_rows", "training_rows_unjudged")
+    # a level unjudged on every side leaves the training rows possible: cannot rule them out
+    if any(
+        all(p in s["training_rows_unjudged"] for s in sides) for p in THRESHOLDS.cap_grid_levels
+    ):
+        common_tr.add(-1.0)
     all_exact, train_exact = bool(common_all), bool(common_tr)
     if not all_exact and not train_exact:
         return None
-    level = min(common_all or common_tr)
-    what = " and ".join(f"{s['side']} {level:.1%}" for s in sides)
+    levels = sorted(p for p in common_all | common_tr if p > 0)
+    what = " and ".join(s["side"] for s in sides) + (f" {levels[0]:.1%}" if levels else " usual")
     return _verdict(
         name,
         f"capped at the {what} percentile"
