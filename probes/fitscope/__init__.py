@@ -47,8 +47,8 @@ __all__ = ["Fitscope", "FitscopeThresholds"]
 
 @register
 class Fitscope(Probe):
-    """Fingerprints of scaling, imputation, capping, rank transforms and target encodings
-    fitted on all rows. Thresholds: :class:`FitscopeThresholds`; method: the module
+    """Fingerprints of scaling (standard, min-max, robust, max-abs), imputation, capping, rank
+    transforms, equal-frequency bins and target encodings fitted on all rows. Thresholds: :class:`FitscopeThresholds`; method: the module
     docstring."""
 
     name = "fitscope"
@@ -69,7 +69,14 @@ class Fitscope(Probe):
             f"{th.pile_share:.1%} of rows and {th.pile_min_rows} rows when it exceeds what "
             f"its {th.neighbours} nearest values on each side predict (Poisson tail below "
             f"{th.pile_alpha:g}, Bonferroni over the distinct values), so natural ties are "
-            f"no evidence; caps are tested at the {caps} quantiles. With fewer than "
+            f"no evidence; caps are tested at the {caps} quantiles, and in columns written on "
+            "a decimal grid by recovering the value each cap replaced on that grid; a median "
+            "imputation among natural ties is explained by a set of rows only if the genuine "
+            f"copies it needs have a Poisson tail of at least {th.median_alpha:g}. Robust "
+            "scaling (median 0, IQR 1), max-abs scaling (largest |x| = 1 on held-out rows "
+            f"only) and equal-frequency bins (every bin within {th.bin_slack:g} rows of n/k) "
+            "are read the same way; power and log transforms that standardise are read as "
+            "standardisation. With fewer than "
             f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
             "cannot tell; every numeric column examined carries what was checked."
         )

@@ -140,6 +140,8 @@ def grid_capped(name, values, err, ok, train, split):
     ):
         common_tr.add(-1.0)
     all_exact, train_exact = bool(common_all), bool(common_tr)
+    if common_tr == {-1.0}:
+        all_exact = True  # nothing judged for the training rows: cannot tell, never "clean"
     if not all_exact and not train_exact:
         return None
     levels = sorted(p for p in common_all | common_tr if p > 0)
