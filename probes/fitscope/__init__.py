@@ -48,7 +48,8 @@ __all__ = ["Fitscope", "FitscopeThresholds"]
 @register
 class Fitscope(Probe):
     """Fingerprints of scaling (standard, min-max, robust, max-abs), imputation, capping, rank
-    transforms, equal-frequency bins and target encodings fitted on all rows. Thresholds: :class:`FitscopeThresholds`; method: the module
+    transforms, equal-frequency bins and target encodings fitted on all rows.
+    Thresholds: :class:`FitscopeThresholds`; method: the module
     docstring."""
 
     name = "fitscope"
