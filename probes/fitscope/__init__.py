@@ -26,11 +26,15 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
+from featureaudit.probes.fitscope._bins import looks_binned, quantile_binned
+from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
 from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+from featureaudit.probes.fitscope._maxabs import looks_maxabs, maxabs_scaled
 from featureaudit.probes.fitscope._piles import capped as _capped
 from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
+from featureaudit.probes.fitscope._robust import looks_robust, robust_scaled
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.settings import Settings
@@ -43,8 +47,9 @@ __all__ = ["Fitscope", "FitscopeThresholds"]
 
 @register
 class Fitscope(Probe):
-    """Fingerprints of scaling, imputation, capping, rank transforms and target encodings
-    fitted on all rows. Thresholds: :class:`FitscopeThresholds`; method: the module
+    """Fingerprints of scaling (standard, min-max, robust, max-abs), imputation, capping, rank
+    transforms, equal-frequency bins and target encodings fitted on all rows.
+    Thresholds: :class:`FitscopeThresholds`; method: the module
     docstring."""
 
     name = "fitscope"
@@ -65,7 +70,14 @@ class Fitscope(Probe):
             f"{th.pile_share:.1%} of rows and {th.pile_min_rows} rows when it exceeds what "
             f"its {th.neighbours} nearest values on each side predict (Poisson tail below "
             f"{th.pile_alpha:g}, Bonferroni over the distinct values), so natural ties are "
-            f"no evidence; caps are tested at the {caps} quantiles. With fewer than "
+            f"no evidence; caps are tested at the {caps} quantiles, and in columns written on "
+            "a decimal grid by recovering the value each cap replaced on that grid; a median "
+            "imputation among natural ties is explained by a set of rows only if the genuine "
+            f"copies it needs have a Poisson tail of at least {th.median_alpha:g}. Robust "
+            "scaling (median 0, IQR 1), max-abs scaling (largest |x| = 1 on held-out rows "
+            f"only) and equal-frequency bins (every bin within {th.bin_slack:g} rows of n/k) "
+            "are read the same way; power and log transforms that standardise are read as "
+            "standardisation. With fewer than "
             f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
             "cannot tell; every numeric column examined carries what was checked."
         )
@@ -140,6 +152,10 @@ CHECK_NAMES = {
     "_minmax": "min-max scaling",
     "imputed": "imputation piles",
     "capped": "quantile caps",
+    "grid_capped": "percentile caps on the rounding grid",
+    "robust_scaled": "robust scaling",
+    "maxabs_scaled": "max-abs scaling",
+    "quantile_binned": "equal-frequency bins",
     "_quantile": "rank or quantile transform",
 }
 
@@ -174,9 +190,16 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
         checks.append(_standardised)
     if abs(lo) <= 1e-3 and abs(hi - 1) <= 1e-3:
         checks.append(_minmax)
+    if looks_robust(v, v_tr):
+        checks.append(robust_scaled)
+    if looks_maxabs(v):
+        checks.append(maxabs_scaled)
+    if looks_binned(v):
+        checks.append(quantile_binned)
     checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
         checks.append(_capped)
+        checks.append(_grid_capped)
     if (lo >= 0 and hi <= 1) or min(abs(lo + NORMAL_BOUND), abs(hi - NORMAL_BOUND)) < 1e-6:
         checks.append(_quantile)
     return checks

@@ -18,6 +18,7 @@ from scipy.stats import poisson
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._precision import _decimals, mean_tolerance
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
+from featureaudit.probes.fitscope._tiemedian import median_explains, neighbour_rate
 
 CAP_LEVELS = THRESHOLDS.cap_levels
 
@@ -95,11 +96,16 @@ def _imputed_pile(name, values, err, ok, train, split, pile):
     genuine = expected if natural else _genuine_count(values[other], value)
     if expected > 1.0 and not natural:
         genuine = 0.0  # a value off the column's rounding grid has no natural copies
-    tol = mean_tolerance(values[other], err[other]) + 4 * float(err[ok & (values == value)][0])
+    tol = mean_tolerance(values[other], err[other])
+    if not natural:  # an off-grid fill may itself have been rounded when written
+        tol += 4 * float(err[ok & (values == value)][0])
     figures: dict = {}
-    for label, rows, g in (
-        ("all_rows", other, genuine),
-        ("training_rows", other & train, genuine * train.mean()),
+    pile = ok & (values == value)
+    share = float((ok & train).sum()) / max(int(ok.sum()), 1)
+    rate = neighbour_rate(values[ok], value) if natural else 1.0
+    for label, rows, g, at_value, lam in (
+        ("all_rows", other, genuine, count, rate),
+        ("training_rows", other & train, genuine * share, int((pile & train).sum()), rate * share),
     ):
         x = values[rows]
         below, above = int((x < value).sum()), int((x > value).sum())
@@ -107,9 +113,13 @@ def _imputed_pile(name, values, err, ok, train, split, pile):
             "mean": float(np.mean(x)),
             "below": below,
             "above": above,
-            "median_holds": _median_holds(x, value, g, tol, natural),
             "mean_holds": abs(float(np.mean(x)) - value) <= tol,
         }
+        if natural:  # genuine ties: weigh the copies each median needs (``_tiemedian``)
+            holds, tail = median_explains(x, value, tol, at_value, lam)
+            figures[label].update(median_holds=holds, **tail)
+        else:
+            figures[label]["median_holds"] = _median_holds(x, value, g, tol, natural)
     holds = {
         stat: (figures["all_rows"][f"{stat}_holds"], figures["training_rows"][f"{stat}_holds"])
         for stat in ("mean", "median")

@@ -8,9 +8,20 @@ import numpy as np
 import pandas as pd
 import pytest
 import statsmodels.api as sm
-from sklearn.datasets import load_breast_cancer
+from sklearn.datasets import load_breast_cancer, load_wine
 from sklearn.impute import SimpleImputer
-from sklearn.preprocessing import MinMaxScaler, QuantileTransformer, StandardScaler, TargetEncoder
+from sklearn.pipeline import make_pipeline
+from sklearn.preprocessing import (
+    FunctionTransformer,
+    KBinsDiscretizer,
+    MaxAbsScaler,
+    MinMaxScaler,
+    PowerTransformer,
+    QuantileTransformer,
+    RobustScaler,
+    StandardScaler,
+    TargetEncoder,
+)
 
 import featureaudit as fa
 from featureaudit.demo import demo_paths
@@ -150,8 +161,10 @@ def test_fingerprints(dataset, variant, dtype, leaky, tmp_path):
     quantum = 10.0 ** -_decimals(frame[column].to_numpy())
     same = np.allclose(twin, prepared[column].to_numpy(), rtol=0, atol=2 * quantum, equal_nan=True)
     if leaky and variant == "clip" and _piles_fit_both(prepared[column].to_numpy(), held):
-        # numpy's clipping leaves piles whose sizes a training-row fit would also leave
-        assert row["level"] == "none" and "cannot tell" in row["summary"]
+        # numpy's clipping leaves piles whose sizes a training-row fit would also leave; the
+        # value each cap replaced, recovered on the column's decimal grid, tells them apart
+        # when the storage keeps that grid (issue 10, class 5), else the probe cannot tell
+        assert row["level"] in HIGH or (row["level"] == "none" and "cannot tell" in row["summary"])
     elif leaky and same:
         # The training rows alone give the same fit to within the column's stored precision
         # (its decimals): no data can tell the two apart, and the leak changes nothing.
@@ -354,3 +367,99 @@ def test_describe_quotes_the_thresholds():
 
     text = Fitscope.describe(Settings())
     assert "0.5%" in text and "Poisson" in text and "high" in text and "critical" in text
+
+
+# --- more fitted steps (issue 14 item 3) and caps among natural ties (issue 10 class 5) -----
+def _wine_frame():
+    # Real data: scikit-learn's bundled wine set (measurements with one or two decimals).
+    frame = load_wine(as_frame=True).frame.rename(columns={"target": "y"})
+    return frame[["alcohol", "ash", "alcalinity_of_ash", "proline", "y"]], "alcalinity_of_ash"
+
+
+def _cancer_frame():
+    # Real data: scikit-learn's bundled breast-cancer set (three or four significant digits).
+    data = load_breast_cancer(as_frame=True)
+    frame = data.data[["mean radius", "mean texture", "mean area"]].copy()
+    frame["y"] = data.target.to_numpy()
+    return frame, "mean texture"
+
+
+STEP_DATA = {"wine": _wine_frame, "breast_cancer": _cancer_frame}
+
+
+def _step(kind: str):
+    """scikit-learn's own transformer for each fitted step (the reference implementation)."""
+    return {
+        "robust": lambda: RobustScaler(),
+        "maxabs": lambda: MaxAbsScaler(),
+        "power": lambda: PowerTransformer(method="yeo-johnson", standardize=True),
+        "log_standard": lambda: make_pipeline(FunctionTransformer(np.log1p), StandardScaler()),
+        "kbins": lambda: KBinsDiscretizer(
+            n_bins=5, encode="ordinal", strategy="quantile", **_kbins_kwargs()
+        ),
+    }[kind]()
+
+
+def _kbins_kwargs() -> dict:
+    """scikit-learn 1.7 added quantile_method; pin the classic linear percentiles."""
+    import inspect
+
+    params = inspect.signature(KBinsDiscretizer).parameters
+    return {"quantile_method": "linear"} if "quantile_method" in params else {}
+
+
+@pytest.mark.parametrize("dataset", list(STEP_DATA))
+@pytest.mark.parametrize("kind", ["robust", "maxabs", "power", "log_standard", "kbins"])
+@pytest.mark.parametrize("dtype", ["float64", "float32", "csv"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_more_fitted_steps(dataset, kind, dtype, leaky, tmp_path):
+    frame, column = STEP_DATA[dataset]()
+    if kind == "kbins" and dataset == "wine":
+        # alcalinity_of_ash (one decimal) ties across bin edges, so no fit balances its bins;
+        # proline (whole numbers, few ties) is binned instead
+        column = "proline"
+    rng = np.random.default_rng(3)
+    held = rng.random(len(frame)) < 0.25
+    x = frame[[column]].to_numpy(dtype=float)
+    if kind == "maxabs":  # the fingerprint needs the largest |x| among the held-out rows
+        held[int(np.argmax(np.abs(x[:, 0])))] = True
+    rows = np.ones(len(frame), bool) if leaky else ~held
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        out = _step(kind).fit(x[rows]).transform(x)[:, 0]
+    prepared = frame.assign(**{column: out, "split": np.where(held, "test", "train")})
+    table = _store(prepared, column, dtype, tmp_path)
+    result = fa.audit(table, target="y", split_column="split", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    if leaky:
+        assert row["level"] in HIGH, row["summary"]
+        assert "fit_on_all_rows" in row["kinds"]
+    else:
+        assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+@pytest.mark.parametrize("dataset", list(STEP_DATA))
+@pytest.mark.parametrize("dtype", ["float64", "float32", "csv"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_percentile_caps_on_a_decimal_grid(dataset, dtype, leaky, tmp_path):
+    # np.clip at np.percentile 1/99 (numpy is the reference); piles of 2-6 rows whose sizes
+    # alone often fit both fits: the value each cap replaced, recovered on the grid, decides.
+    frame, column = STEP_DATA[dataset]()
+    held = np.random.default_rng(0).random(len(frame)) < 0.25
+    x = frame[column].to_numpy(dtype=float)
+    rows = np.ones(len(x), bool) if leaky else ~held
+    lo, hi = np.percentile(x[rows], [1, 99])
+    prepared = frame.assign(
+        **{column: np.clip(x, lo, hi), "split": np.where(held, "test", "train")}
+    )
+    table = _store(prepared, column, dtype, tmp_path)
+    result = fa.audit(table, target="y", split_column="split", probes=["fitscope"])
+    row = result.columns.set_index("column").loc[column]
+    if leaky and dtype == "float64":
+        assert row["level"] in HIGH, row["summary"]
+    elif leaky:
+        # float32 and six-decimal CSV turn these caps into short decimals (11.354), whose own
+        # rounding the grid cannot rule out: found, or said plainly that it cannot tell
+        assert row["level"] in HIGH or "cannot tell" in row["summary"], row["summary"]
+    else:
+        assert row["level"] not in ("medium", "high", "critical"), row["summary"]

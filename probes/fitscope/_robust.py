@@ -1,0 +1,60 @@
+"""Robust scaling fitted on all rows: median 0 and interquartile range 1 over all rows.
+
+scikit-learn's ``RobustScaler`` subtracts the median and divides by the 25-75 % range
+(numpy's linear-interpolation percentiles), so over the rows it was fitted on the column has
+median 0 and IQR 1 up to the storage rounding of the few values those percentiles
+interpolate (``_precision``); over any other set of rows both drift by sampling.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
+
+__all__ = ["looks_robust", "robust_scaled"]
+
+
+def _median_iqr(x: np.ndarray) -> tuple[float, float]:
+    q1, med, q3 = np.percentile(x, [25, 50, 75])
+    return float(med), float(q3 - q1)
+
+
+def looks_robust(v: np.ndarray, v_tr: np.ndarray) -> bool:
+    """The cheap gate: median near 0 and IQR near 1 over all rows or the training rows, in a
+    column that is not whole numbers (integers can have median 0 and IQR 1 by themselves)."""
+    if np.all(v == np.round(v)):
+        return False
+    return any(
+        abs(m) <= 1e-3 and abs(iqr - 1) <= 1e-2 for m, iqr in (_median_iqr(x) for x in (v, v_tr))
+    )
+
+
+def robust_scaled(name, values, err, ok, train, split):
+    v, v_tr = values[ok], values[ok & train]
+    e = err[ok]
+    tol = 4 * float(np.max(e[np.abs(v) <= 3])) if np.any(np.abs(v) <= 3) else np.inf
+    med, iqr = _median_iqr(v)
+    med_tr, iqr_tr = _median_iqr(v_tr)
+    all_exact = abs(med) <= tol and abs(iqr - 1) <= 2 * tol
+    train_exact = abs(med_tr) <= tol and abs(iqr_tr - 1) <= 2 * tol
+    held = int(ok.sum() - (ok & train).sum())
+    # the sampling SD of a median of the training rows, in IQR units (1.349 SD of a normal)
+    spread = 1.2533 / 1.349 * np.sqrt(held / max(ok.sum() * (ok & train).sum(), 1))
+    detail = {
+        "all_rows": {"median": med, "iqr": iqr},
+        "training_rows": {"median": med_tr, "iqr": iqr_tr},
+        "tolerance": tol,
+        "sampling_sd_of_training_median": float(spread),
+    }
+    return _verdict(
+        name,
+        "robust-scaled (median 0, IQR 1)",
+        all_exact,
+        train_exact,
+        held >= 20 and spread > 3 * tol,
+        split,
+        detail,
+        "training_rows_median",
+        med_tr,
+    )
