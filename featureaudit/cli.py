@@ -75,9 +75,15 @@ def _fail(exc: BaseException) -> None:
 
 def _reached(doc: dict[str, Any], level: str) -> list[str]:
     floor = Level.parse(level)
-    hits = [c["column"] for c in doc["columns"] if Level.parse(c["level"]) >= floor]
+    hits = [
+        c["column"]
+        for c in doc["columns"]
+        if Level.parse(c["level"]) >= floor and not c.get("accepted")
+    ]
     hits += [
-        f"{f['kind']} (split)" for f in doc["dataset_findings"] if Level.parse(f["level"]) >= floor
+        f"{f['kind']} (split)"
+        for f in doc["dataset_findings"]
+        if Level.parse(f["level"]) >= floor and not f.get("accepted")
     ]
     return hits
 
@@ -119,6 +125,12 @@ def scan(
             "this, e.g. 0.02."
         ),
     ] = None,
+    accepted: Annotated[
+        str | None, typer.Option(help="CSV of reviewed suspects: column,kind,reason,...")
+    ] = None,
+    history: Annotated[
+        str | None, typer.Option(help="Folder that keeps every run's findings.")
+    ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
@@ -143,6 +155,8 @@ def scan(
         "fail_at": fail_at,
         "seed": seed,
         "fail_at_impact": fail_at_impact,
+        "accepted": accepted,
+        "history": history,
     }
     opts = dict(read_config(config)) if config else {}
     settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
@@ -153,6 +167,12 @@ def scan(
         settings = Settings(seed=seed_value, **settings_over)
     except TypeError as exc:
         raise SettingError(f"config {config!r} has a setting of the wrong type: {exc}.") from exc
+    from featureaudit.accepted import apply_accepted, read_accepted
+    from featureaudit.history import check_folder, load_runs, store_run
+
+    reviewed = read_accepted(opts["accepted"]) if opts.get("accepted") else None
+    history_dir = check_folder(opts["history"]) if opts.get("history") else None
+    earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
     result = audit(
         str(table),
         test=opts.get("test"),
@@ -168,8 +188,12 @@ def scan(
         seed=seed_value,
         settings=settings,
     )
+    if reviewed is not None:
+        apply_accepted(result.document, reviewed)
     out_dir = Path(opts.get("out") or "featureaudit-report")
-    result.write(out_dir)
+    result.write(out_dir, history=earlier)
+    if history_dir is not None:
+        store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
     if fail and _reached(result.document, fail):
         return 1
@@ -201,10 +225,12 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
-        print(f"  {c['level']:<8} {c['score']:.2f}  {c['column']}: {c['summary']}")
+        note = "  [accepted after review]" if c.get("accepted") else ""
+        print(f"  {c['level']:<8} {c['score']:.2f}  {c['column']}: {c['summary']}{note}")
     for f in doc["dataset_findings"]:
         if Level.parse(f["level"]) >= Level.MEDIUM:
-            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
+            note = "  [accepted after review]" if f.get("accepted") else ""
+            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}{note}")
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
     print(f"dossier: {out_dir / 'dossier.html'}")
@@ -239,25 +265,47 @@ def diff(
     fail_at: Annotated[
         str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
     ] = None,
+    format: Annotated[str, typer.Option(help="text, json or markdown.")] = "text",
 ) -> int:
-    """Print columns and split findings that are new, gone or changed level between two runs.
+    """Print columns and split findings that are new, gone or changed level between two runs,
+    highest level first; accepted ones are marked and never fail.
 
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
-    --fail-at high
+    --fail-at high --format markdown
     """
+    from featureaudit.diff_format import FORMATS, format_diff
+
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
+    if format not in FORMATS:
+        raise SettingError(f"--format {format!r} is not one of {', '.join(FORMATS)}.")
     lines = diff_findings(load_findings(old), load_findings(new))
-    if not lines:
-        print("no change in levels")
-    for line in lines:
-        print(line.text())
-    if level and any(
-        d.change in ("new", "raised")
-        and d.new_level
-        and Level.parse(d.new_level) >= Level.parse(level)
-        for d in lines
-    ):
+    print(format_diff(lines, format))
+    if level and any(d.counts_at(level) for d in lines):
         return 1
+    return 0
+
+
+@app.command("history")
+def history_cmd(
+    folder: Annotated[Path, typer.Argument(help="The folder given to scan --history.")],
+    column: Annotated[str | None, typer.Option(help="Show this column only.")] = None,
+) -> int:
+    """Print each column's level and score in every stored run, oldest first, and which
+    runs raised it.
+
+    Example: featureaudit history audit-history --column reminders_sent
+    """
+    from featureaudit.history import history_lines, load_runs, series
+
+    runs = load_runs(folder)
+    if column is not None and runs and column not in series([r.findings for r in runs]):
+        from featureaudit.errors import ColumnNotFound
+
+        raise ColumnNotFound(
+            f"--column {column!r} is in none of the {len(runs)} runs in {str(folder)!r}; "
+            "pass a column the audits reported."
+        )
+    print("\n".join(history_lines(runs, column)))
     return 0
 
 

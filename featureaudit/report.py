@@ -120,7 +120,7 @@ def verdict_line(findings: Findings) -> str:
 MAX_CARDS = 60  # evidence cards beyond this many suspects stay in the ranked table
 
 
-def render_dossier(findings: Findings) -> str:
+def render_dossier(findings: Findings, *, history: list[Findings] | None = None) -> str:
     doc = findings.document
     suspects = [c for c in doc["columns"] if c["level"] != "none"]
     cards = [
@@ -166,12 +166,13 @@ def _refits(doc: dict[str, Any]) -> list[str]:
     return [c["column"] for c in doc["columns"] if c.get("remedy") == "refit_on_training_rows"]
 
 
-def render_all(findings: Findings) -> dict[str, str]:
-    """Every file of a report, rendered in memory so they can be written together."""
+def render_all(findings: Findings, *, history: list[Findings] | None = None) -> dict[str, str]:
+    """Every file of a report, rendered in memory so they can be written together;
+    ``history`` holds the earlier runs, oldest first, for the dossier's trends."""
     drops = droplist(findings, "high")
     return {
         "findings.json": findings.to_json(),
         "droplist.txt": "".join(f"{c}\n" for c in drops),
         "summary.md": render_summary(findings),
-        "dossier.html": render_dossier(findings),
+        "dossier.html": render_dossier(findings, history=history),
     }
