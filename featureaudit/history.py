@@ -87,20 +87,23 @@ def store_run(folder: str | Path, findings: Findings) -> Path:
 
 
 def load_runs(folder: str | Path) -> list[Run]:
-    """Every stored run, oldest first (by creation time, then name); other files are ignored."""
+    """Every stored run, oldest first (by creation time, then when it was stored); other
+    files are ignored."""
     p = Path(folder)
     if not p.is_dir():
         raise InputFileError(
             f"history folder {str(p)!r} does not exist; pass the folder given to "
             "`featureaudit scan --history`."
         )
-    runs = []
-    for path in sorted(p.iterdir()):
+    found = []
+    for path in p.iterdir():
         if _NAME.match(path.name):
             findings = load_findings(path)
-            runs.append(Run(path.name, str(findings.document.get("created", "")), findings))
-    runs.sort(key=lambda r: (r.created, r.name))
-    return runs
+            created = str(findings.document.get("created", ""))
+            # runs within one second share a stamp: the order they were stored breaks the tie
+            found.append((created, path.stat().st_mtime_ns, Run(path.name, created, findings)))
+    found.sort(key=lambda t: (t[0], t[1], t[2].name))
+    return [run for _, _, run in found]
 
 
 def _levels(findings: Findings) -> dict[str, tuple[str, float]]:
