@@ -115,10 +115,8 @@ def verdict_line(findings: Findings) -> str:
         else ""
     )
     if serious == 0:
-        medium = counts.get("medium", 0)
-        lead = f"{medium} at medium. " if medium else ""
         return (
-            f"No column or split finding reached level high. {lead}Review the medium ones, "
+            "No column or split finding reached level high. Review the medium ones, "
             f"and remember what the audit cannot see.{reviewed}"
         )
     parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
