@@ -329,7 +329,9 @@ def dictionary_cmd(
             f"--target column {target!r} is not in {table.name}; columns are: "
             f"{', '.join(frame.columns[:30])}. Pass --target with one of them."
         )
-    sys.stdout.write(draft_dictionary(frame, target=target))
+    from featureaudit.dictionary import add_suggestions
+
+    sys.stdout.write(add_suggestions(draft_dictionary(frame, target=target), frame, target=target))
     return 0
 
 
