@@ -32,6 +32,8 @@ CONFIG_KEYS = (
     "fail_at",
     "seed",
     "fail_at_impact",
+    "accepted",
+    "history",
 )
 
 

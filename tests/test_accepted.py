@@ -163,3 +163,18 @@ def test_missing_accepted_file(table, tmp_path):
     assert (
         result.exit_code == 2 and "nope.csv" in result.stderr and "does not exist" in result.stderr
     )
+
+
+def test_config_file_gives_accepted_and_history(table, tmp_path):
+    (tmp_path / "accepted.csv").write_text(HEADER + "closed_code,target_proxy,intended,Ana,\n")
+    config = tmp_path / "audit.toml"
+    config.write_text(
+        f'accepted = "{tmp_path / "accepted.csv"}"\nhistory = "{tmp_path / "hist"}"\n'
+        'target = "y"\nsplit_column = "split"\n'
+    )
+    result = run("scan", table, "--config", config, "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    doc = json.loads((tmp_path / "r" / "findings.json").read_text())
+    assert next(c for c in doc["columns"] if c["column"] == "closed_code")["accepted"]
+    assert len(list((tmp_path / "hist").iterdir())) == 1
+    assert "accepted after review: intended" in (tmp_path / "r" / "summary.md").read_text()
