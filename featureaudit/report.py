@@ -93,7 +93,8 @@ def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
     lo, hi = (entry.get("ci95") or [None, None])[:2]
     if abs(change) < negligible and (hi is None or hi < negligible):
         return "negligible"
-    ci = f" ({lo:+.3f} to {hi:+.3f})" if lo is not None and hi is not None else ""
+    # shown as the score's change when the column is removed: the sign of the interval too
+    ci = f" ({-hi:+.3f} to {-lo:+.3f})" if lo is not None and hi is not None else ""
     return f"{-change:+.3f}{ci}"
 
 

@@ -333,3 +333,12 @@ def test_timing_not_documented_is_listed(small_binary, tmp_path):
     assert "signal" not in warning.split(";")[0]
     page = render_dossier(result.findings)
     assert "<b>timing not documented</b>" in page and "<code>noise2</code>" in page
+
+
+def test_impact_words_keep_the_sign_of_value_and_interval_together():
+    from featureaudit.report import impact_words
+
+    # removing the column lowers the score by 0.426 (its lift), interval lowered alike
+    assert impact_words({"change": 0.426, "ci95": [0.36, 0.48]}) == "-0.426 (-0.480 to -0.360)"
+    assert impact_words({"change": 0.001, "ci95": [-0.002, 0.004]}) == "negligible"
+    assert impact_words(None) == "not measured"
