@@ -70,11 +70,18 @@ class AuditResult:
 
     def suspects(self, at_least: str = "high") -> list[str]:
         """Column names at level ``at_least`` or above, most suspect first."""
-        return droplist(self.findings, check_level(at_least, flag="at_least"), refit=True)
+        level = check_level(at_least, flag="at_least")
+        return droplist(self.findings, level, refit=True, accepted=True)
 
-    def write(self, out: str | os.PathLike[str] = "featureaudit-report") -> list[Path]:
-        """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``."""
-        return write_files(out, render_all(self.findings))
+    def write(
+        self,
+        out: str | os.PathLike[str] = "featureaudit-report",
+        *,
+        history: list[Findings] | None = None,
+    ) -> list[Path]:
+        """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``;
+        ``history`` (earlier runs, oldest first) adds each suspect's trend to the dossier."""
+        return write_files(out, render_all(self.findings, history=history))
 
     def __repr__(self) -> str:
         d = self.document["dataset"]

@@ -163,9 +163,15 @@ def _fail(exc: BaseException) -> None:
 
 def _reached(doc: dict[str, Any], level: str) -> list[str]:
     floor = Level.parse(level)
-    hits = [c["column"] for c in doc["columns"] if Level.parse(c["level"]) >= floor]
+    hits = [
+        c["column"]
+        for c in doc["columns"]
+        if Level.parse(c["level"]) >= floor and not c.get("accepted")
+    ]
     hits += [
-        f"{f['kind']} (split)" for f in doc["dataset_findings"] if Level.parse(f["level"]) >= floor
+        f"{f['kind']} (split)"
+        for f in doc["dataset_findings"]
+        if Level.parse(f["level"]) >= floor and not f.get("accepted")
     ]
     return hits
 
@@ -211,6 +217,12 @@ def scan(
             "this, e.g. 0.02."
         ),
     ] = None,
+    accepted: Annotated[
+        str | None, typer.Option(help="CSV of reviewed suspects: column,kind,reason,...")
+    ] = None,
+    history: Annotated[
+        str | None, typer.Option(help="Folder that keeps every run's findings.")
+    ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
     code: Annotated[
         list[str] | None, typer.Option(help="Training script or notebook to audit (repeatable).")
@@ -237,9 +249,19 @@ def scan(
     flags["code"] = flags.get("code") or None
     flags["normalise_labels"] = flags.get("normalise_labels") or None
     inputs, settings = _inputs_and_settings(flags, config)
+    from featureaudit.accepted import apply_accepted, read_accepted
+    from featureaudit.history import check_folder, load_runs, store_run
+
+    reviewed = read_accepted(inputs.accepted) if inputs.accepted else None
+    history_dir = check_folder(inputs.history) if inputs.history else None
+    earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
     result = audit(str(table), **inputs.table_inputs(), settings=settings)
+    if reviewed is not None:
+        apply_accepted(result.document, reviewed)
     out_dir = Path(inputs.out or "featureaudit-report")
-    result.write(out_dir)
+    result.write(out_dir, history=earlier)
+    if history_dir is not None:
+        store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
     fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
     if fail and _reached(result.document, fail):
@@ -281,10 +303,13 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
     print(verdict_line(Findings(doc)))
     top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
     for c in top:
-        print(f"  {c['level']:<8} {c['score']:.2f}  {quote_name(c['column'])}: {c['summary']}")
+        note = "  [accepted after review]" if c.get("accepted") else ""
+        name = quote_name(c["column"])
+        print(f"  {c['level']:<8} {c['score']:.2f}  {name}: {c['summary']}{note}")
     for f in doc["dataset_findings"]:
         if Level.parse(f["level"]) >= Level.MEDIUM:
-            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}")
+            note = "  [accepted after review]" if f.get("accepted") else ""
+            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}{note}")
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
     print(f"dossier: {out_dir / 'dossier.html'}")
@@ -321,25 +346,47 @@ def diff(
     fail_at: Annotated[
         str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
     ] = None,
+    format: Annotated[str, typer.Option(help="text, json or markdown.")] = "text",
 ) -> int:
-    """Print columns and split findings that are new, gone or changed level between two runs.
+    """Print columns and split findings that are new, gone or changed level between two runs,
+    highest level first; accepted ones are marked and never fail.
 
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
-    --fail-at high
+    --fail-at high --format markdown
     """
+    from featureaudit.diff_format import FORMATS, format_diff
+
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
+    if format not in FORMATS:
+        raise SettingError(f"--format {format!r} is not one of {', '.join(FORMATS)}.")
     lines = diff_findings(load_findings(old), load_findings(new))
-    if not lines:
-        print("no change in levels")
-    for line in lines:
-        print(line.text())
-    if level and any(
-        d.change in ("new", "raised")
-        and d.new_level
-        and Level.parse(d.new_level) >= Level.parse(level)
-        for d in lines
-    ):
+    print(format_diff(lines, format))
+    if level and any(d.counts_at(level) for d in lines):
         return 1
+    return 0
+
+
+@app.command("history")
+def history_cmd(
+    folder: Annotated[Path, typer.Argument(help="The folder given to scan --history.")],
+    column: Annotated[str | None, typer.Option(help="Show this column only.")] = None,
+) -> int:
+    """Print each column's level and score in every stored run, oldest first, and which
+    runs raised it.
+
+    Example: featureaudit history audit-history --column reminders_sent
+    """
+    from featureaudit.history import history_lines, load_runs, series
+
+    runs = load_runs(folder)
+    if column is not None and runs and column not in series([r.findings for r in runs]):
+        from featureaudit.errors import ColumnNotFound
+
+        raise ColumnNotFound(
+            f"--column {column!r} is in none of the {len(runs)} runs in {str(folder)!r}; "
+            "pass a column the audits reported."
+        )
+    print("\n".join(history_lines(runs, column)))
     return 0
 
 
@@ -367,7 +414,9 @@ def dictionary_cmd(
             f"--target column {target!r} is not in {table.name}; columns are: "
             f"{', '.join(frame.columns[:30])}. Pass --target with one of them."
         )
-    sys.stdout.write(draft_dictionary(frame, target=target))
+    from featureaudit.dictionary import add_suggestions
+
+    sys.stdout.write(add_suggestions(draft_dictionary(frame, target=target), frame, target=target))
     return 0
 
 

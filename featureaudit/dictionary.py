@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -214,3 +215,93 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
     if is_integer_or_text and unique_share > 0.999 and n > 50:
         return "id"
     return "feature"
+
+
+# ---- draft suggestions: time columns and columns that look recorded after the outcome ------
+_LABEL_TIME_WORDS = ("decided", "resolved", "outcome", "label", "settled", "closed", "ended")
+_CUTOFF_WORDS = ("issued", "created", "cutoff", "as_of", "asof", "snapshot", "scored", "opened")
+_POST_OUTCOME_WORDS = (
+    "after",
+    "post",
+    "outcome",
+    "result",
+    "final",
+    "closed",
+    "collection",
+    "reminder",
+    "paid",
+    "settled",
+    "resolved",
+    "refund",
+    "chargeback",
+    "writeoff",
+    "write_off",
+    "churned",
+    "cancelled",
+    "canceled",
+    "overdue",
+    "recovered",
+    "dunning",
+)
+
+
+def _tokens(name: str) -> list[str]:
+    spaced = re.sub(r"([a-z0-9])([A-Z])", r"\1_\2", name)
+    return [t for t in re.split(r"[^0-9a-zA-Z]+", spaced.lower()) if t]
+
+
+def _is_datetime(s: pd.Series) -> bool:
+    if pd.api.types.is_datetime64_any_dtype(s.dtype):
+        return True
+    if s.dtype != object and not pd.api.types.is_string_dtype(s.dtype):
+        return False
+    sample = s.dropna().astype(str).head(200)
+    if sample.empty or not sample.str.contains(r"\d{4}-\d{2}-\d{2}", regex=True).all():
+        return False
+    parsed = pd.to_datetime(sample, errors="coerce", format="ISO8601")
+    return bool(parsed.notna().mean() >= 0.9)
+
+
+def draft_suggestions(frame: pd.DataFrame, *, target: str | None = None) -> dict[str, str]:
+    """A note for the user per column worth a second look: datetime columns offered as
+    ``label_time`` / ``cutoff_time`` candidates, and names that read like a record made after
+    the outcome (to check, not a verdict)."""
+    notes: dict[str, str] = {}
+    for name in frame.columns:
+        if name == target:
+            continue
+        text = str(name)
+        tokens = _tokens(text)
+        joined = "_".join(tokens)
+        parts = []
+        if _is_datetime(frame[name]):
+            if any(w in joined for w in _LABEL_TIME_WORDS):
+                parts.append("label_time candidate (a datetime named like an outcome time)")
+            elif any(w in joined for w in _CUTOFF_WORDS):
+                parts.append("cutoff_time candidate (a datetime named like a prediction time)")
+            else:
+                parts.append(
+                    "datetime: a label_time or cutoff_time candidate, or the known_at of "
+                    "another feature"
+                )
+        hits = [w for w in _POST_OUTCOME_WORDS if w in tokens or w in joined]
+        if hits:
+            parts.append(
+                f"check: the name ({', '.join(hits[:3])}) suggests a record made after the "
+                "outcome; give its known_at, or drop it"
+            )
+        if parts:
+            notes[text] = "; ".join(parts)
+    return notes
+
+
+def add_suggestions(draft: str, frame: pd.DataFrame, *, target: str | None = None) -> str:
+    """The draft CSV with a ``suggestion`` column (kept and shown when read back)."""
+    notes = draft_suggestions(frame, target=target)
+    rows = list(csv.reader(io.StringIO(draft)))
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow([*rows[0], "suggestion"])
+    for row in rows[1:]:
+        writer.writerow([*row, notes.get(row[0], "")])
+    return buf.getvalue()

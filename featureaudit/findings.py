@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
@@ -130,11 +130,14 @@ def _entry_problem(entry: object, required: str) -> str | None:
     return None
 
 
-def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False) -> list[str]:
+def droplist(
+    findings: Findings, at_least: str = "high", *, refit: bool = False, accepted: bool = False
+) -> list[str]:
     """Columns at ``at_least`` or above, most suspect first (the file lists them by score).
 
     Columns whose remedy is ``refit_on_training_rows`` are to be refitted, not dropped, so
-    they are left out unless ``refit`` is true.
+    they are left out unless ``refit`` is true; columns a reviewer accepted (``--accepted``)
+    are left out unless ``accepted`` is true.
     """
     floor = Level.parse(at_least)
     cols = [
@@ -142,6 +145,7 @@ def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False)
         for c in findings.columns
         if Level.parse(c.get("level", "none")) >= floor
         and (refit or c.get("remedy") != "refit_on_training_rows")
+        and (accepted or not c.get("accepted"))
     ]
     cols.sort(key=lambda c: -float(c.get("score") or 0.0))
     return [c["column"] for c in cols]
@@ -149,65 +153,109 @@ def droplist(findings: Findings, at_least: str = "high", *, refit: bool = False)
 
 @dataclass(frozen=True)
 class DiffLine:
-    """One change between two runs."""
+    """One change between two runs; ``accepted`` is the later run's review record, if any."""
 
     change: str  # new, gone, raised, lowered
-    scope: str  # column or dataset
+    scope: str  # column or split (the words `scan` uses)
     name: str
     old_level: str | None
     new_level: str | None
     detail: str = ""
-    extra: dict[str, Any] = field(default_factory=dict)
+    accepted: dict[str, Any] | None = None
+
+    @property
+    def levels(self) -> str:
+        if self.change == "new":
+            return self.new_level or ""
+        if self.change == "gone":
+            return self.old_level or ""
+        return f"{self.old_level} -> {self.new_level}"
+
+    def counts_at(self, level: str) -> bool:
+        """True when this change is new or raised, reaches ``level`` and is not accepted."""
+        return (
+            self.change in ("new", "raised")
+            and self.new_level is not None
+            and Level.parse(self.new_level) >= Level.parse(level)
+            and not self.accepted
+        )
 
     def text(self) -> str:
-        levels = (
-            (self.new_level or "")
-            if self.change == "new"
-            else (
-                (self.old_level or "")
-                if self.change == "gone"
-                else f"{self.old_level} -> {self.new_level}"
-            )
+        note = (
+            f"  [accepted: {self.accepted.get('reason') or 'no reason given'}]"
+            if self.accepted
+            else ""
         )
-        return f"{self.change:<8} {self.scope:<8} {self.name}  {levels}" + (
-            f"  ({self.detail})" if self.detail else ""
+        return (
+            f"{self.change:<8} {self.scope:<7} {self.name}  {self.levels}"
+            + (f"  ({self.detail})" if self.detail else "")
+            + note
         )
+
+    def to_dict(self) -> dict[str, Any]:
+        return {
+            "change": self.change,
+            "scope": self.scope,
+            "name": self.name,
+            "old_level": self.old_level,
+            "new_level": self.new_level,
+            "summary": self.detail,
+            "accepted": self.accepted,
+        }
 
 
 def _dataset_key(f: dict[str, Any]) -> str:
     return f"{f.get('probe')}/{f.get('kind')}/{f.get('statistic')}"
 
 
+def _split_names(findings: list[dict[str, Any]]) -> dict[str, str]:
+    """Key -> shown name: the kind, with the statistic only when two findings share a kind."""
+    kinds = [f.get("kind") for f in findings]
+    return {
+        _dataset_key(f): str(f.get("kind"))
+        if kinds.count(f.get("kind")) == 1
+        else f"{f.get('kind')} ({f.get('statistic')})"
+        for f in findings
+    }
+
+
 def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
-    """Columns and dataset findings that are new, gone, or changed level between two runs."""
+    """Columns and split findings that are new, gone, or changed level between two runs,
+    highest level first."""
     lines: list[DiffLine] = []
+    names = {**_split_names(old.dataset_findings), **_split_names(new.dataset_findings)}
     pairs = [
         ("column", {c["column"]: c for c in old.columns}, {c["column"]: c for c in new.columns}),
         (
-            "dataset",
+            "split",
             {_dataset_key(f): f for f in old.dataset_findings},
             {_dataset_key(f): f for f in new.dataset_findings},
         ),
     ]
     for scope, before, after in pairs:
-        for name, item in after.items():
+
+        def shown(key: str, scope: str = scope) -> str:
+            return names.get(key, key) if scope == "split" else key
+
+        for key, item in after.items():
             level = item.get("level", "none")
-            if name not in before:
-                if scope == "dataset" or level != "none":
-                    lines.append(DiffLine("new", scope, name, None, level, item.get("summary", "")))
+            summary, accepted = item.get("summary", ""), item.get("accepted") or None
+            if key not in before:
+                if scope == "split" or level != "none":
+                    lines.append(DiffLine("new", scope, shown(key), None, level, summary, accepted))
                 continue
-            was = before[name].get("level", "none")
+            was = before[key].get("level", "none")
             if was != level:
                 change = "raised" if Level.parse(level) > Level.parse(was) else "lowered"
-                lines.append(DiffLine(change, scope, name, was, level, item.get("summary", "")))
-        for name, item in before.items():
-            if name not in after:
-                lines.append(DiffLine("gone", scope, name, item.get("level", "none"), None))
+                lines.append(DiffLine(change, scope, shown(key), was, level, summary, accepted))
+        for key, item in before.items():
+            if key not in after:
+                lines.append(DiffLine("gone", scope, shown(key), item.get("level", "none"), None))
     order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
     lines.sort(
         key=lambda d: (
-            order[d.change],
             -Level.parse(d.new_level or d.old_level or "none"),
+            order[d.change],
             d.scope,
             d.name,
         )

@@ -144,6 +144,12 @@ class Inputs:
     normalise_labels: bool | None = _declare(
         "--normalise-labels", "true or false", lambda v: isinstance(v, bool)
     )
+    accepted: str | None = _declare(
+        "--accepted", "a CSV path of reviewed suspects", _path, scan_only=True
+    )
+    history: str | None = _declare(
+        "--history", "a folder path for the run history", _path, scan_only=True
+    )
     code: Any = _declare("--code", "a script or notebook path, or a list of them", _paths)
 
     def __post_init__(self) -> None:

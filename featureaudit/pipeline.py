@@ -52,6 +52,9 @@ def run_audit(
     evidence: list[Evidence] = []
     skipped: list[Skip] = []
     warnings = list(table.warnings)
+    from featureaudit.timing_gaps import timing_gap_warning
+
+    warnings.extend(timing_gap_warning(table))
     timings: dict[str, float] = {}
     for i, name in enumerate(names, start=1):
         if show:

@@ -53,7 +53,11 @@ def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdi
         if e.rank >= Level.LOW and e.kind not in kinds:
             kinds.append(e.kind)
     summary = top.summary or f"{top.statistic} = {top.value}"
-    others = [k for k in kinds if k != top.kind]
+    # "also" names only other kinds that are themselves worth a reviewer's look (medium+)
+    others = []
+    for e in items:
+        if e.rank >= Level.MEDIUM and e.kind != top.kind and e.kind not in others:
+            others.append(e.kind)
     if others:
         summary += "; also " + ", ".join(k.replace("_", " ") for k in others)
     score = (int(rank_) + sev) / len(Level)

@@ -42,6 +42,7 @@ def _env() -> jinja2.Environment:
     env.filters["visible"] = _visible
     env.filters["fmt"] = _fmt
     env.filters["md"] = _md
+    env.filters["words"] = statistic_words
     from featureaudit import charts
 
     for name in charts.__all__:
@@ -93,40 +94,88 @@ def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
     lo, hi = (entry.get("ci95") or [None, None])[:2]
     if abs(change) < negligible and (hi is None or hi < negligible):
         return "negligible"
-    ci = f" ({lo:+.3f} to {hi:+.3f})" if lo is not None and hi is not None else ""
+    # shown as the score's change when the column is removed: the sign of the interval too
+    ci = f" ({-hi:+.3f} to {-lo:+.3f})" if lo is not None and hi is not None else ""
     return f"{-change:+.3f}{ci}"
 
 
 def verdict_line(findings: Findings) -> str:
-    """One plain sentence: how many suspects at which levels."""
+    """One plain sentence: how many suspects at which levels; the parts add up to the whole,
+    and reviewed (accepted) ones are counted apart."""
     counts: dict[str, int] = {}
-    for c in findings.columns:
-        counts[c["level"]] = counts.get(c["level"], 0) + 1
-    for f in findings.dataset_findings:
-        counts[f["level"]] = counts.get(f["level"], 0) + 1
+    accepted = 0
+    for item in [*findings.columns, *findings.dataset_findings]:
+        if item.get("accepted") and Level.parse(item["level"]) >= Level.MEDIUM:
+            accepted += 1
+            continue
+        counts[item["level"]] = counts.get(item["level"], 0) + 1
     serious = counts.get("critical", 0) + counts.get("high", 0)
+    reviewed = (
+        f" {accepted} more {'was' if accepted == 1 else 'were'} accepted after review and "
+        "not counted."
+        if accepted
+        else ""
+    )
     if serious == 0:
         return (
             "No column or split finding reached level high. Review the medium ones, "
-            "and remember what the audit cannot see."
+            f"and remember what the audit cannot see.{reviewed}"
         )
     parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
     medium = f"; {counts['medium']} more at medium" if counts.get("medium") else ""
     return (
         f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
         f"({', '.join(parts)}){medium}. Resolve them before trusting validation scores."
+        f"{reviewed}"
     )
 
 
+STATISTIC_WORDS = {
+    "oof_auc": "out-of-fold AUC of the column alone",
+    "oof_macro_auc": "out-of-fold macro AUC of the column alone",
+    "oof_r2": "out-of-fold R² of the column alone",
+    "row_position_oof_auc": "out-of-fold AUC of the row position alone",
+    "determinism_given_target": "share of the column's entropy the target accounts for",
+    "target_share_beyond_peers": "target power beyond what the other columns explain",
+    "share_after_cutoff": "share of rows known after the cutoff",
+    "heldout_share_before_train_end": "share of held-out rows earlier than the end of training",
+    "heldout_share_with_twin": "share of held-out rows with a training copy",
+    "heldout_row_share_with_shared_entity": "share of held-out rows whose entity is in training",
+    "adversarial_auc": "AUC of a model telling held-out from training rows",
+    "fingerprint_checks": "checks matching a statistic fitted on all rows",
+    "imputed_minus_training_mean": "fill value minus the training-row mean",
+    "imputed_minus_training_median": "fill value minus the training-row median",
+    "training_rows_mean": "mean over the training rows",
+}
+CARD_FLOOR = Level.MEDIUM  # a full card from this level up; lower levels share one table
 MAX_CARDS = 60  # evidence cards beyond this many suspects stay in the ranked table
 
 
-def render_dossier(findings: Findings) -> str:
+def statistic_words(name: str) -> str:
+    """A statistic's name in words (the machine name is shown beside it, in small print)."""
+    return STATISTIC_WORDS.get(name, str(name).replace("_", " "))
+
+
+def undocumented_timing(doc: dict[str, Any]) -> list[str]:
+    """Features named in the "timing not documented" warning, if the audit gave one."""
+    for w in doc.get("warnings", []):
+        if str(w).startswith(TIMING_NOTE):
+            return [n.strip() for n in str(w)[len(TIMING_NOTE) :].split(";")[0].split(",")]
+    return []
+
+
+TIMING_NOTE = "timing not documented: "  # the prefix featureaudit.timing_gaps writes
+
+
+def render_dossier(findings: Findings, *, history: list[Findings] | None = None) -> str:
+    from featureaudit.history import marks, series, trend_svg
+
     doc = findings.document
-    suspects = [c for c in doc["columns"] if c["level"] != "none"]
-    cards = [
-        {**c, "charted": c["level"] in ("medium", "high", "critical")} for c in suspects[:MAX_CARDS]
-    ]
+    runs = [*(history or []), findings]
+    trends = series(runs) if len(runs) > 1 else {}
+    changed = marks(history[-1] if history else None, findings)
+    floor = int(CARD_FLOOR)
+    ranked = [c for c in doc["columns"] if Level.parse(c["level"]) >= floor]
     return (
         _env()
         .get_template("dossier.html.j2")
@@ -134,13 +183,21 @@ def render_dossier(findings: Findings) -> str:
             doc=doc,
             verdict=verdict_line(findings),
             caution=CAUTION,
-            suspects=suspects,
-            cards=cards,
+            ranked=ranked,
+            cards=ranked[:MAX_CARDS],
+            lows=[c for c in doc["columns"] if c["level"] == "low"],
             clean=[c for c in doc["columns"] if c["level"] == "none"],
+            splits=[f for f in doc["dataset_findings"] if f["level"] != "none"],
+            quiet_splits=[f for f in doc["dataset_findings"] if f["level"] == "none"],
             drops=droplist(findings, "high"),
             refits=_refits(doc),
             split_groups=split_groups(doc["dataset_findings"]),
             methods=list(doc.get("settings", {}).get("methods", {}).items()),
+            trend={n: trend_svg(p) for n, p in trends.items()},
+            runs=len(runs),
+            marks=changed,
+            undocumented=undocumented_timing(doc),
+            warnings=[w for w in doc.get("warnings", []) if not str(w).startswith(TIMING_NOTE)],
         )
     )
 
@@ -178,12 +235,13 @@ def _refits(doc: dict[str, Any]) -> list[str]:
     return [c["column"] for c in doc["columns"] if c.get("remedy") == "refit_on_training_rows"]
 
 
-def render_all(findings: Findings) -> dict[str, str]:
-    """Every file of a report, rendered in memory so they can be written together."""
+def render_all(findings: Findings, *, history: list[Findings] | None = None) -> dict[str, str]:
+    """Every file of a report, rendered in memory so they can be written together;
+    ``history`` holds the earlier runs, oldest first, for the dossier's trends."""
     drops = droplist(findings, "high")
     return {
         "findings.json": findings.to_json(),
         "droplist.txt": "".join(f"{quote_name(c)}\n" for c in drops),
         "summary.md": render_summary(findings),
-        "dossier.html": render_dossier(findings),
+        "dossier.html": render_dossier(findings, history=history),
     }

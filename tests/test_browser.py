@@ -93,3 +93,63 @@ def test_screenshot_and_pdf(demo_report, tmp_path):
     _chromium(tmp_path, url, f"--print-to-pdf={pdf}", "--no-pdf-header-footer")
     assert shot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and shot.stat().st_size > 20_000
     assert pdf.read_bytes()[:5] == b"%PDF-" and pdf.stat().st_size > 20_000
+
+
+def _pages(pdf: Path) -> int:
+    """Pages of a Chromium PDF: its page objects (``/Type /Page``, not ``/Pages``)."""
+    return len(re.findall(rb"/Type\s*/Page(?![s\w])", pdf.read_bytes()))
+
+
+def _print(tmp: Path, page: Path) -> int:
+    pdf = tmp / f"{page.stem}.pdf"
+    _chromium(tmp, page.as_uri(), f"--print-to-pdf={pdf}", "--no-pdf-header-footer")
+    return _pages(pdf)
+
+
+def test_page_counter_counts(tmp_path):
+    page = tmp_path / "three.html"
+    page.write_text(
+        "<html><body>"
+        + "".join(f'<p style="break-before: page">page {i}</p>' for i in range(3))
+        + "</body></html>"
+    )
+    assert _print(tmp_path, page) == 3
+
+
+def _front_only(dossier: Path, tmp: Path) -> Path:
+    """The dossier cut after its first section: what prints on the first page."""
+    html = dossier.read_text()
+    cut = re.sub(r'<section class="evidence[^"]*">.*</main>', "</main>", html, flags=re.S)
+    assert cut != html
+    page = tmp / "front.html"
+    page.write_text(cut)
+    return page
+
+
+def test_demo_prints_in_few_pages_with_a_first_page_that_stands_alone(demo_report, tmp_path):
+    assert _print(tmp_path, demo_report / "dossier.html") <= 8
+    front = _front_only(demo_report / "dossier.html", tmp_path)
+    text = front.read_text()
+    for part in ("findings at level high", "validation AUC", "Split findings", "Drop and refit"):
+        assert part in text, part
+    assert _print(tmp_path, front) == 1
+
+
+def test_a_200_column_audit_prints_in_at_most_8_pages(demo_report, tmp_path):
+    """Demo evidence spread over 200 columns: 12 at medium or above, 60 at low, the rest clean
+    (the shape of a wide table with a few suspects)."""
+    from featureaudit.findings import Findings
+    from featureaudit.report import render_dossier
+
+    doc = json.loads((demo_report / "findings.json").read_text())
+    suspects = [c for c in doc["columns"] if c["level"] in ("medium", "high", "critical")]
+    low = next(c for c in doc["columns"] if c["level"] == "low")
+    clean = next(c for c in doc["columns"] if c["level"] == "none")
+    columns = []
+    for i in range(200):
+        model = suspects[i % len(suspects)] if i < 12 else low if i < 72 else clean
+        columns.append({**model, "column": f"{model['column']}_{i:03d}"})
+    doc["columns"] = columns
+    page = tmp_path / "wide.html"
+    page.write_text(render_dossier(Findings(doc)))
+    assert _print(tmp_path, page) <= 8

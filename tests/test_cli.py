@@ -144,8 +144,8 @@ def test_dictionary_command(leaky_csv):
     result = run("dictionary", leaky_csv, "--target", "y")
     assert result.exit_code == 0
     lines = result.stdout.strip().splitlines()
-    assert lines[0] == "column,role,known_at,description"
-    assert "y,target,," in lines and "split,split,," in lines
+    assert lines[0] == "column,role,known_at,description,suggestion"
+    assert "y,target,,," in lines and "split,split,,," in lines
 
 
 def test_config_file_supplies_flags_and_flags_win(leaky_csv, tmp_path):

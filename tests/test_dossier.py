@@ -243,3 +243,102 @@ def test_headline_counts_only_high_and_above_in_its_parentheses():
     assert line.startswith(
         "3 findings at level high or above (1 critical, 2 high); 1 more at medium."
     )
+
+
+# ---- the dossier for a reviewer ----------------------------------------------------------
+
+
+def _reviewer_doc():
+    cols = [_column(f"m{i}", lv) for i, lv in enumerate(["critical", "high", "medium"])]
+    cols += [_column(f"low{i}", "low") for i in range(3)] + [_column("quiet", "none")]
+    for c in cols:
+        c["evidence"][0]["summary"] = c["summary"]  # the top evidence is the column's summary
+        c["evidence"][0]["statistic"] = "oof_auc"
+    return _doc(cols)
+
+
+def test_cards_only_from_medium_up_and_lows_in_one_table():
+    page = render_dossier(_reviewer_doc())
+    cards = re.findall(r'<section class="card l-(\w+)" id="card-', page)
+    assert cards == ["critical", "high", "medium"]
+    lows = re.search(r'<table class="lows">(.*?)</table>', page, re.S).group(1)
+    assert all(f"low{i}" in lows for i in range(3)) and "m0" not in lows
+
+
+def test_each_summary_appears_once():
+    page = render_dossier(_reviewer_doc())
+    for name in ("m0", "m1", "m2", "low0"):
+        assert page.count(f"{name} summary") == 1, name
+
+
+def test_statistics_in_words_with_the_machine_name_small():
+    page = render_dossier(_reviewer_doc())
+    assert "out-of-fold AUC of the column alone" in page
+    assert '<small class="mach" title="name in findings.json">oof_auc</small>' in page
+
+
+def test_first_page_holds_verdict_suspects_splits_lists_and_caution():
+    page = render_dossier(_reviewer_doc())
+    front = page[page.index('<section class="front">') : page.index('<section class="evidence')]
+    for part in ("findings at level high", 'id="ranked"', "Split findings", 'id="drops"'):
+        assert part in front, part
+    assert str(escape(CAUTION)) in front
+
+
+def test_headline_counts_add_up_and_accepted_ones_apart():
+    from featureaudit.report import verdict_line
+
+    doc = _reviewer_doc().document
+    doc["columns"][1]["accepted"] = {"reason": "r", "reviewed_by": "me", "until": None}
+    line = verdict_line(Findings(doc))
+    # critical m0 counts; high m1 is accepted; medium m2 counts as medium
+    assert line.startswith("1 finding at level high or above (1 critical); 1 more at medium.")
+    assert "1 more was accepted after review and not counted." in line
+
+
+class _Table:
+    """The little of an audit table the ranker reads."""
+
+    id_columns: list = []
+    features = ["c"]
+    dictionary = None
+    roles: dict = {}
+
+
+def test_also_names_only_other_kinds_at_medium_or_above():
+    from featureaudit.evidence import Evidence
+    from featureaudit.ranker import rank
+
+    def ev(kind, level, summary):
+        return Evidence("p", kind, "s", 0.5, 0.4, level, column="c", summary=summary)
+
+    low_proxy = [ev("recorded_after_cutoff", "high", "late"), ev("target_proxy", "low", "weak")]
+    verdicts, _ = rank(_Table(), low_proxy)
+    assert verdicts[0].summary == "late" and "target_proxy" in verdicts[0].kinds
+    medium_proxy = [ev("recorded_after_cutoff", "high", "late"), ev("target_proxy", "medium", "x")]
+    verdicts, _ = rank(_Table(), medium_proxy)
+    assert verdicts[0].summary == "late; also target proxy"
+
+
+def test_timing_not_documented_is_listed(small_binary, tmp_path):
+    dictionary = tmp_path / "dict.csv"
+    dictionary.write_text("column,role,known_at\nsignal,feature,-1d\ny,target,\n")
+    frame = small_binary.assign(decided_at=small_binary["seen_at"] + pd.Timedelta("40D"))
+    result = fa.audit(
+        frame, target="y", dictionary=dictionary, label_time="decided_at", probes=["timing"]
+    )
+    warning = next(w for w in result.document["warnings"] if w.startswith("timing not documented"))
+    for name in ("noise", "noise2", "colour"):
+        assert name in warning
+    assert "signal" not in warning.split(";")[0]
+    page = render_dossier(result.findings)
+    assert "<b>timing not documented</b>" in page and "<code>noise2</code>" in page
+
+
+def test_impact_words_keep_the_sign_of_value_and_interval_together():
+    from featureaudit.report import impact_words
+
+    # removing the column lowers the score by 0.426 (its lift), interval lowered alike
+    assert impact_words({"change": 0.426, "ci95": [0.36, 0.48]}) == "-0.426 (-0.480 to -0.360)"
+    assert impact_words({"change": 0.001, "ci95": [-0.002, 0.004]}) == "negligible"
+    assert impact_words(None) == "not measured"

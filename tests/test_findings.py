@@ -133,7 +133,7 @@ def test_diff_new_gone_raised_lowered():
         ("lowered", "b"),
         ("gone", "gone"),
         ("new", "fresh"),
-        ("gone", "twins/duplicate_rows_across_split/s"),
+        ("gone", "duplicate_rows_across_split"),
     }
 
 

@@ -252,6 +252,7 @@ def unique_lift(without: RefFit, with_: RefFit) -> dict[str, Any]:
         return 1.0 - b / a if a > 1e-12 else 0.0
 
     per_fold = [lift(a, b) for a, b in zip(without.fold_errors, with_.fold_errors, strict=True)]
+    per_fold = per_fold or [0.0]  # no fold could be fitted: nothing measured, no lift
     return {
         "value": lift(without.error, with_.error),
         "low": float(min(per_fold)),
@@ -293,8 +294,8 @@ def _reference_fit(
         # no reference at all when a class has a single row (nothing to learn it from)
         counts = np.bincount(y.astype(np.int64))
         folds = min(folds, int(counts[counts > 0].min()))
-    if folds < 2 or len(y) < folds:
-        return 0.0
+    if folds < 2 or len(y) < folds:  # nothing to fit: no power, the error of a guess
+        return RefFit(0.0, 1.0 if task == "numeric" else 0.5, ())
     if task == "numeric":
         split = list(KFold(folds, shuffle=True, random_state=seed).split(x))
         pred = np.zeros(len(y))
