@@ -268,13 +268,19 @@ def reused_lift(column: dict[str, Any], metric: str) -> dict | None:
         if not isinstance(lift, dict) or not _finite(lift.get("value")):
             continue
         stat = str(lift.get("statistic") or "")
-        if stat and ("r2" in stat) != (metric == "r2"):
+        if stat and ("r2" in stat.lower()) != (metric == "r2"):
             continue  # an AUC lift cannot stand for an R² change, nor the reverse
-        lo, hi = lift.get("low"), lift.get("high")
+        before, after = lift.get("error_without"), lift.get("error_with")
+        if not (_finite(before) and _finite(after)):
+            continue  # a relative lift alone is not a score change
+        # the errors are 1 − score, so the score change is their difference; the relative
+        # lift's spread over folds, scaled by the error without the column, is its spread
+        change = float(before) - float(after)
+        lo, hi = (_num(lift.get(k)) * float(before) for k in ("low", "high"))
         folds = f", {lift['folds']} folds" if lift.get("folds") else ""
         return {
-            "change": round(float(lift["value"]), 4),
-            "ci95": _r([_num(lo), _num(hi)]),
+            "change": round(change, 4),
+            "ci95": _r([lo, hi]),
             "how": f"the column removed (the unique lift {e.get('probe', 'a probe')} measured"
             f"{folds}{', ' + stat if stat else ''}; not refitted here)",
         }

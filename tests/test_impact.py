@@ -155,7 +155,16 @@ def test_a_unique_lift_in_the_evidence_is_reused_not_refitted(
     from featureaudit.settings import Settings
     from featureaudit.table import build_table
 
-    lift = {"value": 0.031, "low": 0.02, "high": 0.045, "statistic": "oof_auc", "folds": 5}
+    # solo's field: the relative reduction of 1 − AUC, its per-fold range and both errors
+    lift = {
+        "value": 0.775,
+        "low": 0.5,
+        "high": 0.9,
+        "statistic": "1 - AUC",
+        "folds": 5,
+        "error_without": 0.04,
+        "error_with": 0.009,
+    }
     table = build_table(_leaky(breast_cancer, noisy_copy), target="malignant")
     settings = Settings(seed=0, n_jobs=1)
 
@@ -164,7 +173,8 @@ def test_a_unique_lift_in_the_evidence_is_reused_not_refitted(
 
     monkeypatch.setattr(impact, "column_change", no_refit)
     block, per_column = impact.measure_impact(table, settings, [_column(lift)], [])
-    assert per_column["leak"]["change"] == 0.031 and per_column["leak"]["ci95"] == [0.02, 0.045]
+    # the score change is the difference of the errors: 0.04 − 0.009; the spread scales with 0.04
+    assert per_column["leak"]["change"] == 0.031 and per_column["leak"]["ci95"] == [0.02, 0.036]
     entry = [e for e in block["by_finding"] if e["column"] == "leak"][0]
     assert entry["corrected"] == round(block["as_given"] - 0.031, 4)
     assert "unique lift" in entry["how"]
@@ -174,8 +184,13 @@ def test_a_unique_lift_in_the_evidence_is_reused_not_refitted(
     # an AUC lift does not stand for an R² change; a lift without a value is ignored
     assert impact.reused_lift(_column(lift), "r2") is None
     assert impact.reused_lift(_column({**lift, "value": None}), "auc") is None
-    no_ci = impact.reused_lift(_column({"value": 0.01}), "auc")
-    assert no_ci == {"change": 0.01, "ci95": [None, None], "how": no_ci["how"]}
+    # a relative lift without the errors it came from is not a score change
+    assert impact.reused_lift(_column({"value": 0.01}), "auc") is None
+    no_ci = impact.reused_lift(_column({"error_without": 0.02, "error_with": 0.01}), "auc")
+    assert no_ci is None  # no value: ignored as well
+    partial = {"value": 0.5, "error_without": 0.02, "error_with": 0.01}
+    got = impact.reused_lift(_column(partial), "auc")
+    assert got == {"change": 0.01, "ci95": [None, None], "how": got["how"]}
 
 
 # ---- split shift: training rows re-weighted by the adversarial odds --------------------------
