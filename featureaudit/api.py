@@ -10,6 +10,7 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.engines import resolve_engine
 from featureaudit.findings import Findings, droplist
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
@@ -125,6 +126,9 @@ def audit(
     probes: list[str] | None = None,
     settings: Settings | None = None,
     source: str | None = None,
+    engine: str | None = None,
+    sample_rows: int | None = None,
+    progress: bool | None = None,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -146,6 +150,12 @@ def audit(
         As the scan flags of the same names.
     seed : int, default 0
         Seeds every sample and fold, so the same inputs give the same findings.
+    engine : {"auto", "memory", "stream", "dask"}, optional
+        Overrides ``settings.engine``; ``stream`` reads Parquet in bounded memory.
+    sample_rows : int, optional
+        Overrides ``settings.sample_rows``, the seeded sample the stream engine audits.
+    progress : bool, optional
+        Progress on stderr; default when stderr is a terminal.
 
     Returns
     -------
@@ -162,8 +172,8 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
-    table = build_table(
-        data,
+    settings = _engine_settings(settings, engine, sample_rows)
+    build: dict[str, Any] = dict(
         test=test,
         split_column=split_column,
         train_value=train_value,
@@ -176,8 +186,18 @@ def audit(
         entity=entity,
         source=source,
     )
-    if settings is None:
-        settings = Settings(seed=seed)
-    elif seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
+    if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
         settings = Settings(**{**settings.to_dict(), "seed": seed})
-    return AuditResult(run_audit(table, settings, probes=probes))
+    if resolve_engine(settings.engine, data, test) == "stream":
+        from featureaudit.engines.run import run_stream
+
+        return AuditResult(run_stream(data, build, settings, probes, progress))
+    table = build_table(data, **build)
+    return AuditResult(run_audit(table, settings, probes=probes, progress=progress))
+
+
+def _engine_settings(settings: Settings | None, engine: str | None, rows: int | None) -> Settings:
+    """The settings with ``engine`` and ``sample_rows`` given as arguments put in."""
+    over = {k: v for k, v in (("engine", engine), ("sample_rows", rows)) if v is not None}
+    base = settings.to_dict() if settings is not None else {}
+    return Settings(**{**base, **over})

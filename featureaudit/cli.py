@@ -120,6 +120,15 @@ def scan(
         ),
     ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
+    # engine block: where the table is read (featureaudit/engines)
+    engine: Annotated[
+        str | None, typer.Option(help="auto, memory, stream or dask [default: auto].")
+    ] = None,
+    scheduler: Annotated[str | None, typer.Option(help="Dask scheduler address.")] = None,
+    sample_rows: Annotated[
+        int | None, typer.Option(help="Seeded sample for the model-based parts [default: 200000].")
+    ] = None,
+    quiet: Annotated[bool, typer.Option("--quiet", help="No progress on stderr.")] = False,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -143,10 +152,14 @@ def scan(
         "fail_at": fail_at,
         "seed": seed,
         "fail_at_impact": fail_at_impact,
+        "engine": engine,
+        "scheduler": scheduler,
+        "sample_rows": sample_rows,
+        "quiet": quiet or None,
     }
     opts = dict(read_config(config)) if config else {}
-    settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
     opts.update({k: v for k, v in given.items() if v is not None})
+    settings_over = {k: opts.pop(k) for k in list(opts) if k in Settings.names() and k != "seed"}
     fail = check_level(opts["fail_at"], flag="--fail-at") if opts.get("fail_at") else None
     seed_value = _int(opts.get("seed", 0), "--seed")
     try:
@@ -167,6 +180,7 @@ def scan(
         entity=opts.get("entity"),
         seed=seed_value,
         settings=settings,
+        progress=False if opts.get("quiet") else None,
     )
     out_dir = Path(opts.get("out") or "featureaudit-report")
     result.write(out_dir)

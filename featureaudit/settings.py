@@ -15,6 +15,7 @@ from featureaudit.levels import LEVEL_NAMES, Level
 __all__ = ["Settings", "read_config", "CONFIG_KEYS"]
 
 TASKS = ("binary", "multiclass", "numeric")
+ENGINES = ("auto", "memory", "stream", "dask")
 
 # Keys of the config file: every scan flag, with '-' written as '_'.
 CONFIG_KEYS = (
@@ -32,6 +33,8 @@ CONFIG_KEYS = (
     "fail_at",
     "seed",
     "fail_at_impact",
+    "scheduler",
+    "quiet",
 )
 
 
@@ -53,6 +56,8 @@ class Settings:
     time_tolerance: str = "auto"  # "auto": follows the times' resolution (see probes/timing.py)
     share_tolerance: float = 0.01  # shares of rows below this are not flagged
     n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
+    engine: str = "auto"  # auto, memory, stream or dask (featureaudit/engines)
+    sample_rows: int = 200_000  # rows of the seeded sample the stream and dask engines audit
 
     def __post_init__(self) -> None:
         if self.folds < 2:
@@ -69,6 +74,10 @@ class Settings:
             raise SettingError(f"time_tolerance must not be negative; got {self.time_tolerance}.")
         if self.n_jobs < 1:
             raise SettingError(f"n_jobs must be at least 1; got {self.n_jobs}.")
+        if self.engine not in ENGINES:
+            raise SettingError(f"--engine {self.engine!r} is not one of {', '.join(ENGINES)}.")
+        if self.sample_rows < 100:
+            raise SettingError(f"--sample-rows must be at least 100; got {self.sample_rows}.")
         if self.reference_rows < 100:
             raise SettingError(f"reference_rows must be at least 100; got {self.reference_rows}.")
 

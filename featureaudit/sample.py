@@ -1,0 +1,133 @@
+"""A seeded, stratified sample that depends on neither row order nor partition boundaries.
+
+Each row gets a key: a hash of its content (every column but the split column) mixed with
+the seed. Within each stratum (the split side and the target value) the rows with the
+smallest keys are kept (a bottom-k sample). The smallest keys of a union are among the
+smallest keys of its parts, so partials computed on any partitioning merge to the same
+sample; and a training row and its held-out copy share a key, so copies stay together.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+import pyarrow as pa
+
+from featureaudit.io import numeric_view
+
+__all__ = ["SampleSketch", "content_keys", "allocate", "MIN_PER_STRATUM", "MAX_CLASSES"]
+
+MIN_PER_STRATUM = 20  # common practice, no source: a rare class keeps this many rows if it has them
+MAX_CLASSES = 20  # beyond this many target values the sample is stratified by side only
+
+_MULT = np.uint64(0x9E3779B97F4A7C15)
+_M1 = np.uint64(0xBF58476D1CE4E5B9)
+_M2 = np.uint64(0x94D049BB133111EB)
+_NAN = np.uint64(0x7FF8DEADBEEF0001)
+
+
+def _splitmix(x: np.ndarray) -> np.ndarray:
+    """The splitmix64 finaliser (one-to-one on uint64): spreads every input bit over the key."""
+    with np.errstate(over="ignore"):
+        x = x ^ (x >> np.uint64(30))
+        x = x * _M1
+        x = x ^ (x >> np.uint64(27))
+        x = x * _M2
+        return x ^ (x >> np.uint64(31))
+
+
+def _value_codes(s: pd.Series) -> np.ndarray:
+    """A uint64 per value that does not depend on the batch it came in (categories hashed by
+    their text, so two batches with different category lists agree)."""
+    values = numeric_view(s)
+    if values is not None:
+        v = values.copy()
+        v[v == 0] = 0.0
+        bits = v.view(np.uint64).copy()
+        bits[np.isnan(values)] = _NAN
+        return bits
+    text = np.asarray(s.astype(object), dtype=object)
+    missing = pd.isna(text)
+    text = np.where(missing, "\x00NA", text).astype(str).astype(object)
+    return pd.util.hash_array(text).astype(np.uint64)
+
+
+def content_keys(frame: pd.DataFrame, columns: list[str], seed: int) -> np.ndarray:
+    """One uint64 key per row from the values of ``columns`` and ``seed``; equal rows get
+    equal keys whatever their position or partition."""
+    with np.errstate(over="ignore"):
+        h = np.full(len(frame), _splitmix(np.array([seed], dtype=np.uint64))[0], np.uint64)
+        for name in sorted(columns):
+            h = _splitmix(h * _MULT ^ _value_codes(frame[name]))
+    return h
+
+
+def allocate(counts: dict[str, int], size: int) -> dict[str, int]:
+    """Rows per stratum: proportional to ``counts`` (largest remainders), each stratum at
+    least ``MIN_PER_STRATUM`` rows or all it has."""
+    total = sum(counts.values())
+    if total <= size:
+        return dict(counts)
+    exact = {k: size * n / total for k, n in counts.items()}
+    out = {k: int(np.floor(v)) for k, v in exact.items()}
+    short = size - sum(out.values())
+    for k in sorted(exact, key=lambda k: (-(exact[k] - out[k]), k))[:short]:
+        out[k] += 1
+    return {k: min(counts[k], max(n, MIN_PER_STRATUM)) for k, n in out.items()}
+
+
+@dataclass
+class SampleSketch:
+    """Mergeable partial of the sample: per stratum, the ``size`` rows with the smallest keys
+    and the number of rows seen."""
+
+    size: int
+    keys: dict[str, np.ndarray] = field(default_factory=dict)
+    rows: dict[str, pa.Table] = field(default_factory=dict)
+    seen: dict[str, int] = field(default_factory=dict)
+
+    def add(self, batch: pa.Table, keys: np.ndarray, strata: np.ndarray) -> None:
+        """Map one batch (``keys`` and stratum labels per row) into this partial."""
+        labels, inverse = np.unique(strata.astype(str), return_inverse=True)
+        for i, label in enumerate(labels):
+            idx = np.flatnonzero(inverse == i)
+            self._offer(str(label), keys[idx], batch.take(pa.array(idx)), idx.size)
+
+    def merge(self, other: SampleSketch) -> SampleSketch:
+        """Combine two partials; the result is the partial of the union of their rows."""
+        out = SampleSketch(self.size, dict(self.keys), dict(self.rows), dict(self.seen))
+        for label in other.keys:
+            out._offer(label, other.keys[label], other.rows[label], other.seen[label])
+        return out
+
+    def collapse(self) -> SampleSketch:
+        """One stratum per split side: the strata's side is the text before the first tab."""
+        out = SampleSketch(self.size)
+        for label in self.keys:
+            out._offer(label.split("\t")[0], self.keys[label], self.rows[label], self.seen[label])
+        return out
+
+    def _offer(self, label: str, keys: np.ndarray, rows: pa.Table, seen: int) -> None:
+        if label in self.keys:
+            keys = np.concatenate([self.keys[label], keys])
+            rows = pa.concat_tables([self.rows[label], rows], promote_options="default")
+            seen += self.seen[label]
+        if keys.size > self.size:
+            keep = np.sort(np.argpartition(keys, self.size - 1)[: self.size])
+            keys, rows = keys[keep], rows.take(pa.array(keep))
+        self.keys[label], self.rows[label], self.seen[label] = keys, rows, seen
+
+    def draw(self, size: int) -> pa.Table:
+        """The final sample of ``size`` rows (stratum shares as in the data), in key order."""
+        quota = allocate(self.seen, size)
+        parts, keys = [], []
+        for label in sorted(self.keys):
+            k = self.keys[label]
+            take = np.argsort(k, kind="stable")[: quota[label]]
+            parts.append(self.rows[label].take(pa.array(take)))
+            keys.append(k[take])
+        table = pa.concat_tables(parts, promote_options="default")
+        order = np.argsort(np.concatenate(keys), kind="stable")
+        return table.take(pa.array(order))
