@@ -87,6 +87,7 @@ class SampleSketch:
     keys: dict[str, np.ndarray] = field(default_factory=dict)
     rows: dict[str, pa.Table] = field(default_factory=dict)
     seen: dict[str, int] = field(default_factory=dict)
+    limit: dict[str, np.uint64] = field(default_factory=dict)
 
     def add(self, batch: pa.Table, keys: np.ndarray, strata: np.ndarray) -> None:
         """Map one batch (``keys`` and stratum labels per row) into this partial."""
@@ -97,7 +98,9 @@ class SampleSketch:
 
     def merge(self, other: SampleSketch) -> SampleSketch:
         """Combine two partials; the result is the partial of the union of their rows."""
-        out = SampleSketch(self.size, dict(self.keys), dict(self.rows), dict(self.seen))
+        out = SampleSketch(
+            self.size, dict(self.keys), dict(self.rows), dict(self.seen), dict(self.limit)
+        )
         for label in other.keys:
             out._offer(label, other.keys[label], other.rows[label], other.seen[label])
         return out
@@ -110,13 +113,20 @@ class SampleSketch:
         return out
 
     def _offer(self, label: str, keys: np.ndarray, rows: pa.Table, seen: int) -> None:
+        """Add candidates; compact to the ``size`` smallest keys only when twice that many are
+        held, so a batch costs a filter, not a copy of the whole sample."""
         if label in self.keys:
+            limit = self.limit.get(label)
+            if limit is not None:  # the k-th smallest key so far: larger keys cannot enter
+                enter = keys <= limit
+                keys, rows = keys[enter], rows.filter(pa.array(enter))
             keys = np.concatenate([self.keys[label], keys])
             rows = pa.concat_tables([self.rows[label], rows], promote_options="default")
             seen += self.seen[label]
-        if keys.size > self.size:
+        if keys.size > 2 * self.size:
             keep = np.sort(np.argpartition(keys, self.size - 1)[: self.size])
-            keys, rows = keys[keep], rows.take(pa.array(keep))
+            keys, rows = keys[keep], rows.take(pa.array(keep)).combine_chunks()
+            self.limit[label] = keys.max()
         self.keys[label], self.rows[label], self.seen[label] = keys, rows, seen
 
     def draw(self, size: int) -> pa.Table:
