@@ -129,6 +129,7 @@ def audit(
     engine: str | None = None,
     sample_rows: int | None = None,
     progress: bool | None = None,
+    scheduler: str | None = None,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -156,6 +157,8 @@ def audit(
         Overrides ``settings.sample_rows``, the seeded sample the stream engine audits.
     progress : bool, optional
         Progress on stderr; default when stderr is a terminal.
+    scheduler : str, optional
+        Address of a Dask scheduler for ``engine="dask"``; without it a local cluster.
 
     Returns
     -------
@@ -188,10 +191,11 @@ def audit(
     )
     if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
         settings = Settings(**{**settings.to_dict(), "seed": seed})
-    if resolve_engine(settings.engine, data, test) == "stream":
+    chosen = resolve_engine(settings.engine, data, test)
+    if chosen in ("stream", "dask"):
         from featureaudit.engines.run import run_stream
 
-        return AuditResult(run_stream(data, build, settings, probes, progress))
+        return AuditResult(run_stream(data, build, settings, probes, progress, chosen, scheduler))
     table = build_table(data, **build)
     return AuditResult(run_audit(table, settings, probes=probes, progress=progress))
 

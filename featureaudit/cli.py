@@ -181,6 +181,7 @@ def scan(
         seed=seed_value,
         settings=settings,
         progress=False if opts.get("quiet") else None,
+        scheduler=opts.get("scheduler"),
     )
     out_dir = Path(opts.get("out") or "featureaudit-report")
     result.write(out_dir)

@@ -220,3 +220,19 @@ def test_quiet_scan_writes_nothing_to_stderr(big, tmp_path):
     )
     assert out.exit_code in (0, 1), out.output
     assert (tmp_path / "findings.json").is_file()
+
+
+@pytest.mark.skipif(importlib.util.find_spec("distributed") is None, reason="needs the dask extra")
+def test_dask_on_a_local_cluster_agrees_with_stream(big):
+    """The same maps and merges as Dask tasks on a LocalCluster of 2 workers that the test
+    starts and stops; same exact figures and same levels as the stream engine."""
+    from distributed import LocalCluster
+
+    _, seven, _ = big
+    kw = dict(sample_rows=1500, probes=["twins", "timing"], **ARGS)
+    stream = fa.audit(str(seven), engine="stream", **kw)
+    with LocalCluster(n_workers=2, threads_per_worker=1, dashboard_address=None) as cluster:
+        dask = fa.audit(str(seven), engine="dask", scheduler=cluster.scheduler_address, **kw)
+    assert dask.document["settings"]["engine"] == "dask"
+    assert dask.document["settings"]["exact"] == stream.document["settings"]["exact"]
+    assert dask.document["columns"] == stream.document["columns"]

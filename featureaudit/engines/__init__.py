@@ -1,8 +1,8 @@
 """Engines: where the table is read and the exact statistics computed.
 
 ``memory`` reads the whole table; ``stream`` reads Parquet batch by batch in bounded
-memory; ``dask`` needs the optional extra. ``auto`` streams when the table would not fit
-comfortably in the memory available.
+memory; ``dask`` runs the same maps and merges on a Dask cluster (the optional extra).
+``auto`` streams when the table would not fit comfortably in the memory available.
 """
 
 from __future__ import annotations
@@ -62,13 +62,11 @@ def resolve_engine(engine: str, data: object, test: object | None) -> str:
                 f"--engine dask needs Dask, which is not installed; run {DASK_INSTALL}, "
                 "or pass --engine stream."
             ) from None
+    if engine in ("stream", "dask") and (
+        test is not None or not isinstance(data, (str, os.PathLike))
+    ):
         raise SettingError(
-            "--engine dask is not available in this version; pass --engine stream to audit "
-            "a Parquet folder in bounded memory."
-        )
-    if engine == "stream" and (test is not None or not isinstance(data, (str, os.PathLike))):
-        raise SettingError(
-            "--engine stream reads one Parquet file or folder (held-out rows marked by "
+            f"--engine {engine} reads one Parquet file or folder (held-out rows marked by "
             "--split-column); pass --engine memory for a DataFrame or a --test table."
         )
     if engine != "auto":

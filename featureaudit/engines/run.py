@@ -1,4 +1,4 @@
-"""Run the stream engine with its progress display (kept apart so the engine stays pure)."""
+"""Run the stream or dask engine with its progress display (kept apart so the engine stays pure)."""
 
 from __future__ import annotations
 
@@ -18,8 +18,15 @@ def run_stream(
     settings: Settings,
     probes: list[str] | None,
     progress: bool | None,
+    engine: str = "stream",
+    scheduler: str | None = None,
 ) -> Findings:
-    """Stream ``data`` (two passes) with a live display on stderr when ``progress`` allows."""
+    """Run ``engine`` on ``data`` (two passes) with a live display on stderr when
+    ``progress`` allows."""
     total = parquet_dataset(data).count_rows()
     with row_progress(total, showing(progress)) as tick:
+        if engine == "dask":
+            from featureaudit.engines.dask_engine import dask_audit
+
+            return dask_audit(data, build, settings, probes, scheduler, tick)
         return stream_audit(data, build, settings, probes, tick)

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import os
 from collections.abc import Callable, Iterator
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -79,25 +80,50 @@ def _strata(frame: pd.DataFrame, layout: Layout) -> np.ndarray:
     return np.char.add(np.char.add(side.astype(str), "\t"), text.astype(str))
 
 
+@dataclass
+class FirstPass:
+    """Pass 1's partial: counts and time ranges, the sample, and the target values seen (up
+    to one past ``MAX_CLASSES``, after which the sample is stratified by side only)."""
+
+    counts: CountPartial
+    sketch: SampleSketch
+    values: set[str]
+
+    @classmethod
+    def map(cls, batch: pa.Table, layout: Layout, settings: Settings) -> FirstPass:
+        frame = _frame(batch)
+        key_columns = [c for c in batch.schema.names if c != layout.split_column]
+        strata = _strata(frame, layout)
+        sketch = SampleSketch(settings.sample_rows)
+        sketch.add(batch, content_keys(frame, key_columns, settings.seed), strata)
+        values = {s.split("\t", 1)[-1] for s in np.unique(strata)}
+        return cls(CountPartial.map(frame, layout), sketch, values)._checked()
+
+    def merge(self, other: FirstPass) -> FirstPass:
+        values = self.values | other.values
+        merged = FirstPass(self.counts.merge(other.counts), self.sketch.merge(other.sketch), values)
+        return merged._checked()
+
+    def _checked(self) -> FirstPass:
+        if len(self.values) > MAX_CLASSES:  # a numeric target: stratified by side only
+            self.sketch = self.sketch.collapse()
+            self.values = set(sorted(self.values)[: MAX_CLASSES + 1])
+        return self
+
+
 def stream_partials(
     data: ds.Dataset, layout: Layout, settings: Settings, tick: Tick | None = None
 ) -> tuple[CountPartial, SampleSketch]:
     """Pass 1: counts, time ranges and the sample, merged over every batch."""
-    counts, sketch = CountPartial(), SampleSketch(settings.sample_rows)
-    key_columns = [c for c in data.schema.names if c != layout.split_column]
-    values: set[str] = set()
+    merged: FirstPass | None = None
     for batch in _batches(data):
-        frame = _frame(batch)
-        counts = counts.merge(CountPartial.map(frame, layout))
-        strata = _strata(frame, layout)
-        if len(values) <= MAX_CLASSES:
-            values |= {s.split("\t", 1)[-1] for s in np.unique(strata)}
-        sketch.add(batch, content_keys(frame, key_columns, settings.seed), strata)
-        if len(values) > MAX_CLASSES:  # a numeric target: stratified by side only
-            sketch = sketch.collapse()
+        part = FirstPass.map(batch, layout, settings)
+        merged = part if merged is None else merged.merge(part)
         if tick:
             tick("pass 1 of 2", batch.num_rows)
-    return counts, sketch
+    if merged is None:
+        raise InputFileError("the Parquet table has no rows; pass a table with data rows.")
+    return merged.counts, merged.sketch
 
 
 def copy_partials(
