@@ -17,7 +17,14 @@ import pyarrow as pa
 
 from featureaudit.io import numeric_view
 
-__all__ = ["SampleSketch", "content_keys", "allocate", "MIN_PER_STRATUM", "MAX_CLASSES"]
+__all__ = [
+    "SampleSketch",
+    "SampleRows",
+    "content_keys",
+    "allocate",
+    "MIN_PER_STRATUM",
+    "MAX_CLASSES",
+]
 
 MIN_PER_STRATUM = 20  # common practice, no source: a rare class keeps this many rows if it has them
 MAX_CLASSES = 20  # beyond this many target values the sample is stratified by side only
@@ -89,12 +96,14 @@ class SampleSketch:
     seen: dict[str, int] = field(default_factory=dict)
     limit: dict[str, np.uint64] = field(default_factory=dict)
 
-    def add(self, batch: pa.Table, keys: np.ndarray, strata: np.ndarray) -> None:
-        """Map one batch (``keys`` and stratum labels per row) into this partial."""
+    def add(self, batch: pa.Table | None, keys: np.ndarray, strata: np.ndarray) -> None:
+        """Map one batch (``keys`` and stratum labels per row) into this partial; with
+        ``batch`` None only the keys are kept (the rows are fetched by :class:`SampleRows`)."""
         labels, inverse = np.unique(strata.astype(str), return_inverse=True)
         for i, label in enumerate(labels):
             idx = np.flatnonzero(inverse == i)
-            self._offer(str(label), keys[idx], batch.take(pa.array(idx)), idx.size)
+            rows = None if batch is None else batch.take(pa.array(idx))
+            self._offer(str(label), keys[idx], rows, idx.size)
 
     def merge(self, other: SampleSketch) -> SampleSketch:
         """Combine two partials; the result is the partial of the union of their rows."""
@@ -102,32 +111,47 @@ class SampleSketch:
             self.size, dict(self.keys), dict(self.rows), dict(self.seen), dict(self.limit)
         )
         for label in other.keys:
-            out._offer(label, other.keys[label], other.rows[label], other.seen[label])
+            out._offer(label, other.keys[label], other.rows.get(label), other.seen[label])
         return out
 
     def collapse(self) -> SampleSketch:
         """One stratum per split side: the strata's side is the text before the first tab."""
         out = SampleSketch(self.size)
         for label in self.keys:
-            out._offer(label.split("\t")[0], self.keys[label], self.rows[label], self.seen[label])
+            side = label.split("\t")[0]
+            out._offer(side, self.keys[label], self.rows.get(label), self.seen[label])
         return out
 
-    def _offer(self, label: str, keys: np.ndarray, rows: pa.Table, seen: int) -> None:
+    def _offer(self, label: str, keys: np.ndarray, rows: pa.Table | None, seen: int) -> None:
         """Add candidates; compact to the ``size`` smallest keys only when twice that many are
         held, so a batch costs a filter, not a copy of the whole sample."""
         if label in self.keys:
             limit = self.limit.get(label)
             if limit is not None:  # the k-th smallest key so far: larger keys cannot enter
                 enter = keys <= limit
-                keys, rows = keys[enter], rows.filter(pa.array(enter))
+                keys = keys[enter]
+                rows = None if rows is None else rows.filter(pa.array(enter))
             keys = np.concatenate([self.keys[label], keys])
-            rows = pa.concat_tables([self.rows[label], rows], promote_options="default")
+            if rows is not None:
+                rows = pa.concat_tables([self.rows[label], rows], promote_options="default")
             seen += self.seen[label]
         if keys.size > 2 * self.size:
             keep = np.sort(np.argpartition(keys, self.size - 1)[: self.size])
-            keys, rows = keys[keep], rows.take(pa.array(keep)).combine_chunks()
+            keys = keys[keep]
+            rows = None if rows is None else rows.take(pa.array(keep)).combine_chunks()
             self.limit[label] = keys.max()
-        self.keys[label], self.rows[label], self.seen[label] = keys, rows, seen
+        self.keys[label], self.seen[label] = keys, seen
+        if rows is not None:
+            self.rows[label] = rows
+
+    def cutoffs(self, size: int) -> dict[str, tuple[int, int]]:
+        """Per stratum, the largest key of the final sample and how many rows it takes."""
+        quota = allocate(self.seen, size)
+        return {
+            label: (int(np.sort(k)[quota[label] - 1]), quota[label])
+            for label, k in self.keys.items()
+            if quota[label] > 0
+        }
 
     def draw(self, size: int) -> pa.Table:
         """The final sample of ``size`` rows (stratum shares as in the data), in key order."""
@@ -141,3 +165,41 @@ class SampleSketch:
         table = pa.concat_tables(parts, promote_options="default")
         order = np.argsort(np.concatenate(keys), kind="stable")
         return table.take(pa.array(order))
+
+
+@dataclass
+class SampleRows:
+    """Mergeable partial of the sample's rows, once :meth:`SampleSketch.cutoffs` has fixed
+    which keys each stratum takes: rows at or below their stratum's cut-off key."""
+
+    cut: dict[str, tuple[int, int]]
+    keys: dict[str, list[np.ndarray]] = field(default_factory=dict)
+    rows: dict[str, list[pa.Table]] = field(default_factory=dict)
+
+    def add(self, batch: pa.Table, keys: np.ndarray, strata: np.ndarray) -> None:
+        labels = strata.astype(str)
+        for label, (limit, _) in self.cut.items():
+            take = np.flatnonzero((labels == label) & (keys <= np.uint64(limit)))
+            if take.size:
+                self.keys.setdefault(label, []).append(keys[take])
+                self.rows.setdefault(label, []).append(batch.take(pa.array(take)))
+
+    def merge(self, other: SampleRows) -> SampleRows:
+        out = SampleRows(self.cut, {k: list(v) for k, v in self.keys.items()})
+        out.rows = {k: list(v) for k, v in self.rows.items()}
+        for label in other.keys:
+            out.keys.setdefault(label, []).extend(other.keys[label])
+            out.rows.setdefault(label, []).extend(other.rows[label])
+        return out
+
+    def draw(self) -> pa.Table:
+        """The sample in key order (rows tied at a cut-off key are equal, so any of them do)."""
+        parts, keys = [], []
+        for label in sorted(self.keys):
+            k = np.concatenate(self.keys[label])
+            take = np.argsort(k, kind="stable")[: self.cut[label][1]]
+            rows = pa.concat_tables(self.rows[label], promote_options="default")
+            parts.append(rows.take(pa.array(take)))
+            keys.append(k[take])
+        table = pa.concat_tables(parts, promote_options="default")
+        return table.take(pa.array(np.argsort(np.concatenate(keys), kind="stable")))

@@ -2,7 +2,7 @@
 partitions of ``dask.dataframe.read_parquet``, on a given scheduler or a local cluster.
 
 The merged partials (counts, the sample, the copy hashes) are gathered to the client; the
-probes run there on the sample, as with the stream engine. Two passes, as there.
+probes run there on the sample, as with the stream engine. Three passes, as there.
 """
 
 from __future__ import annotations
@@ -16,10 +16,11 @@ import pandas as pd
 import pyarrow as pa
 
 from featureaudit.engines.partials import CopyPartial, Layout, exact_statistics
-from featureaudit.engines.stream import FirstPass, _report_engine, parquet_dataset
+from featureaudit.engines.stream import FirstPass, _report_engine, parquet_dataset, sample_rows
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings
 from featureaudit.io import normalise_frame
+from featureaudit.sample import SampleRows
 from featureaudit.settings import Settings
 
 __all__ = ["dask_audit"]
@@ -29,6 +30,10 @@ T = TypeVar("T")
 
 def _first(frame: pd.DataFrame, layout: Layout, settings: Settings) -> FirstPass:
     return FirstPass.map(pa.Table.from_pandas(frame, preserve_index=False), layout, settings)
+
+
+def _rows(frame: pd.DataFrame, layout: Layout, settings: Settings, cut: dict) -> SampleRows:
+    return sample_rows(pa.Table.from_pandas(frame, preserve_index=False), layout, settings, cut)
 
 
 def _copies(frame: pd.DataFrame, layout: Layout, train_max: float | None) -> CopyPartial:
@@ -94,9 +99,17 @@ def dask_audit(
                     client,
                     client.compute([dask.delayed(_first)(p, layout, settings) for p in parts]),
                 )
+                rows = sum(first.counts.partitions.values())
                 if tick:
-                    tick("pass 1 of 2", sum(first.counts.partitions.values()))
-                sample = first.sketch.draw(settings.sample_rows).to_pandas()
+                    tick("pass 1 of 3", rows)
+                cut = first.sketch.cutoffs(settings.sample_rows)
+                picked = _tree(
+                    client,
+                    client.compute([dask.delayed(_rows)(p, layout, settings, cut) for p in parts]),
+                )
+                if tick:
+                    tick("pass 2 of 3", rows)
+                sample = picked.draw().to_pandas()
                 source = build.get("source") or Path(data).name
                 table = build_table(sample, **{**build, "source": source})
                 layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
@@ -105,6 +118,8 @@ def dask_audit(
                     client,
                     client.compute([dask.delayed(_copies)(p, layout, train_max) for p in parts]),
                 )
+                if tick:
+                    tick("pass 3 of 3", rows)
             finally:
                 client.close()
     finally:
@@ -112,5 +127,5 @@ def dask_audit(
             cluster.close()
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(first.counts, copies)
-    _report_engine(findings.document, exact, table.n_rows, layout, "dask", "two passes")
+    _report_engine(findings.document, exact, table.n_rows, layout, "dask", "three passes")
     return findings

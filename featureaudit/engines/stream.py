@@ -1,10 +1,12 @@
-"""The ``stream`` engine: a Parquet file or folder read batch by batch in two passes.
+"""The ``stream`` engine: a Parquet file or folder read batch by batch in three passes.
 
 Pass 1 maps every batch into the row counts (per partition and class), the label-time
-range per side and the seeded sample; pass 2, once the sample has settled which columns
-are features, maps every batch into the feature-row hashes and entity hashes per side.
-Memory: one batch, the sample, and 8 bytes per distinct row hash (the exact copy count
-needs the set of training rows); nothing else grows with the row count. The probes then
+range per side and the seeded sample's keys (bottom-k per stratum, keys only); pass 2
+collects the rows those keys pick; pass 3, once the sample has settled which columns are
+features, maps every batch into the feature-row hashes and entity hashes per side.
+Memory: one batch, the sample, twice the sample's size in keys per stratum, and 8 bytes
+per distinct row hash (the exact copy count needs the set of training rows); nothing else
+grows with the row count. The probes then
 run on the sample, and the exact figures are reported beside them in ``settings.exact``.
 """
 
@@ -31,7 +33,7 @@ from featureaudit.engines.partials import (
 from featureaudit.errors import InputFileError, SettingError
 from featureaudit.findings import Findings
 from featureaudit.io import normalise_frame
-from featureaudit.sample import MAX_CLASSES, SampleSketch, content_keys
+from featureaudit.sample import MAX_CLASSES, SampleRows, SampleSketch, content_keys
 from featureaudit.settings import Settings
 
 __all__ = ["parquet_dataset", "stream_partials", "stream_audit", "BATCH_ROWS"]
@@ -71,9 +73,10 @@ def _frame(batch: pa.Table) -> pd.DataFrame:
     return normalise_frame(batch.to_pandas(), source="batch")
 
 
-def _strata(frame: pd.DataFrame, layout: Layout) -> np.ndarray:
+def _strata(frame: pd.DataFrame, layout: Layout, by_side: bool = False) -> np.ndarray:
+    """Stratum per row: the side and the target value (the side alone when ``by_side``)."""
     side = np.where(sides(frame, layout), "heldout", "train")
-    if layout.target is None:
+    if layout.target is None or by_side:
         return side
     y = frame[layout.target].astype(object)
     text = np.where(pd.isna(y.to_numpy()), "", y.astype(str).to_numpy())
@@ -82,8 +85,8 @@ def _strata(frame: pd.DataFrame, layout: Layout) -> np.ndarray:
 
 @dataclass
 class FirstPass:
-    """Pass 1's partial: counts and time ranges, the sample, and the target values seen (up
-    to one past ``MAX_CLASSES``, after which the sample is stratified by side only)."""
+    """Pass 1's partial: counts and time ranges, the sample's keys, and the target values
+    seen (up to one past ``MAX_CLASSES``, after which the sample is stratified by side only)."""
 
     counts: CountPartial
     sketch: SampleSketch
@@ -95,7 +98,7 @@ class FirstPass:
         key_columns = [c for c in batch.schema.names if c != layout.split_column]
         strata = _strata(frame, layout)
         sketch = SampleSketch(settings.sample_rows)
-        sketch.add(batch, content_keys(frame, key_columns, settings.seed), strata)
+        sketch.add(None, content_keys(frame, key_columns, settings.seed), strata)
         values = {s.split("\t", 1)[-1] for s in np.unique(strata)}
         return cls(CountPartial.map(frame, layout), sketch, values)._checked()
 
@@ -113,23 +116,44 @@ class FirstPass:
 
 def stream_partials(
     data: ds.Dataset, layout: Layout, settings: Settings, tick: Tick | None = None
-) -> tuple[CountPartial, SampleSketch]:
-    """Pass 1: counts, time ranges and the sample, merged over every batch."""
+) -> tuple[CountPartial, pa.Table]:
+    """Passes 1 and 2: counts, time ranges and the sample's keys; then the sample's rows."""
     merged: FirstPass | None = None
     for batch in _batches(data):
         part = FirstPass.map(batch, layout, settings)
         merged = part if merged is None else merged.merge(part)
         if tick:
-            tick("pass 1 of 2", batch.num_rows)
+            tick("pass 1 of 3", batch.num_rows)
     if merged is None:
         raise InputFileError("the Parquet table has no rows; pass a table with data rows.")
-    return merged.counts, merged.sketch
+    rows: SampleRows | None = None
+    cut = merged.sketch.cutoffs(settings.sample_rows)
+    for batch in _batches(data):
+        picked = sample_rows(batch, layout, settings, cut)
+        rows = picked if rows is None else rows.merge(picked)
+        if tick:
+            tick("pass 2 of 3", batch.num_rows)
+    assert rows is not None
+    return merged.counts, rows.draw()
+
+
+def sample_rows(
+    batch: pa.Table, layout: Layout, settings: Settings, cut: dict[str, tuple[int, int]]
+) -> SampleRows:
+    """Pass 2's map: the rows of one batch that the sample takes (``cut``: per stratum,
+    the cut-off key and quota from pass 1)."""
+    frame = _frame(batch)
+    key_columns = [c for c in batch.schema.names if c != layout.split_column]
+    out = SampleRows(cut)
+    strata = _strata(frame, layout, by_side=all("\t" not in k for k in cut))
+    out.add(batch, content_keys(frame, key_columns, settings.seed), strata)
+    return out
 
 
 def copy_partials(
     data: ds.Dataset, layout: Layout, train_max: float | None, tick: Tick | None = None
 ) -> CopyPartial:
-    """Pass 2: feature-row and entity hashes per side, merged over every batch."""
+    """Pass 3: feature-row and entity hashes per side, merged over every batch."""
     copies = CopyPartial()
     columns = list(
         dict.fromkeys([*layout.features, layout.split_column, layout.entity, layout.label_time])
@@ -138,7 +162,7 @@ def copy_partials(
         frame = _frame(batch.select([c for c in columns if c]))
         copies = copies.merge(CopyPartial.map(frame, layout, train_max))
         if tick:
-            tick("pass 2 of 2", batch.num_rows)
+            tick("pass 3 of 3", batch.num_rows)
     return copies
 
 
@@ -170,8 +194,8 @@ def stream_audit(
     for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
         if col is not None and col not in dataset.schema.names:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
-    counts, sketch = stream_partials(dataset, layout, settings, tick)
-    sample = sketch.draw(settings.sample_rows).to_pandas()
+    counts, drawn = stream_partials(dataset, layout, settings, tick)
+    sample = drawn.to_pandas()
     source = build.get("source") or Path(data).name
     table = build_table(sample, **{**build, "source": source})
     layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
@@ -179,7 +203,7 @@ def stream_audit(
     copies = copy_partials(dataset, layout, train_max, tick)
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(counts, copies)
-    _report_engine(findings.document, exact, table.n_rows, layout, "stream", "two passes")
+    _report_engine(findings.document, exact, table.n_rows, layout, "stream", "three passes")
     return findings
 
 
