@@ -236,3 +236,12 @@ def test_dask_on_a_local_cluster_agrees_with_stream(big):
     assert dask.document["settings"]["engine"] == "dask"
     assert dask.document["settings"]["exact"] == stream.document["settings"]["exact"]
     assert dask.document["columns"] == stream.document["columns"]
+
+
+def test_corrupt_parquet_under_auto_and_stream_exits_2(tmp_path):
+    (tmp_path / "bad.parquet").write_bytes(b"not parquet at all")
+    for engine in ("auto", "stream"):
+        out = runner.invoke(
+            app, ["scan", str(tmp_path / "bad.parquet"), "--target", "y", "--engine", engine]
+        )
+        assert out.exit_code == 2 and "bad.parquet" in out.output, (engine, out.output)

@@ -23,6 +23,7 @@ FIT_SHARE = 0.5  # common practice, no source: leave half the memory to everythi
 
 def estimated_bytes(path: str | os.PathLike[str]) -> int | None:
     """Uncompressed size of a Parquet file or folder from its footers (None otherwise)."""
+    import pyarrow as pa
     import pyarrow.parquet as pq
 
     p = Path(path)
@@ -34,7 +35,10 @@ def estimated_bytes(path: str | os.PathLike[str]) -> int | None:
         return None
     total = 0
     for f in files:
-        meta = pq.ParquetFile(f).metadata
+        try:
+            meta = pq.ParquetFile(f).metadata
+        except (pa.ArrowException, OSError):
+            return None  # unreadable: the reader names the file and the problem
         total += sum(meta.row_group(i).total_byte_size for i in range(meta.num_row_groups))
     return total
 

@@ -64,9 +64,16 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
 
 
 def _batches(data: ds.Dataset) -> Iterator[pa.Table]:
-    for batch in data.to_batches(batch_size=BATCH_ROWS):
-        if batch.num_rows:
-            yield pa.Table.from_batches([batch])
+    try:
+        for batch in data.to_batches(batch_size=BATCH_ROWS):
+            if batch.num_rows:
+                yield pa.Table.from_batches([batch])
+    except (pa.ArrowInvalid, pa.ArrowTypeError, OSError) as exc:
+        first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+        raise InputFileError(
+            f"cannot read the Parquet parts: {first}. Check that every part is complete and "
+            "that the parts share their columns' types."
+        ) from exc
 
 
 def _frame(batch: pa.Table) -> pd.DataFrame:
