@@ -65,7 +65,10 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
 
 def _batches(data: ds.Dataset) -> Iterator[pa.Table]:
     try:
-        for batch in data.to_batches(batch_size=BATCH_ROWS):
+        # no read-ahead: pyarrow's default holds up to 16 batches of 4 files at once
+        for batch in data.to_batches(
+            batch_size=BATCH_ROWS, batch_readahead=0, fragment_readahead=0
+        ):
             if batch.num_rows:
                 yield pa.Table.from_batches([batch])
     except (pa.ArrowInvalid, pa.ArrowTypeError, OSError) as exc:
