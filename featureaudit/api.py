@@ -11,6 +11,7 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.engines import resolve_engine
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings, droplist
 from featureaudit.inputs import Inputs
@@ -139,6 +140,10 @@ def audit(
     code: Sequence[str | os.PathLike[str]] | None = None,
     encoding: str | None = None,
     normalise_labels: bool = False,
+    engine: str | None = None,
+    sample_rows: int | None = None,
+    progress: bool | None = None,
+    scheduler: str | None = None,
 ) -> AuditResult:
     """Audit a table (and its held-out rows) for target leakage.
 
@@ -174,6 +179,14 @@ def audit(
         Encoding of text files that are neither UTF-8 nor marked by a byte-order mark.
     normalise_labels : bool, default False
         Merge class labels that differ only in case or surrounding spaces.
+    engine : {"auto", "memory", "stream", "dask"}, optional
+        Overrides ``settings.engine``; ``stream`` reads Parquet in bounded memory.
+    sample_rows : int, optional
+        Overrides ``settings.sample_rows``, the seeded sample the stream engine audits.
+    progress : bool, optional
+        Progress on stderr; default when stderr is a terminal.
+    scheduler : str, optional
+        Address of a Dask scheduler for ``engine="dask"``; without it a local cluster.
 
     Returns
     -------
@@ -208,8 +221,9 @@ def audit(
         encoding=encoding,
         normalise_labels=normalise_labels or None,
         fold_column=fold_column,
+        scheduler=scheduler,
     )
-    chosen = _settings(settings, seed)
+    chosen = _engine_settings(_settings(settings, seed), engine, sample_rows)
     if probes is not None and (
         isinstance(probes, str) or not all(isinstance(p, str) for p in probes)
     ):
@@ -220,8 +234,17 @@ def audit(
 
         given = inputs.code
         code_result = read_code([given] if isinstance(given, str | os.PathLike) else list(given))
+    engine_name = resolve_engine(chosen.engine, data, inputs.test)
+    if engine_name in ("stream", "dask"):
+        from featureaudit.engines.run import run_stream
+
+        given = inputs.table_inputs().items()
+        build = {k: v for k, v in given if v is not None and k not in ("code", "scheduler")}
+        return AuditResult(
+            run_stream(data, build, chosen, probes, progress, engine_name, inputs.scheduler)
+        )
     table = build_table(data, inputs)
-    return AuditResult(run_audit(table, chosen, probes=probes, code=code_result))
+    return AuditResult(run_audit(table, chosen, probes=probes, progress=progress, code=code_result))
 
 
 def _settings(settings: object, seed: object) -> Settings:
@@ -236,3 +259,9 @@ def _settings(settings: object, seed: object) -> Settings:
     if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
         return Settings(**{**settings.to_dict(), "seed": seed})
     return settings
+
+
+def _engine_settings(settings: Settings, engine: str | None, rows: int | None) -> Settings:
+    """The settings with ``engine`` and ``sample_rows`` given as arguments put in."""
+    over = {k: v for k, v in (("engine", engine), ("sample_rows", rows)) if v is not None}
+    return Settings(**{**settings.to_dict(), **over}) if over else settings

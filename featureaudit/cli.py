@@ -237,6 +237,15 @@ def scan(
             "--normalise-labels", help="Merge target labels differing only in case or spaces."
         ),
     ] = False,
+    # engine block: where the table is read (featureaudit/engines)
+    engine: Annotated[
+        str | None, typer.Option(help="auto, memory, stream or dask [default: auto].")
+    ] = None,
+    scheduler: Annotated[str | None, typer.Option(help="Dask scheduler address.")] = None,
+    sample_rows: Annotated[
+        int | None, typer.Option(help="Seeded sample for the model-based parts [default: 200000].")
+    ] = None,
+    quiet: Annotated[bool, typer.Option("--quiet", help="No progress on stderr.")] = False,
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -248,6 +257,7 @@ def scan(
     flags = {k: v for k, v in locals().items() if k not in ("table", "config", "audit")}
     flags["code"] = flags.get("code") or None
     flags["normalise_labels"] = flags.get("normalise_labels") or None
+    flags["quiet"] = flags.get("quiet") or None
     inputs, settings = _inputs_and_settings(flags, config)
     from featureaudit.accepted import apply_accepted, read_accepted
     from featureaudit.history import check_folder, load_runs, store_run
@@ -255,7 +265,12 @@ def scan(
     reviewed = read_accepted(inputs.accepted) if inputs.accepted else None
     history_dir = check_folder(inputs.history) if inputs.history else None
     earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
-    result = audit(str(table), **inputs.table_inputs(), settings=settings)
+    result = audit(
+        str(table),
+        **inputs.table_inputs(),
+        settings=settings,
+        progress=False if inputs.quiet else None,
+    )
     if reviewed is not None:
         apply_accepted(result.document, reviewed)
     out_dir = Path(inputs.out or "featureaudit-report")

@@ -150,6 +150,12 @@ class Inputs:
     history: str | None = _declare(
         "--history", "a folder path for the run history", _path, scan_only=True
     )
+    scheduler: str | None = _declare(
+        "--scheduler", "a Dask scheduler address such as tcp://host:8786", _text
+    )
+    quiet: bool | None = _declare(
+        "--quiet", "true or false", lambda v: isinstance(v, bool), scan_only=True
+    )
     code: Any = _declare("--code", "a script or notebook path, or a list of them", _paths)
 
     def __post_init__(self) -> None:

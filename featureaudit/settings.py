@@ -15,6 +15,7 @@ from featureaudit.levels import LEVEL_NAMES, Level
 
 __all__ = ["Settings", "read_config", "config_keys", "TASKS"]
 
+ENGINES = ("auto", "memory", "stream", "dask")
 SEED_SPAN = 2**31 - 1  # seeds are mapped into [0, 2**31 - 1): every library here takes them
 
 
@@ -43,6 +44,8 @@ class Settings:
     time_tolerance: str = "auto"  # "auto": follows the times' resolution (see probes/timing.py)
     share_tolerance: float = 0.01  # shares of rows below this are not flagged
     n_jobs: int = field(default_factory=_default_jobs)  # threads: the CPUs this process may use
+    engine: str = "auto"  # auto, memory, stream or dask (featureaudit/engines)
+    sample_rows: int = 200_000  # rows of the seeded sample the stream and dask engines audit
 
     def __post_init__(self) -> None:
         _whole(self, "seed", None, None, "any whole number")
@@ -65,6 +68,9 @@ class Settings:
             self.time_tolerance, what="time_tolerance"
         ) < pd.Timedelta(0):
             raise SettingError(_bad("time_tolerance", self.time_tolerance, "not negative"))
+        _whole(self, "sample_rows", 100, None, "a whole number, at least 100")
+        if self.engine not in ENGINES:
+            raise SettingError(_bad("engine", self.engine, "one of " + ", ".join(ENGINES)))
 
     def to_dict(self) -> dict[str, Any]:
         return asdict(self)
@@ -103,7 +109,8 @@ def _is_number(value: Any) -> bool:
 
 
 def _bad(name: str, value: Any, allowed: str) -> str:
-    where = "--seed" if name == "seed" else f"setting {name}"
+    flagged = ("seed", "engine", "sample_rows")  # the settings that scan takes as flags
+    where = f"--{name.replace('_', '-')}" if name in flagged else f"setting {name}"
     return f"{where} (config key {name}) must be {allowed}; got {value!r} ({type(value).__name__})."
 
 

@@ -1,0 +1,131 @@
+"""The ``dask`` engine: the stream engine's maps and merges as Dask tasks over the
+partitions of ``dask.dataframe.read_parquet``, on a given scheduler or a local cluster.
+
+The merged partials (counts, the sample, the copy hashes) are gathered to the client; the
+probes run there on the sample, as with the stream engine. Three passes, as there.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any, TypeVar
+
+import pandas as pd
+import pyarrow as pa
+
+from featureaudit.engines.partials import CopyPartial, Layout, exact_statistics
+from featureaudit.engines.stream import FirstPass, _report_engine, parquet_dataset, sample_rows
+from featureaudit.errors import SettingError
+from featureaudit.findings import Findings
+from featureaudit.io import normalise_frame
+from featureaudit.sample import SampleRows
+from featureaudit.settings import Settings
+
+__all__ = ["dask_audit"]
+
+T = TypeVar("T")
+
+
+def _first(frame: pd.DataFrame, layout: Layout, settings: Settings) -> FirstPass:
+    return FirstPass.map(pa.Table.from_pandas(frame, preserve_index=False), layout, settings)
+
+
+def _rows(frame: pd.DataFrame, layout: Layout, settings: Settings, cut: dict) -> SampleRows:
+    return sample_rows(pa.Table.from_pandas(frame, preserve_index=False), layout, settings, cut)
+
+
+def _copies(frame: pd.DataFrame, layout: Layout, train_max: float | None) -> CopyPartial:
+    return CopyPartial.map(normalise_frame(frame, source="partition"), layout, train_max)
+
+
+def _merge(a: T, b: T) -> T:
+    return a.merge(b)  # type: ignore[attr-defined]
+
+
+def _tree(client: Any, futures: list[Any]) -> Any:
+    """Merge partials pairwise on the workers, then gather the one result."""
+    while len(futures) > 1:
+        paired = [
+            client.submit(_merge, a, b) for a, b in zip(futures[::2], futures[1::2], strict=False)
+        ]
+        futures = paired + ([futures[-1]] if len(futures) % 2 else [])
+    return futures[0].result()
+
+
+def dask_audit(
+    data: str | os.PathLike[str],
+    build: dict[str, Any],
+    settings: Settings,
+    probes: list[str] | None,
+    scheduler: str | None,
+    tick: Callable[[str, int], None] | None = None,
+) -> Findings:
+    """Audit a Parquet file or folder with the partial statistics computed on Dask."""
+    import dask
+    import dask.dataframe as dd
+    from distributed import Client, LocalCluster
+
+    from featureaudit.pipeline import run_audit
+    from featureaudit.table import build_table
+
+    if build.get("test") is not None:
+        raise SettingError(
+            "--engine dask reads one table with --split-column; pass --engine memory with --test."
+        )
+    schema = parquet_dataset(data).schema.names  # the same checks of the path as stream
+    layout = Layout(
+        split_column=build.get("split_column"),
+        train_value=str(build.get("train_value", "train")),
+        target=build.get("target"),
+        label_time=build.get("label_time"),
+        entity=build.get("entity"),
+    )
+    for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
+        if col is not None and col not in schema:
+            raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
+    cluster = None
+    if scheduler is None:
+        cluster = LocalCluster(
+            n_workers=settings.n_jobs, threads_per_worker=1, dashboard_address=None
+        )
+    try:
+        with dask.config.set({"dataframe.convert-string": False}):
+            client = Client(scheduler or cluster)
+            try:
+                parts = dd.read_parquet(str(data)).to_delayed()
+                first = _tree(
+                    client,
+                    client.compute([dask.delayed(_first)(p, layout, settings) for p in parts]),
+                )
+                rows = sum(first.counts.partitions.values())
+                if tick:
+                    tick("pass 1 of 3", rows)
+                cut = first.sketch.cutoffs(settings.sample_rows)
+                picked = _tree(
+                    client,
+                    client.compute([dask.delayed(_rows)(p, layout, settings, cut) for p in parts]),
+                )
+                if tick:
+                    tick("pass 2 of 3", rows)
+                sample = picked.draw().to_pandas()
+                source = build.get("source") or Path(data).name
+                table = build_table(sample, **{**build, "source": source})
+                layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
+                train_max = first.counts.times.get("train", [None, None])[1]
+                copies = _tree(
+                    client,
+                    client.compute([dask.delayed(_copies)(p, layout, train_max) for p in parts]),
+                )
+                if tick:
+                    tick("pass 3 of 3", rows)
+            finally:
+                client.close()
+    finally:
+        if cluster is not None:
+            cluster.close()
+    findings = run_audit(table, settings, probes=probes, progress=False)
+    exact = exact_statistics(first.counts, copies)
+    _report_engine(findings.document, exact, table.n_rows, layout, "dask", "three passes")
+    return findings

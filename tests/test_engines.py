@@ -1,0 +1,247 @@
+"""Engines: the seeded sample, exact mergeable statistics, memory against stream, the flags."""
+
+import importlib.util
+
+import numpy as np
+import pandas as pd
+import pytest
+from sklearn.datasets import load_breast_cancer
+from typer.testing import CliRunner
+
+import featureaudit as fa
+from featureaudit import engines
+from featureaudit.cli import app
+from featureaudit.engines.partials import CopyPartial, CountPartial, Layout, exact_statistics
+from featureaudit.progress import row_progress
+from featureaudit.sample import SampleSketch, allocate, content_keys
+
+runner = CliRunner()
+PLANTED = 150  # held-out rows made exact copies of training rows
+
+
+def _table(reps: int, seed: int = 0) -> pd.DataFrame:
+    """scikit-learn's bundled breast_cancer rows, repeated with 1 % noise, with an invented
+    split, label time and entity (the original row), and planted exact copies."""
+    x, y = load_breast_cancer(return_X_y=True, as_frame=True)
+    rng = np.random.default_rng(seed)
+    f = pd.concat([x] * reps, ignore_index=True)
+    f = f * (1 + rng.normal(0, 0.01, f.shape))
+    f["entity"] = np.tile(np.arange(len(x)), reps)
+    f["target"] = np.tile(y.to_numpy(), reps)
+    f["split"] = np.where(rng.random(len(f)) < 0.8, "train", "test")
+    f["decided_at"] = pd.Timestamp("2024-01-01") + pd.to_timedelta(
+        rng.integers(0, 365 * 24, len(f)), unit="h"
+    )
+    train, held = np.flatnonzero(f["split"] == "train"), np.flatnonzero(f["split"] == "test")
+    src, dst = rng.choice(train, PLANTED, replace=False), held[:PLANTED]
+    f.loc[dst, list(x.columns)] = f.loc[src, list(x.columns)].to_numpy()
+    return f
+
+
+def _write_parts(frame: pd.DataFrame, folder, parts: int, shuffle_seed: int | None = None):
+    folder.mkdir()
+    rows = np.arange(len(frame))
+    if shuffle_seed is not None:
+        rows = np.random.default_rng(shuffle_seed).permutation(rows)
+    for i, chunk in enumerate(np.array_split(rows, parts)):
+        frame.iloc[chunk].to_parquet(folder / f"part-{i:02d}.parquet", index=False)
+    return folder
+
+
+@pytest.fixture(scope="module")
+def big(tmp_path_factory):
+    frame = _table(reps=20)  # 11,380 rows
+    base = tmp_path_factory.mktemp("engines")
+    return frame, _write_parts(frame, base / "seven", 7), _write_parts(frame, base / "three", 3, 1)
+
+
+ARGS = dict(target="target", split_column="split", label_time="decided_at", entity="entity")
+
+
+def test_exact_statistics_match_pandas(big):
+    frame, seven, _ = big
+    result = fa.audit(str(seven), engine="stream", sample_rows=2000, probes=["timing"], **ARGS)
+    exact = result.document["settings"]["exact"]
+    # pandas as the outside reference for every count
+    assert exact["partitions"] == frame["split"].value_counts().to_dict()
+    by_class = frame.groupby(["split", "target"]).size()
+    assert exact["rows_per_class"] == {f"{p}/{y}": int(n) for (p, y), n in by_class.items()}
+    features = [c for c in frame.columns if c not in ("entity", "target", "split", "decided_at")]
+    train, held = frame[frame["split"] == "train"], frame[frame["split"] == "test"]
+    keys = held[features].merge(train[features].drop_duplicates(), how="inner")
+    assert exact["heldout_rows_with_exact_twin"] == len(keys) >= PLANTED
+    assert exact["heldout_rows_with_shared_entity"] == int(
+        held["entity"].isin(train["entity"]).sum()
+    )
+    assert exact["label_time_range"]["train"] == [
+        str(train["decided_at"].min()),
+        str(train["decided_at"].max()),
+    ]
+    assert exact["heldout_rows_labelled_by_training_max"] == int(
+        (held["decided_at"] <= train["decided_at"].max()).sum()
+    )
+    doc = result.document
+    assert doc["settings"]["engine"] == "stream" and doc["settings"]["sample_rows"] == 2000
+    assert doc["dataset"]["rows"] == len(frame) and "engine" in doc["settings"]["methods"]
+
+
+def test_memory_partials_equal_stream(big):
+    """One partition (the memory engine's view) and many batches give the same figures."""
+    frame, seven, _ = big
+    stream = fa.audit(str(seven), engine="stream", sample_rows=500, probes=["timing"], **ARGS)
+    table = stream.document["settings"]["exact"]
+    features = tuple(
+        c for c in frame.columns if c not in ("entity", "target", "split", "decided_at")
+    )
+    layout = Layout("split", "train", "target", "decided_at", "entity", features)
+    counts = CountPartial.map(frame, layout)
+    copies = CopyPartial.map(frame, layout, counts.times["train"][1])
+    assert exact_statistics(counts, copies) == table
+
+
+def test_sample_does_not_depend_on_partitions_or_order(big):
+    _, seven, three = big
+    a = fa.audit(str(seven), engine="stream", sample_rows=1500, probes=["twins"], **ARGS)
+    b = fa.audit(str(three), engine="stream", sample_rows=1500, probes=["twins"], **ARGS)
+    assert a.document["settings"]["exact"] == b.document["settings"]["exact"]
+    assert a.document["columns"] == b.document["columns"]
+    assert a.document["dataset_findings"] == b.document["dataset_findings"]
+
+
+def test_same_levels_as_memory_when_the_sample_holds_every_row(tmp_path):
+    frame = _table(reps=4)
+    folder = _write_parts(frame, tmp_path / "parts", 5, shuffle_seed=3)
+    mem = fa.audit(str(folder), engine="memory", **ARGS)
+    stream = fa.audit(str(folder), engine="stream", sample_rows=len(frame), **ARGS)
+    levels = {c["column"]: c["level"] for c in mem.document["columns"]}
+    assert levels == {c["column"]: c["level"] for c in stream.document["columns"]}
+    pick = sorted((f["kind"], f["level"]) for f in mem.document["dataset_findings"])
+    assert pick == sorted((f["kind"], f["level"]) for f in stream.document["dataset_findings"])
+    twins = next(f for f in mem.document["dataset_findings"] if f["probe"] == "twins")
+    exact = stream.document["settings"]["exact"]
+    if "heldout_rows_with_exact_twin" in twins["detail"]:
+        assert (
+            twins["detail"]["heldout_rows_with_exact_twin"]
+            == (exact["heldout_rows_with_exact_twin"])
+        )
+
+
+def test_sample_is_stratified_and_merges():
+    frame = _table(reps=2)
+    keys = content_keys(frame, [c for c in frame.columns if c != "split"], seed=4)
+    strata = (frame["split"] + "\t" + frame["target"].astype(str)).to_numpy()
+    import pyarrow as pa
+
+    whole = SampleSketch(300)
+    whole.add(pa.Table.from_pandas(frame, preserve_index=False), keys, strata)
+    halves = [SampleSketch(300), SampleSketch(300)]
+    for part, rows in zip(halves, np.array_split(np.arange(len(frame)), 2), strict=True):
+        part.add(
+            pa.Table.from_pandas(frame.iloc[rows], preserve_index=False), keys[rows], strata[rows]
+        )
+    merged = halves[1].merge(halves[0])
+    a, b = whole.draw(300).to_pandas(), merged.draw(300).to_pandas()
+    pd.testing.assert_frame_equal(a, b)
+    # proportional allocation: each stratum's share within one row of pandas' value_counts
+    share = pd.Series(strata).value_counts(normalize=True)
+    got = (a["split"] + "\t" + a["target"].astype(str)).value_counts()
+    assert all(abs(got[k] - 300 * share[k]) <= 1 for k in share.index)
+    # by hand: 0.7 and 99.3 rows; the remainder goes to a, which then keeps all its 7 rows
+    assert allocate({"a": 7, "b": 993}, 100) == {"a": 7, "b": 99}
+
+
+def test_auto_streams_a_parquet_table_too_big_for_memory(big, monkeypatch):
+    _, seven, _ = big
+    assert engines.resolve_engine("auto", str(seven), None) == "memory"
+    monkeypatch.setattr(engines, "available_bytes", lambda: 1_000)
+    assert engines.resolve_engine("auto", str(seven), None) == "stream"
+    assert engines.resolve_engine("auto", pd.DataFrame({"a": [1]}), None) == "memory"
+
+
+@pytest.mark.skipif(importlib.util.find_spec("dask") is not None, reason="dask is installed")
+def test_dask_without_dask_exits_2_with_the_install_line(big):
+    _, seven, _ = big
+    out = runner.invoke(app, ["scan", str(seven), "--target", "target", "--engine", "dask"])
+    assert out.exit_code == 2 and "pip install 'featureaudit[dask]'" in out.output
+
+
+@pytest.mark.parametrize(
+    "extra, words",
+    [
+        (["--engine", "fast"], "--engine"),
+        (["--engine", "stream", "--sample-rows", "10"], "--sample-rows"),
+    ],
+)
+def test_bad_engine_flags_exit_2(big, tmp_path, extra, words):
+    _, seven, _ = big
+    out = runner.invoke(
+        app, ["scan", str(seven), "--target", "target", "--out", str(tmp_path), *extra]
+    )
+    assert out.exit_code == 2 and words in out.output
+
+
+def test_stream_rejects_csv_and_dataframes(tmp_path):
+    path = tmp_path / "t.csv"
+    _table(reps=2).to_csv(path, index=False)
+    out = runner.invoke(app, ["scan", str(path), "--target", "target", "--engine", "stream"])
+    assert out.exit_code == 2 and "Parquet" in out.output
+    with pytest.raises(ValueError, match="--engine memory"):
+        fa.audit(_table(reps=2), target="target", engine="stream")
+
+
+def test_progress_is_silent_unless_shown(capsys):
+    with row_progress(100, show=False) as tick:
+        tick("pass 1 of 2", 50)
+    assert capsys.readouterr().err == ""
+    with row_progress(100, show=True) as tick:
+        tick("pass 1 of 2", 100)
+    assert "pass 1 of 2" in capsys.readouterr().err
+
+
+def test_quiet_scan_writes_nothing_to_stderr(big, tmp_path):
+    _, seven, _ = big
+    out = runner.invoke(
+        app,
+        [
+            "scan",
+            str(seven),
+            "--target",
+            "target",
+            "--split-column",
+            "split",
+            "--engine",
+            "stream",
+            "--sample-rows",
+            "800",
+            "--quiet",
+            "--out",
+            str(tmp_path),
+        ],
+    )
+    assert out.exit_code in (0, 1), out.output
+    assert (tmp_path / "findings.json").is_file()
+
+
+@pytest.mark.skipif(importlib.util.find_spec("distributed") is None, reason="needs the dask extra")
+def test_dask_on_a_local_cluster_agrees_with_stream(big):
+    """The same maps and merges as Dask tasks on a LocalCluster of 2 workers that the test
+    starts and stops; same exact figures and same levels as the stream engine."""
+    from distributed import LocalCluster
+
+    _, seven, _ = big
+    kw = dict(sample_rows=1500, probes=["twins", "timing"], **ARGS)
+    stream = fa.audit(str(seven), engine="stream", **kw)
+    with LocalCluster(n_workers=2, threads_per_worker=1, dashboard_address=None) as cluster:
+        dask = fa.audit(str(seven), engine="dask", scheduler=cluster.scheduler_address, **kw)
+    assert dask.document["settings"]["engine"] == "dask"
+    assert dask.document["settings"]["exact"] == stream.document["settings"]["exact"]
+    assert dask.document["columns"] == stream.document["columns"]
+
+
+def test_corrupt_parquet_under_auto_and_stream_exits_2(tmp_path):
+    (tmp_path / "bad.parquet").write_bytes(b"not parquet at all")
+    for engine in ("auto", "stream"):
+        out = runner.invoke(
+            app, ["scan", str(tmp_path / "bad.parquet"), "--target", "y", "--engine", engine]
+        )
+        assert out.exit_code == 2 and "bad.parquet" in out.output, (engine, out.output)
