@@ -275,8 +275,8 @@ def reused_lift(column: dict[str, Any], metric: str) -> dict | None:
             continue  # a relative lift alone is not a score change
         # the errors are 1 − score, so the score change is their difference; the relative
         # lift's spread over folds, scaled by the error without the column, is its spread
-        change = float(before) - float(after)
-        lo, hi = (_num(lift.get(k)) * float(before) for k in ("low", "high"))
+        change = _num(before) - _num(after)
+        lo, hi = (_num(lift.get(k)) * _num(before) for k in ("low", "high"))
         folds = f", {lift['folds']} folds" if lift.get("folds") else ""
         return {
             "change": round(change, 4),

@@ -191,7 +191,7 @@ def render_dossier(findings: Findings, *, history: list[Findings] | None = None)
             quiet_splits=[f for f in doc["dataset_findings"] if f["level"] == "none"],
             drops=droplist(findings, "high"),
             refits=_refits(doc),
-            split_groups=split_groups(doc["dataset_findings"]),
+            split_groups=split_groups([f for f in doc["dataset_findings"] if f["level"] != "none"]),
             methods=list(doc.get("settings", {}).get("methods", {}).items()),
             trend={n: trend_svg(p) for n, p in trends.items()},
             runs=len(runs),

@@ -165,6 +165,11 @@ def test_dossier_groups_split_findings_by_pair(wine, tmp_path):
     from featureaudit.report import render_dossier
 
     frame = _three_way(wine, 4)
+    # copies planted across every pair, so that each pair has a split finding to show
+    train = frame[frame.split == "train"].iloc[:12]
+    valid = frame[frame.split == "valid"].iloc[:12]
+    copies = [train.assign(split="valid"), train.assign(split="test"), valid.assign(split="test")]
+    frame = pd.concat([frame, *copies], ignore_index=True)
     result = fa.audit(frame, target="cultivar", split_column="split", probes=["twins"])
     html = render_dossier(result.findings)
     heads = [h for h in html.split('<h3 class="pair">')[1:]]
