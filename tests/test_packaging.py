@@ -35,3 +35,19 @@ def test_wheel_has_one_top_level_package(wheel):
     ):
         assert needed in names, needed
     assert not [n for n in names if n.startswith("probes/")]
+
+
+def test_wheel_holds_every_module_of_the_source_tree(wheel):
+    """Every .py file of featureaudit/ and probes/ is in the wheel (a missed subpackage would
+    install a tool that fails on first use)."""
+    names = set(zipfile.ZipFile(wheel).namelist())
+    expected = {
+        f"featureaudit/{p.relative_to(ROOT / 'featureaudit')}"
+        for p in (ROOT / "featureaudit").rglob("*.py")
+    }
+    expected |= {
+        f"featureaudit/probes/{p.relative_to(ROOT / 'probes')}"
+        for p in (ROOT / "probes").rglob("*.py")
+    }
+    missing = sorted(n for n in expected if "__pycache__" not in n and n not in names)
+    assert not missing, missing
