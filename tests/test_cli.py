@@ -348,6 +348,9 @@ def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
             stderr=subprocess.PIPE,
             text=True,
             preexec_fn=_default_signals,  # a shell's `&` would leave SIGINT ignored
+            # away from the source tree: `-c` puts the working folder first on sys.path, and
+            # the source's featureaudit/ lacks the probes that the installed package holds
+            cwd=tmp_path.parent,
         )
         time.sleep(delay)
         proc.send_signal(sig)
