@@ -497,5 +497,10 @@ def code_cmd(
 
 
 def main() -> None:
-    """Console entry point."""
+    """Console entry point. Libraries' deprecation notices are for their developers, not for
+    the user of a command line: they are kept off stderr, which carries our one-line messages."""
+    import warnings
+
+    warnings.filterwarnings("ignore", category=FutureWarning)
+    warnings.filterwarnings("ignore", category=DeprecationWarning)
     app()
