@@ -180,7 +180,10 @@ def _reached(doc: dict[str, Any], level: str) -> list[str]:
 def scan(
     table: Annotated[
         Path,
-        typer.Argument(help="CSV, TSV, Parquet, Feather/Arrow file or a folder of Parquet files."),
+        typer.Argument(
+            metavar="TABLE",
+            help="CSV, TSV, Parquet, Feather/Arrow file or a folder of Parquet files.",
+        ),
     ],
     test: Annotated[str | None, typer.Option(help="Held-out table with the same columns.")] = None,
     split_column: Annotated[str | None, typer.Option(help="Column that marks the split.")] = None,
@@ -332,7 +335,9 @@ def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
 
 @app.command("droplist")
 def droplist_cmd(
-    findings: Annotated[Path, typer.Argument(help="findings.json written by scan.")],
+    findings: Annotated[
+        Path, typer.Argument(metavar="FINDINGS", help="findings.json written by scan.")
+    ],
     at_least: Annotated[str, typer.Option(help="Lowest level to drop.")] = "high",
     format: Annotated[str, typer.Option(help="text or json.")] = "text",
 ) -> int:
@@ -356,8 +361,8 @@ def droplist_cmd(
 
 @app.command()
 def diff(
-    old: Annotated[Path, typer.Argument(help="findings.json of the earlier run.")],
-    new: Annotated[Path, typer.Argument(help="findings.json of the later run.")],
+    old: Annotated[Path, typer.Argument(metavar="OLD", help="findings.json of the earlier run.")],
+    new: Annotated[Path, typer.Argument(metavar="NEW", help="findings.json of the later run.")],
     fail_at: Annotated[
         str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
     ] = None,
@@ -383,7 +388,9 @@ def diff(
 
 @app.command("history")
 def history_cmd(
-    folder: Annotated[Path, typer.Argument(help="The folder given to scan --history.")],
+    folder: Annotated[
+        Path, typer.Argument(metavar="FOLDER", help="The folder given to scan --history.")
+    ],
     column: Annotated[str | None, typer.Option(help="Show this column only.")] = None,
 ) -> int:
     """Print each column's level and score in every stored run, oldest first, and which
@@ -407,7 +414,7 @@ def history_cmd(
 
 @app.command("dictionary")
 def dictionary_cmd(
-    table: Annotated[Path, typer.Argument(help="The table to describe.")],
+    table: Annotated[Path, typer.Argument(metavar="TABLE", help="The table to describe.")],
     target: Annotated[str | None, typer.Option(help="Mark this column as the target.")] = None,
     encoding: Annotated[
         str | None,
@@ -461,7 +468,10 @@ def version() -> int:
 @app.command("code")
 def code_cmd(
     paths: Annotated[
-        list[Path], typer.Argument(help="Python scripts, .ipynb notebooks or folders of them.")
+        list[Path],
+        typer.Argument(
+            metavar="PATHS", help="Python scripts, .ipynb notebooks or folders of them."
+        ),
     ],
     out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
     format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
