@@ -262,11 +262,14 @@ def column_change(bench: _Bench, base: _Scored, column: str, how: str) -> tuple[
 def reused_lift(column: dict[str, Any], metric: str) -> dict | None:
     """The column's ``impact`` from a unique-lift measurement its evidence already carries
     (``detail["unique_lift"]``: value, low, high, statistic, folds), so the same figure is
-    not fitted twice; ``None`` when there is none, or it was measured in another metric."""
+    not fitted twice; ``None`` when there is none, it was measured in another metric, or with
+    other suspects left out (``without``), which measures more than removing it alone."""
     for e in column.get("evidence", []):
         lift = (e.get("detail") or {}).get("unique_lift")
         if not isinstance(lift, dict) or not _finite(lift.get("value")):
             continue
+        if lift.get("without"):
+            continue  # measured with other suspects left out: not the change of removing it alone
         stat = str(lift.get("statistic") or "")
         if stat and ("r2" in stat.lower()) != (metric == "r2"):
             continue  # an AUC lift cannot stand for an R² change, nor the reverse
@@ -344,6 +347,13 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         else:
             s, entry = column_change(bench, base, c["column"], how)
             corrected = bench.value(s)
+        shared = (
+            _beyond_other_suspects(bench, without, suspects, c["column"], entry)
+            if how == "remove"
+            else None
+        )  # a refit's effect is not a removal's: measured only for removed columns
+        if shared is not None:
+            entry = {**entry, **shared}
         per_column[c["column"]] = entry
         by.append(
             _entry(
@@ -380,6 +390,26 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         "negligible_below": NEGLIGIBLE,
     }
     return block, per_column
+
+
+def _beyond_other_suspects(
+    bench: _Bench, without: _Scored, suspects: list[str], column: str, entry: dict
+) -> dict | None:
+    """A suspect whose removal alone changes little, while other suspects stay, may carry the
+    same signal as they do: its change with the other suspects removed too (the score with
+    only it kept among the suspects, minus the score without any), so that "negligible" is
+    never said of a leak that another leak merely hides."""
+    if column not in suspects or len(suspects) < 2:
+        return None
+    if abs(float(entry["change"])) >= NEGLIGIBLE:
+        return None
+    others = tuple(c for c in suspects if c != column)
+    kept = _Scored(bench.without(others), without.keep)
+    change = bench.value(kept) - bench.value(without)
+    return {
+        "change_beyond_other_suspects": round(change, 4),
+        "ci95_beyond_other_suspects": _r(bench.interval(without, kept)),
+    }
 
 
 def _constant(bench: _Bench) -> np.ndarray:

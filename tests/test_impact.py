@@ -68,6 +68,39 @@ def test_noisy_target_copy_removed_gives_the_original_columns_score(breast_cance
     assert col["remedy"] == "drop"
 
 
+def _oof_auc(x: np.ndarray, y: np.ndarray) -> float:
+    pred = np.zeros(len(y))
+    for tr, te in KFold(3, shuffle=True, random_state=0).split(x):
+        model = lgb.LGBMClassifier(**_params(0, len(y), 1)).fit(x[tr], y[tr])
+        pred[te] = model.predict_proba(x[te])[:, 1]
+    return float(roc_auc_score(y, pred))
+
+
+def test_two_leaks_with_one_signal_are_not_called_negligible(breast_cancer, noisy_copy):
+    from featureaudit.report import impact_words
+
+    weak = ["mean fractal dimension", "texture error", "smoothness error", "symmetry error"]
+    frame = breast_cancer[[*weak, "malignant"]].copy()  # honest columns with a modest AUC
+    leak = noisy_copy(frame.malignant.to_numpy(), 0.05, 0)
+    frame["leak_a"] = leak
+    frame["leak_b"] = 3 * leak + 1  # the same signal, coded otherwise
+    result = fa.audit(frame, target="malignant", probes=["solo"])
+    cols = {c["column"]: c for c in result.document["columns"]}
+    assert {"leak_a", "leak_b"} <= set(result.document["impact"]["suspects_removed"])
+    # reference: out-of-fold LightGBM (3 seeded folds) scored with sklearn.metrics.roc_auc_score,
+    # the original columns with and without one copy of the leak
+    x = breast_cancer[weak].to_numpy()
+    y = breast_cancer.malignant.to_numpy()
+    direct = _oof_auc(np.column_stack([x, leak]), y) - _oof_auc(x, y)
+    for name in ("leak_a", "leak_b"):
+        imp = cols[name]["impact"]
+        assert abs(imp["change"]) < 0.01  # removed alone, the other copy stands in for it
+        assert abs(imp["change_beyond_other_suspects"] - direct) < 0.01
+        lo, hi = imp["ci95_beyond_other_suspects"]
+        assert lo <= imp["change_beyond_other_suspects"] <= hi
+        assert impact_words(imp).startswith("negligible alone; -")
+
+
 def test_scaler_fitted_on_all_rows_has_a_negligible_impact(breast_cancer):
     frame = _split(breast_cancer, share=0.4)
     v = frame["mean radius"]
@@ -188,6 +221,9 @@ def test_a_unique_lift_in_the_evidence_is_reused_not_refitted(
     assert impact.reused_lift(_column({"value": 0.01}), "auc") is None
     no_ci = impact.reused_lift(_column({"error_without": 0.02, "error_with": 0.01}), "auc")
     assert no_ci is None  # no value: ignored as well
+    # measured with another suspect left out: not the change of removing this one alone
+    assert impact.reused_lift(_column({**lift, "without": ["other"]}), "auc") is None
+    assert impact.reused_lift(_column({**lift, "without": []}), "auc") is not None
     partial = {"value": 0.5, "error_without": 0.02, "error_with": 0.01}
     got = impact.reused_lift(_column(partial), "auc")
     assert got == {"change": 0.01, "ci95": [None, None], "how": got["how"]}
