@@ -95,14 +95,8 @@ def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
     if abs(change) < negligible and (hi is None or hi < negligible):
         beyond = entry.get("change_beyond_other_suspects")
         if beyond is not None and float(beyond) >= negligible:
-            b_lo, b_hi = (entry.get("ci95_beyond_other_suspects") or [None, None])[:2]
-            b_ci = (
-                f" ({-b_hi:+.3f} to {-b_lo:+.3f})" if b_lo is not None and b_hi is not None else ""
-            )
-            return (
-                f"negligible alone; {-float(beyond):+.3f}{b_ci} with the other suspects "
-                "removed (they carry the same signal)"
-            )
+            # short enough for the ranked table's cell; its interval is in findings.json
+            return f"≈0 alone; {-float(beyond):+.3f} with the others out"
         return "negligible"
     # shown as the score's change when the column is removed: the sign of the interval too
     ci = f" ({-hi:+.3f} to {-lo:+.3f})" if lo is not None and hi is not None else ""

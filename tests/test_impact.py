@@ -98,7 +98,7 @@ def test_two_leaks_with_one_signal_are_not_called_negligible(breast_cancer, nois
         assert abs(imp["change_beyond_other_suspects"] - direct) < 0.01
         lo, hi = imp["ci95_beyond_other_suspects"]
         assert lo <= imp["change_beyond_other_suspects"] <= hi
-        assert impact_words(imp).startswith("negligible alone; -")
+        assert impact_words(imp).startswith("≈0 alone; -")
 
 
 def test_scaler_fitted_on_all_rows_has_a_negligible_impact(breast_cancer):
