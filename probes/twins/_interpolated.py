@@ -5,7 +5,11 @@ neighbours of the same class. Made before the split, such a row held out lies be
 training rows (or a training row between two held-out rows): a twin in effect. For each
 queried row the nearest rows of its class on the other side are paired up, and the row is
 interpolated when it lies strictly inside one pair's segment, off it by less than
-``RESIDUAL`` of the segment's length in robustly scaled units. Anchor: oversampling before
+``RESIDUAL`` of the segment's length in robustly scaled units, and holds, in at least
+``MIN_COLUMNS`` of the columns where the two ends differ, a value that no other row holds:
+interpolation writes new values, while a natural row that happens to lie on a segment (a
+record of the same person one year on, a point of a small grid) repeats values of its
+column. Anchor: oversampling before
 partitioning made near-perfect preterm-birth results reachable (Vandewiele et al.,
 Artificial Intelligence in Medicine 111:101987, 2021).
 """
@@ -45,8 +49,9 @@ def interpolated_rows(
         return None
     ok = np.isfinite(x).all(axis=1)
     y = table.y if table.y is not None and table.task != "numeric" else None
-    held_on_train = _search(x, ok & heldout, ok & ~heldout, y, h)
-    train_on_held = _search(x, ok & ~heldout, ok & heldout, y, h)
+    fresh = _fresh(x)
+    held_on_train = _search(x, fresh, ok & heldout, ok & ~heldout, y, h)
+    train_on_held = _search(x, fresh, ok & ~heldout, ok & heldout, y, h)
     explained = np.zeros(table.n_rows, bool)
     explained[[q for q, _, _ in held_on_train]] = True
     for _, a, b in train_on_held:
@@ -90,6 +95,15 @@ def _scaled(table: AuditTable, cols: list[str], train: np.ndarray) -> np.ndarray
     return np.column_stack(out)
 
 
+def _fresh(x: np.ndarray) -> np.ndarray:
+    """True where a row's value occurs in no other row of its column."""
+    out = np.zeros(x.shape, bool)
+    for j in range(x.shape[1]):
+        _, inverse, counts = np.unique(x[:, j], return_inverse=True, return_counts=True)
+        out[:, j] = counts[inverse] == 1
+    return out
+
+
 def _queries(mask: np.ndarray, h: np.ndarray) -> np.ndarray:
     """At most MAX_QUERIES rows of ``mask``, those of smallest row hash (content-chosen)."""
     idx = np.flatnonzero(mask)
@@ -99,7 +113,12 @@ def _queries(mask: np.ndarray, h: np.ndarray) -> np.ndarray:
 
 
 def _search(
-    x: np.ndarray, query: np.ndarray, pool: np.ndarray, y: np.ndarray | None, h: np.ndarray
+    x: np.ndarray,
+    fresh: np.ndarray,
+    query: np.ndarray,
+    pool: np.ndarray,
+    y: np.ndarray | None,
+    h: np.ndarray,
 ) -> list[tuple[int, int, int]]:
     """(row, end a, end b) for each queried row strictly inside a segment of two pool rows
     of its class."""
@@ -114,12 +133,15 @@ def _search(
         k = min(NEIGHBOURS, p_idx.size)
         nn = NearestNeighbors(n_neighbors=k, n_jobs=1).fit(x[p_idx])
         near = p_idx[nn.kneighbors(x[q_idx], return_distance=False)]  # (q, k)
-        found.extend(_on_segment(x, q_idx, near))
+        found.extend(_on_segment(x, fresh, q_idx, near))
     return found
 
 
-def _on_segment(x: np.ndarray, q_idx: np.ndarray, near: np.ndarray) -> list[tuple[int, int, int]]:
-    """Vectorised over all pairs of each row's neighbours: inside a segment, and close to it."""
+def _on_segment(
+    x: np.ndarray, fresh: np.ndarray, q_idx: np.ndarray, near: np.ndarray
+) -> list[tuple[int, int, int]]:
+    """Vectorised over all pairs of each row's neighbours: inside a segment, close to it, and
+    with new values in enough of the columns where the ends differ."""
     k = near.shape[1]
     ia, ib = np.triu_indices(k, 1)
     q = x[q_idx][:, None, :]  # (n, 1, d)
@@ -130,7 +152,8 @@ def _on_segment(x: np.ndarray, q_idx: np.ndarray, near: np.ndarray) -> list[tupl
         t = np.einsum("npd,npd->np", q - a, ab) / length2
         off = q - a - t[..., None] * ab
         residual = np.sqrt(np.einsum("npd,npd->np", off, off) / length2)
-    hit = (length2 > 0) & (t > INSIDE[0]) & (t < INSIDE[1]) & (residual < RESIDUAL)
+    new = ((np.abs(ab) > 1e-9) & fresh[q_idx][:, None, :]).sum(axis=-1) >= MIN_COLUMNS
+    hit = new & (length2 > 0) & (t > INSIDE[0]) & (t < INSIDE[1]) & (residual < RESIDUAL)
     out = []
     for r in np.flatnonzero(hit.any(axis=1)):
         p = int(np.flatnonzero(hit[r])[np.argmin(residual[r][hit[r]])])
