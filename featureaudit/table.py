@@ -106,7 +106,14 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     if test is not None:
         tsrc = Path(test).name if isinstance(test, (str, os.PathLike)) else "held-out DataFrame"
         frame, heldout = _append_test(
-            frame, as_frame(test, what=tsrc, encoding=encoding), src, tsrc, target, ddict, warnings
+            frame,
+            as_frame(test, what=tsrc, encoding=encoding),
+            src,
+            tsrc,
+            target,
+            ddict,
+            warnings,
+            task,
         )
         split_desc = f"test:{tsrc}"
         partitions = {"train": int((~heldout).sum()), "test": int(heldout.sum())}
@@ -247,6 +254,7 @@ def _append_test(
     target: str | None,
     ddict: DataDictionary | None,
     warnings: list[str],
+    task: str | None = None,
 ) -> tuple[pd.DataFrame, np.ndarray]:
     if len(test) == 0:
         raise InputFileError(
@@ -271,7 +279,7 @@ def _append_test(
         )
     test = test[[c for c in frame.columns if c in test.columns]]
     for name in sorted(targets):
-        if name in frame.columns and name in test.columns:
+        if name in frame.columns and name in test.columns and task != "numeric":
             _same_coding(frame[name], test[name], name, src, tsrc)
     both = pd.concat([_plain(frame), _plain(test)], ignore_index=True)
     heldout = np.r_[np.zeros(len(frame), bool), np.ones(len(test), bool)]
@@ -297,9 +305,10 @@ def _same_coding(train: pd.Series, held: pd.Series, name: str, src: str, tsrc: s
     else:
         overlap = bool(set(_label_keys(a)) & set(_label_keys(b)))
     if not overlap:
+        numbers = " (or, if it is a quantity, pass --task numeric)" if numeric_a else ""
         raise TargetError(
             f"target {name!r} is coded differently in {src} ({_coding(a)}) and in held-out "
-            f"table {tsrc!r} ({_coding(b)}); recode one so both use the same labels."
+            f"table {tsrc!r} ({_coding(b)}); recode one so both use the same labels{numbers}."
         )
 
 

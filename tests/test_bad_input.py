@@ -756,3 +756,21 @@ def test_a_folder_where_a_file_is_expected(good_csv, tmp_path):
         assert_one_line_exit_2(result, "is a folder, not a file", flag)
     assert_one_line_exit_2(cli("droplist", folder), "is a folder, not a file")
     assert_one_line_exit_2(cli("scan", folder), "folder", "holds no .parquet files")
+
+
+def test_heldout_target_of_few_whole_numbers_points_to_task_numeric(tmp_path):
+    # scikit-learn's linnerud data: 20 men's weights in whole pounds look like class codes;
+    # a held-out file with other weights is a quantity, not another coding
+    from sklearn.datasets import load_linnerud
+
+    data = load_linnerud(as_frame=True)
+    frame = data.data.assign(weight=data.target["Weight"].to_numpy())
+    order = frame["weight"].rank(method="first")
+    train, held = frame[order <= 12], frame[order > 12]
+    train.to_csv(tmp_path / "train.csv", index=False)
+    held.to_csv(tmp_path / "test.csv", index=False)
+    args = ["scan", tmp_path / "train.csv", "--test", tmp_path / "test.csv", "--target", "weight"]
+    result = cli(*args, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "coded differently", "--task numeric")
+    table = fa.table.build_table(train, test=held, target="weight", task="numeric")
+    assert table.heldout_rows == 8 and table.task == "numeric"

@@ -283,7 +283,14 @@ class Twins(Probe):
         baseline: dict[str, Any] = (
             copy_excess(h, heldout, rng, t)
             if exact.any()
-            else {"excess": 0.0, "lower": 0.0, "natural_share": 0.0, "ci95": [0.0, 0.0]}
+            else {
+                "excess": 0.0,
+                "lower": 0.0,
+                "natural_share": 0.0,
+                "observed_share_vs_part": 0.0,
+                "natural_share_vs_part": 0.0,
+                "ci95": [0.0, 0.0],
+            }
         )
         exact_excess = max(baseline["excess"], 0.0) if baseline["lower"] > 0 else 0.0
         near_natural = _natural_near(table, cols, h, heldout, rng) if near_rows else 0.0
@@ -294,8 +301,9 @@ class Twins(Probe):
         if exact.any() and exact_excess == 0.0:
             notes.append(
                 f"{share_exact:.1%} of held-out rows have an exact copy, as often as "
-                f"random parts of the training rows do ({baseline['natural_share']:.1%})"
-                ": the copies look natural"
+                "random parts of the training rows do against the same partner rows "
+                f"({baseline['observed_share_vs_part']:.1%} and "
+                f"{baseline['natural_share_vs_part']:.1%}): the copies look natural"
             )
         detail = {
             "heldout_rows": n_held,
@@ -320,9 +328,11 @@ class Twins(Probe):
             lo, hi = baseline["ci95"]
             text = (
                 f"{share:.1%} of held-out rows have a copy among the training rows "
-                f"({share_exact:.1%} exact; random parts of the training rows give "
-                f"{baseline['natural_share']:.1%}, an excess of {excess:.1%}, exact part "
-                f"95 % CI {lo:.1%} to {hi:.1%})"
+                f"({share_exact:.1%} exact; against the same partner rows, held-out rows "
+                f"have an exact copy {baseline['observed_share_vs_part']:.1%} of the time "
+                f"and random parts of the training rows "
+                f"{baseline['natural_share_vs_part']:.1%}: an excess of {excess:.1%}, exact "
+                f"part 95 % CI {lo:.1%} to {hi:.1%})"
             )
         else:
             text = "no held-out row has an exact or near copy among the training rows"

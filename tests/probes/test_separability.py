@@ -1,6 +1,7 @@
 """Adversarial validation on real bundled data: random splits, a split by a feature, and KS."""
 
 import numpy as np
+import pandas as pd
 import pytest
 from scipy.stats import ks_2samp
 
@@ -136,3 +137,47 @@ def test_level_functions_are_pure():
     assert identifier_level(1.0, 20.0) == Level.LOW
     assert simulated_level(Level.CRITICAL, "time") == Level.LOW
     assert simulated_level(Level.CRITICAL, "random") == Level.NONE
+
+
+def _grunfeld():
+    import statsmodels.api as sm
+
+    d = sm.datasets.grunfeld.load_pandas().data.copy()
+    d["firm"] = d["firm"].astype(str)
+    d["at"] = pd.to_datetime(d.pop("year").astype(int).astype(str) + "-12-31")
+    return d
+
+
+def test_a_split_by_time_or_by_entity_shows_drift_but_not_at_high():
+    # statsmodels' grunfeld panel (10 US firms, 1935-1954): investment grows over the years
+    # and firms differ in size, so a split by year or by firm separates honestly (AUC > 0.8)
+    d = _grunfeld()
+    late = np.where(d["at"] > d["at"].quantile(0.75), "test", "train")
+    by_time = fa.audit(
+        d.assign(split=late),
+        target="invest",
+        split_column="split",
+        label_time="at",
+        probes=["separability"],
+    )
+    firms = np.where(d["firm"].isin(["General Motors", "US Steel"]), "test", "train")
+    by_firm = fa.audit(
+        d.assign(split=firms),
+        target="invest",
+        split_column="split",
+        entity="firm",
+        probes=["separability"],
+    )
+    for result, design in ((by_time, "time"), (by_firm, "entity")):
+        f = _finding(result)[0]
+        assert f["value"] > 0.8 and f["level"] == "medium"
+        assert f["detail"]["split_design"] == design
+        assert f["detail"]["level_before_cap"] in ("high", "critical")
+    # the same split by firm, told neither the entity nor a time: a shift at high
+    plain = fa.audit(
+        d.drop(columns=["at"]).assign(split=firms),
+        target="invest",
+        split_column="split",
+        probes=["separability"],
+    )
+    assert _finding(plain)[0]["level"] in ("high", "critical")
