@@ -68,6 +68,7 @@ from featureaudit.probes.solo._peers import (
     unique_lift,
 )
 from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.sample import content_keys
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
 from featureaudit.table import AuditTable
@@ -712,24 +713,23 @@ def _peer_figures(
     sample."""
     if len(features) < 2:
         return {}, {}
-    rng = np.random.default_rng(settings.seed + 1)
     n = len(t.rows)
     take = min(n, settings.reference_rows)
-    if take < n and t.task != "numeric":
-        pick = np.concatenate(
-            [
-                rng.choice(
-                    np.flatnonzero(t.y == k),
-                    max(1, round(take * float(np.mean(t.y == k)))),
-                    replace=False,
-                )
-                for k in range(t.n_classes)
-                if (t.y == k).any()
-            ]
+    pick = np.arange(n)
+    if take < n:  # the rows of smallest content key (per class): the file's order plays no part
+        keys = content_keys(table.frame.iloc[t.rows], features, settings.seed + 1)
+        groups = [np.flatnonzero(t.y == k) for k in range(t.n_classes)]
+        if t.task == "numeric":
+            groups = [np.arange(n)]
+        pick = np.sort(
+            np.concatenate(
+                [
+                    g[np.argsort(keys[g], kind="stable")[: max(1, round(take * g.size / n))]]
+                    for g in groups
+                    if g.size
+                ]
+            )
         )
-    else:
-        pick = rng.choice(n, take, replace=False) if take < n else np.arange(n)
-    pick = np.sort(pick)
     cols, trees = [], []
     for name in features:
         if bins[name].codes is None:  # run() kept codes only for encoded columns

@@ -414,3 +414,20 @@ def test_decide_proxy_share_is_judged_against_the_table():
     # a share above the fixed floor that does not stand out from the table stays medium
     typical = dict(base, share=0.5, typical_share=0.25)
     assert decide_proxy(ProxyFigures(**typical, share_z=1.5)) == (Level.MEDIUM, "share_typical")
+
+
+def test_the_reference_sample_is_chosen_by_content_not_file_order(breast_cancer):
+    # scikit-learn's breast-cancer data with a reference sample of 200 of its 569 rows: the
+    # same rows in another file order give the very same peer figures and levels
+    from featureaudit.settings import Settings
+
+    settings = Settings(reference_rows=200)
+    shuffled = breast_cancer.sample(frac=1, random_state=3).reset_index(drop=True)
+    a = fa.audit(breast_cancer, target="malignant", probes=["solo"], settings=settings)
+    b = fa.audit(shuffled, target="malignant", probes=["solo"], settings=settings)
+    assert _levels(a) == _levels(b)
+    for c in ("worst perimeter", "mean texture"):
+        assert _detail(a, c)["share_beyond_peers"] == pytest.approx(
+            _detail(b, c)["share_beyond_peers"], abs=1e-9
+        )
+        assert _detail(a, c)["reference_rows"] == 200
