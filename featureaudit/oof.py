@@ -45,17 +45,26 @@ class Target:
 
 
 def make_target(
-    y_all: np.ndarray, labelled: np.ndarray, task: str, n_classes: int, folds: int, seed: int
+    y_all: np.ndarray,
+    labelled: np.ndarray,
+    task: str,
+    n_classes: int,
+    folds: int,
+    seed: int,
+    keys: np.ndarray | None = None,
 ) -> Target:
-    """Stratified seeded folds (by class, or by target rank for a numeric target)."""
+    """Stratified seeded folds (by class, or by target rank for a numeric target). With
+    ``keys`` (one per row of the table, from its content) rows are dealt to folds in key
+    order, so the same rows in another file order fall in the same folds."""
     rows = np.flatnonzero(labelled)
     y = y_all[rows]
     rng = np.random.default_rng(seed)
+    shuffle = (lambda: keys[rows]) if keys is not None else (lambda: rng.random(len(rows)))
     fold = np.empty(len(rows), dtype=np.int64)
     if task == "numeric":
-        order = np.argsort(y, kind="stable")
+        order = np.lexsort((shuffle(), y))  # ties in y in key order
         blocks = np.arange(len(rows)) // folds
-        perm = np.lexsort((rng.random(len(rows)), blocks))  # shuffle within blocks of `folds`
+        perm = np.lexsort((shuffle()[order], blocks))  # shuffle within blocks of `folds`
         fold[order[perm]] = np.arange(len(rows)) % folds
         ranks = rankdata(y)
         scores = ndtri((ranks - 0.5) / len(rows))  # robust to heavy tails and outliers
@@ -66,7 +75,8 @@ def make_target(
         )
     for k in range(n_classes):
         idx = np.flatnonzero(y == k)
-        fold[rng.permutation(idx)] = np.arange(idx.size) % folds
+        dealt = idx[np.argsort(keys[rows[idx]], kind="stable")] if keys is not None else None
+        fold[dealt if dealt is not None else rng.permutation(idx)] = np.arange(idx.size) % folds
     prior = np.bincount(y, minlength=n_classes) / len(y)
     y = y.astype(np.int64)
     return Target(task, y, rows, fold, folds, n_classes, prior, None, y, n_classes)

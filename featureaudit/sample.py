@@ -21,6 +21,7 @@ __all__ = [
     "SampleSketch",
     "SampleRows",
     "content_keys",
+    "order_keys",
     "allocate",
     "MIN_PER_STRATUM",
     "MAX_CLASSES",
@@ -69,6 +70,17 @@ def content_keys(frame: pd.DataFrame, columns: list[str], seed: int) -> np.ndarr
         for name in sorted(columns):
             h = _splitmix(h * _MULT ^ _value_codes(frame[name]))
     return h
+
+
+KEY_COLUMNS = 8  # columns hashed for a row key where the order of rows must not matter (cost)
+
+
+def order_keys(frame: pd.DataFrame, columns: list[str], seed: int) -> np.ndarray:
+    """A row key from a few of ``columns`` (floating-point ones first, by name) and the
+    seed: cheap, and equal whatever the file's order; rows equal in those columns tie."""
+    floats = sorted(c for c in columns if pd.api.types.is_float_dtype(frame[c]))
+    rest = sorted(c for c in columns if c not in set(floats))
+    return content_keys(frame, (floats + rest)[:KEY_COLUMNS], seed)
 
 
 def allocate(counts: dict[str, int], size: int) -> dict[str, int]:

@@ -68,7 +68,7 @@ from featureaudit.probes.solo._peers import (
     unique_lift,
 )
 from featureaudit.registry import Probe, ProbeOutput, register
-from featureaudit.sample import content_keys
+from featureaudit.sample import content_keys, order_keys
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
 from featureaudit.table import AuditTable
@@ -369,6 +369,7 @@ class Solo(Probe):
             max(len(table.classes), 1),
             settings.folds,
             settings.seed,
+            order_keys(table.frame, [table.target, *table.features], settings.seed + 104729),
         )
         if len(t.rows) < 4 * settings.folds:
             return [], [

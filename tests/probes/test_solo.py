@@ -140,7 +140,9 @@ def test_high_cardinality_text_cannot_leak_through_the_probe():
         }
     )
     result = fa.audit(frame, target="y", probes=["solo"])
-    assert _detail(result, "ticket")["oof_value"] == pytest.approx(0.5, abs=0.02)
+    # within 3.5 null SEs of chance: the Mann–Whitney null SE sqrt((n0+n1+1)/(12 n0 n1)) is
+    # 0.0105 at n = 3000 (Hanley & McNeil 1982); a leak through the text would be far above
+    assert _detail(result, "ticket")["oof_value"] == pytest.approx(0.5, abs=0.037)
 
 
 def test_missingness_that_tells_the_target_is_reported():
@@ -431,3 +433,5 @@ def test_the_reference_sample_is_chosen_by_content_not_file_order(breast_cancer)
             _detail(b, c)["share_beyond_peers"], abs=1e-9
         )
         assert _detail(a, c)["reference_rows"] == 200
+        # folds dealt by content too: the out-of-fold figures themselves agree
+        assert _detail(a, c)["oof_value"] == pytest.approx(_detail(b, c)["oof_value"], abs=1e-12)
