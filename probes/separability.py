@@ -55,7 +55,11 @@ class SeparabilityThresholds:
     training row) or by entity (at most ``shared_entity_share`` of held-out rows with an
     entity seen in training): such splits are made to show drift, and trending features or
     different firms separate the sides honestly (statsmodels' grunfeld split by firm and by
-    year, AUC 0.9 and more, measured; the cut-offs are common practice, no source).
+    year, AUC 0.9 and more, measured; the cut-offs are common practice, no source). A split
+    along an undeclared group key counts as by entity (see :func:`group_key`: at least
+    ``group_values`` values of ``group_rows`` rows each on average, side changes along the
+    sorted values in ``group_interleave`` of them; statsmodels' modechoice split by
+    individual, measured; common practice, no source).
     ``identifier_level``: the level of a split
     that only an identifier separates (common practice, no source: it is worth a look, not
     a leak). ``top_left_out``: drivers left out to see how much of the AUC they carry.
@@ -74,6 +78,9 @@ class SeparabilityThresholds:
     design_cap: Level = Level.MEDIUM
     later_share: float = 0.9
     shared_entity_share: float = 0.01
+    group_values: int = 20
+    group_rows: float = 2.0
+    group_interleave: float = 0.1
 
 
 THRESHOLDS = SeparabilityThresholds()
@@ -111,6 +118,34 @@ def split_design(table: AuditTable, heldout: np.ndarray) -> str | None:
         held = ent[heldout]
         if held.notna().any() and held.isin(seen).mean() <= t.shared_entity_share:
             return "entity"
+    key = group_key(table, heldout)
+    return f"groups of {key}" if key else None
+
+
+def group_key(table: AuditTable, heldout: np.ndarray) -> str | None:
+    """A feature the split was cut along as groups although no entity was declared: its
+    values repeat (``group_rows`` rows per value or more), almost none of them occurs on
+    both sides, and the sides interleave along its sorted values (a cut at a threshold is a
+    shift along that column, not groups). Such a key lets the adversarial model memorise
+    each value's side, which is the split's design, not a difference between the rows."""
+    t = THRESHOLDS
+    side = heldout.astype(np.int8)
+    for c in sorted(table.features):
+        s = table.frame[c]
+        codes, uniques = pd.factorize(s, sort=True)
+        ok = codes >= 0
+        n_values = len(uniques)
+        if n_values < t.group_values or ok.sum() < t.group_rows * n_values:
+            continue
+        held_per = np.bincount(codes[ok], weights=side[ok], minlength=n_values)
+        rows_per = np.bincount(codes[ok], minlength=n_values)
+        mixed = (held_per > 0) & (held_per < rows_per)
+        if rows_per[mixed].sum() > t.shared_entity_share * ok.sum():
+            continue
+        held_value = held_per > 0
+        changes = int(np.count_nonzero(held_value[1:] != held_value[:-1]))
+        if changes >= t.group_interleave * n_values:
+            return c
     return None
 
 
@@ -299,11 +334,10 @@ class Separability(Probe):
         if capped:
             summary += (
                 f"; the split is by {design} ("
-                + (
-                    "held-out rows later than the training rows"
-                    if design == "time"
-                    else "no held-out entity among the training rows"
-                )
+                + {
+                    "time": "held-out rows later than the training rows",
+                    "entity": "no held-out entity among the training rows",
+                }.get(design or "", "no value on both sides; declare it with --entity")
                 + "): the shift is what such a split is meant to show, the model meets it in "
                 "production; it is no leak, but check that the columns driving it are stable"
             )

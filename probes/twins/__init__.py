@@ -294,9 +294,12 @@ class Twins(Probe):
         )
         exact_excess = max(baseline["excess"], 0.0) if baseline["lower"] > 0 else 0.0
         near_natural = _natural_near(table, cols, h, heldout, rng) if near_rows else 0.0
-        excess = exact_excess + max(near_rows / n_held - near_natural, 0.0)
-        twin_rows = exact_excess * n_held + near_rows
+        near_excess = _near_excess(near_rows / n_held, near_natural, n_held, t.ci_z)
+        excess = exact_excess + near_excess
+        twin_rows = (exact_excess + near_excess) * n_held
         agreement = _pooled(agree, exact.sum(), near_agree, only_near.sum())
+        if base is None and near_agree is not None:
+            base = _chance_agreement(table, heldout)
         level, notes = copy_level(excess, twin_rows, agreement, base, t)
         if exact.any() and exact_excess == 0.0:
             notes.append(
@@ -451,6 +454,27 @@ def _natural_near(
     near, calib = near_copies(table, cols, part, exact, rng, train=partners)
     rows = float((near & ~exact).sum()) / calib.get("searched_share", 1.0)
     return rows / a / ((n_t - a) / n_t)
+
+
+def _near_excess(observed: float, natural: float, n: int, z: float) -> float:
+    """The near-copy share beyond the natural one, or 0 when its one-sided lower bound (both
+    shares binomial on about ``n`` rows, as the part is sized like the held-out side) is
+    not above 0: a few near twins more than chance are no evidence."""
+    diff = observed - natural
+    se = np.sqrt((observed * (1 - observed) + natural * (1 - natural)) / max(n, 1))
+    return float(diff) if diff - z * se > 0 else 0.0
+
+
+def _chance_agreement(table: AuditTable, heldout: np.ndarray) -> float | None:
+    """How often a held-out row's class equals a random training row's (classes only)."""
+    if table.y is None or table.task == "numeric":
+        return None
+    y, lab = table.y, table.labelled
+    a, b = y[heldout & lab].astype(np.int64), y[~heldout & lab].astype(np.int64)
+    if a.size == 0 or b.size == 0:
+        return None
+    k = int(max(a.max(), b.max())) + 1
+    return float(np.dot(np.bincount(a, minlength=k) / a.size, np.bincount(b, minlength=k) / b.size))
 
 
 def _json(t: TwinsThresholds) -> dict:

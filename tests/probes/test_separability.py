@@ -181,3 +181,30 @@ def test_a_split_by_time_or_by_entity_shows_drift_but_not_at_high():
         probes=["separability"],
     )
     assert _finding(plain)[0]["level"] in ("high", "critical")
+
+
+def test_a_split_along_an_undeclared_group_key_is_by_entity_and_a_threshold_is_not():
+    # statsmodels' modechoice: 210 travellers, 4 rows each (one per mode). Holding out a
+    # fifth of the travellers, without saying that "individual" is the entity, lets the
+    # adversarial model memorise each traveller's side: the split's design, not a shift
+    import statsmodels.api as sm
+
+    d = sm.datasets.modechoice.load_pandas().data.copy()
+    d["chosen"] = d.pop("choice").astype(int)
+    rng = np.random.default_rng(0)
+    held = set(rng.choice(d["individual"].unique(), 42, replace=False))
+    by_group = d.assign(split=np.where(d["individual"].isin(held), "test", "train"))
+    f = _finding(
+        fa.audit(by_group, target="chosen", split_column="split", probes=["separability"])
+    )[0]
+    assert f["detail"]["split_design"] == "groups of individual"
+    assert f["level"] == "medium" and f["detail"]["level_before_cap"] in ("high", "critical")
+    # a cut at a threshold of a column with repeated values (palmerpenguins' body mass, in
+    # 25 g steps) keeps each value on one side too, but it is a shift along that column
+    penguins = pytest.importorskip("palmerpenguins").load_penguins().dropna()
+    cut = penguins["body_mass_g"].rank(method="first") > 0.8 * len(penguins)
+    shifted = penguins.assign(split=np.where(cut, "test", "train"))
+    g = _finding(
+        fa.audit(shifted, target="species", split_column="split", probes=["separability"])
+    )[0]
+    assert g["detail"]["split_design"] is None and g["level"] in ("high", "critical")
