@@ -75,8 +75,12 @@ def make_target(
         )
     for k in range(n_classes):
         idx = np.flatnonzero(y == k)
-        dealt = idx[np.argsort(keys[rows[idx]], kind="stable")] if keys is not None else None
-        fold[dealt if dealt is not None else rng.permutation(idx)] = np.arange(idx.size) % folds
+        dealt = (
+            idx[np.argsort(keys[rows[idx]], kind="stable")]
+            if keys is not None
+            else rng.permutation(idx)
+        )
+        fold[dealt] = np.arange(idx.size) % folds
     prior = np.bincount(y, minlength=n_classes) / len(y)
     y = y.astype(np.int64)
     return Target(task, y, rows, fold, folds, n_classes, prior, None, y, n_classes)

@@ -76,23 +76,16 @@ def order_values(s: pd.Series) -> np.ndarray:
 
 
 def _ranks(s: pd.Series, rows: np.ndarray) -> np.ndarray | None:
-    """Average ranks of a column's values on ``rows`` (text in sorted order); None when
-    the column has missing values there or a single value."""
-    values = numeric_view(s)
-    if values is None:
-        codes, uniques = pd.factorize(s.iloc[rows], sort=True)
-        if (codes < 0).any() or len(uniques) < 2:
-            return None
-        values = codes.astype("float64")
-    else:
-        values = values[rows].astype("float64")
-        if not np.isfinite(values).all() or np.unique(values).size < 2:
-            return None
-    return pd.Series(values).rank(method="average").to_numpy()
+    """The column's values on ``rows`` in their sorted order (ranked within each partition
+    by :func:`_within`); None when the column has missing values there or a single value."""
+    values = order_values(s)[rows]
+    if not np.isfinite(values).all() or np.unique(values).size < 2:
+        return None
+    return values
 
 
 def _within(a: np.ndarray, b: np.ndarray, groups: np.ndarray) -> float:
-    """Rank correlation within each group, weighted by the group's size."""
+    """Rank correlation of ``a`` and ``b`` within each group, weighted by the group's size."""
     total, weight = 0.0, 0
     for g in pd.unique(groups):
         m = groups == g
