@@ -220,7 +220,7 @@ class Twins(Probe):
         else:
             h = row_hashes(table.frame, cols, settings.n_jobs)  # one hash per row serves both
             evidence.append(self._across(table, cols, heldout, rng, h))
-            evidence.extend(self._interpolated(table, cols, heldout, h))
+            evidence.extend(self._interpolated(table, cols, heldout, h, settings.n_jobs))
         if table.entity is not None:
             evidence.append(self._entities(table, heldout, simulated))
         return evidence, skipped
@@ -341,12 +341,12 @@ class Twins(Probe):
         )
 
     def _interpolated(
-        self, table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray
+        self, table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray, n_jobs: int
     ) -> list[Evidence]:
         """Held-out rows on a segment between two training rows of their class (or the
         reverse): oversampling before the split. Reported only when some are found."""
         t = self.thresholds
-        found = interpolated_rows(table, cols, heldout, h)
+        found = interpolated_rows(table, cols, heldout, h, n_jobs)
         if found is None or found["heldout_rows_explained"] == 0:
             return []
         share = found["share"]

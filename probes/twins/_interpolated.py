@@ -25,6 +25,7 @@ from featureaudit.io import numeric_view
 from featureaudit.probes.twins._nearcopy import row_labels
 from featureaudit.probes.twins.hashing import robust_params
 from featureaudit.table import AuditTable
+from featureaudit.threads import openmp_threads
 
 # A natural row lies within 0.1 % of a segment's length off it, in 3 or more continuous
 # dimensions, essentially never (chance ~ 0.001^(d-1) per pair); rounding of stored values
@@ -39,11 +40,11 @@ MAX_QUERIES = 2000  # rows queried per direction, chosen by content, not by file
 
 
 def interpolated_rows(
-    table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray
+    table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray, n_jobs: int = 1
 ) -> dict[str, Any] | None:
     """The held-out rows explained by interpolation between training rows (and held-out
     endpoints of training rows interpolated between held-out rows); None when the table
-    has too few continuous columns to tell."""
+    has too few continuous columns to tell. The neighbour search runs on ``n_jobs`` threads."""
     x = _scaled(table, cols, ~heldout)
     if x is None:
         return None
@@ -52,8 +53,9 @@ def interpolated_rows(
     q_held, q_train = _queries(ok & heldout, h), _queries(ok & ~heldout, h)
     asked = np.union1d(q_held, q_train)
     fresh = _fresh(x, asked)
-    held_on_train = _search(x, fresh, asked, q_held, ok & ~heldout, y)
-    train_on_held = _search(x, fresh, asked, q_train, ok & heldout, y)
+    with openmp_threads(n_jobs):
+        held_on_train = _search(x, fresh, asked, q_held, ok & ~heldout, y)
+        train_on_held = _search(x, fresh, asked, q_train, ok & heldout, y)
     explained = np.zeros(table.n_rows, bool)
     explained[[q for q, _, _ in held_on_train]] = True
     for _, a, b in train_on_held:
