@@ -1,19 +1,25 @@
-"""Speed and memory bench: the audit's wall time against one read of the same Parquet file.
+"""Speed and memory bench: the whole audit against one whole-process read of the same file.
 
 Writes a synthetic table (N rows x F columns: numbers, a few categories and dates, a binary
-target, a random split) to Parquet, then in fresh processes times one
-``pyarrow.parquet.read_table`` and the audit (per probe), and reports peak memory.
+target, a random split) to Parquet, reads it once to put it in the page cache, then times
+as whole processes (interpreter start and imports included) one ``pyarrow.parquet`` read
+with ``to_pandas`` and one ``featureaudit scan`` of the file, and reports each process's
+peak memory and the audit's per-probe seconds (``settings.probe_seconds``).
 
     python benchmarks/speed.py --rows 1000000 --cols 100 [--probes solo,timing]
     python benchmarks/speed.py --rows 1000000,3000000 --parts 8 --engine stream
+    python benchmarks/speed.py --rows 200000 --cols 100 --table /tmp/t.parquet --profile /tmp/p
 
 With several ``--rows`` sizes it ends with a growth table (seconds per million rows).
+``--table`` keeps the written table (reused when it exists with the same shape), and
+``--profile FILE`` runs the audit under cProfile and prints its top functions.
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import os
 import subprocess
 import sys
 import tempfile
@@ -51,84 +57,134 @@ def make_table(
         frame.iloc[rows_i].to_parquet(path / f"part-{i:03d}.parquet", index=False)
 
 
+# the whole read: interpreter, imports, read_table and to_pandas (what any audit must pay)
 CHILD_READ = """
-import resource, sys, time, pyarrow.parquet as pq
-t = time.perf_counter(); table = pq.read_table(sys.argv[1]); frame = table.to_pandas()
-wall = time.perf_counter() - t
-print(wall, resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024,
-      frame.memory_usage(deep=True).sum())
+import sys, pyarrow.parquet as pq
+frame = pq.read_table(sys.argv[1]).to_pandas()
+print(int(frame.memory_usage(deep=True).sum()))
 """
 
-CHILD_AUDIT = """
-import json, resource, sys, time
+
+def timed(cmd: list[str]) -> tuple[float, int, str]:
+    """Run ``cmd`` as a child process: its wall seconds, its own peak RSS (bytes), stdout."""
+    with tempfile.TemporaryFile("w+") as out:
+        t = time.perf_counter()
+        proc = subprocess.Popen(cmd, stdout=out, stderr=subprocess.PIPE, text=True)
+        _, status, usage = os.wait4(proc.pid, 0)
+        wall = time.perf_counter() - t
+        proc.returncode = os.waitstatus_to_exitcode(status)
+        err = proc.stderr.read() if proc.stderr else ""
+        out.seek(0)
+        text = out.read()
+    if proc.returncode not in (0, 1):
+        raise SystemExit(f"{' '.join(cmd[:4])} … exited {proc.returncode}:\n{err}")
+    return wall, usage.ru_maxrss * 1024, text
+
+
+def warm(path: Path) -> None:
+    """Read every byte of the table once so both timed processes find it in the page cache."""
+    for f in [path] if path.is_file() else sorted(path.iterdir()):
+        with open(f, "rb") as fh:
+            while fh.read(1 << 24):
+                pass
+
+
+# some probes only: the Python door (the CLI runs them all), writing the same findings.json
+CHILD_PROBES = """
+import sys
 import featureaudit as fa
-probes = sys.argv[2].split(",") if sys.argv[2] else None
-t = time.perf_counter()
+from featureaudit.settings import Settings
+settings = Settings(n_jobs=int(sys.argv[5]), engine=sys.argv[3], sample_rows=int(sys.argv[4]))
 result = fa.audit(sys.argv[1], target="y", split_column="split", label_time="decided_at",
-                  probes=probes, engine=sys.argv[3], sample_rows=int(sys.argv[4]))
-wall = time.perf_counter() - t
-print(json.dumps({"wall": wall, "rss": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024,
-                  "probes": result.document["settings"]["probe_seconds"],
-                  "engine": result.document["settings"]["engine"]}))
+                  probes=sys.argv[2].split(","), settings=settings, progress=False)
+result.write(sys.argv[6])
 """
+
+
+def audit_command(path: Path, out: Path, config: Path, args: argparse.Namespace) -> list[str]:
+    """The audit of the bench table as a child process, under cProfile with ``--profile``."""
+    head = [sys.executable] + (["-m", "cProfile", "-o", args.profile] if args.profile else [])
+    if args.probes:
+        script = Path(tempfile.gettempdir()) / "featureaudit_bench_probes.py"
+        script.write_text(CHILD_PROBES, encoding="utf-8")
+        rest = [args.probes, args.engine, str(args.sample_rows), str(args.n_jobs), str(out)]
+        return head + [str(script), str(path), *rest]
+    cli = Path(sys.executable).with_name("featureaudit")  # the console script beside python
+    cmd = head + [str(cli), "scan", str(path), "--target", "y", "--split-column", "split"]
+    cmd += ["--label-time", "decided_at", "--quiet", "--engine", args.engine]
+    cmd += ["--sample-rows", str(args.sample_rows), "--out", str(out), "--config", str(config)]
+    return cmd
+
+
+def ensure_table(path: Path, rows: int, args: argparse.Namespace) -> None:
+    """Write the bench table unless ``path`` already holds one with this many rows."""
+    if path.exists():
+        import pyarrow.dataset as ds
+
+        if ds.dataset(str(path), format="parquet").count_rows() == rows:
+            return
+        raise SystemExit(f"{path} exists with another row count; remove it or pass another --table")
+    t = time.perf_counter()
+    make_table(path, rows, args.cols, dates=args.dates, parts=args.parts)
+    print(f"table written in {time.perf_counter() - t:.1f} s")
 
 
 def run_one(rows: int, args: argparse.Namespace) -> dict:
-    """Write one table, then time one read and the audit, each in a fresh process."""
+    """Write (or reuse) one table, then time one read and the audit, each a whole process."""
     with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / ("bench" if args.parts > 1 else "bench.parquet")
-        t = time.perf_counter()
-        make_table(path, rows, args.cols, dates=args.dates, parts=args.parts)
+        name = "bench" if args.parts > 1 else "bench.parquet"
+        path = Path(args.table) if args.table and len(args.rows.split(",")) == 1 else None
+        path = path or Path(tmp) / name
+        ensure_table(path, rows, args)
         size = sum(f.stat().st_size for f in ([path] if path.is_file() else path.iterdir()))
         print(
             f"table: {rows:,} rows x {args.cols} columns in {args.parts} part(s), "
-            f"{size / 1e6:.0f} MB on disk (written in {time.perf_counter() - t:.1f} s)"
+            f"{size / 1e6:.0f} MB on disk"
         )
-        read = subprocess.run(
-            [sys.executable, "-c", CHILD_READ, str(path)],
-            check=True,
-            capture_output=True,
-            text=True,
-        ).stdout.split()
-        read_wall, read_rss, frame_bytes = float(read[0]), int(read[1]), int(read[2])
-        out = subprocess.run(
-            [
-                sys.executable,
-                "-c",
-                CHILD_AUDIT,
-                str(path),
-                args.probes,
-                args.engine,
-                str(args.sample_rows),
-            ],
-            check=True,
-            capture_output=True,
-            text=True,
-        ).stdout
-        audit = json.loads(out.strip().splitlines()[-1])
+        config = Path(tmp) / "bench.toml"
+        config.write_text(f"n_jobs = {args.n_jobs}\n", encoding="utf-8")
+        warm(path)
+        read_wall, read_rss, frame_bytes = timed([sys.executable, "-c", CHILD_READ, str(path)])
+        frame_bytes = int(frame_bytes.strip())
+        out = Path(tmp) / "report"
+        wall, rss, _ = timed(audit_command(path, out, config, args))
+        doc = json.loads((out / "findings.json").read_text(encoding="utf-8"))
+    seconds = doc["settings"]["probe_seconds"]
     print(
-        f"one read (read_table + to_pandas): {read_wall:.2f} s, peak RSS "
-        f"{read_rss / 1e9:.2f} GB, frame {frame_bytes / 1e9:.2f} GB in memory"
+        f"one read (whole process: start, import, read_table + to_pandas): {read_wall:.2f} s, "
+        f"peak RSS {read_rss / 1e9:.2f} GB, frame {frame_bytes / 1e9:.2f} GB in memory"
     )
+    door = "audit()" if args.probes else "featureaudit scan"
     print(
-        f"audit ({audit['engine']} engine): {audit['wall']:.2f} s = "
-        f"{audit['wall'] / read_wall:.1f} x one read; peak RSS "
-        f"{audit['rss'] / 1e9:.2f} GB = {audit['rss'] / frame_bytes:.1f} x the frame"
+        f"audit (whole process: {door}, {doc['settings']['engine']} engine, "
+        f"n_jobs {args.n_jobs}): {wall:.2f} s = {wall / read_wall:.2f} x one read; peak RSS "
+        f"{rss / 1e9:.2f} GB = {rss / frame_bytes:.1f} x the frame"
     )
-    for name, seconds in audit["probes"].items():
-        print(f"  {name:<13} {seconds:7.2f} s = {seconds / read_wall:5.2f} x one read")
-    return {"rows": rows, "read": read_wall, **audit}
+    for probe, s in seconds.items():
+        print(f"  {probe:<13} {s:7.2f} s = {s / read_wall:5.2f} x one read")
+    rest = wall - sum(seconds.values())
+    print(f"  {'rest':<13} {rest:7.2f} s (start, read, table, ranking, report files)")
+    if args.profile:
+        import pstats
+
+        pstats.Stats(args.profile).sort_stats("cumulative").print_stats(args.top)
+        pstats.Stats(args.profile).sort_stats("tottime").print_stats(args.top)
+    return {"rows": rows, "read": read_wall, "wall": wall, "rss": rss}
 
 
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--rows", default="200000", help="one size, or several: 1000000,3000000")
     parser.add_argument("--cols", type=int, default=50)
-    parser.add_argument("--probes", default="")
+    parser.add_argument("--probes", default="", help="some probes only: solo,timing")
     parser.add_argument("--dates", type=int, default=None, help="dated columns (default F/20)")
     parser.add_argument("--engine", default="memory", choices=["memory", "stream", "auto"])
     parser.add_argument("--parts", type=int, default=1, help="write a folder of this many parts")
     parser.add_argument("--sample-rows", type=int, default=200_000)
+    parser.add_argument("--n-jobs", type=int, default=1, help="the audit's threads (config)")
+    parser.add_argument("--table", default=None, help="keep the table here (one --rows size)")
+    parser.add_argument("--profile", default=None, help="cProfile output file of the audit")
+    parser.add_argument("--top", type=int, default=40, help="functions printed with --profile")
     args = parser.parse_args()
     runs = [run_one(int(r), args) for r in args.rows.split(",")]
     if len(runs) > 1:

@@ -15,6 +15,7 @@ from featureaudit.ranker import rank
 from featureaudit.registry import registered, thresholds_dict
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
+from featureaudit.threads import limited_blas
 
 if TYPE_CHECKING:
     from featureaudit.code.audit import CodeAudit
@@ -61,7 +62,8 @@ def run_audit(
             print(f"[{i}/{len(names)}] {name} …", file=sys.stderr, flush=True)
         start = time.perf_counter()
         try:
-            found, skips = available[name]().run(table, settings)
+            with limited_blas():  # per-column pools and model fits set their own threads
+                found, skips = available[name]().run(table, settings)
         except FeatureAuditError:
             raise
         except Exception as exc:
@@ -158,7 +160,8 @@ def _audit_pairs(
                 continue
             start = time.perf_counter()
             try:
-                found, _ = available[name]().run(view.table, settings)
+                with limited_blas():
+                    found, _ = available[name]().run(view.table, settings)
             except FeatureAuditError:
                 raise
             except Exception as exc:

@@ -16,7 +16,14 @@ from concurrent.futures import ThreadPoolExecutor
 from contextlib import contextmanager
 from typing import TypeVar
 
-__all__ = ["available_cpus", "column_map", "model_threads", "limited_blas", "MODEL_MIN_ROWS"]
+__all__ = [
+    "available_cpus",
+    "column_map",
+    "model_threads",
+    "limited_blas",
+    "openmp_threads",
+    "MODEL_MIN_ROWS",
+]
 
 T = TypeVar("T")
 R = TypeVar("R")
@@ -40,6 +47,19 @@ def limited_blas() -> Iterator[None]:
     from threadpoolctl import threadpool_limits
 
     with threadpool_limits(limits=1):
+        yield
+
+
+@contextmanager
+def openmp_threads(n_jobs: int) -> Iterator[None]:
+    """Let OpenMP loops (scikit-learn's neighbour search) use ``n_jobs`` threads while BLAS
+    stays capped at one inside them: one pool, never nested."""
+    from threadpoolctl import threadpool_limits
+
+    with (
+        threadpool_limits(limits=1, user_api="blas"),
+        threadpool_limits(limits=max(1, n_jobs), user_api="openmp"),
+    ):
         yield
 
 

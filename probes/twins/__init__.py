@@ -218,8 +218,9 @@ class Twins(Probe):
         elif simulated:
             evidence.append(self._within(table, cols, settings))
         else:
-            evidence.append(self._across(table, cols, heldout, rng, settings))
-            evidence.extend(self._interpolated(table, cols, heldout, settings))
+            h = row_hashes(table.frame, cols, settings.n_jobs)  # one hash per row serves both
+            evidence.append(self._across(table, cols, heldout, rng, h))
+            evidence.extend(self._interpolated(table, cols, heldout, h, settings.n_jobs))
         if table.entity is not None:
             evidence.append(self._entities(table, heldout, simulated))
         return evidence, skipped
@@ -263,11 +264,10 @@ class Twins(Probe):
         cols: list[str],
         heldout: np.ndarray,
         rng: np.random.Generator,
-        settings: Settings,
+        h: np.ndarray,
     ) -> Evidence:
         t = self.thresholds
         train = ~heldout
-        h = row_hashes(table.frame, cols, settings.n_jobs)
         exact = np.zeros(table.n_rows, dtype=bool)
         exact[heldout] = member(h[heldout], h[train])
         near, calib = near_copies(table, cols, heldout, exact, rng)
@@ -354,12 +354,12 @@ class Twins(Probe):
         )
 
     def _interpolated(
-        self, table: AuditTable, cols: list[str], heldout: np.ndarray, settings: Settings
+        self, table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray, n_jobs: int
     ) -> list[Evidence]:
         """Held-out rows on a segment between two training rows of their class (or the
         reverse): oversampling before the split. Reported only when some are found."""
         t = self.thresholds
-        found = interpolated_rows(table, cols, heldout, row_hashes(table.frame, cols, 1))
+        found = interpolated_rows(table, cols, heldout, h, n_jobs)
         if found is None or found["heldout_rows_explained"] == 0:
             return []
         share = found["share"]

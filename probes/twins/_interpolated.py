@@ -25,6 +25,7 @@ from featureaudit.io import numeric_view
 from featureaudit.probes.twins._nearcopy import row_labels
 from featureaudit.probes.twins.hashing import robust_params
 from featureaudit.table import AuditTable
+from featureaudit.threads import openmp_threads
 
 # A natural row lies within 0.1 % of a segment's length off it, in 3 or more continuous
 # dimensions, essentially never (chance ~ 0.001^(d-1) per pair); rounding of stored values
@@ -39,19 +40,22 @@ MAX_QUERIES = 2000  # rows queried per direction, chosen by content, not by file
 
 
 def interpolated_rows(
-    table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray
+    table: AuditTable, cols: list[str], heldout: np.ndarray, h: np.ndarray, n_jobs: int = 1
 ) -> dict[str, Any] | None:
     """The held-out rows explained by interpolation between training rows (and held-out
     endpoints of training rows interpolated between held-out rows); None when the table
-    has too few continuous columns to tell."""
+    has too few continuous columns to tell. The neighbour search runs on ``n_jobs`` threads."""
     x = _scaled(table, cols, ~heldout)
     if x is None:
         return None
     ok = np.isfinite(x).all(axis=1)
     y = table.y if table.y is not None and table.task != "numeric" else None
-    fresh = _fresh(x)
-    held_on_train = _search(x, fresh, ok & heldout, ok & ~heldout, y, h)
-    train_on_held = _search(x, fresh, ok & ~heldout, ok & heldout, y, h)
+    q_held, q_train = _queries(ok & heldout, h), _queries(ok & ~heldout, h)
+    asked = np.union1d(q_held, q_train)
+    fresh = _fresh(x, asked)
+    with openmp_threads(n_jobs):
+        held_on_train = _search(x, fresh, asked, q_held, ok & ~heldout, y)
+        train_on_held = _search(x, fresh, asked, q_train, ok & heldout, y)
     explained = np.zeros(table.n_rows, bool)
     explained[[q for q, _, _ in held_on_train]] = True
     for _, a, b in train_on_held:
@@ -81,26 +85,30 @@ def _scaled(table: AuditTable, cols: list[str], train: np.ndarray) -> np.ndarray
         v = numeric_view(table.frame[c])
         if v is None:
             continue
-        v = v.astype("float64")
-        distinct = np.unique(v[rows][np.isfinite(v[rows])]).size
+        v = np.asarray(v, dtype="float64")  # read only: no copy
+        present = v[rows]
+        distinct = np.unique(present[np.isfinite(present)]).size
         if distinct >= MIN_DISTINCT:
             chosen.append((distinct, v))
     if len(chosen) < MIN_COLUMNS:
         return None
     chosen.sort(key=lambda p: -p[0])
-    out = []
-    for _, v in chosen[:MAX_COLUMNS]:
+    picked = chosen[:MAX_COLUMNS]
+    out = np.empty((len(train), len(picked)))  # filled in place: no second copy
+    for j, (_, v) in enumerate(picked):
         med, scale = robust_params(v, rows)
-        out.append((v - med) / scale)
-    return np.column_stack(out)
+        np.divide(np.subtract(v, med), scale, out=out[:, j])
+    return out
 
 
-def _fresh(x: np.ndarray) -> np.ndarray:
-    """True where a row's value occurs in no other row of its column."""
-    out = np.zeros(x.shape, bool)
+def _fresh(x: np.ndarray, rows: np.ndarray) -> np.ndarray:
+    """For each of ``rows``: True where its value occurs in no other row of its column
+    (counted in the sorted column, so equal values, NaN included, count together)."""
+    out = np.zeros((rows.size, x.shape[1]), bool)
     for j in range(x.shape[1]):
-        _, inverse, counts = np.unique(x[:, j], return_inverse=True, return_counts=True)
-        out[:, j] = counts[inverse] == 1
+        column = np.sort(x[:, j])
+        v = x[rows, j]
+        out[:, j] = np.searchsorted(column, v, "right") - np.searchsorted(column, v, "left") == 1
     return out
 
 
@@ -115,16 +123,15 @@ def _queries(mask: np.ndarray, h: np.ndarray) -> np.ndarray:
 def _search(
     x: np.ndarray,
     fresh: np.ndarray,
-    query: np.ndarray,
+    asked: np.ndarray,
+    q_all: np.ndarray,
     pool: np.ndarray,
     y: np.ndarray | None,
-    h: np.ndarray,
 ) -> list[tuple[int, int, int]]:
-    """(row, end a, end b) for each queried row strictly inside a segment of two pool rows
-    of its class."""
+    """(row, end a, end b) for each queried row ``q_all`` strictly inside a segment of two
+    pool rows of its class; ``fresh`` holds the new-value flags of the rows ``asked``."""
     found: list[tuple[int, int, int]] = []
     labels = np.zeros(len(x), np.int64) if y is None else y.astype(np.int64)
-    q_all = _queries(query, h)
     for cls in np.unique(labels[q_all]):
         q_idx = q_all[labels[q_all] == cls] if cls >= 0 else q_all[labels[q_all] < 0]
         p_idx = np.flatnonzero(pool & ((labels == cls) if cls >= 0 else True))
@@ -133,7 +140,7 @@ def _search(
         k = min(NEIGHBOURS, p_idx.size)
         nn = NearestNeighbors(n_neighbors=k, n_jobs=1).fit(x[p_idx])
         near = p_idx[nn.kneighbors(x[q_idx], return_distance=False)]  # (q, k)
-        found.extend(_on_segment(x, fresh, q_idx, near))
+        found.extend(_on_segment(x, fresh[np.searchsorted(asked, q_idx)], q_idx, near))
     return found
 
 
@@ -141,7 +148,8 @@ def _on_segment(
     x: np.ndarray, fresh: np.ndarray, q_idx: np.ndarray, near: np.ndarray
 ) -> list[tuple[int, int, int]]:
     """Vectorised over all pairs of each row's neighbours: inside a segment, close to it, and
-    with new values in enough of the columns where the ends differ."""
+    with new values (``fresh``, one row per query) in enough of the columns where the ends
+    differ."""
     k = near.shape[1]
     ia, ib = np.triu_indices(k, 1)
     q = x[q_idx][:, None, :]  # (n, 1, d)
@@ -152,7 +160,7 @@ def _on_segment(
         t = np.einsum("npd,npd->np", q - a, ab) / length2
         off = q - a - t[..., None] * ab
         residual = np.sqrt(np.einsum("npd,npd->np", off, off) / length2)
-    new = ((np.abs(ab) > 1e-9) & fresh[q_idx][:, None, :]).sum(axis=-1) >= MIN_COLUMNS
+    new = ((np.abs(ab) > 1e-9) & fresh[:, None, :]).sum(axis=-1) >= MIN_COLUMNS
     hit = new & (length2 > 0) & (t > INSIDE[0]) & (t < INSIDE[1]) & (residual < RESIDUAL)
     out = []
     for r in np.flatnonzero(hit.any(axis=1)):

@@ -45,12 +45,36 @@ class _Scaled:
         z = (self.raw[j][rows] - med) / scale
         return np.nan_to_num(z, nan=-99.0, posinf=99.0, neginf=-99.0)
 
-    def distance(self, q: np.ndarray, t: np.ndarray) -> np.ndarray:
-        """Root mean squared scaled difference over all numeric columns."""
+    def within(self, q: np.ndarray, t: np.ndarray, limit: float) -> tuple[np.ndarray, np.ndarray]:
+        """The pairs (positions into ``q`` and ``t``, in their order) whose root mean squared
+        scaled difference over all numeric columns may be at most ``limit``, and those
+        distances; a pair is dropped as soon as its partial sum passes the limit.
+
+        Squares are added column by column in the same order for every pair, and a float
+        sum of non-negative terms never decreases, so a dropped pair's full distance is above
+        ``limit`` and a kept pair's distance is exactly what the full sum gives. Each column
+        is scaled once per distinct row, not once per pair.
+        """
+        n = len(self.raw)
+        # a margin far above rounding, so no pair within the limit is ever dropped
+        bound = limit * limit * n * (1 + 1e-9) + 1e-300
+        uq, iq = np.unique(q, return_inverse=True)
+        ut, it = np.unique(t, return_inverse=True)
+        keep = np.arange(q.size)
         total = np.zeros(q.size)
-        for j in range(len(self.raw)):
-            total += (self.column(j, q) - self.column(j, t)) ** 2
-        return np.sqrt(total / len(self.raw))
+        for j in range(n):
+            diff = self.column(j, uq)[iq] - self.column(j, ut)[it]
+            total += diff * diff
+            if j + 1 < n:
+                alive = total <= bound
+                if not alive.all():
+                    keep, total, iq, it = keep[alive], total[alive], iq[alive], it[alive]
+                    if keep.size == 0:
+                        break
+                    if 4 * ut.size > keep.size:  # scale only the rows still paired
+                        uq, iq = _compact(uq, iq)
+                        ut, it = _compact(ut, it)
+        return keep, np.sqrt(total / n)
 
 
 def near_copies(
@@ -113,9 +137,11 @@ def near_copies(
                 cell = np.floor((numeric.column(j) + offset) / CELL).astype(np.int64)
                 key = key * np.uint64(0x100000001B3) ^ cell.astype(np.uint64)
         q, t = _band_pairs(key, t_idx, queries)
+        # only pairs within the threshold can make a near copy, or be reported as one
+        kept, dist = numeric.within(q, t, threshold)
+        q, t = q[kept], t[kept]
         if q.size == 0:
             continue
-        dist = numeric.distance(q, t)
         order = np.lexsort((dist, q))
         q, t, dist = q[order], t[order], dist[order]
         first = np.r_[True, q[1:] != q[:-1]]
@@ -130,6 +156,12 @@ def near_copies(
     calib["partner"] = partner  # the nearest training row per query (popped)
     calib["near_twin_distances"] = [float(v) for v in np.sort(best[near])[:50]]
     return near, calib
+
+
+def _compact(values: np.ndarray, inverse: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """``values[inverse]`` as (the values still used, the inverse into them)."""
+    used, inv = np.unique(inverse, return_inverse=True)
+    return values[used], inv
 
 
 def _band_pairs(

@@ -22,9 +22,8 @@ def column_codes(s: pd.Series) -> np.ndarray:
     """A uint64 pattern per value: float bits for numbers and times, a stable hash otherwise."""
     values = numeric_view(s)
     if values is not None:
-        v = values.copy()
-        v[v == 0] = 0.0  # -0.0 and 0.0 are the same value
-        bits = v.view(np.uint64).copy()
+        with np.errstate(invalid="ignore"):
+            bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one value
         bits[np.isnan(values)] = _NAN
         return bits
     if isinstance(s.dtype, pd.CategoricalDtype):

@@ -324,3 +324,47 @@ def test_natural_near_copies_in_a_discrete_survey_are_not_a_leak(seed):
         "duplicate_rows_across_split",
     )
     assert found["level"] in ("none", "low"), found["summary"]
+
+
+# --- exact shortcuts of the near-copy and interpolation searches ------------------------------
+
+
+def test_pruned_near_copy_distances_equal_the_full_sum():
+    # reference: the root mean squared difference written out in numpy over every column
+    from featureaudit.probes.twins._nearcopy import _Scaled
+
+    rng = np.random.default_rng(3)
+    raw = [rng.normal(size=400) for _ in range(12)]
+    raw[3][::7] = np.nan  # missing and infinite values take the fixed far codes
+    raw[5][::11] = np.inf
+    for v in raw:
+        v[200:260] = v[:60] + rng.normal(scale=1e-3, size=60)  # rows 200..259 are near copies
+    scaled = _Scaled(raw, np.r_[np.ones(200, bool), np.zeros(200, bool)])
+    q = rng.integers(200, 400, 3000)
+    t = rng.integers(0, 200, 3000)
+    q[:60], t[:60] = np.arange(200, 260), np.arange(60)
+    full = np.sqrt(
+        sum((scaled.column(j, q) - scaled.column(j, t)) ** 2 for j in range(len(raw))) / len(raw)
+    )
+    limit = float(np.quantile(full, 0.05))
+    kept, dist = scaled.within(q, t, limit)
+    assert np.isin(np.flatnonzero(full <= limit), kept).all()  # none within the limit lost
+    assert np.array_equal(dist, full[kept])  # bit for bit the full sum, in the pairs' order
+    assert np.all(np.diff(kept) > 0) and 60 <= kept.size < q.size // 2  # most were dropped
+
+
+def test_new_value_flags_match_numpy_unique_counts():
+    # reference: numpy.unique's counts over the whole column, as the flags were first computed
+    from featureaudit.probes.twins._interpolated import _fresh
+
+    rng = np.random.default_rng(4)
+    x = rng.integers(0, 40, size=(500, 4)).astype(float)
+    x[:, 1] = rng.normal(size=500)
+    x[::50, 2] = np.nan
+    x[3, 3], x[4, 3] = 0.0, -0.0  # equal values, whatever the sign of zero
+    rows = np.sort(rng.choice(500, 80, replace=False))
+    expected = np.zeros((rows.size, 4), bool)
+    for j in range(4):
+        _, inverse, counts = np.unique(x[:, j], return_inverse=True, return_counts=True)
+        expected[:, j] = (counts[inverse] == 1)[rows]
+    assert np.array_equal(_fresh(x, rows), expected)
