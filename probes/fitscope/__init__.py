@@ -28,9 +28,12 @@ from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
 from featureaudit.probes.fitscope._bins import looks_binned, quantile_binned
 from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
+from featureaudit.probes.fitscope._decorrelated import decorrelated
 from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._maxabs import looks_maxabs, maxabs_scaled
+from featureaudit.probes.fitscope._onehot import onehot
+from featureaudit.probes.fitscope._ordinal import looks_coded, ordinal_coded
 from featureaudit.probes.fitscope._piles import capped as _capped
 from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
@@ -48,7 +51,8 @@ __all__ = ["Fitscope", "FitscopeThresholds"]
 @register
 class Fitscope(Probe):
     """Fingerprints of scaling (standard, min-max, robust, max-abs), imputation, capping, rank
-    transforms, equal-frequency bins and target encodings fitted on all rows.
+    transforms, equal-frequency bins, one-hot and ordinal encodings, PCA or whitening and
+    target encodings fitted on all rows.
     Thresholds: :class:`FitscopeThresholds`; method: the module
     docstring."""
 
@@ -77,7 +81,13 @@ class Fitscope(Probe):
             "scaling (median 0, IQR 1), max-abs scaling (largest |x| = 1 on held-out rows "
             f"only) and equal-frequency bins (every bin within {th.bin_slack:g} rows of n/k) "
             "are read the same way; power and log transforms that standardise are read as "
-            "standardisation. With fewer than "
+            "standardisation. A group of columns with mean 0 and pairwise correlation 0 over "
+            "all rows, within 5 SDs of the rounding of their products, is read as PCA, "
+            "whitening or a rotation fitted there; a one-hot column 1 on held-out rows and on "
+            "no training row, or an ordinal code inside the training rows' range that no "
+            "training row holds (chance below "
+            f"{th.ordinal_alpha:g}, Bonferroni over the codes), as categories taken from all "
+            "rows. With fewer than "
             f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
             "cannot tell; every numeric column examined carries what was checked."
         )
@@ -108,6 +118,8 @@ class Fitscope(Probe):
         evidence: list[Evidence] = []
         for found in column_map(one, table.features, settings.n_jobs):  # numpy frees the GIL
             evidence.extend(found)
+        evidence.extend(decorrelated(table, train, split))  # groups of columns, found here
+        evidence.extend(onehot(table, train, split))
         if split and table.y is not None and table.target_problem is None:
             evidence.extend(_encodings(table, train))
         return evidence, skipped
@@ -156,6 +168,7 @@ CHECK_NAMES = {
     "robust_scaled": "robust scaling",
     "maxabs_scaled": "max-abs scaling",
     "quantile_binned": "equal-frequency bins",
+    "ordinal_coded": "ordinal codes",
     "_quantile": "rank or quantile transform",
 }
 
@@ -196,6 +209,8 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
         checks.append(maxabs_scaled)
     if looks_binned(v):
         checks.append(quantile_binned)
+    if looks_coded(v):
+        checks.append(ordinal_coded)
     checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:
         checks.append(_capped)

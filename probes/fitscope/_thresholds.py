@@ -34,6 +34,10 @@ class FitscopeThresholds:
     ``max_bins`` / ``bin_slack``: a column of bin numbers 0..k-1 (3 <= k <= 100) is balanced
     when every bin holds n/k rows within 2 rows (the interpolation of quantile edges moves a
     count by at most one or two rows; scikit-learn's KBinsDiscretizer, checked in the tests).
+    ``max_codes`` / ``ordinal_alpha``: a column of whole numbers 0..k-1 (3 <= k <= 1000) with
+    a code inside the training rows' range that no training row holds is read as ordinal codes
+    of all rows' categories when chance explains that hole with probability below 1e-3,
+    Bonferroni-corrected over the codes (``_ordinal``; common practice, no source).
     ``leak`` is the level of a fingerprint exact over all rows
     and off over the training rows; ``encoding`` that of a target encoding using held-out
     targets (it carries the outcome itself).
@@ -50,6 +54,8 @@ class FitscopeThresholds:
     median_alpha: float = 1e-3
     max_bins: int = 100
     bin_slack: float = 2.0
+    max_codes: int = 1000
+    ordinal_alpha: float = 1e-3
     leak: Level = Level.HIGH
     encoding: Level = Level.CRITICAL
 

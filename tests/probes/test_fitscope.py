@@ -463,3 +463,149 @@ def test_percentile_caps_on_a_decimal_grid(dataset, dtype, leaky, tmp_path):
         assert row["level"] in HIGH or "cannot tell" in row["summary"], row["summary"]
     else:
         assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+# --- decorrelation, one-hot and ordinal codes fitted on all rows (issue 14 item 3) ----------
+def _pca_frame(dataset: str, whiten: bool, leaky: bool):
+    """Five PCA components of every feature (scikit-learn's PCA is the reference), between
+    two untouched columns, on all rows or on the training rows; binary target."""
+    from sklearn.decomposition import PCA
+
+    data = (load_breast_cancer if dataset == "breast_cancer" else load_wine)(as_frame=True)
+    x = data.data.to_numpy(dtype=float)
+    held = np.random.default_rng(5).random(len(x)) < 0.25
+    rows = np.ones(len(x), bool) if leaky else ~held
+    z = PCA(n_components=5, whiten=whiten).fit(x[rows]).transform(x)
+    pcs = {f"pc{i}": z[:, i] for i in range(5)}
+    first, last = data.data.columns[0], data.data.columns[-1]
+    frame = pd.DataFrame({first: data.data[first], **pcs, last: data.data[last]})
+    return frame.assign(y=(data.target.to_numpy() == 0) * 1, split=np.where(held, "test", "train"))
+
+
+def _fitscope_rows(table, target="y"):
+    result = fa.audit(table, target=target, split_column="split", probes=["fitscope"])
+    return result.columns.set_index("column")
+
+
+@pytest.mark.parametrize("dataset", ["breast_cancer", "wine"])
+@pytest.mark.parametrize("whiten", [False, True], ids=["pca", "whitened"])
+@pytest.mark.parametrize("dtype", ["float64", "float32", "csv"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_decorrelation_group_is_found_without_being_told(dataset, whiten, dtype, leaky, tmp_path):
+    frame = _pca_frame(dataset, whiten, leaky)
+    pcs = [f"pc{i}" for i in range(5)]
+    if dtype == "float32":
+        frame = frame.astype({c: np.float32 for c in pcs})
+    rows = _fitscope_rows(_store(frame, "pc0", "csv", tmp_path) if dtype == "csv" else frame)
+    for c in pcs:
+        found = [e for e in rows.loc[c, "evidence"] if "decorrelated" in e["summary"]]
+        if leaky:
+            assert rows.loc[c, "level"] in HIGH and found, rows.loc[c, "summary"]
+            assert found[0]["level"] == "high" and sorted(found[0]["detail"]["group"]) == pcs
+            # all rows: correlation 0 to precision; training rows: off by sampling
+            assert found[0]["detail"]["all_rows"]["max_abs_correlation"] < 1e-6
+            assert found[0]["detail"]["training_rows"]["max_abs_correlation"] > 1e-3
+        else:
+            assert rows.loc[c, "level"] not in ("medium", "high", "critical"), c
+    untouched = [c for c in rows.index if c not in pcs]
+    assert all(rows.loc[c, "level"] == "none" for c in untouched)
+
+
+def test_centred_correlated_columns_are_no_decorrelated_group():
+    # scikit-learn's diabetes data ships centred over all rows (mean 0 to float precision,
+    # as its documentation says) but its columns are correlated: centring is no rotation.
+    from sklearn.datasets import load_diabetes
+
+    data = load_diabetes(as_frame=True)
+    assert abs(float(data.data["bmi"].mean())) < 1e-12
+    held = np.random.default_rng(1).random(len(data.data)) < 0.25
+    frame = data.data.assign(y=data.target.to_numpy(), split=np.where(held, "test", "train"))
+    rows = _fitscope_rows(frame)
+    assert not any("decorrelated" in e["summary"] for ev in rows["evidence"] for e in ev)
+
+
+def test_decorrelation_verdict_does_not_follow_row_order():
+    frame = _pca_frame("breast_cancer", False, True)
+    shuffled = frame.sample(frac=1.0, random_state=3).reset_index(drop=True)
+    assert _fitscope_rows(frame)["level"].to_dict() == _fitscope_rows(shuffled)["level"].to_dict()
+
+
+def _category_frame(dataset: str):
+    """A real category, one of its values held out whole (a new island, a new firm)."""
+    if dataset == "penguins":
+        from palmerpenguins import load_penguins
+
+        # palmerpenguins' bundled data; Dream sorts between Biscoe and Torgersen
+        raw = load_penguins().dropna().reset_index(drop=True)
+        frame = raw[["bill_length_mm", "body_mass_g"]].assign(cat=raw["island"].astype(str))
+        return frame.assign(y=(raw["sex"] == "male") * 1), "Dream"
+    # statsmodels' bundled Grunfeld panel: 11 firms, 20 years each; Goodyear sorts 7th
+    raw = sm.datasets.grunfeld.load_pandas().data
+    frame = raw[["value", "capital"]].assign(cat=raw["firm"].astype(str))
+    return frame.assign(y=(raw["invest"] > raw["invest"].median()) * 1), "Goodyear"
+
+
+def _encode(dataset: str, how: str, leaky: bool):
+    from sklearn.preprocessing import OneHotEncoder, OrdinalEncoder
+
+    frame, level = _category_frame(dataset)
+    held = (np.random.default_rng(2).random(len(frame)) < 0.25) | (frame["cat"] == level)
+    rows = np.ones(len(frame), bool) if leaky else ~held.to_numpy()
+    cats = frame[["cat"]]
+    if how == "get_dummies":  # pandas' own dummies: always the categories of the rows given
+        dummies = pd.get_dummies(frame["cat"], prefix="cat")
+        if not leaky:
+            dummies = dummies.loc[:, dummies[rows].any()]
+        out = frame.drop(columns="cat").join(dummies)
+    elif how == "onehot":
+        enc = OneHotEncoder(sparse_output=False, handle_unknown="ignore").fit(cats[rows])
+        names = [f"cat_{c}" for c in enc.categories_[0]]
+        out = frame.drop(columns="cat").join(pd.DataFrame(enc.transform(cats), columns=names))
+    else:
+        enc = OrdinalEncoder(handle_unknown="use_encoded_value", unknown_value=np.nan)
+        out = frame.assign(cat=enc.fit(cats[rows]).transform(cats)[:, 0])
+    return out.assign(split=np.where(held, "test", "train")), f"cat_{level}", level
+
+
+@pytest.mark.parametrize("dataset", ["penguins", "grunfeld"])
+@pytest.mark.parametrize("how", ["onehot", "get_dummies", "ordinal"])
+@pytest.mark.parametrize("dtype", ["float64", "csv"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_categories_taken_from_all_rows(dataset, how, dtype, leaky, tmp_path):
+    frame, column, level = _encode(dataset, how, leaky)
+    column = "cat" if how == "ordinal" else column
+    table = _store(frame, column, dtype, tmp_path)
+    rows = _fitscope_rows(table)
+    if leaky:
+        assert rows.loc[column, "level"] in HIGH, rows.loc[column, "summary"]
+        said = " ".join(e["summary"] for e in rows.loc[column, "evidence"])
+        assert ("one-hot" in said) if how != "ordinal" else ("ordinal codes" in said)
+    else:
+        assert all(lv not in ("medium", "high", "critical") for lv in rows["level"]), rows["level"]
+
+
+def test_ordinal_hole_chance_against_the_formula():
+    from scipy.stats import poisson
+
+    from featureaudit.probes.fitscope._ordinal import _hole_p
+
+    # a code held by 4 rows among neighbours of 30: min(share^4, Poisson cdf(4; 30)) times k
+    v = np.repeat(np.arange(5), [30, 30, 4, 30, 30]).astype(float)
+    expected = 5 * min(0.25**4, poisson.cdf(4, 30))  # scipy's Poisson law is the reference
+    assert _hole_p(2, v, 4, 0.25, 5) == pytest.approx(expected, rel=1e-12)
+    # a lone row among lone rows, held out by a 25 % split: chance explains it
+    assert _hole_p(2, np.arange(5.0), 1, 0.25, 5) == 1.0
+
+
+@pytest.mark.parametrize("code, expected", [(6, "none"), (3, "high")])
+def test_only_a_hole_inside_the_training_codes_reads_as_ordinal(code, expected):
+    # statsmodels' anes96: party identification coded 0..6 (944 voters). Every row of one
+    # code held out: at the top end a natural count looks the same, so it is left alone;
+    # inside the training codes' range no training-row fit writes it.
+    data = sm.datasets.anes96.load_pandas().data
+    held = (data["PID"] == code).to_numpy() | (np.random.default_rng(0).random(len(data)) < 0.2)
+    frame = data[["PID", "age", "educ"]].assign(
+        y=(data["vote"] == 1) * 1, split=np.where(held, "test", "train")
+    )
+    rows = _fitscope_rows(frame)
+    assert rows.loc["PID", "level"] == expected, rows.loc["PID", "summary"]
