@@ -4,7 +4,11 @@ Prints, per case, the level and kinds featureaudit gave the planted column (or s
 finding), then recall at level high, kind accuracy, and false positives at level high on
 the original (clean) columns and on clean controls.
 
-    python benchmarks/detection.py [--seeds 3] [--only PATTERN]
+    python benchmarks/detection.py [--seeds 3] [--only PATTERN] [--dump FILE]
+
+``--dump FILE`` writes one JSON line per column and run (case, seed, role: planted, clean
+or other, level, kinds and the solo probe's detail), so a change to a rule can be weighed
+on every column of the bench without re-running the audits.
 
 The cases of benchmarks/detection_cases.py (one or more per failure class, planted and
 clean, on data the rest of the bench does not use) follow, with figures per class and kind
@@ -16,6 +20,7 @@ from __future__ import annotations
 
 import argparse
 import fnmatch
+import json
 import sys
 import time
 from collections.abc import Callable
@@ -32,6 +37,27 @@ sys.path.insert(0, str(__import__("pathlib").Path(__file__).parent))
 import detection_cases as dc  # noqa: E402
 
 HIGH = ("high", "critical")
+DUMP: list = []  # the open --dump file, if any
+
+
+def dump(case: str, seed: int, result: fa.AuditResult, planted: set[str], clean: set[str]) -> None:
+    """One JSON line per column of a run, for weighing a rule offline (``--dump``)."""
+    if not DUMP:
+        return
+    for col in result.document["columns"]:
+        name = col["column"]
+        solo = [e for e in col.get("evidence", []) if e.get("probe") == "solo"]
+        role = "planted" if name in planted else "clean" if name in clean else "other"
+        line = {
+            "case": case,
+            "seed": seed,
+            "column": name,
+            "role": role,
+            "level": col["level"],
+            "kinds": col.get("kinds", []),
+            "solo": [{"level": e["level"], "detail": e.get("detail")} for e in solo],
+        }
+        DUMP[0].write(json.dumps(line, default=str) + "\n")
 
 
 def _sk(loader: Callable, target: str) -> Callable[[], tuple[pd.DataFrame, str]]:
@@ -155,6 +181,8 @@ def run_case(name: str, kind: str, seed: int) -> Outcome:
     originals = [c for c in frame.columns if c != target]
     planted, args = plant(kind, frame, target, np.random.default_rng(seed))
     result = fa.audit(planted, seed=seed, **args)
+    leak = {"record_id"} if kind == "sorted_with_id" else {"leak"}
+    dump(f"{name} / {kind}", seed, result, leak, set(originals))
     cols = result.columns.set_index("column")
     clean_high = [c for c in originals if c in cols.index and cols.loc[c, "level"] in HIGH]
     expected = EXPECTED[kind]
@@ -174,6 +202,7 @@ def run_control(name: str, seed: int) -> tuple[list[str], list[str]]:
     frame, target = DATASETS[name]()
     frame = frame.sample(frac=1, random_state=seed).reset_index(drop=True)
     result = fa.audit(frame, target=target, seed=seed)
+    dump(f"{name} / control", seed, result, set(), set(frame.columns) - {target})
     cols = [c["column"] for c in result.document["columns"] if c["level"] in HIGH]
     split = [f["kind"] for f in result.document["dataset_findings"] if f["level"] in HIGH]
     return cols, split
@@ -269,6 +298,7 @@ def run_new(case: dc.Case, seed: int) -> Run:
         if c in cols and c not in built.planted and c != "split"
     ]
     clean_high = [c for c in clean if cols[c]["level"] in HIGH]
+    dump(f"c{case.klass} {case.dataset} {case.name}", seed, result, set(built.planted), set(clean))
     any_high = [c for c, v in cols.items() if v["level"] in HIGH]
     any_high += [f"*{f['kind']}*" for f in doc["dataset_findings"] if f["level"] in HIGH]
     ranked = None
@@ -418,7 +448,10 @@ def main() -> None:
         "'<dataset> / <kind>' contains PATTERN (shell wildcards allowed)",
     )
     parser.add_argument("--skip-old", action="store_true", help="run only the new cases")
+    parser.add_argument("--dump", default=None, metavar="FILE", help="write every column's figures")
     args = parser.parse_args()
+    if args.dump:
+        DUMP.append(open(args.dump, "w"))  # noqa: SIM115 - open for the whole run
     start = time.perf_counter()
     if not args.skip_old:
         old_cases(args.seeds, args.only)
