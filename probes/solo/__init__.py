@@ -58,7 +58,11 @@ from featureaudit.io import numeric_view
 from featureaudit.levels import Level
 from featureaudit.oof import CellScore, Target, make_target, score_bins
 from featureaudit.probes.solo._detail import common_detail
-from featureaudit.probes.solo._order import followed_feature, order_values
+from featureaudit.probes.solo._order import (
+    followed_feature,
+    order_values,
+    within_partition_order,
+)
 from featureaudit.probes.solo._peers import (
     PeerInput,
     RefFit,
@@ -108,13 +112,20 @@ class SoloThresholds:
     - ``lift_error_floor``: when the rest of the table already predicts the target with
       1 − AUC (or 1 − R²) under 0.005 the lift cannot be measured (palmerpenguins: the
       measurements tell the species at 1 − AUC ≈ 0.002, measured); determinism then needs
-      a share beyond the typical one to reach high.
+      a share beyond the typical one to reach high. ``lift_error_rows``: the same when that
+      error amounts to fewer than 5 rows of the smallest class wholly misranked (penguins'
+      0.011 is under one Chinstrap row, so its fold lifts swing from 0 to 1); common
+      practice, no source.
     - ``share_z_high``: the share's robust z (median, 1.4826·MAD, scale at least
       ``share_scale_floor``) among the table's other columns on the −log(1 − share) scale,
       needed for high by a share: breast cancer's 5 %-flipped, jittered copy stands at
       z ≈ 7 (share 0.6 against a typical 0.02); honest columns that stand out as far (z up
       to 8 there) are explained by their peers beyond the target and stay below high;
       digits' honest pixels stand at z ≈ 2 (measured, 3 was chosen between).
+    - ``share_z_function``: the z a near-function of the target needs when its lift cannot
+      be measured: wine's 5 %-flipped copy of the cultivar stands at z ≈ 2.6, palmerpenguins'
+      honest island at 0.2 (measured); 2 was chosen between and checked on the bench's
+      clean columns (see the figures below).
     - ``presence_power``: |TPR − FPR| of one bin's indicator; filled-only-when-positive
       columns reach 0.9 or more, breast cancer's honest columns about 0.14 (measured).
     False positives at high on the bench (3 seeds): 1 of 360 clean columns in the new
@@ -152,8 +163,10 @@ class SoloThresholds:
     lift_power: float = 0.3
     lift_nil: float = 0.1
     lift_error_floor: float = 0.005
+    lift_error_rows: float = 5.0
     lift_large: float = 0.3
     share_z_high: float = 3.0
+    share_z_function: float = 2.0
     share_scale_floor: float = 0.01
     presence_power: float = 0.8
     order_power: tuple[tuple[Level, float], ...] = (
@@ -198,6 +211,14 @@ class ProxyFigures:
     lift_low: float = 0.0
     lift_error: float = 1.0
     presence: float = 0.0
+    lift_error_rows: float | None = None
+
+
+def _measurable(error: float, error_rows: float | None, th: SoloThresholds) -> bool:
+    """Whether the rest of the table leaves enough error for a column to reduce: 1 − AUC (or
+    1 − R²) of at least ``lift_error_floor`` and, for classes, at least ``lift_error_rows``
+    rows of the smallest class wholly misranked."""
+    return error >= th.lift_error_floor and (error_rows is None or error_rows >= th.lift_error_rows)
 
 
 def _lift_class(f: ProxyFigures, th: SoloThresholds) -> str:
@@ -206,7 +227,7 @@ def _lift_class(f: ProxyFigures, th: SoloThresholds) -> str:
     ``some`` or ``large``."""
     if f.lift is None:
         return "unknown"
-    if f.lift_error < th.lift_error_floor:
+    if not _measurable(f.lift_error, f.lift_error_rows, th):
         return "unmeasurable"
     if f.lift < th.lift_nil:
         return "nil"
@@ -265,10 +286,15 @@ def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Leve
             level, why = lv, "function"
     beyond_typical = share is not None and share >= typical + th.share(Level.LOW)
     if why == "function" and level >= Level.HIGH:
-        # a code the class nearly determines is a leak only through what it adds to the rest
-        # unmeasurable (the rest predicts almost without error): the share beyond peers must
-        # stand out among the table's columns (palmerpenguins' island: z 0.3, measured)
-        if lift == "nil" or (lift == "unmeasurable" and not (beyond_typical and stands_out)):
+        # a code the class nearly determines is a leak only through what it adds to the rest:
+        # a large lift, or a share beyond peers that stands out among the table's columns
+        # (palmerpenguins' island: z 0.2-0.4 with lifts from nil to 0.56, measured)
+        stands_apart = f.share_z is None or f.share_z >= th.share_z_function
+        if lift not in ("large", "unknown") and not (beyond_typical and stands_apart):
+            # nothing measurable beyond the rest: low; some lift: medium
+            low = lift in ("nil", "unmeasurable")
+            level, why = (Level.LOW if low else Level.MEDIUM), "no_lift"
+        elif lift == "nil":
             level, why = Level.LOW, "no_lift"
     elif lift == "nil" and level >= Level.HIGH:
         level, why = Level.MEDIUM, "no_lift"
@@ -343,7 +369,8 @@ class Solo(Probe):
             f"joins the other columns (other suspects left out) in the same reference model, "
             f"with its range over the folds; under {th.lift_nil:g} it is nil and holds "
             f"determinism at low and other rules at medium; when the others already reach an "
-            f"error under {th.lift_error_floor:g} it cannot be measured. One bin alone (missing "
+            f"error under {th.lift_error_floor:g} (or under {th.lift_error_rows:g} rows of the "
+            f"smallest class wholly misranked) it cannot be measured. One bin alone (missing "
             f"values or one pile) separating the classes by {th.presence_power:g} with a lift "
             f"of {th.lift_large:g} or more is high. "
             f"Identifiers and the row position tell the target when the Mann–Whitney z "
@@ -406,6 +433,9 @@ class Solo(Probe):
             for name in table.id_columns
             if name in scores
         }
+        for name, ev in list(ids.items()):
+            if Level.parse(ev.level) >= Level.HIGH:
+                ids[name] = _within_partitions(ev, table, name, t, small, settings)
         strong_ids = {name: ev for name, ev in ids.items() if Level.parse(ev.level) >= Level.HIGH}
         follows = {
             name: followed_feature(table, t, name, scores, features, settings.seed)
@@ -465,7 +495,7 @@ def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidenc
         )
     elif (
         lift is not None
-        and lift["error_without"] >= th.lift_error_floor
+        and _measurable(lift["error_without"], lift.get("error_rows"), th)
         and lift["value"] < th.lift_nil
     ):
         why = (
@@ -486,6 +516,34 @@ def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidenc
             "level_before_cap": ev.level,
         },
         summary=ev.summary + why,
+    )
+
+
+def _within_partitions(
+    ev: Evidence, table: AuditTable, name: str, t: Target, small: bool, settings: Settings
+) -> Evidence:
+    """An identifier keeps its level only as far as its order tells the target within each
+    partition: ids numbered through the training rows and then the held-out ones tell the
+    target across the split exactly as far as the split itself differs, which the split
+    probes audit; the identifier then carries the within-partition level."""
+    ranks = within_partition_order(table, name)
+    if ranks is None:
+        return ev
+    b = bin_codes(ranks, settings.bins, order=True, seed=settings.seed)
+    if not (b.codes[t.rows] > 0).any():
+        return ev
+    within = _order_evidence(name, score_bins(b.codes, b.n_bins, t), b, t, small, "identifier")
+    if Level.parse(within.level) >= Level.parse(ev.level):
+        return ev
+    z = within.detail["z"]
+    what = "nothing" if within.level == "none" else "less"
+    return replace(
+        ev,
+        level=within.level,
+        detail={**ev.detail, "within_partitions": {"level": within.level, "z": z}},
+        summary=f"{ev.summary}; within each partition its order tells {what} (z = {z:.1f}): "
+        "it is numbered one partition after another, and the split findings say how the "
+        "partitions differ",
     )
 
 
@@ -579,6 +637,7 @@ def _proxy_figures(
         lift=None if lift is None else lift["value"],
         lift_low=0.0 if lift is None else lift["low"],
         lift_error=1.0 if lift is None else lift["error_without"],
+        lift_error_rows=None if lift is None else lift.get("error_rows"),
         presence=_presence_power(score, t),
     )
 
@@ -747,12 +806,15 @@ def _peer_figures(
         trees.append(z)
         cols.append(np.nan_to_num(z, nan=0.0))
     y = t.y[pick]
+    y_main = 0
     if t.task == "numeric":
-        y_block = normal_scores(y)[:, None]
+        y_block, y_main = _target_basis(normal_scores(y)), 1
     else:
         y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
     power = np.array([scores[c].power for c in features])
-    inp = PeerInput(features, np.column_stack(cols), np.column_stack(trees), y_block, y, power)
+    inp = PeerInput(
+        features, np.column_stack(cols), np.column_stack(trees), y_block, y, power, y_main
+    )
     shares = dependence_shares(
         inp,
         flag_share=THRESHOLDS.share(Level.HIGH),
@@ -777,6 +839,7 @@ def _peer_figures(
             y_block,
             y,
             np.r_[power, [scores[c].power for c in ids]],
+            y_main,
         )
     fits: dict[tuple[int, ...], RefFit] = {}
 
@@ -794,6 +857,8 @@ def _peer_figures(
         return fits[key]
 
     ref = {"power": fit(keep).power, "rows": int(take), "columns": int(keep.size)}
+    counts = np.bincount(y.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
+    smallest = int(counts[counts > 0].min()) if counts.size else None
     n_peers = len(features) - 1
     # suspects: the columns a large unique lift would raise to high, strongest first
     big = {
@@ -824,7 +889,7 @@ def _peer_figures(
         base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
         without, with_ = fit(base), fit(np.r_[base, i])
         shares[features[i]]["unique_lift"] = {
-            **unique_lift(without, with_),
+            **unique_lift(without, with_, smallest),
             "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
             "without": sorted(({features[k] for k in suspects} | flagged) - {features[i]}),
         }
@@ -832,7 +897,7 @@ def _peer_figures(
         base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
         ref["identifier_lift"] = {
             c: {
-                **unique_lift(fit(base), fit(np.r_[base, len(features) + j])),
+                **unique_lift(fit(base), fit(np.r_[base, len(features) + j]), smallest),
                 "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
                 "without": sorted({features[k] for k in suspects} | flagged),
             }
@@ -841,6 +906,14 @@ def _peer_figures(
     for i in strong:  # what all the other columns reach together, for the match rule
         shares[features[i]]["others_power"] = fit(keep[keep != i]).power
     return shares, ref
+
+
+def _target_basis(ns: np.ndarray) -> np.ndarray:
+    """A numeric target's normal scores and three hinges (knots at −1, 0 and 1): a linear
+    fit on them follows any smooth curve of the target, so a noisy copy of a skewed target
+    (star98's counts: the copy's ranks bend against the target's) is not taken for a column
+    the peers explain beyond the target."""
+    return np.column_stack([ns] + [np.maximum(ns - k, 0.0) for k in (-1.0, 0.0, 1.0)])
 
 
 def _share_z(shares: dict[str, dict]) -> None:

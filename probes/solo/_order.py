@@ -98,3 +98,15 @@ def _within(a: np.ndarray, b: np.ndarray, groups: np.ndarray) -> float:
         total += float(np.corrcoef(ra, rb)[0, 1]) * int(m.sum())
         weight += int(m.sum())
     return total / weight if weight else 0.0
+
+
+def within_partition_order(table: AuditTable, name: str) -> pd.Series | None:
+    """The identifier's values replaced by their rank fraction within each partition: what
+    its order says once partitions numbered one after another (a training file, then a test
+    file) no longer count. None when the table is one pool."""
+    groups = table.partition_of
+    if groups is None or pd.unique(groups).size < 2:
+        return None
+    values = pd.Series(order_values(table.frame[name]))
+    ranks = values.groupby(pd.Series(groups, dtype=object)).rank(method="average", pct=True)
+    return ranks

@@ -42,6 +42,8 @@ class PeerInput:
     y_block: np.ndarray  # [rows, 1] or [rows, K-1]
     y_codes: np.ndarray  # target of the sample rows (codes or floats)
     power: np.ndarray  # single-column power per column, to choose peers
+    y_main: int = 0  # the first y_main columns of y_block are the target itself (0: all);
+    # the rest are basis terms that let a linear fit follow a curved relation to it
 
 
 def normal_scores(values: np.ndarray) -> np.ndarray:
@@ -65,7 +67,9 @@ def _r2(corr: np.ndarray, j: int, idx: np.ndarray) -> float:
     return float(min(1.0, max(0.0, cj @ np.linalg.solve(sub, cj))))
 
 
-def _figures(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray) -> dict[str, float]:
+def _figures(
+    corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray, main: np.ndarray
+) -> dict[str, float]:
     """The column's linear R² on its peers (a), the target (b), both (c), and the target's own
     R² on the peers; from them the two shares the probe weighs.
 
@@ -76,7 +80,7 @@ def _figures(corr: np.ndarray, j: int, peers: np.ndarray, ys: np.ndarray) -> dic
     a = _r2(corr, j, peers)
     b = _r2(corr, j, ys)
     c = max(_r2(corr, j, np.r_[peers, ys]), a, b)
-    target_on_peers = float(np.mean([_r2(corr, int(y), peers) for y in ys])) if ys.size else 0.0
+    target_on_peers = float(np.mean([_r2(corr, int(y), peers) for y in main])) if main.size else 0.0
     return {
         "share": (c - a) / (1 - a) if a < 1 else 0.0,
         "r2_peers": a,
@@ -128,6 +132,7 @@ def dependence_shares(
     with np.errstate(invalid="ignore", divide="ignore"):
         corr = np.nan_to_num(np.corrcoef(full, rowvar=False))
     ys = np.flatnonzero(usable[p:]) + p
+    main = ys[ys < p + inp.y_main] if inp.y_main else ys
     order = np.argsort(-inp.power)
     power = dict(zip(inp.names, inp.power.tolist(), strict=True))
     flagged: dict[int, int] = {}
@@ -150,7 +155,7 @@ def dependence_shares(
                 ][:MAX_PEERS],
                 dtype=np.int64,
             )
-            figs = _figures(corr, j, peers, ys)
+            figs = _figures(corr, j, peers, ys, main)
             out[inp.names[j]] = {
                 **figs,
                 "flag_round": flagged.get(j),
@@ -240,20 +245,28 @@ def reference_fit(
         return _reference_fit(x, y, params, task, n_classes, seed, folds)
 
 
-def unique_lift(without: RefFit, with_: RefFit) -> dict[str, Any]:
+def unique_lift(
+    without: RefFit, with_: RefFit, smallest_class: int | None = None
+) -> dict[str, Any]:
     """What a column adds to the other columns: the relative reduction of the reference error.
 
     ``value`` = 1 − error_with / error_without on the pooled out-of-fold predictions; ``low``
     and ``high`` are the smallest and largest of the same ratio per fold (the spread over
-    folds); an error that was already 0 leaves nothing to reduce (lift 0).
+    folds), over the folds that left an error to reduce (a fold already without error says
+    nothing); an error that was already 0 overall leaves nothing to reduce (lift 0).
+    ``error_rows`` = error_without × the smallest class's rows: 1 − AUC is the share of
+    that class's rows wholly misranked it amounts to, so under a few rows nothing is left
+    to measure a reduction on (``None`` for a numeric target).
     """
 
     def lift(a: float, b: float) -> float:
         return 1.0 - b / a if a > 1e-12 else 0.0
 
-    per_fold = [lift(a, b) for a, b in zip(without.fold_errors, with_.fold_errors, strict=True)]
-    per_fold = per_fold or [0.0]  # no fold could be fitted: nothing measured, no lift
+    pairs = zip(without.fold_errors, with_.fold_errors, strict=True)
+    per_fold = [lift(a, b) for a, b in pairs if a > 1e-12]
+    per_fold = per_fold or [0.0]  # no fold left an error to reduce: nothing measured, no lift
     return {
+        "error_rows": None if smallest_class is None else without.error * smallest_class,
         "value": lift(without.error, with_.error),
         "low": float(min(per_fold)),
         "high": float(max(per_fold)),

@@ -1,5 +1,7 @@
 """The solo probe on real bundled data with planted leaks, and on hand-made edge cases."""
 
+from dataclasses import replace
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -110,6 +112,28 @@ def test_id_issued_in_the_order_of_a_feature_is_a_copy_of_it_not_a_leak(breast_c
     again = frame.sort_values(["malignant", "record_id"]).reset_index(drop=True)
     row2 = fa.audit(again, target="malignant", probes=["solo"]).columns.set_index("column")
     assert row2.loc["record_id", "level"] == "medium"
+
+
+def test_ids_numbered_one_partition_after_another_are_judged_within_each(breast_cancer):
+    # scikit-learn's breast-cancer data: held-out rows are the largest by "mean area" (a real
+    # shift, mostly malignant) and ids run through the training rows, then the held-out
+    # ones. Across the split the id tells the target only as far as the split itself does;
+    # within each partition the rows are in random order, so the id is no leak
+    frame = breast_cancer.sample(frac=1, random_state=1).reset_index(drop=True)
+    held = frame["mean area"].rank(method="first") > 0.8 * len(frame)
+    frame = pd.concat([frame[~held], frame[held]], ignore_index=True)
+    frame.insert(0, "record_id", [f"R{i:05d}" for i in range(len(frame))])
+    frame["split"] = np.where(np.arange(len(frame)) < (~held).sum(), "train", "test")
+    result = fa.audit(frame, target="malignant", split_column="split", probes=["solo"])
+    row = result.columns.set_index("column").loc["record_id"]
+    assert row["level"] in ("none", "low")
+    ev = next(e for e in row["evidence"] if e["kind"] == "row_order_tells_target")
+    assert abs(ev["detail"]["within_partitions"]["z"]) < 3
+    # ids numbered after a sort by the target stay a leak with the same split given
+    leaky = frame.sort_values(["split", "malignant"], kind="stable").reset_index(drop=True)
+    leaky["record_id"] = [f"R{i:05d}" for i in range(len(leaky))]
+    result = fa.audit(leaky, target="malignant", split_column="split", probes=["solo"])
+    assert _levels(result)["record_id"] in HIGH
 
 
 def test_shuffled_rows_with_sequential_id_stay_clean(breast_cancer):
@@ -435,3 +459,50 @@ def test_the_reference_sample_is_chosen_by_content_not_file_order(breast_cancer)
         assert _detail(a, c)["reference_rows"] == 200
         # folds dealt by content too: the out-of-fold figures themselves agree
         assert _detail(a, c)["oof_value"] == pytest.approx(_detail(b, c)["oof_value"], abs=1e-12)
+
+
+def test_decide_proxy_near_function_needs_a_large_lift_or_a_share_that_stands_out():
+    # figures as measured: wine's 5 %-flipped cultivar copy (share 0.33 against a typical
+    # 0.10, z 2.6, lift unmeasurable) and palmerpenguins' honest island (share 0.26 against
+    # 0.22, z 0.2); both near-functions of the class with every other column near perfect
+    near = dict(typical_share=0.1, peers_beyond_target=0.05, expected_r2_if_effect=0.6, n_peers=12)
+    copy = ProxyFigures(0.88, 0.75, share=0.33, share_z=2.6, lift=0.94, lift_error=0.002, **near)
+    assert decide_proxy(copy) == (Level.CRITICAL, "function")
+    island = replace(copy, share=0.12, share_z=0.2, lift=0.56)
+    assert decide_proxy(island) == (Level.LOW, "no_lift")  # unmeasurable: nothing to weigh
+    some = replace(island, lift=0.2, lift_low=0.05, lift_error=0.05)
+    assert decide_proxy(some) == (Level.MEDIUM, "no_lift")
+    large = replace(some, lift=0.6, lift_low=0.3)
+    assert decide_proxy(large) == (Level.CRITICAL, "function")
+    # an error of under five rows of the smallest class is as unmeasurable as a tiny one
+    few = replace(island, lift_error=0.05, lift_error_rows=2.0, lift=0.9, lift_low=0.5)
+    assert decide_proxy(few) == (Level.LOW, "no_lift")
+
+
+def test_unique_lift_skips_folds_already_without_error():
+    # reference arithmetic: 1 - b / a per fold; a fold whose error was already 0 says nothing
+    from featureaudit.probes.solo._peers import RefFit, unique_lift
+
+    without = RefFit(0.98, 0.01, (0.0, 0.02, 0.01))
+    with_ = RefFit(0.99, 0.004, (0.0, 0.01, 0.002))
+    lift = unique_lift(without, with_, smallest_class=50)
+    assert lift["value"] == pytest.approx(0.6)
+    assert (lift["low"], lift["high"]) == pytest.approx((0.5, 0.8))
+    assert lift["folds"] == 2 and lift["error_rows"] == pytest.approx(0.5)
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_noisy_copy_of_a_skewed_numeric_target_is_caught(seed):
+    # statsmodels' star98 school data: NBELOW is a right-skewed count; a copy with noise of
+    # 0.3 robust SDs bends against the target's normal scores, which a linear fit on the
+    # scores alone took for peers explaining it beyond the target (medium before)
+    sm = pytest.importorskip("statsmodels.api")
+    frame = sm.datasets.star98.load_pandas().data.drop(columns=["NABOVE"])
+    frame = frame.sample(frac=1, random_state=seed).reset_index(drop=True)
+    y = frame.pop("NBELOW").astype(float).to_numpy()
+    frame["below"] = y
+    robust_sd = float(np.subtract(*np.percentile(y, [75, 25]))) / 1.349
+    frame["copy"] = y + np.random.default_rng(seed).normal(0, 0.3 * robust_sd, len(y))
+    levels = _levels(fa.audit(frame, target="below", probes=["solo"], seed=seed))
+    assert levels["copy"] in HIGH
+    assert not [c for c in frame.columns if c not in ("copy", "below") and levels[c] in HIGH]
