@@ -101,9 +101,11 @@ def simulated_level(level: Level, simulated: str | None) -> Level:
     return Level.LOW if simulated == "time" and level > Level.NONE else Level.NONE
 
 
-def split_design(table: AuditTable, heldout: np.ndarray) -> str | None:
+def split_design(table: AuditTable, heldout: np.ndarray, groups: bool = True) -> str | None:
     """ "time" when the held-out rows come after the training rows, "entity" when they hold
-    other entities than the training rows, else None (a split that should not shift)."""
+    other entities than the training rows, "groups of X" along an undeclared group key
+    (looked for only with ``groups``: it reads every feature), else None (a split that
+    should not shift)."""
     t = THRESHOLDS
     base = table.cutoff_time if table.cutoff_time is not None else table.label_time
     if base is not None:
@@ -118,7 +120,7 @@ def split_design(table: AuditTable, heldout: np.ndarray) -> str | None:
         held = ent[heldout]
         if held.notna().any() and held.isin(seen).mean() <= t.shared_entity_share:
             return "entity"
-    key = group_key(table, heldout)
+    key = group_key(table, heldout) if groups else None
     return f"groups of {key}" if key else None
 
 
@@ -304,7 +306,10 @@ class Separability(Probe):
             if gain[i] > 0
         ]
         level = simulated_level(split_level(auc, z, t), simulated)
-        design = split_design(table, heldout) if simulated is None else None
+        # the group-key search reads every feature: only when the level would be capped
+        design = (
+            split_design(table, heldout, groups=level > t.design_cap) if simulated is None else None
+        )
         capped = design is not None and level > t.design_cap
         before = level
         if capped:

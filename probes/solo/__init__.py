@@ -287,15 +287,19 @@ def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Leve
     beyond_typical = share is not None and share >= typical + th.share(Level.LOW)
     if why == "function" and level >= Level.HIGH:
         # a code the class nearly determines is a leak only through what it adds to the rest:
-        # a large lift, or a share beyond peers that stands out among the table's columns
-        # (palmerpenguins' island: z 0.2-0.4 with lifts from nil to 0.56, measured)
+        # a large lift, or a share beyond peers that stands out among the table's columns.
+        # Where nothing can be measured, near-identity with the target (the critical rule's
+        # figures) still holds at high; a looser tie does not (palmerpenguins' island: U 0.51,
+        # z 0.2-0.4, lifts from nil to 0.8 on an error of under one row, measured)
         stands_apart = f.share_z is None or f.share_z >= th.share_z_function
-        if lift not in ("large", "unknown") and not (beyond_typical and stands_apart):
-            # nothing measurable beyond the rest: low; some lift: medium
-            low = lift in ("nil", "unmeasurable")
-            level, why = (Level.LOW if low else Level.MEDIUM), "no_lift"
-        elif lift == "nil":
+        if lift == "nil":
             level, why = Level.LOW, "no_lift"
+        elif lift in ("large", "unknown") or (beyond_typical and stands_apart):
+            pass
+        elif lift == "unmeasurable" and level >= Level.CRITICAL:
+            level = Level.HIGH
+        else:  # an unmeasurable lift is no evidence: low; some lift: medium
+            level, why = (Level.LOW if lift == "unmeasurable" else Level.MEDIUM), "no_lift"
     elif lift == "nil" and level >= Level.HIGH:
         level, why = Level.MEDIUM, "no_lift"
     if power >= th.deterministic:

@@ -463,19 +463,23 @@ def test_the_reference_sample_is_chosen_by_content_not_file_order(breast_cancer)
 
 def test_decide_proxy_near_function_needs_a_large_lift_or_a_share_that_stands_out():
     # figures as measured: wine's 5 %-flipped cultivar copy (share 0.33 against a typical
-    # 0.10, z 2.6, lift unmeasurable) and palmerpenguins' honest island (share 0.26 against
-    # 0.22, z 0.2); both near-functions of the class with every other column near perfect
+    # 0.10, z 2.6, lift unmeasurable) and palmerpenguins' honest island (U 0.51, share 0.26
+    # against 0.22, z 0.2); both near-functions of the class with every other column near
+    # perfect
     near = dict(typical_share=0.1, peers_beyond_target=0.05, expected_r2_if_effect=0.6, n_peers=12)
     copy = ProxyFigures(0.88, 0.75, share=0.33, share_z=2.6, lift=0.94, lift_error=0.002, **near)
     assert decide_proxy(copy) == (Level.CRITICAL, "function")
-    island = replace(copy, share=0.12, share_z=0.2, lift=0.56)
+    island = ProxyFigures(0.64, 0.51, share=0.12, share_z=0.2, lift=0.56, lift_error=0.002, **near)
     assert decide_proxy(island) == (Level.LOW, "no_lift")  # unmeasurable: nothing to weigh
+    # near-identity with the target (the critical figures) holds at high even so
+    assert decide_proxy(replace(copy, share=0.12, share_z=0.2)) == (Level.HIGH, "function")
     some = replace(island, lift=0.2, lift_low=0.05, lift_error=0.05)
     assert decide_proxy(some) == (Level.MEDIUM, "no_lift")
     large = replace(some, lift=0.6, lift_low=0.3)
-    assert decide_proxy(large) == (Level.CRITICAL, "function")
+    assert decide_proxy(large) == (Level.HIGH, "function")
+    assert decide_proxy(replace(large, lift=0.05))[0] == Level.LOW  # nil: low
     # an error of under five rows of the smallest class is as unmeasurable as a tiny one
-    few = replace(island, lift_error=0.05, lift_error_rows=2.0, lift=0.9, lift_low=0.5)
+    few = replace(large, lift_error_rows=2.0)
     assert decide_proxy(few) == (Level.LOW, "no_lift")
 
 
