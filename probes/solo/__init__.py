@@ -6,8 +6,10 @@ other folds, so a high-cardinality column cannot memorise the target. Power alon
 tell a leak from a strong honest feature, so three more figures decide the level:
 
 - ``share``: how much of what a column's peers leave unexplained in it the target
-  explains (``_peers``). On scikit-learn's breast-cancer data a copy of the target with
-  5 % of labels flipped reaches 0.49 and no honest column more than 0.05 (measured;
+  explains (``_peers``); a numeric target enters as its normal scores with three hinges,
+  so a curved tie to it (a noisy copy of a skewed count) counts as the target's. On
+  scikit-learn's breast-cancer data a copy of the target with 5 % of labels flipped
+  reaches 0.49 and no honest column more than 0.05 (measured;
   ``tests/probes/test_solo.py``); the share floors of ``SoloThresholds`` sit between,
   and were checked on wine, diabetes and the demo scenario;
 - ``reference``: an out-of-fold LightGBM on the columns that are not suspects; a column
@@ -19,7 +21,10 @@ tell a leak from a strong honest feature, so three more figures decide the level
   ``lift_columns`` of them, the reference model is fitted on the other columns without
   and with the column, the other suspects left out of both, so two leaks cannot clear
   each other. A leak matters through what it adds: "almost a function of the target"
-  alone is no leak when the lift is nil (an honest site code the class nearly fixes);
+  alone is no leak when the lift is nil (an honest site code the class nearly fixes).
+  Where the rest leaves under one row of the smallest class misranked, a lift cannot be
+  measured: then a near-function needs a share that stands out, or near-identity with the
+  target (U ≥ 0.7 with power 0.8) to stay at high;
 - calibration: each share is placed among the same share of the table's other columns
   (robust z on the log residual-variance scale), so a share 20 times the typical one
   is high even under a fixed floor, and one that does not stand out is not;
@@ -52,6 +57,7 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 
 import numpy as np
+from scipy.special import ndtri
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
@@ -106,14 +112,15 @@ class SoloThresholds:
       null (z >= 4 for high is common practice for many parallel tests, no source).
     - ``lift_columns`` / ``lift_power``: how many suspects or strong columns get a unique
       lift (two reference fits each; cost), and the power a column needs to get one.
-    - ``lift_nil`` / ``lift_large``: a relative error reduction under 0.1 is nil, from 0.3
+    - ``lift_nil`` / ``lift_large``: a relative error reduction under 0.1 (pooled and in
+      every fold: one fold above leaves the lift unsettled, star98's count) is nil, from 0.3
       (with every fold positive) large. On the bench's new cases planted leaks add 0.4–1.0
       (measured, 3 seeds); the two cut-offs themselves are common practice, no source.
     - ``lift_error_floor``: when the rest of the table already predicts the target with
       1 − AUC (or 1 − R²) under 0.005 the lift cannot be measured (palmerpenguins: the
       measurements tell the species at 1 − AUC ≈ 0.002, measured); determinism then needs
       a share beyond the typical one to reach high. ``lift_error_rows``: the same when that
-      error amounts to fewer than 5 rows of the smallest class wholly misranked (penguins'
+      error amounts to less than one row of the smallest class wholly misranked (penguins'
       0.011 is under one Chinstrap row, so its fold lifts swing from 0 to 1); common
       practice, no source.
     - ``share_z_high``: the share's robust z (median, 1.4826·MAD, scale at least
@@ -163,7 +170,7 @@ class SoloThresholds:
     lift_power: float = 0.3
     lift_nil: float = 0.1
     lift_error_floor: float = 0.005
-    lift_error_rows: float = 5.0
+    lift_error_rows: float = 1.0
     lift_large: float = 0.3
     share_z_high: float = 3.0
     share_z_function: float = 2.0
@@ -209,6 +216,7 @@ class ProxyFigures:
     share_z: float | None = None
     lift: float | None = None
     lift_low: float = 0.0
+    lift_high: float | None = None
     lift_error: float = 1.0
     presence: float = 0.0
     lift_error_rows: float | None = None
@@ -229,8 +237,8 @@ def _lift_class(f: ProxyFigures, th: SoloThresholds) -> str:
         return "unknown"
     if not _measurable(f.lift_error, f.lift_error_rows, th):
         return "unmeasurable"
-    if f.lift < th.lift_nil:
-        return "nil"
+    if f.lift < th.lift_nil and (f.lift_high is None or f.lift_high < th.lift_nil):
+        return "nil"  # every fold agrees: nothing added
     return "large" if f.lift >= th.lift_large and f.lift_low > 0 else "some"
 
 
@@ -372,7 +380,10 @@ class Solo(Probe):
             f"is measured: the relative reduction of 1 − AUC (or 1 − R²) when the column "
             f"joins the other columns (other suspects left out) in the same reference model, "
             f"with its range over the folds; under {th.lift_nil:g} it is nil and holds "
-            f"determinism at low and other rules at medium; when the others already reach an "
+            f"determinism at low and other rules at medium. A near-function of the target "
+            f"stays at high only with a lift of {th.lift_large:g} or more or a share standing "
+            f"out at z {th.share_z_function:g}; where the lift cannot be measured, only the "
+            f"critical figures of determinism hold it at high. When the others already reach an "
             f"error under {th.lift_error_floor:g} (or under {th.lift_error_rows:g} rows of the "
             f"smallest class wholly misranked) it cannot be measured. One bin alone (missing "
             f"values or one pile) separating the classes by {th.presence_power:g} with a lift "
@@ -640,6 +651,7 @@ def _proxy_figures(
         share_z=peer.get("share_z"),
         lift=None if lift is None else lift["value"],
         lift_low=0.0 if lift is None else lift["low"],
+        lift_high=None if lift is None else lift["high"],
         lift_error=1.0 if lift is None else lift["error_without"],
         lift_error_rows=None if lift is None else lift.get("error_rows"),
         presence=_presence_power(score, t),
@@ -913,11 +925,14 @@ def _peer_figures(
 
 
 def _target_basis(ns: np.ndarray) -> np.ndarray:
-    """A numeric target's normal scores and three hinges (knots at −1, 0 and 1): a linear
-    fit on them follows any smooth curve of the target, so a noisy copy of a skewed target
-    (star98's counts: the copy's ranks bend against the target's) is not taken for a column
-    the peers explain beyond the target."""
-    return np.column_stack([ns] + [np.maximum(ns - k, 0.0) for k in (-1.0, 0.0, 1.0)])
+    """A numeric target's normal scores, three hinges (knots at −1, 0 and 1) and steps at
+    its deciles: a linear fit on them follows a curve or a jump of the target, so a noisy
+    copy of a skewed target (star98's counts: the copy's ranks bend against the target's)
+    or a count that differs above the median is not taken for a column the peers explain
+    beyond the target."""
+    hinges = [np.maximum(ns - k, 0.0) for k in (-1.0, 0.0, 1.0)]
+    steps = [(ns > k).astype(float) for k in ndtri(np.arange(1, 10) / 10.0)]
+    return np.column_stack([ns, *hinges, *steps])
 
 
 def _share_z(shares: dict[str, dict]) -> None:

@@ -478,8 +478,8 @@ def test_decide_proxy_near_function_needs_a_large_lift_or_a_share_that_stands_ou
     large = replace(some, lift=0.6, lift_low=0.3)
     assert decide_proxy(large) == (Level.HIGH, "function")
     assert decide_proxy(replace(large, lift=0.05))[0] == Level.LOW  # nil: low
-    # an error of under five rows of the smallest class is as unmeasurable as a tiny one
-    few = replace(large, lift_error_rows=2.0)
+    # an error of under one row of the smallest class is as unmeasurable as a tiny one
+    few = replace(large, lift_error_rows=0.5)
     assert decide_proxy(few) == (Level.LOW, "no_lift")
 
 
