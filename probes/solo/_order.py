@@ -77,18 +77,22 @@ def order_values(s: pd.Series) -> np.ndarray:
 
 def _ranks(s: pd.Series, rows: np.ndarray) -> np.ndarray | None:
     """The column's values on ``rows`` in their sorted order (ranked within each partition
-    by :func:`_within`); None when the column has missing values there or a single value."""
+    by :func:`_within`, over the rows where both columns have a value); None when fewer
+    than half the rows have one, or a single value."""
     values = order_values(s)[rows]
-    if not np.isfinite(values).all() or np.unique(values).size < 2:
+    ok = np.isfinite(values)
+    if ok.mean() < 0.5 or np.unique(values[ok]).size < 2:
         return None
     return values
 
 
 def _within(a: np.ndarray, b: np.ndarray, groups: np.ndarray) -> float:
-    """Rank correlation of ``a`` and ``b`` within each group, weighted by the group's size."""
+    """Rank correlation of ``a`` and ``b`` within each group, weighted by the group's size,
+    over the rows where both have a value."""
     total, weight = 0.0, 0
+    both = np.isfinite(a) & np.isfinite(b)
     for g in pd.unique(groups):
-        m = groups == g
+        m = (groups == g) & both
         if m.sum() < 3:
             continue
         ra = pd.Series(a[m]).rank().to_numpy()

@@ -510,3 +510,23 @@ def test_noisy_copy_of_a_skewed_numeric_target_is_caught(seed):
     levels = _levels(fa.audit(frame, target="below", probes=["solo"], seed=seed))
     assert levels["copy"] in HIGH
     assert not [c for c in frame.columns if c not in ("copy", "below") and levels[c] in HIGH]
+
+
+def test_id_issued_in_the_order_of_a_feature_with_missing_values_is_a_copy_of_it():
+    # palmerpenguins (shipped on PyPI): two rows lack bill_length_mm. Training and test files
+    # each sorted by it, ids numbered through both: the id follows the measurement within
+    # each partition over the rows that have it, so it is a copy, not a leak
+    palmerpenguins = pytest.importorskip("palmerpenguins")
+    frame = palmerpenguins.load_penguins().dropna(subset=["species"])
+    frame = frame.sample(frac=1, random_state=0).reset_index(drop=True)
+    held = np.random.default_rng(0).random(len(frame)) < 0.25
+    parts = [frame[~held], frame[held]]
+    parts = [p.sort_values("bill_length_mm", kind="stable") for p in parts]
+    train, test = (p.reset_index(drop=True) for p in parts)
+    train.insert(0, "record_id", [f"R{i:04d}" for i in range(len(train))])
+    test.insert(0, "record_id", [f"R{i:04d}" for i in range(len(train), len(frame))])
+    result = fa.audit(train, target="species", test=test, probes=["solo"])
+    row = result.columns.set_index("column").loc["record_id"]
+    assert row["level"] == "medium"
+    ev = next(e for e in row["evidence"] if e["kind"] == "row_order_tells_target")
+    assert ev["detail"]["follows"]["feature"] == "bill_length_mm"
