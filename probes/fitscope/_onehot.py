@@ -10,10 +10,14 @@ training row. Counts, not floats, are compared, so rounding plays no part.
 
 Threshold: one held-out row in a column no training row sets is enough for ``leak`` (high): a
 training-row fit cannot write that column at all. A dropped reference category (``drop=``)
-leaves rows of zeros and is not read as a group.
+leaves rows of zeros; such a run is read as a group only when its names share a prefix
+ending in ``_``, ``=`` or ``.`` (``cat_Dream``, ``cat_Torgersen``: the names encoders
+write), since exclusive flags alone are common.
 """
 
 from __future__ import annotations
+
+import os
 
 import numpy as np
 import pandas as pd
@@ -36,16 +40,23 @@ def _binary(s: pd.Series) -> np.ndarray | None:
     return v.astype(np.int8)
 
 
+def _named_group(names: list[str]) -> bool:
+    """Whether the names read as one encoded category: a shared prefix ending in a separator."""
+    prefix = os.path.commonprefix(names)
+    return bool(prefix) and prefix[-1] in "_=." and all(len(n) > len(prefix) for n in names)
+
+
 def onehot_groups(table: AuditTable, train: np.ndarray) -> list[tuple[list[str], np.ndarray]]:
     """Runs of adjacent, mutually exclusive 0/1 columns that are 1 exactly once on every
-    training row, with their 0/1 matrix (rows x members)."""
+    training row (or, with a dropped reference category, at most once and named as one
+    encoded category), with their 0/1 matrix (rows x members)."""
     found: list[tuple[list[str], np.ndarray]] = []
     run: list[str] = []
     cols: list[np.ndarray] = []
     total = np.zeros(table.n_rows, np.int64)
 
     def close() -> None:
-        if len(run) >= 2 and np.all(total[train] == 1):
+        if len(run) >= 2 and (np.all(total[train] == 1) or _named_group(run)):
             found.append((list(run), np.column_stack(cols)))
 
     for name in table.features:
@@ -72,7 +83,9 @@ def onehot(table: AuditTable, train: np.ndarray, split: bool) -> list[Evidence]:
     for members, m in onehot_groups(table, train):
         on_train = m[train].sum(axis=0)
         on_held = m[~train].sum(axis=0)
-        covered = bool(np.all(m.sum(axis=1) == 1))  # every row, held-out rows included
+        # every row, held-out rows included (a dropped reference: rows of zeros as in training)
+        dropped = bool(np.any(m[train].sum(axis=1) == 0))
+        covered = bool(np.all(m.sum(axis=1) <= 1)) if dropped else bool(np.all(m.sum(axis=1) == 1))
         all_exact = covered and bool(np.all(m.sum(axis=0) >= 1))
         train_exact = bool(np.all(on_train >= 1))
         unseen = [members[j] for j in np.flatnonzero((on_train == 0) & (on_held >= 1))]
@@ -81,6 +94,7 @@ def onehot(table: AuditTable, train: np.ndarray, split: bool) -> list[Evidence]:
             "training_rows": {"ones_per_column": _per(members, on_train)},
             "heldout_rows": {"ones_per_column": _per(members, on_held)},
             "heldout_rows_without_a_category": int((m[~train].sum(axis=1) == 0).sum()),
+            "dropped_reference": dropped,
         }
         for name in unseen:
             n_held = int(on_held[members.index(name)])
