@@ -91,6 +91,9 @@ STEPS: dict[str, Callable[[], object]] = {
     "pca": lambda: PCA(n_components=5, whiten=False),
     "pca_whiten": lambda: PCA(n_components=5, whiten=True),
     "onehot": lambda: OneHotEncoder(sparse_output=False, handle_unknown="ignore"),
+    "onehot_drop": lambda: OneHotEncoder(
+        sparse_output=False, handle_unknown="ignore", drop="first"
+    ),
     "ordinal": lambda: OrdinalEncoder(handle_unknown="use_encoded_value", unknown_value=np.nan),
 }
 
@@ -128,8 +131,11 @@ def _category_case(step: str, name: str, seed: int, leaky: bool) -> tuple[pd.Dat
     rows = np.ones(len(frame), bool) if leaky else ~held.to_numpy()
     cats = frame[["cat"]]
     enc = STEPS[step]().fit(cats[rows])  # type: ignore[attr-defined]
-    out = enc.transform(cats)
-    cols = [f"cat_{c}" for c in enc.categories_[0]] if step == "onehot" else ["cat_code"]
+    with warnings.catch_warnings():  # the held-out category is unknown to a training-row fit
+        warnings.simplefilter("ignore")
+        out = enc.transform(cats)
+    onehot = step.startswith("onehot")
+    cols = [str(c) for c in enc.get_feature_names_out(["cat"])] if onehot else ["cat_code"]
     frame = frame.drop(columns="cat").assign(**{c: out[:, i] for i, c in enumerate(cols)})
     return frame.assign(split=np.where(held, "test", "train")), cols
 
@@ -168,7 +174,7 @@ def main() -> None:
         for step in STEPS:
             if not step.startswith(args.only):
                 continue
-            categorical = step in ("onehot", "ordinal")
+            categorical = step in ("onehot", "onehot_drop", "ordinal")
             names = CATEGORY if categorical else NUMERIC
             build = _category_case if categorical else _numeric_case
             for name in names:
