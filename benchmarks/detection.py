@@ -4,7 +4,11 @@ Prints, per case, the level and kinds featureaudit gave the planted column (or s
 finding), then recall at level high, kind accuracy, and false positives at level high on
 the original (clean) columns and on clean controls.
 
-    python benchmarks/detection.py [--seeds 3] [--only PATTERN] [--dump FILE]
+    python benchmarks/detection.py [--seeds 3] [--only PATTERN] [--dump FILE] [--fits]
+
+``--fits`` adds the fitted-step matrix of benchmarks/fits_matrix.py (each scikit-learn
+preprocessing step fitted on all rows or on the training rows, two datasets, three storage
+types) and prints its figures with the rest.
 
 ``--dump FILE`` writes one JSON line per column and run (case, seed, role: planted, clean
 or other, level, kinds and the solo probe's detail), so a change to a rule can be weighed
@@ -448,6 +452,11 @@ def main() -> None:
         "'<dataset> / <kind>' contains PATTERN (shell wildcards allowed)",
     )
     parser.add_argument("--skip-old", action="store_true", help="run only the new cases")
+    parser.add_argument(
+        "--fits",
+        action="store_true",
+        help="also run the fitted-step matrix (benchmarks/fits_matrix.py) and print its figures",
+    )
     parser.add_argument("--dump", default=None, metavar="FILE", help="write every column's figures")
     args = parser.parse_args()
     if args.dump:
@@ -456,6 +465,17 @@ def main() -> None:
     if not args.skip_old:
         old_cases(args.seeds, args.only)
     new_cases(args.seeds, args.only)
+    if args.fits:
+        import fits_matrix  # benchmarks/ is on the path
+
+        print()
+        print("# fitted steps on all rows vs on the training rows (fits_matrix.py)")
+        counts = fits_matrix.run(args.seeds)
+        leaky, clean = counts[True], counts[False]
+        print(
+            f"fit_on_all_rows steps           recall@high {leaky[0]}/{leaky[1]}   "
+            f"clean variants@medium {clean[0]}/{clean[1]}"
+        )
     print(f"wall time: {time.perf_counter() - start:.1f} s")
 
 

@@ -164,21 +164,18 @@ def _verdict(result: fa.AuditResult, cols: list[str]) -> tuple[Level, str]:
     return best, said
 
 
-def main() -> None:
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--seeds", type=int, default=1)
-    parser.add_argument("--only", default="", help="run the steps whose name starts so")
-    args = parser.parse_args()
-    counts = {True: [0, 0], False: [0, 0]}  # leaky: [at high+, cases]; clean: [at medium+, ...]
+def run(seeds: int = 1, only: str = "") -> dict[bool, list[int]]:
+    """Every case, one line each; returns {leaky: [at high+, cases], clean: [at medium+, ...]}."""
+    counts = {True: [0, 0], False: [0, 0]}
     with tempfile.TemporaryDirectory() as tmp:
         for step in STEPS:
-            if not step.startswith(args.only):
+            if not step.startswith(only):
                 continue
             categorical = step in ("onehot", "onehot_drop", "ordinal")
             names = CATEGORY if categorical else NUMERIC
             build = _category_case if categorical else _numeric_case
             for name in names:
-                for seed in range(args.seeds):
+                for seed in range(seeds):
                     for leaky in (True, False):
                         frame, cols = build(step, name, seed, leaky)
                         for dtype in ("float64", "float32", "csv"):
@@ -198,6 +195,15 @@ def main() -> None:
                                 f"{level.label:8s} ({secs:.1f} s) {said[:90]}",
                                 flush=True,
                             )
+    return counts
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--seeds", type=int, default=1)
+    parser.add_argument("--only", default="", help="run the steps whose name starts so")
+    args = parser.parse_args()
+    counts = run(args.seeds, args.only)
     print(f"leaky cases at high or above: {counts[True][0]} of {counts[True][1]}")
     print(f"clean cases at medium or above: {counts[False][0]} of {counts[False][1]}")
 
