@@ -1,7 +1,8 @@
 """Partitions, folds and oversampling: planted cases on real bundled data, and clean ones.
 
 Prints one line per case and seed: the level featureaudit gave (and the statistic), so
-the figures for three-way splits, CV folds and SMOTE before/after the split can be read.
+the figures for three-way splits, CV folds and SMOTE before/after the split can be read;
+then, per case, the planted ones at high or above and the clean ones below medium.
 
     python benchmarks/partitions.py [--seeds 3]
 """
@@ -75,10 +76,25 @@ def _smote(name: str, seed: int, before: bool) -> pd.DataFrame:
     )
 
 
+PLANTED = ("fit train+valid", "scaler before KFold", "SMOTE before")  # expected at high+
+CLEAN = ("fit train only", "random 3-way", "unscaled folds", "SMOTE after")  # below medium
+
+
+def _tally(counts: dict[str, list[int]], label: str, level: str) -> None:
+    """Count a case as right (planted at high or above, clean below medium)."""
+    right = (
+        Level.parse(level) >= Level.HIGH if label in PLANTED else Level.parse(level) < Level.MEDIUM
+    )
+    counts.setdefault(label, [0, 0])
+    counts[label][0] += int(right)
+    counts[label][1] += 1
+
+
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--seeds", type=int, default=3)
     seeds = range(parser.parse_args().seeds)
+    counts: dict[str, list[int]] = {}
     for name in LOADERS:
         for seed in seeds:
             start = time.perf_counter()
@@ -92,6 +108,7 @@ def main() -> None:
                     _scale(base, rows), target="y", split_column="split", probes=["fitscope"]
                 )
                 lines.append(f"{label}: fit_on_all_rows {_top(r, 'fit_on_all_rows')}")
+                _tally(counts, label, _top(r, "fit_on_all_rows"))
             r = fa.audit(
                 base,
                 target="y",
@@ -100,6 +117,7 @@ def main() -> None:
             )
             loud = [f["level"] for f in r.document["dataset_findings"]]
             lines.append(f"random 3-way: split findings {sorted(set(loud))}")
+            _tally(counts, "random 3-way", max(loud, key=Level.parse, default="none"))
             cv = base.assign(split=np.where(base.split == "train", "train", "test"))
             train = np.flatnonzero(cv.split == "train")
             fold = np.full(len(cv), np.nan)
@@ -115,10 +133,12 @@ def main() -> None:
                     probes=["fitscope"],
                 )
                 lines.append(f"{label}: folds {_top(r, 'fit_on_all_rows', 'fold')}")
+                _tally(counts, label, _top(r, "fit_on_all_rows", "fold"))
             r = fa.audit(
                 cv, target="y", split_column="split", fold_column="fold", probes=["fitscope"]
             )
             lines.append(f"unscaled folds: {_top(r, 'fit_on_all_rows', 'fold')}")
+            _tally(counts, "unscaled folds", _top(r, "fit_on_all_rows", "fold"))
             for before in (True, False):
                 r = fa.audit(
                     _smote(name, seed, before), target="y", split_column="split", probes=["twins"]
@@ -130,8 +150,15 @@ def main() -> None:
                 ]
                 shown = f"{hits[0]['value']:.3f} {hits[0]['level']}" if hits else "none"
                 lines.append(f"SMOTE {'before' if before else 'after'}: {shown}")
+                level = hits[0]["level"] if hits else "none"
+                _tally(counts, f"SMOTE {'before' if before else 'after'}", level)
             secs = time.perf_counter() - start
             print(f"{name} seed {seed} ({secs:.1f} s): " + "; ".join(lines), flush=True)
+    print()
+    for label in PLANTED + CLEAN:
+        right, total = counts.get(label, [0, 0])
+        what = "at high or above" if label in PLANTED else "below medium"
+        print(f"{label:<20} {what:<17} {right}/{total}")
 
 
 if __name__ == "__main__":
