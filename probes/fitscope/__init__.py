@@ -26,14 +26,14 @@ from scipy.stats import rankdata
 
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
-from featureaudit.probes.fitscope._bins import looks_binned, quantile_binned
+from featureaudit.probes.fitscope._bins import code_count, quantile_binned
 from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
 from featureaudit.probes.fitscope._decorrelated import decorrelated
 from featureaudit.probes.fitscope._fingerprint import evidence as _evidence
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._maxabs import looks_maxabs, maxabs_scaled
 from featureaudit.probes.fitscope._onehot import onehot
-from featureaudit.probes.fitscope._ordinal import looks_coded, ordinal_coded
+from featureaudit.probes.fitscope._ordinal import ordinal_coded
 from featureaudit.probes.fitscope._piles import capped as _capped
 from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
@@ -207,9 +207,10 @@ def _plausible(v: np.ndarray, v_tr: np.ndarray) -> list:
         checks.append(robust_scaled)
     if looks_maxabs(v):
         checks.append(maxabs_scaled)
-    if looks_binned(v):
+    codes = code_count(v, max(THRESHOLDS.max_bins, THRESHOLDS.max_codes))  # one pass for both
+    if 3 <= codes <= THRESHOLDS.max_bins:
         checks.append(quantile_binned)
-    if looks_coded(v):
+    if 3 <= codes <= THRESHOLDS.max_codes:
         checks.append(ordinal_coded)
     checks.append(_imputed)  # its own sampled pre-check is cheap
     if int((v == hi).sum()) >= 3 or int((v == lo).sum()) >= 3:

@@ -15,15 +15,16 @@ import numpy as np
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS
 
-__all__ = ["looks_binned", "quantile_binned"]
+__all__ = ["code_count", "quantile_binned"]
 
 
-def looks_binned(v: np.ndarray) -> bool:
-    """The cheap gate: whole numbers 0..k-1, every one present, 3 <= k <= ``max_bins``."""
+def code_count(v: np.ndarray, limit: int) -> int:
+    """The cheap gate of bin numbers and ordinal codes: k when the values are the whole
+    numbers 0..k-1, every one present, with 3 <= k <= ``limit``; else 0."""
     k = int(v.max()) + 1 if v.size else 0
-    if not 3 <= k <= THRESHOLDS.max_bins or v.min() != 0 or np.any(v != np.round(v)):
-        return False
-    return np.unique(v).size == k
+    if not 3 <= k <= limit or v.min() != 0 or np.any(v != np.round(v)):
+        return 0
+    return k if np.unique(v).size == k else 0
 
 
 def _deviation(x: np.ndarray, k: int) -> float:

@@ -23,15 +23,7 @@ from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS
 from featureaudit.probes.fitscope._tiemedian import neighbour_rate
 
-__all__ = ["looks_coded", "ordinal_coded"]
-
-
-def looks_coded(v: np.ndarray) -> bool:
-    """The cheap gate: whole numbers 0..k-1, every one present, 3 <= k <= ``max_codes``."""
-    k = int(v.max()) + 1 if v.size else 0
-    if not 3 <= k <= THRESHOLDS.max_codes or v.min() != 0 or np.any(v != np.round(v)):
-        return False
-    return np.unique(v).size == k
+__all__ = ["ordinal_coded"]
 
 
 def _hole_p(code: int, v: np.ndarray, count: int, share: float, k: int) -> float:
