@@ -13,15 +13,19 @@ def _finding(result):
     return found
 
 
+def _shift(frame, target, **kwargs):
+    """The split_shift finding of a separability audit of ``frame`` split by its column "split"."""
+    result = fa.audit(frame, target=target, split_column="split", probes=["separability"], **kwargs)
+    return _finding(result)[0]
+
+
 def test_random_split_of_breast_cancer_is_near_chance(breast_cancer):
     # Real data: scikit-learn's breast-cancer set, split at random.
     rng = np.random.default_rng(0)
     frame = breast_cancer.assign(
         split=np.where(rng.random(len(breast_cancer)) < 0.3, "test", "train")
     )
-    found = _finding(
-        fa.audit(frame, target="malignant", split_column="split", probes=["separability"])
-    )[0]
+    found = _shift(frame, "malignant")
     assert 0.4 <= found["value"] <= 0.6
     assert found["level"] in ("none", "low")
 
@@ -31,9 +35,7 @@ def test_split_by_a_feature_quantile_is_separable_and_named(breast_cancer):
     frame = breast_cancer.assign(
         split=np.where(breast_cancer["mean texture"] > cut, "test", "train")
     )
-    found = _finding(
-        fa.audit(frame, target="malignant", split_column="split", probes=["separability"])
-    )[0]
+    found = _shift(frame, "malignant")
     assert found["value"] > 0.9 and found["level"] in ("high", "critical")
     top = found["detail"]["drivers"][0]["column"]
     assert top == "mean texture"
@@ -96,14 +98,7 @@ def test_verdict_does_not_depend_on_row_order_or_on_test_files(breast_cancer):
         "timedelta64[D]"
     )
     split = np.where(rng.random(len(frame)) < 0.3, "test", "train")
-    by_column = _finding(
-        fa.audit(
-            frame.assign(split=split),
-            target="malignant",
-            split_column="split",
-            probes=["separability"],
-        )
-    )[0]
+    by_column = _shift(frame.assign(split=split), "malignant")
     as_files = _finding(
         fa.audit(
             frame[split == "train"],
@@ -113,9 +108,7 @@ def test_verdict_does_not_depend_on_row_order_or_on_test_files(breast_cancer):
         )
     )[0]
     by_date = frame.assign(split=split).sort_values("seen")
-    by_date = _finding(
-        fa.audit(by_date, target="malignant", split_column="split", probes=["separability"])
-    )[0]
+    by_date = _shift(by_date, "malignant")
     levels = {by_column["level"], as_files["level"], by_date["level"]}
     assert len(levels) == 1 and levels <= {"none", "low"}, levels
     assert all(
@@ -153,34 +146,16 @@ def test_a_split_by_time_or_by_entity_shows_drift_but_not_at_high():
     # and firms differ in size, so a split by year or by firm separates honestly (AUC > 0.8)
     d = _grunfeld()
     late = np.where(d["at"] > d["at"].quantile(0.75), "test", "train")
-    by_time = fa.audit(
-        d.assign(split=late),
-        target="invest",
-        split_column="split",
-        label_time="at",
-        probes=["separability"],
-    )
+    by_time = _shift(d.assign(split=late), "invest", label_time="at")
     firms = np.where(d["firm"].isin(["General Motors", "US Steel"]), "test", "train")
-    by_firm = fa.audit(
-        d.assign(split=firms),
-        target="invest",
-        split_column="split",
-        entity="firm",
-        probes=["separability"],
-    )
-    for result, design in ((by_time, "time"), (by_firm, "entity")):
-        f = _finding(result)[0]
+    by_firm = _shift(d.assign(split=firms), "invest", entity="firm")
+    for f, design in ((by_time, "time"), (by_firm, "entity")):
         assert f["value"] > 0.8 and f["level"] == "medium"
         assert f["detail"]["split_design"] == design
         assert f["detail"]["level_before_cap"] in ("high", "critical")
     # the same split by firm, told neither the entity nor a time: a shift at high
-    plain = fa.audit(
-        d.drop(columns=["at"]).assign(split=firms),
-        target="invest",
-        split_column="split",
-        probes=["separability"],
-    )
-    assert _finding(plain)[0]["level"] in ("high", "critical")
+    plain = _shift(d.drop(columns=["at"]).assign(split=firms), "invest")
+    assert plain["level"] in ("high", "critical")
 
 
 def test_a_split_along_an_undeclared_group_key_is_by_entity_and_a_threshold_is_not():
@@ -194,9 +169,7 @@ def test_a_split_along_an_undeclared_group_key_is_by_entity_and_a_threshold_is_n
     rng = np.random.default_rng(0)
     held = set(rng.choice(d["individual"].unique(), 42, replace=False))
     by_group = d.assign(split=np.where(d["individual"].isin(held), "test", "train"))
-    f = _finding(
-        fa.audit(by_group, target="chosen", split_column="split", probes=["separability"])
-    )[0]
+    f = _shift(by_group, "chosen")
     assert f["detail"]["split_design"] == "groups of individual"
     assert f["level"] == "medium" and f["detail"]["level_before_cap"] in ("high", "critical")
     # a cut at a threshold of a column with repeated values (palmerpenguins' body mass, in
@@ -204,7 +177,5 @@ def test_a_split_along_an_undeclared_group_key_is_by_entity_and_a_threshold_is_n
     penguins = pytest.importorskip("palmerpenguins").load_penguins().dropna()
     cut = penguins["body_mass_g"].rank(method="first") > 0.8 * len(penguins)
     shifted = penguins.assign(split=np.where(cut, "test", "train"))
-    g = _finding(
-        fa.audit(shifted, target="species", split_column="split", probes=["separability"])
-    )[0]
+    g = _shift(shifted, "species")
     assert g["detail"]["split_design"] is None and g["level"] in ("high", "critical")
