@@ -59,8 +59,9 @@ def _side_fits(
     x: np.ndarray, cap: float, upper: bool, q: float, err: float, levels: tuple[float, ...]
 ) -> tuple[list[float], list[float]]:
     """Percentile levels whose clip of the rows ``x`` leaves exactly this pile at ``cap`` and a
-    recovered lost value on the grid; and whether some level matching the pile's size could
-    not be judged within the rounding (then a fit on these rows cannot be ruled out)."""
+    recovered lost value on the grid; and the levels matching the pile's size whose lost value
+    lands on the grid only within a rounding band too wide to tell (then a fit on these rows
+    cannot be ruled out). A lost value off the grid by more than the band rules a level out."""
     n = x.size
     s = np.sort(x)
     count = int((x == cap).sum())
@@ -84,11 +85,13 @@ def _side_fits(
             kept = float(s[j + 1])
             lost = kept - (kept - cap) / (1 - f)
             tol = 2 * (2 * err / (1 - f) + err)
-        if tol >= q / 20:  # coincidences on the grid would be common
-            unjudged.append(p)
-            continue
         beyond = lost >= cap - tol if upper else lost <= cap + tol
-        if beyond and _off_grid(lost, q) <= tol:
+        on_grid = beyond and _off_grid(lost, q) <= tol
+        if tol >= q / 20 and on_grid:
+            # a wide rounding band makes landing on the grid a common coincidence, but a
+            # lost value off the grid by more than the band still rules these rows out
+            unjudged.append(p)
+        elif on_grid:
             fits.append(p)
     return fits, unjudged
 
@@ -134,6 +137,13 @@ def grid_capped(name, values, err, ok, train, split):
 
     common_all = explained("levels_fitting_all_rows", "all_rows_unjudged")
     common_tr = explained("levels_fitting_training_rows", "training_rows_unjudged")
+    ruled_out = not any(
+        s["levels_fitting_training_rows"] or s["training_rows_unjudged"] for s in sides
+    )
+    if ruled_out and not common_all:
+        # the training rows are ruled out at every level; all rows fit within a wide band:
+        # piles off the grid at both fits' sizes exist only after a cap, so all rows remain
+        common_all = set.intersection(*(set(s["all_rows_unjudged"]) for s in sides))
     # a level unjudged on every side leaves the training rows possible: cannot rule them out
     if any(
         all(p in s["training_rows_unjudged"] for s in sides) for p in THRESHOLDS.cap_grid_levels
