@@ -5,10 +5,13 @@ finding), then recall at level high, kind accuracy, and false positives at level
 the original (clean) columns and on clean controls.
 
     python benchmarks/detection.py [--seeds 3] [--only PATTERN] [--dump FILE] [--fits]
+        [--partitions]
 
 ``--fits`` adds the fitted-step matrix of benchmarks/fits_matrix.py (each scikit-learn
 preprocessing step fitted on all rows or on the training rows, two datasets, three storage
-types) and prints its figures with the rest.
+types) and prints its figures with the rest; ``--partitions`` the cases of
+benchmarks/partitions.py (a scaler fitted on train + valid, before KFold, SMOTE before the
+split, and their clean twins) with their tallies.
 
 ``--dump FILE`` writes one JSON line per column and run (case, seed, role: planted, clean
 or other, level, kinds and the solo probe's detail), so a change to a rule can be weighed
@@ -457,6 +460,11 @@ def main() -> None:
         action="store_true",
         help="also run the fitted-step matrix (benchmarks/fits_matrix.py) and print its figures",
     )
+    parser.add_argument(
+        "--partitions",
+        action="store_true",
+        help="also run the partition, fold and oversampling cases (benchmarks/partitions.py)",
+    )
     parser.add_argument("--dump", default=None, metavar="FILE", help="write every column's figures")
     args = parser.parse_args()
     if args.dump:
@@ -476,6 +484,13 @@ def main() -> None:
             f"fit_on_all_rows steps           recall@high {leaky[0]}/{leaky[1]}   "
             f"clean variants@medium {clean[0]}/{clean[1]}"
         )
+    if args.partitions:
+        import partitions  # benchmarks/ is on the path
+
+        print()
+        print("# validation sets, CV folds and oversampling (partitions.py)")
+        tallies = partitions.run(args.seeds)
+        partitions.print_tallies(tallies)
     print(f"wall time: {time.perf_counter() - start:.1f} s")
 
 

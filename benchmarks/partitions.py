@@ -90,10 +90,10 @@ def _tally(counts: dict[str, list[int]], label: str, level: str) -> None:
     counts[label][1] += 1
 
 
-def main() -> None:
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--seeds", type=int, default=3)
-    seeds = range(parser.parse_args().seeds)
+def run(n_seeds: int) -> dict[str, list[int]]:
+    """Every case over ``n_seeds`` seeds, one line per dataset and seed; the tallies per case
+    ([right, total]: planted at high or above, clean below medium)."""
+    seeds = range(n_seeds)
     counts: dict[str, list[int]] = {}
     for name in LOADERS:
         for seed in seeds:
@@ -154,11 +154,23 @@ def main() -> None:
                 _tally(counts, f"SMOTE {'before' if before else 'after'}", level)
             secs = time.perf_counter() - start
             print(f"{name} seed {seed} ({secs:.1f} s): " + "; ".join(lines), flush=True)
-    print()
+    return counts
+
+
+def print_tallies(counts: dict[str, list[int]]) -> None:
+    """One line per case: planted at high or above, clean below medium."""
     for label in PLANTED + CLEAN:
         right, total = counts.get(label, [0, 0])
         what = "at high or above" if label in PLANTED else "below medium"
         print(f"{label:<20} {what:<17} {right}/{total}")
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--seeds", type=int, default=3)
+    counts = run(parser.parse_args().seeds)
+    print()
+    print_tallies(counts)
 
 
 if __name__ == "__main__":
