@@ -334,8 +334,9 @@ class Twins(Probe):
                 f"({share_exact:.1%} exact; against the same partner rows, held-out rows "
                 f"have an exact copy {baseline['observed_share_vs_part']:.1%} of the time "
                 f"and random parts of the training rows "
-                f"{baseline['natural_share_vs_part']:.1%}: an excess of {excess:.1%}, exact "
-                f"part 95 % CI {lo:.1%} to {hi:.1%})"
+                f"{baseline['natural_share_vs_part']:.1%}, 95 % CI of the exact excess "
+                f"{lo:.1%} to {hi:.1%}; exact and near copies together exceed the natural "
+                f"rate by {excess:.1%} of held-out rows)"
             )
         else:
             text = "no held-out row has an exact or near copy among the training rows"
