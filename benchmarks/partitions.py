@@ -107,8 +107,9 @@ def run(n_seeds: int) -> dict[str, list[int]]:
                 r = fa.audit(
                     _scale(base, rows), target="y", split_column="split", probes=["fitscope"]
                 )
-                lines.append(f"{label}: fit_on_all_rows {_top(r, 'fit_on_all_rows')}")
-                _tally(counts, label, _top(r, "fit_on_all_rows"))
+                top = _top(r, "fit_on_all_rows")
+                lines.append(f"{label}: fit_on_all_rows {top}")
+                _tally(counts, label, top)
             r = fa.audit(
                 base,
                 target="y",
@@ -132,13 +133,15 @@ def run(n_seeds: int) -> dict[str, list[int]]:
                     fold_column="fold",
                     probes=["fitscope"],
                 )
-                lines.append(f"{label}: folds {_top(r, 'fit_on_all_rows', 'fold')}")
-                _tally(counts, label, _top(r, "fit_on_all_rows", "fold"))
+                top = _top(r, "fit_on_all_rows", "fold")
+                lines.append(f"{label}: folds {top}")
+                _tally(counts, label, top)
             r = fa.audit(
                 cv, target="y", split_column="split", fold_column="fold", probes=["fitscope"]
             )
-            lines.append(f"unscaled folds: {_top(r, 'fit_on_all_rows', 'fold')}")
-            _tally(counts, "unscaled folds", _top(r, "fit_on_all_rows", "fold"))
+            top = _top(r, "fit_on_all_rows", "fold")
+            lines.append(f"unscaled folds: {top}")
+            _tally(counts, "unscaled folds", top)
             for before in (True, False):
                 r = fa.audit(
                     _smote(name, seed, before), target="y", split_column="split", probes=["twins"]
@@ -148,10 +151,10 @@ def run(n_seeds: int) -> dict[str, list[int]]:
                     for f in r.document["dataset_findings"]
                     if f["statistic"] == "heldout_share_interpolated"
                 ]
+                label = f"SMOTE {'before' if before else 'after'}"
                 shown = f"{hits[0]['value']:.3f} {hits[0]['level']}" if hits else "none"
-                lines.append(f"SMOTE {'before' if before else 'after'}: {shown}")
-                level = hits[0]["level"] if hits else "none"
-                _tally(counts, f"SMOTE {'before' if before else 'after'}", level)
+                lines.append(f"{label}: {shown}")
+                _tally(counts, label, hits[0]["level"] if hits else "none")
             secs = time.perf_counter() - start
             print(f"{name} seed {seed} ({secs:.1f} s): " + "; ".join(lines), flush=True)
     return counts
