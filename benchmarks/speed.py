@@ -11,7 +11,8 @@ peak memory and the audit's per-probe seconds (``settings.probe_seconds``).
     python benchmarks/speed.py --rows 200000 --cols 100 --table /tmp/t.parquet --profile /tmp/p
 
 With several ``--rows`` sizes it ends with a growth table (seconds per million rows).
-``--table`` keeps the written table (reused when it exists with the same shape), and
+``--table`` keeps the written table (reused when it exists with the same shape; with several
+sizes, one per size, its row count appended to the name), and
 ``--profile FILE`` runs the audit under cProfile and prints its top functions.
 """
 
@@ -133,8 +134,9 @@ def run_one(rows: int, args: argparse.Namespace) -> dict:
     """Write (or reuse) one table, then time one read and the audit, each a whole process."""
     with tempfile.TemporaryDirectory() as tmp:
         name = "bench" if args.parts > 1 else "bench.parquet"
-        path = Path(args.table) if args.table and len(args.rows.split(",")) == 1 else None
-        path = path or Path(tmp) / name
+        sizes = len(args.rows.split(","))
+        kept = None if not args.table else args.table if sizes == 1 else f"{args.table}-{rows}"
+        path = Path(kept) if kept else Path(tmp) / name
         ensure_table(path, rows, args)
         size = sum(f.stat().st_size for f in ([path] if path.is_file() else path.iterdir()))
         print(
@@ -182,7 +184,7 @@ def main() -> None:
     parser.add_argument("--parts", type=int, default=1, help="write a folder of this many parts")
     parser.add_argument("--sample-rows", type=int, default=200_000)
     parser.add_argument("--n-jobs", type=int, default=1, help="the audit's threads (config)")
-    parser.add_argument("--table", default=None, help="keep the table here (one --rows size)")
+    parser.add_argument("--table", default=None, help="keep the table (sizes: PATH-ROWS)")
     parser.add_argument("--profile", default=None, help="cProfile output file of the audit")
     parser.add_argument("--top", type=int, default=40, help="functions printed with --profile")
     args = parser.parse_args()

@@ -245,3 +245,36 @@ def test_corrupt_parquet_under_auto_and_stream_exits_2(tmp_path):
             app, ["scan", str(tmp_path / "bad.parquet"), "--target", "y", "--engine", engine]
         )
         assert out.exit_code == 2 and "bad.parquet" in out.output, (engine, out.output)
+
+
+def test_parts_rewritten_between_passes_exit_2(tmp_path):
+    """Pass 2 picks the sample by the keys pass 1 kept per batch; a part rewritten with
+    another row count in between is named as a changed input, not silently misread."""
+    from featureaudit.engines.stream import parquet_dataset, stream_partials
+    from featureaudit.errors import InputFileError
+    from featureaudit.settings import Settings
+
+    frame = _table(reps=2)
+    folder = _write_parts(frame, tmp_path / "parts", 3)
+    dataset = parquet_dataset(folder)
+    total = len(frame)
+    seen = []
+
+    def tick(what: str, rows: int) -> None:
+        seen.append(rows)
+        if what == "pass 1 of 3" and sum(seen) == total:  # pass 1 done: rewrite one part
+            frame.iloc[:10].to_parquet(folder / "part-01.parquet", index=False)
+
+    layout = Layout("split", "train", "target", "decided_at", "entity")
+    with pytest.raises(InputFileError, match="the Parquet parts"):  # changed, or unreadable
+        stream_partials(dataset, layout, Settings(sample_rows=200), tick)
+    # a batch without its pass-1 keys, or with another row count, is the same changed input
+    import pyarrow as pa
+
+    from featureaudit.engines.stream import _picked
+
+    batch = pa.Table.from_pandas(frame.iloc[:20], preserve_index=False)
+    keys = (np.arange(19, dtype=np.uint64), np.array(["train\t0"]), np.zeros(19, np.uint16))
+    for kept in (None, keys):
+        with pytest.raises(InputFileError, match="changed while they were read"):
+            _picked(batch, kept, {"train\t0": (10, 5)})

@@ -1,22 +1,24 @@
 """The ``stream`` engine: a Parquet file or folder read batch by batch in three passes.
 
 Pass 1 maps every batch into the row counts (per partition and class), the label-time
-range per side and the seeded sample's keys (bottom-k per stratum, keys only); pass 2
-collects the rows those keys pick; pass 3, once the sample has settled which columns are
-features, maps every batch into the feature-row hashes and entity hashes per side.
-Memory: one batch, the sample, twice the sample's size in keys per stratum, and 8 bytes
-per distinct row hash (the exact copy count needs the set of training rows); nothing else
-grows with the row count. The probes then
-run on the sample, and the exact figures are reported beside them in ``settings.exact``.
+range per side and the seeded sample's keys (bottom-k per stratum, keys only), and keeps
+each row's key and stratum; pass 2 takes the rows those keys pick, without converting or
+hashing a batch again; pass 3, once the sample has settled which columns are features,
+maps every batch into the feature-row hashes and entity hashes per side. Partials merge as
+a binary counter does (O(n log n) over n batches). Memory: one record batch (at most one
+Parquet row group's worth of decoded pages), the sample, twice the sample's size in keys
+per stratum, 10 bytes a row for pass 1's keys and strata, and 8 bytes per distinct row
+hash (the exact copy count needs the set of training rows). The probes then run on the
+sample, and the exact figures are reported beside them in ``settings.exact``.
 """
 
 from __future__ import annotations
 
 import os
 from collections.abc import Callable, Iterator
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import Any, TypeVar
 
 import numpy as np
 import pandas as pd
@@ -28,6 +30,7 @@ from featureaudit.engines.partials import (
     CountPartial,
     Layout,
     exact_statistics,
+    merge_all,
     sides,
 )
 from featureaudit.errors import InputFileError, SettingError
@@ -40,6 +43,7 @@ __all__ = ["parquet_dataset", "stream_partials", "stream_audit", "BATCH_ROWS"]
 
 BATCH_ROWS = 65_536  # rows per record batch (common practice, no source: pyarrow's default scale)
 Tick = Callable[[str, int], None]
+T = TypeVar("T")
 
 
 def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
@@ -96,25 +100,38 @@ def _strata(frame: pd.DataFrame, layout: Layout, by_side: bool = False) -> np.nd
 @dataclass
 class FirstPass:
     """Pass 1's partial: counts and time ranges, the sample's keys, and the target values
-    seen (up to one past ``MAX_CLASSES``, after which the sample is stratified by side only)."""
+    seen (up to one past ``MAX_CLASSES``, after which the sample is stratified by side only).
+    With ``keep_keys``, each batch's row keys and strata too (10 bytes a row), so that pass
+    2 picks the sample's rows without converting or hashing a batch again."""
 
     counts: CountPartial
     sketch: SampleSketch
     values: set[str]
+    row_keys: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = field(default_factory=list)
 
     @classmethod
-    def map(cls, batch: pa.Table, layout: Layout, settings: Settings) -> FirstPass:
+    def map(
+        cls, batch: pa.Table, layout: Layout, settings: Settings, keep_keys: bool = False
+    ) -> FirstPass:
         frame = _frame(batch)
         key_columns = [c for c in batch.schema.names if c != layout.split_column]
         strata = _strata(frame, layout)
+        keys = content_keys(frame, key_columns, settings.seed)
         sketch = SampleSketch(settings.sample_rows)
-        sketch.add(None, content_keys(frame, key_columns, settings.seed), strata)
-        values = {s.split("\t", 1)[-1] for s in np.unique(strata)}
-        return cls(CountPartial.map(frame, layout), sketch, values)._checked()
+        sketch.add(None, keys, strata)
+        labels, inverse = np.unique(strata, return_inverse=True)
+        values = {s.split("\t", 1)[-1] for s in labels}
+        kept = [(keys, labels, inverse.astype(np.uint16))] if keep_keys else []
+        return cls(CountPartial.map(frame, layout), sketch, values, kept)._checked()
 
     def merge(self, other: FirstPass) -> FirstPass:
         values = self.values | other.values
-        merged = FirstPass(self.counts.merge(other.counts), self.sketch.merge(other.sketch), values)
+        merged = FirstPass(
+            self.counts.merge(other.counts),
+            self.sketch.merge(other.sketch),
+            values,
+            self.row_keys + other.row_keys,
+        )
         return merged._checked()
 
     def _checked(self) -> FirstPass:
@@ -127,31 +144,59 @@ class FirstPass:
 def stream_partials(
     data: ds.Dataset, layout: Layout, settings: Settings, tick: Tick | None = None
 ) -> tuple[CountPartial, pa.Table]:
-    """Passes 1 and 2: counts, time ranges and the sample's keys; then the sample's rows."""
-    merged: FirstPass | None = None
-    for batch in _batches(data):
-        part = FirstPass.map(batch, layout, settings)
-        merged = part if merged is None else merged.merge(part)
-        if tick:
-            tick("pass 1 of 3", batch.num_rows)
+    """Passes 1 and 2: counts, time ranges and the sample's keys; then the sample's rows,
+    picked by the keys pass 1 kept."""
+    merged = merge_all(
+        _ticked(FirstPass.map(b, layout, settings, keep_keys=True), b, tick, "pass 1 of 3")
+        for b in _batches(data)
+    )
     if merged is None:
         raise InputFileError("the Parquet table has no rows; pass a table with data rows.")
-    rows: SampleRows | None = None
     cut = merged.sketch.cutoffs(settings.sample_rows)
-    for batch in _batches(data):
-        picked = sample_rows(batch, layout, settings, cut)
-        rows = picked if rows is None else rows.merge(picked)
-        if tick:
-            tick("pass 2 of 3", batch.num_rows)
-    assert rows is not None
+    kept = iter(merged.row_keys)
+    rows = merge_all(
+        _ticked(_picked(b, next(kept, None), cut), b, tick, "pass 2 of 3") for b in _batches(data)
+    )
+    if rows is None or next(kept, None) is not None:
+        raise InputFileError(_CHANGED)
     return merged.counts, rows.draw()
+
+
+_CHANGED = (
+    "the Parquet parts changed while they were read (another row count on the second pass); "
+    "audit a copy that nothing writes to."
+)
+
+
+def _picked(
+    batch: pa.Table,
+    kept: tuple[np.ndarray, np.ndarray, np.ndarray] | None,
+    cut: dict[str, tuple[int, int]],
+) -> SampleRows:
+    """Pass 2's map: the rows of one batch that the sample takes, by the keys and strata
+    pass 1 kept for it (``cut``: per stratum, the cut-off key and quota)."""
+    if kept is None or kept[0].size != batch.num_rows:
+        raise InputFileError(_CHANGED)
+    keys, labels, inverse = kept
+    if all("\t" not in k for k in cut):  # stratified by side only
+        labels = np.array([label.split("\t", 1)[0] for label in labels])
+    out = SampleRows(cut)
+    out.add(batch, keys, labels[inverse])
+    return out
+
+
+def _ticked(part: T, batch: pa.Table, tick: Tick | None, what: str) -> T:
+    """``part`` unchanged, after telling the progress display that ``batch`` is done."""
+    if tick:
+        tick(what, batch.num_rows)
+    return part
 
 
 def sample_rows(
     batch: pa.Table, layout: Layout, settings: Settings, cut: dict[str, tuple[int, int]]
 ) -> SampleRows:
-    """Pass 2's map: the rows of one batch that the sample takes (``cut``: per stratum,
-    the cut-off key and quota from pass 1)."""
+    """Pass 2's map where pass 1's keys were not kept (the Dask engine): the rows of one
+    batch that the sample takes, hashed again."""
     frame = _frame(batch)
     key_columns = [c for c in batch.schema.names if c != layout.split_column]
     out = SampleRows(cut)
@@ -164,16 +209,16 @@ def copy_partials(
     data: ds.Dataset, layout: Layout, train_max: float | None, tick: Tick | None = None
 ) -> CopyPartial:
     """Pass 3: feature-row and entity hashes per side, merged over every batch."""
-    copies = CopyPartial()
     columns = list(
         dict.fromkeys([*layout.features, layout.split_column, layout.entity, layout.label_time])
     )
-    for batch in _batches(data):
-        frame = _frame(batch.select([c for c in columns if c]))
-        copies = copies.merge(CopyPartial.map(frame, layout, train_max))
-        if tick:
-            tick("pass 3 of 3", batch.num_rows)
-    return copies
+    picked = [c for c in columns if c]
+    step = "pass 3 of 3"
+    copies = merge_all(
+        _ticked(CopyPartial.map(_frame(b.select(picked)), layout, train_max), b, tick, step)
+        for b in _batches(data)
+    )
+    return copies if copies is not None else CopyPartial()
 
 
 def stream_audit(

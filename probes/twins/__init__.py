@@ -88,6 +88,27 @@ class TwinsThresholds:
 THRESHOLDS = TwinsThresholds()
 
 
+def _interpolation_summary(found: dict[str, Any]) -> str:
+    """The interpolation finding in a sentence; an estimate when the rows were sampled."""
+    held, train = (
+        found["heldout_rows_between_training_rows"],
+        found["training_rows_between_heldout_rows"],
+    )
+    if found["sampled"]:
+        return (
+            f"an estimated {found['share']:.1%} of held-out rows are explained by "
+            f"interpolation across the split (of {found['heldout_rows_queried']:,} held-out "
+            f"rows queried, {held} lie between two training rows of their class; of "
+            f"{found['training_rows_queried']:,} training rows queried, {train} lie between "
+            "two held-out rows): rows were oversampled before the split"
+        )
+    return (
+        f"{found['share']:.1%} of held-out rows are explained by interpolation across the "
+        f"split ({held} held-out rows lie between two training rows of their class, {train} "
+        "training rows between two held-out rows): rows were oversampled before the split"
+    )
+
+
 def copy_level(
     excess: float,
     twin_rows: float,
@@ -373,13 +394,7 @@ class Twins(Probe):
                 share,
                 t.copies.floor(Level.HIGH),
                 level,
-                summary=(
-                    f"{share:.1%} of held-out rows are explained by interpolation across the "
-                    f"split ({found['heldout_rows_between_training_rows']} held-out rows lie "
-                    "between two training rows of their class, "
-                    f"{found['training_rows_between_heldout_rows']} training rows between two "
-                    "held-out rows): rows were oversampled before the split"
-                ),
+                summary=_interpolation_summary(found),
                 severity=min(1.0, share * 5),
                 detail={**found, "notes": notes},
             )
