@@ -25,9 +25,21 @@ def looks_robust(v: np.ndarray, v_tr: np.ndarray) -> bool:
     column that is not whole numbers (integers can have median 0 and IQR 1 by themselves)."""
     if np.all(v == np.round(v)):
         return False
-    return any(
-        abs(m) <= 1e-3 and abs(iqr - 1) <= 1e-2 for m, iqr in (_median_iqr(x) for x in (v, v_tr))
-    )
+    return any(_centred_unit_iqr(x) for x in (v, v_tr))
+
+
+def _centred_unit_iqr(x: np.ndarray) -> bool:
+    if not _median_may_be_zero(x):
+        return False
+    m, iqr = _median_iqr(x)
+    return abs(m) <= 1e-3 and abs(iqr - 1) <= 1e-2
+
+
+def _median_may_be_zero(x: np.ndarray, tol: float = 1e-3) -> bool:
+    """A necessary condition of |median| <= ``tol`` by two counts (a median at most tol has
+    half the values at most tol, and likewise below): no percentile on most columns."""
+    half = x.size / 2
+    return bool(x.size) and (x <= tol).sum() >= half and (x >= -tol).sum() >= half
 
 
 def robust_scaled(name, values, err, ok, train, split):

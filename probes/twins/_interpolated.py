@@ -9,8 +9,9 @@ interpolated when it lies strictly inside one pair's segment, off it by less tha
 ``MIN_COLUMNS`` of the columns where the two ends differ, a value that no other row holds:
 interpolation writes new values, while a natural row that happens to lie on a segment (a
 record of the same person one year on, a point of a small grid) repeats values of its
-column. Each direction queries at most ``MAX_QUERIES`` rows, chosen by content; in larger
-tables the share explained is estimated from them (finds scaled by the share queried).
+column. Each direction queries at most ``MAX_QUERIES`` rows (fewer against pools past
+200,000 rows, see ``PAIR_BUDGET``), chosen by content; in larger tables the share explained
+is estimated from them (finds scaled by the share queried).
 Anchor: oversampling before
 partitioning made near-perfect preterm-birth results reachable (Vandewiele et al.,
 Artificial Intelligence in Medicine 111:101987, 2021).
@@ -39,6 +40,11 @@ MIN_DISTINCT = 20  # a column with fewer distinct training values is not continu
 MIN_COLUMNS = 3
 MAX_COLUMNS = 50
 MAX_QUERIES = 2000  # rows queried per direction, chosen by content, not by file order
+# the exact neighbour search costs queries x pool rows: past 400 million pairs a direction
+# (2,000 queries against 200,000 rows) fewer rows are queried, never under MIN_QUERIES; at
+# 1,000,000 rows, 500 queries a direction still see ~25 rows of a 5 % share (cost, no source)
+PAIR_BUDGET = 400_000_000
+MIN_QUERIES = 500
 
 
 def interpolated_rows(
@@ -52,7 +58,9 @@ def interpolated_rows(
         return None
     ok = np.isfinite(x).all(axis=1)
     y = table.y if table.y is not None and table.task != "numeric" else None
-    q_held, q_train = _queries(ok & heldout, h), _queries(ok & ~heldout, h)
+    held_ok, train_ok = ok & heldout, ok & ~heldout
+    q_held = _queries(held_ok, h, _budget(int(train_ok.sum())))
+    q_train = _queries(train_ok, h, _budget(int(held_ok.sum())))
     asked = np.union1d(q_held, q_train)
     fresh = _fresh(x, asked)
     with openmp_threads(n_jobs):
@@ -63,8 +71,8 @@ def interpolated_rows(
     n_held = int(heldout.sum())
     # each direction queried a content-chosen share of its side's rows: its finds stand for
     # 1/share as many (all rows queried, as in tables up to MAX_QUERIES rows a side: exact)
-    fraction_held = q_held.size / max(int((ok & heldout).sum()), 1)
-    fraction_train = q_train.size / max(int((ok & ~heldout).sum()), 1)
+    fraction_held = q_held.size / max(int(held_ok.sum()), 1)
+    fraction_train = q_train.size / max(int(train_ok.sum()), 1)
     estimate = len(between) / max(fraction_held, 1e-12) + len(ends) / max(fraction_train, 1e-12)
     examples = [
         row_labels(table, np.array([a, q, b], dtype=np.int64))
@@ -121,12 +129,17 @@ def _fresh(x: np.ndarray, rows: np.ndarray) -> np.ndarray:
     return out
 
 
-def _queries(mask: np.ndarray, h: np.ndarray) -> np.ndarray:
-    """At most MAX_QUERIES rows of ``mask``, those of smallest row hash (content-chosen)."""
+def _budget(pool: int) -> int:
+    """Rows to query against a pool of ``pool`` rows: MAX_QUERIES within PAIR_BUDGET."""
+    return int(min(MAX_QUERIES, max(MIN_QUERIES, PAIR_BUDGET // max(pool, 1))))
+
+
+def _queries(mask: np.ndarray, h: np.ndarray, limit: int) -> np.ndarray:
+    """At most ``limit`` rows of ``mask``, those of smallest row hash (content-chosen)."""
     idx = np.flatnonzero(mask)
-    if idx.size <= MAX_QUERIES:
+    if idx.size <= limit:
         return idx
-    return np.sort(idx[np.argsort(h[idx], kind="stable")[:MAX_QUERIES]])
+    return np.sort(idx[np.argsort(h[idx], kind="stable")[:limit]])
 
 
 def _search(

@@ -635,3 +635,24 @@ def test_percentile_cap_where_the_training_fit_lands_off_the_grid(seed, leaky):
         assert row["level"] in HIGH, row["summary"]
     else:
         assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_the_median_gate_never_rules_out_a_median_near_zero(seed):
+    # the two counts are a necessary condition of numpy's median (even and odd sizes, ties
+    # at the tolerance, a robust-scaled column from scikit-learn's RobustScaler)
+    from sklearn.preprocessing import RobustScaler
+
+    from featureaudit.probes.fitscope._robust import _median_may_be_zero
+
+    rng = np.random.default_rng(seed)
+    for x in (
+        RobustScaler().fit_transform(rng.lognormal(size=(1001, 1))).ravel(),
+        RobustScaler().fit_transform(rng.normal(size=(1000, 1))).ravel(),
+        np.r_[np.full(5, -1e-3), np.full(5, 1e-3)],
+        np.r_[np.full(3, -5.0), [0.0005], np.full(3, 5.0)],
+    ):
+        assert abs(np.median(x)) <= 1e-3  # numpy's median, the reference
+        assert _median_may_be_zero(x)
+    assert not _median_may_be_zero(rng.normal(2, 1, 1000))
+    assert not _median_may_be_zero(np.r_[np.full(3, -5.0), [0.01], np.full(3, 5.0)])
