@@ -51,9 +51,7 @@ def _value_codes(s: pd.Series) -> np.ndarray:
     their text, so two batches with different category lists agree)."""
     values = numeric_view(s)
     if values is not None:
-        v = values.copy()
-        v[v == 0] = 0.0
-        bits = v.view(np.uint64).copy()
+        bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one zero, one copy
         bits[np.isnan(values)] = _NAN
         return bits
     text = np.asarray(s.astype(object), dtype=object)
@@ -67,9 +65,23 @@ def content_keys(frame: pd.DataFrame, columns: list[str], seed: int) -> np.ndarr
     equal keys whatever their position or partition."""
     with np.errstate(over="ignore"):
         h = np.full(len(frame), _splitmix(np.array([seed], dtype=np.uint64))[0], np.uint64)
+        spare = np.empty_like(h)
         for name in sorted(columns):
-            h = _splitmix(h * _MULT ^ _value_codes(frame[name]))
+            np.multiply(h, _MULT, out=h)
+            np.bitwise_xor(h, _value_codes(frame[name]), out=h)
+            _splitmix_inplace(h, spare)
     return h
+
+
+def _splitmix_inplace(x: np.ndarray, spare: np.ndarray) -> None:
+    """:func:`_splitmix` written into ``x`` with one spare buffer: the same bits, without
+    the five full-size temporaries a table's worth of columns would otherwise allocate."""
+    for shift, mult in ((30, _M1), (27, _M2)):
+        np.right_shift(x, np.uint64(shift), out=spare)
+        np.bitwise_xor(x, spare, out=x)
+        np.multiply(x, mult, out=x)
+    np.right_shift(x, np.uint64(31), out=spare)
+    np.bitwise_xor(x, spare, out=x)
 
 
 KEY_COLUMNS = 8  # columns hashed for a row key where the order of rows must not matter (cost)

@@ -9,6 +9,7 @@ from featureaudit.oof import make_target, score_bins
 from featureaudit.stats import (
     auc_from_cells,
     bin_codes,
+    edges_at_or_below,
     hanley_mcneil_se,
     null_auc_se,
     uncertainty_coefficient,
@@ -107,3 +108,14 @@ def test_quantile_bins_put_missing_values_in_bin_zero():
     assert (b.codes[s.isna().to_numpy()] == 0).all()
     assert (b.codes[s.notna().to_numpy()] > 0).all()
     assert b.labels[0] == "(missing)"
+
+
+@pytest.mark.parametrize("n_edges", [1, 19, 64, 65, 255])
+def test_edge_counts_equal_numpy_searchsorted(diabetes, n_edges):
+    # numpy's searchsorted(side="right") is the reference, on scikit-learn's diabetes data
+    # (ties at the edges included: the edges are values of the column itself)
+    values = diabetes.drop(columns="progression").to_numpy(dtype=float)[:, :4].ravel()
+    edges = np.unique(np.quantile(values, np.linspace(0, 1, n_edges + 2))[1:-1])
+    got = edges_at_or_below(edges, values)
+    np.testing.assert_array_equal(got, np.searchsorted(edges, values, side="right"))
+    assert got.dtype == np.int64
