@@ -16,10 +16,20 @@ from typing import Any, Protocol, TypeVar
 import numpy as np
 import pandas as pd
 
+from featureaudit.engines.spill import CopyCounts
 from featureaudit.probes.twins.hashing import row_hashes
 from featureaudit.times import as_datetime
 
-__all__ = ["Layout", "CountPartial", "CopyPartial", "sides", "exact_statistics", "merge_all"]
+__all__ = [
+    "Layout",
+    "CountPartial",
+    "CopyPartial",
+    "copy_counts",
+    "batch_hashes",
+    "sides",
+    "exact_statistics",
+    "merge_all",
+]
 
 MISSING = "(missing)"
 
@@ -148,6 +158,24 @@ def _hashable(frame: pd.DataFrame, columns: list[str]) -> pd.DataFrame:
 _EMPTY = (np.empty(0, np.uint64), np.empty(0, np.int64))
 
 
+def batch_hashes(
+    frame: pd.DataFrame, layout: Layout, train_max: float | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray | None, int]:
+    """One partition's copy statistics, row by row: held-out flags, feature-row hashes,
+    entity hashes (None without an entity) and held-out rows labelled no later than
+    ``train_max``. Every engine's copy counts start here."""
+    held = sides(frame, layout)
+    h = row_hashes(_hashable(frame, list(layout.features)), list(layout.features))
+    e = None
+    if layout.entity is not None:
+        e = row_hashes(_hashable(frame, [layout.entity]), [layout.entity])
+    before = 0
+    if layout.label_time is not None and train_max is not None:
+        t = _epoch_ns(frame[layout.label_time], layout.label_time)[held]
+        before = int((t <= train_max).sum())
+    return held, h, e, before
+
+
 @dataclass
 class CopyPartial:
     """Feature-row hashes per side (distinct values with counts), entity hashes per side,
@@ -163,16 +191,12 @@ class CopyPartial:
     def map(
         cls, frame: pd.DataFrame, layout: Layout, train_max: float | None = None
     ) -> CopyPartial:
-        held = sides(frame, layout)
-        h = row_hashes(_hashable(frame, list(layout.features)), list(layout.features))
+        held, h, e, before = batch_hashes(frame, layout, train_max)
         out = cls(_unique_counts(h[~held]), _unique_counts(h[held]))
-        if layout.entity is not None:
-            e = row_hashes(_hashable(frame, [layout.entity]), [layout.entity])
+        if e is not None:
             out.train_entities = _unique_counts(e[~held])
             out.heldout_entities = _unique_counts(e[held])
-        if layout.label_time is not None and train_max is not None:
-            t = _epoch_ns(frame[layout.label_time], layout.label_time)[held]
-            out.heldout_before_train_max = int((t <= train_max).sum())
+        out.heldout_before_train_max = before
         return out
 
     def merge(self, other: CopyPartial) -> CopyPartial:
@@ -190,9 +214,25 @@ def _rows_in(a: tuple[np.ndarray, np.ndarray], pool: np.ndarray) -> int:
     return int(a[1][np.isin(a[0], pool, assume_unique=True)].sum())
 
 
-def exact_statistics(counts: CountPartial, copies: CopyPartial | None) -> dict[str, Any]:
+def copy_counts(copies: CopyPartial) -> CopyCounts:
+    """The exact copy figures of a merged :class:`CopyPartial`."""
+    entities = bool(copies.heldout_entities[0].size)
+    return CopyCounts(
+        int(copies.train[0].size),
+        int(copies.heldout[1].sum()),
+        _rows_in(copies.heldout, copies.train[0]),
+        _rows_in(copies.heldout_entities, copies.train_entities[0]) if entities else None,
+        copies.heldout_before_train_max,
+    )
+
+
+def exact_statistics(
+    counts: CountPartial, copies: CopyPartial | CopyCounts | None
+) -> dict[str, Any]:
     """The merged partials as the JSON block ``settings.exact`` (every figure exact)."""
-    held_rows = int(copies.heldout[1].sum()) if copies is not None else None
+    if isinstance(copies, CopyPartial):
+        copies = copy_counts(copies)
+    held_rows = copies.heldout_rows if copies is not None else None
     out: dict[str, Any] = {
         "rows": int(sum(counts.partitions.values())),
         "partitions": {str(k): int(v) for k, v in sorted(counts.partitions.items())},
@@ -204,15 +244,15 @@ def exact_statistics(counts: CountPartial, copies: CopyPartial | None) -> dict[s
     }
     if copies is None:
         return out
-    out["distinct_training_rows"] = int(copies.train[0].size)
+    out["distinct_training_rows"] = copies.distinct_training_rows
     if held_rows:
-        twins = _rows_in(copies.heldout, copies.train[0])
+        twins = copies.heldout_with_twin
         out["heldout_rows_with_exact_twin"] = twins
         out["share_heldout_with_exact_twin"] = twins / held_rows
         if "train" in counts.times:
             out["heldout_rows_labelled_by_training_max"] = copies.heldout_before_train_max
-        if copies.heldout_entities[0].size:
-            shared = _rows_in(copies.heldout_entities, copies.train_entities[0])
+        if copies.heldout_with_shared_entity is not None:
+            shared = copies.heldout_with_shared_entity
             out["heldout_rows_with_shared_entity"] = shared
             out["share_heldout_with_shared_entity"] = shared / held_rows
     return out

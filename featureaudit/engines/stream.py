@@ -1,15 +1,16 @@
 """The ``stream`` engine: a Parquet file or folder read batch by batch in three passes.
 
 Pass 1 maps every batch into the row counts (per partition and class), the label-time
-range per side and the seeded sample's keys (bottom-k per stratum, keys only), and keeps
-each row's key and stratum; pass 2 takes the rows those keys pick, without converting or
-hashing a batch again; pass 3, once the sample has settled which columns are features,
-maps every batch into the feature-row hashes and entity hashes per side. Partials merge as
-a binary counter does (O(n log n) over n batches). Memory: one record batch (at most one
-Parquet row group's worth of decoded pages), the sample, twice the sample's size in keys
-per stratum, 10 bytes a row for pass 1's keys and strata, and 8 bytes per distinct row
-hash (the exact copy count needs the set of training rows). The probes then run on the
-sample, and the exact figures are reported beside them in ``settings.exact``.
+range per side and the seeded sample's keys (bottom-k per stratum, keys only), and spills
+each row's key and stratum to disk; pass 2 takes the rows those keys pick, without
+converting or hashing a batch again; pass 3, once the sample has settled which columns are
+features, spills every batch's feature-row and entity hashes per side into buckets by their
+top bits, and counts copies and shared entities one bucket at a time. Partials merge as a
+binary counter does (O(n log n) over n batches). Memory does not grow with the row count:
+one record batch (read page by page from each file, whatever its row groups), the sample,
+twice the sample's size in keys per stratum, and one bucket of hashes; the disk holds about
+26 bytes a row meanwhile (``spill``). The probes then run on the sample, and the exact
+figures are reported beside them in ``settings.exact``.
 """
 
 from __future__ import annotations
@@ -24,22 +25,24 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 import pyarrow.dataset as ds
+import pyarrow.parquet as pq
 
 from featureaudit.engines.partials import (
-    CopyPartial,
     CountPartial,
     Layout,
+    batch_hashes,
     exact_statistics,
     merge_all,
     sides,
 )
+from featureaudit.engines.spill import CopyCounts, HashSpill, KeySpill, spill_folder
 from featureaudit.errors import InputFileError, SettingError
 from featureaudit.findings import Findings
 from featureaudit.io import normalise_frame
 from featureaudit.sample import MAX_CLASSES, SampleRows, SampleSketch, content_keys
 from featureaudit.settings import Settings
 
-__all__ = ["parquet_dataset", "stream_partials", "stream_audit", "BATCH_ROWS"]
+__all__ = ["parquet_dataset", "stream_partials", "copy_counts", "stream_audit", "BATCH_ROWS"]
 
 BATCH_ROWS = 65_536  # rows per record batch (common practice, no source: pyarrow's default scale)
 Tick = Callable[[str, int], None]
@@ -67,20 +70,28 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
         raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
 
 
-def _batches(data: ds.Dataset) -> Iterator[pa.Table]:
-    try:
-        # no read-ahead: pyarrow's default holds up to 16 batches of 4 files at once
-        for batch in data.to_batches(
-            batch_size=BATCH_ROWS, batch_readahead=0, fragment_readahead=0
-        ):
-            if batch.num_rows:
-                yield pa.Table.from_batches([batch])
-    except (pa.ArrowInvalid, pa.ArrowTypeError, OSError) as exc:
-        first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        raise InputFileError(
-            f"cannot read the Parquet parts: {first}. Check that every part is complete and "
-            "that the parts share their columns' types."
-        ) from exc
+def _batches(data: ds.Dataset, columns: list[str] | None = None) -> Iterator[pa.Table]:
+    """Record batches of at most BATCH_ROWS rows, file after file, decoded page by page (no
+    pre-buffering of whole row groups), with the table's columns (or ``columns``) in order."""
+    names = list(columns or data.schema.names)
+    for path in data.files:
+        try:
+            part = pq.ParquetFile(path, pre_buffer=False, buffer_size=1 << 20)
+            missing = [c for c in names if c not in part.schema_arrow.names]
+            if missing:
+                raise InputFileError(
+                    f"Parquet part {path!r} lacks column {missing[0]!r} that the other parts "
+                    "have; give every part the same columns."
+                )
+            for batch in part.iter_batches(batch_size=BATCH_ROWS, columns=names):
+                if batch.num_rows:
+                    yield pa.Table.from_batches([batch])
+        except (pa.ArrowInvalid, pa.ArrowTypeError, OSError) as exc:
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+            raise InputFileError(
+                f"cannot read the Parquet parts ({path!r}): {first}. Check that every part "
+                "is complete and that the parts share their columns' types."
+            ) from exc
 
 
 def _frame(batch: pa.Table) -> pd.DataFrame:
@@ -101,13 +112,14 @@ def _strata(frame: pd.DataFrame, layout: Layout, by_side: bool = False) -> np.nd
 class FirstPass:
     """Pass 1's partial: counts and time ranges, the sample's keys, and the target values
     seen (up to one past ``MAX_CLASSES``, after which the sample is stratified by side only).
-    With ``keep_keys``, each batch's row keys and strata too (10 bytes a row), so that pass
-    2 picks the sample's rows without converting or hashing a batch again."""
+    ``row_keys`` holds the batch's row keys, stratum labels and stratum codes (10 bytes a
+    row) until the stream engine spills them, so that pass 2 picks the sample's rows without
+    converting or hashing a batch again."""
 
     counts: CountPartial
     sketch: SampleSketch
     values: set[str]
-    row_keys: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = field(default_factory=list)
+    row_keys: tuple[np.ndarray, np.ndarray, np.ndarray] | None = field(default=None)
 
     @classmethod
     def map(
@@ -121,17 +133,12 @@ class FirstPass:
         sketch.add(None, keys, strata)
         labels, inverse = np.unique(strata, return_inverse=True)
         values = {s.split("\t", 1)[-1] for s in labels}
-        kept = [(keys, labels, inverse.astype(np.uint16))] if keep_keys else []
+        kept = (keys, labels, inverse.astype(np.uint16)) if keep_keys else None
         return cls(CountPartial.map(frame, layout), sketch, values, kept)._checked()
 
     def merge(self, other: FirstPass) -> FirstPass:
         values = self.values | other.values
-        merged = FirstPass(
-            self.counts.merge(other.counts),
-            self.sketch.merge(other.sketch),
-            values,
-            self.row_keys + other.row_keys,
-        )
+        merged = FirstPass(self.counts.merge(other.counts), self.sketch.merge(other.sketch), values)
         return merged._checked()
 
     def _checked(self) -> FirstPass:
@@ -142,18 +149,31 @@ class FirstPass:
 
 
 def stream_partials(
-    data: ds.Dataset, layout: Layout, settings: Settings, tick: Tick | None = None
+    data: ds.Dataset,
+    layout: Layout,
+    settings: Settings,
+    tick: Tick | None = None,
+    folder: str | None = None,
 ) -> tuple[CountPartial, pa.Table]:
-    """Passes 1 and 2: counts, time ranges and the sample's keys; then the sample's rows,
-    picked by the keys pass 1 kept."""
-    merged = merge_all(
-        _ticked(FirstPass.map(b, layout, settings, keep_keys=True), b, tick, "pass 1 of 3")
-        for b in _batches(data)
-    )
+    """Passes 1 and 2: counts, time ranges and the sample's keys, each row's key spilled to
+    ``folder`` (a temporary one by default); then the sample's rows, picked by those keys."""
+    if folder is None:
+        with spill_folder() as tmp:
+            return stream_partials(data, layout, settings, tick, tmp)
+    spill = KeySpill(folder)
+
+    def first(batch: pa.Table) -> FirstPass:
+        part = FirstPass.map(batch, layout, settings, keep_keys=True)
+        assert part.row_keys is not None
+        spill.write(*part.row_keys)
+        part.row_keys = None
+        return _ticked(part, batch, tick, "pass 1 of 3")
+
+    merged = merge_all(first(b) for b in _batches(data))
     if merged is None:
         raise InputFileError("the Parquet table has no rows; pass a table with data rows.")
     cut = merged.sketch.cutoffs(settings.sample_rows)
-    kept = iter(merged.row_keys)
+    kept = spill.read()
     rows = merge_all(
         _ticked(_picked(b, next(kept, None), cut), b, tick, "pass 2 of 3") for b in _batches(data)
     )
@@ -205,20 +225,33 @@ def sample_rows(
     return out
 
 
-def copy_partials(
-    data: ds.Dataset, layout: Layout, train_max: float | None, tick: Tick | None = None
-) -> CopyPartial:
-    """Pass 3: feature-row and entity hashes per side, merged over every batch."""
+def copy_counts(
+    data: ds.Dataset,
+    layout: Layout,
+    train_max: float | None,
+    tick: Tick | None = None,
+    folder: str | None = None,
+) -> CopyCounts:
+    """Pass 3: feature-row and entity hashes per side, spilled into buckets, then counted
+    one bucket at a time (exact: a hash falls in one bucket on both sides)."""
+    if folder is None:
+        with spill_folder() as tmp:
+            return copy_counts(data, layout, train_max, tick, tmp)
     columns = list(
         dict.fromkeys([*layout.features, layout.split_column, layout.entity, layout.label_time])
     )
     picked = [c for c in columns if c]
-    step = "pass 3 of 3"
-    copies = merge_all(
-        _ticked(CopyPartial.map(_frame(b.select(picked)), layout, train_max), b, tick, step)
-        for b in _batches(data)
-    )
-    return copies if copies is not None else CopyPartial()
+    spill = HashSpill(folder, entities=layout.entity is not None)
+    for batch in _batches(data, picked):
+        held, h, e, before = batch_hashes(_frame(batch), layout, train_max)
+        spill.add("train", h[~held])
+        spill.add("heldout", h[held])
+        if e is not None:
+            spill.add("train_entities", e[~held])
+            spill.add("heldout_entities", e[held])
+        spill.heldout_before_train_max += before
+        _ticked(None, batch, tick, "pass 3 of 3")
+    return spill.counts()
 
 
 def stream_audit(
@@ -249,13 +282,14 @@ def stream_audit(
     for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
         if col is not None and col not in dataset.schema.names:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
-    counts, drawn = stream_partials(dataset, layout, settings, tick)
-    sample = drawn.to_pandas()
-    source = build.get("source") or Path(data).name
-    table = build_table(sample, **{**build, "source": source})
-    layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
-    train_max = counts.times.get("train", [None, None])[1]
-    copies = copy_partials(dataset, layout, train_max, tick)
+    with spill_folder() as folder:
+        counts, drawn = stream_partials(dataset, layout, settings, tick, folder)
+        sample = drawn.to_pandas()
+        source = build.get("source") or Path(data).name
+        table = build_table(sample, **{**build, "source": source})
+        layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
+        train_max = counts.times.get("train", [None, None])[1]
+        copies = copy_counts(dataset, layout, train_max, tick, folder)
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(counts, copies)
     _report_engine(findings.document, exact, table.n_rows, layout, "stream", "three passes")

@@ -1,0 +1,160 @@
+"""Spill files: the per-row data the stream engine keeps between passes, on disk, not in memory.
+
+Pass 1's row keys and strata codes (10 bytes a row) are written in batch order and read back
+batch by batch in pass 2. Pass 3's row and entity hashes go into ``BUCKETS`` files per side
+by their top bits, so each bucket, counted alone, fits in memory; a hash falls in the same
+bucket on both sides, so the exact copy and entity counts are sums over the buckets. Memory:
+one batch and one bucket (1/``BUCKETS`` of the hashes); disk: 8 bytes a row per hashed side
+and kind, 10 bytes a row for the keys, in a temporary folder (``TMPDIR``) removed at the end.
+"""
+
+from __future__ import annotations
+
+import errno
+import tempfile
+from collections.abc import Iterator
+from dataclasses import dataclass
+from pathlib import Path
+from typing import IO, Any
+
+import numpy as np
+
+from featureaudit.errors import InputFileError
+
+__all__ = ["KeySpill", "HashSpill", "CopyCounts", "BUCKETS", "spill_folder"]
+
+BUCKETS = 32  # 100 million rows: 25 MB of hashes a bucket (cost, no source)
+_SHIFT = np.uint64(64 - 5)  # the top 5 bits of a hash name its bucket (2**5 == BUCKETS)
+SIDES = ("train", "heldout", "train_entities", "heldout_entities")
+
+
+def spill_folder() -> tempfile.TemporaryDirectory[str]:
+    """A fresh temporary folder for one audit's spill files (``TMPDIR`` chooses the disk)."""
+    return tempfile.TemporaryDirectory(prefix="featureaudit-spill-")
+
+
+def _full(exc: OSError, folder: str) -> InputFileError:
+    if exc.errno == errno.ENOSPC:
+        return InputFileError(
+            f"no space left in {folder!r} for the stream engine's spill files (about 26 bytes "
+            "a row); set TMPDIR to a folder on a larger disk."
+        )
+    return InputFileError(f"cannot write the stream engine's spill files in {folder!r}: {exc}.")
+
+
+@dataclass(frozen=True)
+class CopyCounts:
+    """The exact copy figures, summed over buckets or counted from whole hash sets."""
+
+    distinct_training_rows: int
+    heldout_rows: int
+    heldout_with_twin: int
+    heldout_with_shared_entity: int | None  # None without an entity column
+    heldout_before_train_max: int
+
+    def __add__(self, other: CopyCounts) -> CopyCounts:
+        entity = (
+            None
+            if self.heldout_with_shared_entity is None and other.heldout_with_shared_entity is None
+            else (self.heldout_with_shared_entity or 0) + (other.heldout_with_shared_entity or 0)
+        )
+        return CopyCounts(
+            self.distinct_training_rows + other.distinct_training_rows,
+            self.heldout_rows + other.heldout_rows,
+            self.heldout_with_twin + other.heldout_with_twin,
+            entity,
+            self.heldout_before_train_max + other.heldout_before_train_max,
+        )
+
+
+def count_copies(
+    train: np.ndarray,
+    heldout: np.ndarray,
+    train_entities: np.ndarray | None,
+    heldout_entities: np.ndarray | None,
+) -> CopyCounts:
+    """Exact figures from whole hash arrays (one row each, repeats allowed)."""
+    pool = np.unique(train)
+    twins = int(np.isin(heldout, pool).sum()) if heldout.size else 0
+    shared = None
+    if train_entities is not None and heldout_entities is not None:
+        shared = int(np.isin(heldout_entities, np.unique(train_entities)).sum())
+    return CopyCounts(int(pool.size), int(heldout.size), twins, shared, 0)
+
+
+class KeySpill:
+    """Pass 1's row keys and strata codes per batch, written in order and read back in order;
+    the few stratum labels of each batch stay in memory."""
+
+    def __init__(self, folder: str) -> None:
+        self.folder = folder
+        self._keys: IO[bytes] = open(Path(folder) / "keys.bin", "wb")  # noqa: SIM115
+        self._codes: IO[bytes] = open(Path(folder) / "strata.bin", "wb")  # noqa: SIM115
+        self.batches: list[tuple[int, np.ndarray]] = []  # (rows, labels) per batch
+
+    def write(self, keys: np.ndarray, labels: np.ndarray, inverse: np.ndarray) -> None:
+        try:
+            self._keys.write(np.ascontiguousarray(keys, dtype=np.uint64).tobytes())
+            self._codes.write(np.ascontiguousarray(inverse, dtype=np.uint16).tobytes())
+        except OSError as exc:
+            raise _full(exc, self.folder) from exc
+        self.batches.append((int(keys.size), labels))
+
+    def read(self) -> Iterator[tuple[np.ndarray, np.ndarray, np.ndarray]]:
+        """(keys, labels, strata codes) per batch, in the order they were written."""
+        self._keys.close()
+        self._codes.close()
+        with (
+            open(Path(self.folder) / "keys.bin", "rb") as keys,
+            open(Path(self.folder) / "strata.bin", "rb") as codes,
+        ):
+            for rows, labels in self.batches:
+                yield (
+                    np.fromfile(keys, dtype=np.uint64, count=rows),
+                    labels,
+                    np.fromfile(codes, dtype=np.uint16, count=rows),
+                )
+
+
+class HashSpill:
+    """Row and entity hashes per side, written into ``BUCKETS`` files by their top bits."""
+
+    def __init__(self, folder: str, entities: bool) -> None:
+        self.folder = folder
+        self.sides = SIDES if entities else SIDES[:2]
+        self._files: dict[tuple[str, int], IO[bytes]] = {}
+        self.heldout_before_train_max = 0
+        for side in self.sides:
+            for b in range(BUCKETS):
+                self._files[side, b] = open(self._path(side, b), "wb")  # noqa: SIM115
+
+    def _path(self, side: str, bucket: int) -> Path:
+        return Path(self.folder) / f"{side}-{bucket:02d}.bin"
+
+    def add(self, side: str, hashes: np.ndarray) -> None:
+        """Append one batch's hashes of ``side`` (training rows: their distinct values)."""
+        h = np.unique(hashes) if side in ("train", "train_entities") else np.sort(hashes)
+        cuts = np.searchsorted(h >> _SHIFT, np.arange(1, BUCKETS, dtype=np.uint64))
+        try:
+            for b, part in enumerate(np.split(h, cuts)):
+                if part.size:
+                    self._files[side, b].write(part.tobytes())
+        except OSError as exc:
+            raise _full(exc, self.folder) from exc
+
+    def counts(self) -> CopyCounts:
+        """The exact figures, one bucket at a time."""
+        for fh in self._files.values():
+            fh.close()
+        total = CopyCounts(0, 0, 0, 0 if len(self.sides) > 2 else None, 0)
+        for b in range(BUCKETS):
+            loaded: dict[str, Any] = {
+                side: np.fromfile(self._path(side, b), dtype=np.uint64) for side in self.sides
+            }
+            total = total + count_copies(
+                loaded["train"],
+                loaded["heldout"],
+                loaded.get("train_entities"),
+                loaded.get("heldout_entities"),
+            )
+        return total + CopyCounts(0, 0, 0, None, self.heldout_before_train_max)
