@@ -54,6 +54,10 @@ def _value_codes(s: pd.Series) -> np.ndarray:
         bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one zero, one copy
         bits[np.isnan(values)] = _NAN
         return bits
+    if isinstance(s.dtype, pd.CategoricalDtype):  # each category's text hashed once
+        names = np.asarray(s.cat.categories.astype(object), dtype=object).astype(str)
+        table = pd.util.hash_array(np.r_[names, ["\x00NA"]].astype(object)).astype(np.uint64)
+        return table[s.cat.codes.to_numpy()]  # code -1 (missing) takes the last entry
     text = np.asarray(s.astype(object), dtype=object)
     missing = pd.isna(text)
     text = np.where(missing, "\x00NA", text).astype(str).astype(object)

@@ -19,6 +19,7 @@ from typing import TypeVar
 __all__ = [
     "available_cpus",
     "column_map",
+    "column_imap",
     "model_threads",
     "limited_blas",
     "openmp_threads",
@@ -76,3 +77,19 @@ def column_map(fn: Callable[[T], R], items: Iterable[T], n_jobs: int) -> list[R]
             return [fn(x) for x in items]
         with ThreadPoolExecutor(max_workers=n_jobs) as pool:
             return list(pool.map(fn, items))
+
+
+def column_imap(fn: Callable[[T], R], items: Iterable[T], n_jobs: int) -> Iterator[R]:
+    """:func:`column_map` yielded as it goes, at most ``2 * n_jobs`` results held at once: a
+    table's worth of per-column arrays at once costs its memory and the page faults of
+    touching it (1,000,000 x 100 row-hash codes: 800 MB, 1.3 s of a 1.8 s hash)."""
+    items = list(items)
+    with limited_blas():
+        if n_jobs <= 1 or len(items) <= 1:
+            for x in items:
+                yield fn(x)
+            return
+        step = 2 * n_jobs
+        with ThreadPoolExecutor(max_workers=n_jobs) as pool:
+            for start in range(0, len(items), step):
+                yield from pool.map(fn, items[start : start + step])

@@ -1,8 +1,9 @@
 """The ``dask`` engine: the stream engine's maps and merges as Dask tasks over the
 partitions of ``dask.dataframe.read_parquet``, on a given scheduler or a local cluster.
 
-The merged partials (counts, the sample, the copy hashes) are gathered to the client; the
-probes run there on the sample, as with the stream engine. Three passes, as there.
+The merged partials (counts and the sample) are gathered to the client; the copy hashes are
+merged and counted on the workers, and only their counts come back. The probes run on the
+client on the sample, as with the stream engine. Three passes, as there.
 """
 
 from __future__ import annotations
@@ -15,7 +16,7 @@ from typing import Any, TypeVar
 import pandas as pd
 import pyarrow as pa
 
-from featureaudit.engines.partials import CopyPartial, Layout, exact_statistics
+from featureaudit.engines.partials import CopyPartial, Layout, copy_counts, exact_statistics
 from featureaudit.engines.stream import FirstPass, _report_engine, parquet_dataset, sample_rows
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings
@@ -44,14 +45,15 @@ def _merge(a: T, b: T) -> T:
     return a.merge(b)  # type: ignore[attr-defined]
 
 
-def _tree(client: Any, futures: list[Any]) -> Any:
-    """Merge partials pairwise on the workers, then gather the one result."""
+def _tree(client: Any, futures: list[Any], finish: Callable[[Any], Any] | None = None) -> Any:
+    """Merge partials pairwise on the workers, then gather the one result (``finish`` of it,
+    computed on the worker that holds it, when given)."""
     while len(futures) > 1:
         paired = [
             client.submit(_merge, a, b) for a, b in zip(futures[::2], futures[1::2], strict=False)
         ]
         futures = paired + ([futures[-1]] if len(futures) % 2 else [])
-    return futures[0].result()
+    return (client.submit(finish, futures[0]) if finish else futures[0]).result()
 
 
 def dask_audit(
@@ -114,9 +116,10 @@ def dask_audit(
                 table = build_table(sample, **{**build, "source": source})
                 layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
                 train_max = first.counts.times.get("train", [None, None])[1]
-                copies = _tree(
+                copies = _tree(  # only the counts come back, not the hash sets
                     client,
                     client.compute([dask.delayed(_copies)(p, layout, train_max) for p in parts]),
+                    copy_counts,
                 )
                 if tick:
                     tick("pass 3 of 3", rows)

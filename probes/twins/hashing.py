@@ -50,11 +50,11 @@ def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
 
 def row_hashes(frame: pd.DataFrame, columns: list[str], n_jobs: int = 1) -> np.ndarray:
     """One uint64 per row over ``columns``; rows equal in every column get equal hashes."""
-    from featureaudit.threads import column_map
+    from featureaudit.threads import column_imap
 
     h = np.full(len(frame), np.uint64(0xCBF29CE484222325), dtype=np.uint64)
     with np.errstate(over="ignore"):
-        for codes in column_map(lambda name: column_codes(frame[name]), columns, n_jobs):
+        for codes in column_imap(lambda name: column_codes(frame[name]), columns, n_jobs):
             h = _mix(h, codes)
     return h
 
