@@ -17,7 +17,13 @@ import pandas as pd
 import pyarrow as pa
 
 from featureaudit.engines.partials import CopyPartial, Layout, copy_counts, exact_statistics
-from featureaudit.engines.stream import FirstPass, _report_engine, parquet_dataset, sample_rows
+from featureaudit.engines.stream import (
+    FirstPass,
+    _report_engine,
+    parquet_dataset,
+    sample_rows,
+    stream_layout,
+)
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings
 from featureaudit.io import normalise_frame
@@ -77,13 +83,7 @@ def dask_audit(
             "--engine dask reads one table with --split-column; pass --engine memory with --test."
         )
     schema = parquet_dataset(data).schema.names  # the same checks of the path as stream
-    layout = Layout(
-        split_column=build.get("split_column"),
-        train_value=str(build.get("train_value", "train")),
-        target=build.get("target"),
-        label_time=build.get("label_time"),
-        entity=build.get("entity"),
-    )
+    layout = stream_layout(schema, build)
     for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
         if col is not None and col not in schema:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")

@@ -68,6 +68,13 @@ class Layout:
     label_time: str | None = None
     entity: str | None = None
     features: tuple[str, ...] = ()
+    keys: tuple[str, ...] = ()  # columns of the sample's row keys (empty: all but the split)
+
+    def key_columns(self, names: list[str]) -> list[str]:
+        """The columns of ``names`` that a row's sample key hashes."""
+        if self.keys:
+            return [c for c in names if c in set(self.keys)]
+        return [c for c in names if c != self.split_column]
 
 
 def _text(s: pd.Series) -> np.ndarray:
