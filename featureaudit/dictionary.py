@@ -189,6 +189,17 @@ def draft_dictionary(frame: pd.DataFrame, *, target: str | None = None) -> str:
     return buf.getvalue()
 
 
+def id_like_name(name: str) -> bool:
+    """A name that reads like an identifier's: ``id``, ``*_id``, ``*_key``, ``*_no``,
+    ``*_number``, ``*Id``, ``*ID``."""
+    low = name.lower()
+    return (
+        low == "id"
+        or low.endswith(("_id", "_key", "_no", "_number"))
+        or name.endswith(("Id", "ID"))
+    )
+
+
 def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
     """Guess a column's role from its name and values; the user confirms it in the draft."""
     low = name.lower()
@@ -205,11 +216,7 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
         return "feature"  # floats, booleans: never identifiers
     n = int(s.notna().sum())
     unique_share = s.nunique(dropna=True) / n if n else 0.0
-    id_name = (
-        low == "id"
-        or low.endswith(("_id", "_key", "_no", "_number"))
-        or name.endswith(("Id", "ID"))
-    )
+    id_name = id_like_name(name)
     if is_integer_or_text and id_name:
         return "id" if unique_share > 0.95 else "entity"
     if is_integer_or_text and unique_share > 0.999 and n > 50:

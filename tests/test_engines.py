@@ -450,3 +450,18 @@ def test_sample_keys_hash_the_declared_features_only():
     assert stream_layout(["a", "split"], {"split_column": "split"}).key_columns(["a", "split"]) == [
         "a"
     ]
+
+
+@pytest.mark.parametrize("name", ["ref_id", "reference"])
+def test_an_undeclared_identifier_is_named_or_warned(big, tmp_path, name):
+    """Copies that differ in a unique text column the inputs do not declare: named like an
+    identifier, the sample's keys leave it out and keep each copy with its source; named
+    otherwise, the sample splits them and a warning says the copy finding understates."""
+    frame, _, _ = big
+    frame = frame.assign(**{name: [f"r{i:06d}" for i in range(len(frame))]})
+    folder = _write_parts(frame, tmp_path / "parts", 4)
+    doc = fa.audit(
+        str(folder), engine="stream", sample_rows=3000, probes=["twins"], **ARGS
+    ).document
+    warned = [w for w in doc["warnings"] if "understates" in w]
+    assert bool(warned) == (name == "reference"), doc["warnings"]

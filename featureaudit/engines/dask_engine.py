@@ -82,8 +82,9 @@ def dask_audit(
         raise SettingError(
             "--engine dask reads one table with --split-column; pass --engine memory with --test."
         )
-    schema = parquet_dataset(data).schema.names  # the same checks of the path as stream
-    layout = stream_layout(schema, build)
+    arrow = parquet_dataset(data).schema  # the same checks of the path as stream
+    schema = arrow.names
+    layout = stream_layout(schema, build, dict(zip(arrow.names, arrow.types, strict=True)))
     for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
         if col is not None and col not in schema:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")

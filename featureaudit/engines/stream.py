@@ -260,14 +260,31 @@ def copy_counts(
     return spill.counts()
 
 
-def stream_layout(names: list[str], build: dict[str, Any]) -> Layout:
+def _whole_or_text(t: pa.DataType) -> bool:
+    if pa.types.is_dictionary(t):
+        t = t.value_type
+    return bool(
+        pa.types.is_integer(t)
+        or pa.types.is_string(t)
+        or pa.types.is_large_string(t)
+        or (hasattr(pa.types, "is_string_view") and pa.types.is_string_view(t))
+    )
+
+
+def stream_layout(
+    names: list[str], build: dict[str, Any], types: dict[str, pa.DataType] | None = None
+) -> Layout:
     """The layout of a streamed table from the audit's inputs. The sample's row keys hash the
     features as far as the inputs declare them (not the split, target, times, entity, folds,
     nor a column the dictionary gives another role), the columns the copy search compares:
     a held-out copy of a training row's features then shares its key and the sample keeps
     both or neither, whatever its label time, target or entity (keys over every column kept
     one of 3,000 sampled rows' copies with chance 0.26: 1.5 % of held-out rows sampled with a
-    copy against 6.4 % counted over every row)."""
+    copy against 6.4 % counted over every row). Whole-number and text columns named like an
+    identifier are left out too: the audit takes them for identifiers when nearly every
+    value is distinct, which only the whole table can tell. ``types`` maps a column to its
+    Arrow type."""
+    from featureaudit.dictionary import id_like_name
     from featureaudit.table import NON_FEATURE_ROLES, _dictionary
 
     layout = Layout(
@@ -284,6 +301,10 @@ def stream_layout(names: list[str], build: dict[str, Any]) -> Layout:
     if ddict is not None:
         roles = ddict.entries
         declared |= {c for c, e in roles.items() if e.role in (*NON_FEATURE_ROLES, "id")}
+    if types is not None:
+        declared |= {
+            c for c in names if id_like_name(c) and c in types and _whole_or_text(types[c])
+        }
     keys = tuple(c for c in names if c not in declared)
     return Layout(**{**layout.__dict__, "keys": keys or tuple(layout.key_columns(names))})
 
@@ -306,7 +327,8 @@ def stream_audit(
             "the same folder with a split column, or pass --engine memory with --test."
         )
     dataset = parquet_dataset(data)
-    layout = stream_layout(dataset.schema.names, build)
+    schema = dataset.schema
+    layout = stream_layout(schema.names, build, dict(zip(schema.names, schema.types, strict=True)))
     for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
         if col is not None and col not in dataset.schema.names:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
@@ -350,6 +372,7 @@ def _report_engine(
         "stratified by side and target, drawn by the smallest content-and-seed hashes, so "
         "the same seed gives the same sample whatever the file's partitions or row order."
     )
+    _check_copies(doc, exact, engine)
     parts = exact["partitions"]
     d["rows"] = rows
     train = parts.get(layout.train_value, 0) if layout.split_column else rows
@@ -359,4 +382,29 @@ def _report_engine(
         doc["warnings"].append(
             f"the probes ran on a seeded sample of {sample_rows:,} of {rows:,} rows "
             f"({engine} engine); exact counts are in settings.exact"
+        )
+
+
+def _check_copies(doc: dict[str, Any], exact: dict[str, Any], engine: str) -> None:
+    """Warn when the sample shows far fewer held-out rows with an exact copy than every row
+    does (beyond 4 binomial SEs): copies that differ in a column the sample's keys hash (an
+    identifier the inputs did not declare) are sampled apart, so the sample's copy finding
+    understates them."""
+    whole = exact.get("share_heldout_with_exact_twin")
+    found = [
+        f
+        for f in doc.get("dataset_findings", [])
+        if f.get("kind") == ("duplicate_rows_across_split") and "share_exact" in f.get("detail", {})
+    ]
+    if whole is None or not found or not isinstance(doc.get("warnings"), list):
+        return
+    detail = found[0]["detail"]
+    held = max(int(detail.get("heldout_rows", 0)), 1)
+    seen = float(detail["share_exact"])
+    if whole - seen > 4 * np.sqrt(max(whole * (1 - whole), 1e-12) / held):
+        doc["warnings"].append(
+            f"{whole:.1%} of held-out rows have an exact copy among the training rows over "
+            f"every row, but {seen:.1%} in the {engine} engine's sample, so the copy finding "
+            "understates them: the copies differ in a column the sample's keys hash; give "
+            "identifier columns the role id in the dictionary and audit again"
         )
