@@ -39,6 +39,11 @@ NEIGHBOURS = 12  # nearest rows of the other side paired up (SMOTE's default k i
 MIN_DISTINCT = 20  # a column with fewer distinct training values is not continuous
 MIN_COLUMNS = 3
 MAX_COLUMNS = 50
+# the scaled matrix and the neighbour search cost rows x columns: past CELL_BUDGET cells
+# the columns with the most distinct values are kept, never fewer than MIN_SCALED (oversampling
+# writes every column, so 20 of them tell a segment as well as 50; cost, no source)
+CELL_BUDGET = 10_000_000
+MIN_SCALED = 20
 MAX_QUERIES = 2000  # rows queried per direction, chosen by content, not by file order
 # the exact neighbour search costs queries x pool rows: past 400 million pairs a direction
 # (2,000 queries against 200,000 rows) fewer rows are queried, never under MIN_QUERIES; at
@@ -101,8 +106,9 @@ def interpolated_rows(
 def _scaled(
     table: AuditTable, cols: list[str], train: np.ndarray, h: np.ndarray
 ) -> np.ndarray | None:
-    """The continuous columns, robustly scaled on the training rows (at most MAX_COLUMNS;
-    distinct counts, medians and IQRs from at most SCALE_ROWS of them, chosen by content)."""
+    """The continuous columns, robustly scaled on the training rows (at most MAX_COLUMNS,
+    fewer past CELL_BUDGET cells; distinct counts, medians and IQRs from at most SCALE_ROWS
+    of them, chosen by content)."""
     chosen: list[tuple[int, np.ndarray]] = []
     rows = _by_content(np.flatnonzero(train), h, SCALE_ROWS)
     for c in cols:
@@ -117,7 +123,8 @@ def _scaled(
     if len(chosen) < MIN_COLUMNS:
         return None
     chosen.sort(key=lambda p: -p[0])
-    picked = chosen[:MAX_COLUMNS]
+    limit = max(MIN_SCALED, min(MAX_COLUMNS, CELL_BUDGET // max(len(train), 1)))
+    picked = chosen[:limit]
     out = np.empty((len(train), len(picked)))  # filled in place: no second copy
     for j, (_, v) in enumerate(picked):
         med, scale = robust_params(v, rows)
