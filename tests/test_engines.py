@@ -465,3 +465,12 @@ def test_an_undeclared_identifier_is_named_or_warned(big, tmp_path, name):
     ).document
     warned = [w for w in doc["warnings"] if "understates" in w]
     assert bool(warned) == (name == "reference"), doc["warnings"]
+    # the identifier found by its values makes the features differ from the declared ones:
+    # a third pass hashes those, and counts the same copies as pandas on the features
+    passes = doc["settings"]["methods"]["engine"]
+    assert ("three passes" if name == "reference" else "two passes") in passes
+    features = [c for c in frame.columns if c not in ("entity", "target", "split", "decided_at")]
+    features.remove(name)
+    train, held = frame[frame["split"] == "train"], frame[frame["split"] == "test"]
+    twins = held[features].merge(train[features].drop_duplicates(), how="inner")
+    assert doc["settings"]["exact"]["heldout_rows_with_exact_twin"] == len(twins)

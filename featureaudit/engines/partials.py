@@ -26,6 +26,7 @@ __all__ = [
     "CopyPartial",
     "copy_counts",
     "batch_hashes",
+    "heldout_times",
     "sides",
     "exact_statistics",
     "merge_all",
@@ -177,10 +178,16 @@ def batch_hashes(
     if layout.entity is not None:
         e = row_hashes(_hashable(frame, [layout.entity]), [layout.entity])
     before = 0
-    if layout.label_time is not None and train_max is not None:
-        t = _epoch_ns(frame[layout.label_time], layout.label_time)[held]
-        before = int((t <= train_max).sum())
+    if train_max is not None:
+        before = int((heldout_times(frame, layout, held) <= train_max).sum())
     return held, h, e, before
+
+
+def heldout_times(frame: pd.DataFrame, layout: Layout, held: np.ndarray) -> np.ndarray:
+    """The held-out rows' label times in ns (NaN where missing; empty without a label time)."""
+    if layout.label_time is None:
+        return np.empty(0)
+    return _epoch_ns(frame[layout.label_time], layout.label_time)[held]
 
 
 @dataclass

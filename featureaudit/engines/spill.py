@@ -121,8 +121,10 @@ class HashSpill:
 
     def __init__(self, folder: str, entities: bool) -> None:
         self.folder = folder
+        Path(folder).mkdir(parents=True, exist_ok=True)
         self.sides = SIDES if entities else SIDES[:2]
         self._files: dict[tuple[str, int], IO[bytes]] = {}
+        self._times: IO[bytes] | None = None
         self.heldout_before_train_max = 0
         for side in self.sides:
             for b in range(BUCKETS):
@@ -142,10 +144,41 @@ class HashSpill:
         except OSError as exc:
             raise _full(exc, self.folder) from exc
 
-    def counts(self) -> CopyCounts:
-        """The exact figures, one bucket at a time."""
+    def close(self) -> None:
+        """Close every file unread (the spill is not needed after all)."""
         for fh in self._files.values():
             fh.close()
+        if self._times is not None:
+            self._times.close()
+
+    def add_times(self, times: np.ndarray) -> None:
+        """Append held-out label times (ns), counted against the training maximum at the end
+        (for a spill written before that maximum is known)."""
+        if self._times is None:
+            self._times = open(Path(self.folder) / "heldout-times.bin", "wb")  # noqa: SIM115
+        try:
+            self._times.write(np.ascontiguousarray(times, dtype=np.float64).tobytes())
+        except OSError as exc:
+            raise _full(exc, self.folder) from exc
+
+    def _count_times(self, train_max: float | None) -> int:
+        if self._times is None:
+            return 0
+        self._times.close()
+        if train_max is None:
+            return 0
+        count, chunk = 0, 1 << 22
+        with open(Path(self.folder) / "heldout-times.bin", "rb") as fh:
+            while (t := np.fromfile(fh, dtype=np.float64, count=chunk)).size:
+                count += int((t <= train_max).sum())
+        return count
+
+    def counts(self, train_max: float | None = None) -> CopyCounts:
+        """The exact figures, one bucket at a time (``train_max``: held-out label times
+        spilled by :meth:`add_times` are counted against it)."""
+        for fh in self._files.values():
+            fh.close()
+        self.heldout_before_train_max += self._count_times(train_max)
         total = CopyCounts(0, 0, 0, 0 if len(self.sides) > 2 else None, 0)
         for b in range(BUCKETS):
             loaded: dict[str, Any] = {

@@ -1,16 +1,19 @@
-"""The ``stream`` engine: a Parquet file or folder read batch by batch in three passes.
+"""The ``stream`` engine: a Parquet file or folder read batch by batch in two passes (three
+when the sample finds an identifier the inputs did not declare).
 
 Pass 1 maps every batch into the row counts (per partition and class), the label-time
 range per side and the seeded sample's keys (bottom-k per stratum, keys only), and spills
-each row's key and stratum to disk; pass 2 takes the rows those keys pick, without
-converting or hashing a batch again; pass 3, once the sample has settled which columns are
-features, spills every batch's feature-row and entity hashes per side into buckets by their
-top bits, and counts copies and shared entities one bucket at a time. Partials merge as a
-binary counter does (O(n log n) over n batches). Memory does not grow with the row count:
-one record batch (read page by page from each file, whatever its row groups), the sample,
-twice the sample's size in keys per stratum, and one bucket of hashes; the disk holds about
-26 bytes a row meanwhile (``spill``). The probes then run on the sample, and the exact
-figures are reported beside them in ``settings.exact``.
+each row's key and stratum to disk, with its copy hashes (the declared features' row hash
+and the entity's, per side, in buckets by their top bits) and the held-out label times;
+pass 2 takes the rows the keys pick, without converting or hashing a batch again. When the
+sample's audit table has other features than those declared (a column taken for an
+identifier by its values), a third pass hashes those instead. Copies and shared entities
+are then counted one bucket at a time. Partials merge as a binary counter does (O(n log n)
+over n batches). Memory does not grow with the row count: one record batch (read page by
+page from each file, whatever its row groups), the sample, twice the sample's size in keys
+per stratum, and one bucket of hashes; the disk holds about 34 bytes a row meanwhile
+(``spill``). The probes then run on the sample, and the exact figures are reported beside
+them in ``settings.exact``.
 """
 
 from __future__ import annotations
@@ -32,6 +35,7 @@ from featureaudit.engines.partials import (
     Layout,
     batch_hashes,
     exact_statistics,
+    heldout_times,
     merge_all,
     sides,
 )
@@ -132,9 +136,19 @@ class FirstPass:
     def map(
         cls, batch: pa.Table, layout: Layout, settings: Settings, keep_keys: bool = False
     ) -> FirstPass:
-        frame = _frame(batch)
+        return cls.from_frame(_frame(batch), batch.schema.names, layout, settings, keep_keys)
+
+    @classmethod
+    def from_frame(
+        cls,
+        frame: pd.DataFrame,
+        names: list[str],
+        layout: Layout,
+        settings: Settings,
+        keep_keys: bool = False,
+    ) -> FirstPass:
         strata = _strata(frame, layout)
-        keys = content_keys(frame, layout.key_columns(batch.schema.names), settings.seed)
+        keys = content_keys(frame, layout.key_columns(names), settings.seed)
         sketch = SampleSketch(settings.sample_rows)
         sketch.add(None, keys, strata)
         labels, inverse = np.unique(strata, return_inverse=True)
@@ -160,32 +174,58 @@ def stream_partials(
     settings: Settings,
     tick: Tick | None = None,
     folder: str | None = None,
+    copies: HashSpill | None = None,
 ) -> tuple[CountPartial, pa.Table]:
     """Passes 1 and 2: counts, time ranges and the sample's keys, each row's key spilled to
-    ``folder`` (a temporary one by default); then the sample's rows, picked by those keys."""
+    ``folder`` (a temporary one by default); then the sample's rows, picked by those keys.
+    With ``copies``, pass 1 also spills each batch's copy hashes over ``layout.keys`` and the
+    held-out label times, so that no third pass is needed when those are the features."""
     if folder is None:
         with spill_folder() as tmp:
-            return stream_partials(data, layout, settings, tick, tmp)
+            return stream_partials(data, layout, settings, tick, tmp, copies)
     spill = KeySpill(folder)
+    hashed = Layout(**{**layout.__dict__, "features": layout.keys})
+    step = "pass 1 of 2" if copies is not None else "pass 1 of 3"
 
     def first(batch: pa.Table) -> FirstPass:
-        part = FirstPass.map(batch, layout, settings, keep_keys=True)
+        frame = _frame(batch)
+        part = FirstPass.from_frame(frame, batch.schema.names, layout, settings, keep_keys=True)
         assert part.row_keys is not None
         spill.write(*part.row_keys)
         part.row_keys = None
-        return _ticked(part, batch, tick, "pass 1 of 3")
+        if copies is not None:
+            _spill_copies(copies, frame, hashed, None)
+        return _ticked(part, batch, tick, step)
 
     merged = merge_all(first(b) for b in _batches(data))
     if merged is None:
         raise InputFileError("the Parquet table has no rows; pass a table with data rows.")
     cut = merged.sketch.cutoffs(settings.sample_rows)
     kept = spill.read()
+    step = "pass 2 of 2" if copies is not None else "pass 2 of 3"
     rows = merge_all(
-        _ticked(_picked(b, next(kept, None), cut), b, tick, "pass 2 of 3") for b in _batches(data)
+        _ticked(_picked(b, next(kept, None), cut), b, tick, step) for b in _batches(data)
     )
     if rows is None or next(kept, None) is not None:
         raise InputFileError(_CHANGED)
     return merged.counts, rows.draw()
+
+
+def _spill_copies(
+    spill: HashSpill, frame: pd.DataFrame, layout: Layout, train_max: float | None
+) -> None:
+    """One batch's copy hashes per side into ``spill``; its held-out label times too when
+    the training maximum is not known yet."""
+    held, h, e, before = batch_hashes(frame, layout, train_max)
+    spill.add("train", h[~held])
+    spill.add("heldout", h[held])
+    if e is not None:
+        spill.add("train_entities", e[~held])
+        spill.add("heldout_entities", e[held])
+    if train_max is not None:
+        spill.heldout_before_train_max += before
+    elif layout.label_time is not None:
+        spill.add_times(heldout_times(frame, layout, held))
 
 
 _CHANGED = (
@@ -249,13 +289,7 @@ def copy_counts(
     picked = [c for c in columns if c]
     spill = HashSpill(folder, entities=layout.entity is not None)
     for batch in _batches(data, picked):
-        held, h, e, before = batch_hashes(_frame(batch), layout, train_max)
-        spill.add("train", h[~held])
-        spill.add("heldout", h[held])
-        if e is not None:
-            spill.add("train_entities", e[~held])
-            spill.add("heldout_entities", e[held])
-        spill.heldout_before_train_max += before
+        _spill_copies(spill, _frame(batch), layout, train_max)
         _ticked(None, batch, tick, "pass 3 of 3")
     return spill.counts()
 
@@ -333,16 +367,24 @@ def stream_audit(
         if col is not None and col not in dataset.schema.names:
             raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
     with spill_folder() as folder:
-        counts, drawn = stream_partials(dataset, layout, settings, tick, folder)
+        early = HashSpill(str(Path(folder) / "copies"), entities=layout.entity is not None)
+        counts, drawn = stream_partials(dataset, layout, settings, tick, folder, early)
         sample = drawn.to_pandas()
         source = build.get("source") or Path(data).name
         table = build_table(sample, **{**build, "source": source})
-        layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
         train_max = counts.times.get("train", [None, None])[1]
-        copies = copy_counts(dataset, layout, train_max, tick, folder)
+        passes = "two passes"
+        if set(table.features) == set(layout.keys):  # pass 1 hashed the features: counted
+            layout = Layout(**{**layout.__dict__, "features": layout.keys})
+            copies = early.counts(train_max)
+        else:  # the sample made other columns features (an identifier found by its values)
+            early.close()
+            layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
+            copies = copy_counts(dataset, layout, train_max, tick, folder)
+            passes = "three passes"
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(counts, copies)
-    _report_engine(findings.document, exact, table.n_rows, layout, "stream", "three passes")
+    _report_engine(findings.document, exact, table.n_rows, layout, "stream", passes)
     return findings
 
 
