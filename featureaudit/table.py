@@ -57,6 +57,9 @@ class AuditTable:
     partition_of: np.ndarray | None = None  # partition name per row (str); None as one pool
     folds: np.ndarray | None = None  # CV fold name per row (str), "" on held-out rows
     fold_column: str | None = None
+    # rows of the whole table when ``frame`` is the stream or dask engine's sample of it
+    # (keyed by row content, so exact copies stay together); None when frame is the table
+    population_rows: int | None = None
 
     @property
     def n_rows(self) -> int:

@@ -115,6 +115,7 @@ def dask_audit(
                 sample = picked.draw().to_pandas()
                 source = build.get("source") or Path(data).name
                 table = build_table(sample, **{**build, "source": source})
+                table.population_rows = int(sum(first.counts.partitions.values()))
                 layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
                 train_max = first.counts.times.get("train", [None, None])[1]
                 copies = _tree(  # only the counts come back, not the hash sets

@@ -372,6 +372,7 @@ def stream_audit(
         sample = drawn.to_pandas()
         source = build.get("source") or Path(data).name
         table = build_table(sample, **{**build, "source": source})
+        table.population_rows = int(sum(counts.partitions.values()))
         train_max = counts.times.get("train", [None, None])[1]
         passes = "two passes"
         if set(table.features) == set(layout.keys):  # pass 1 hashed the features: counted

@@ -251,7 +251,10 @@ class Twins(Probe):
         h = row_hashes(table.frame, cols, settings.n_jobs)
         dup = pd.Series(h).duplicated(keep=False).to_numpy()
         share = float(dup.mean())
-        natural = _natural_share(table, cols, table.n_rows - 1) if share else 0.0
+        # copies are sampled together (the sample is keyed by row content), so a sample
+        # keeps the whole table's copy share: chance copies are reckoned among its rows too
+        partners = (table.population_rows or table.n_rows) - 1
+        natural = _natural_share(table, cols, partners, h=h) if share else 0.0
         level = within_level(share, int(dup.sum()), natural, t)
         detail = {
             "rows_with_copy": int(dup.sum()),
@@ -526,12 +529,20 @@ def _near_agreement(
 
 
 def _natural_share(
-    table: AuditTable, cols: list[str], partners: int, sample: int = 20_000
+    table: AuditTable,
+    cols: list[str],
+    partners: int,
+    sample: int = 20_000,
+    h: np.ndarray | None = None,
 ) -> float:
     """Share of rows expected to have an exact copy among ``partners`` others if the columns
-    were independent, from each column's collision probability (unbiased on a sample). Data
-    whose columns take few values has copies by nature, not by a pipeline mistake."""
-    rows = np.arange(0, table.n_rows, max(1, table.n_rows // sample))
+    were independent, from each column's collision probability (unbiased on a sample: the
+    rows of smallest hash ``h`` when given, so the file's order plays no part). Data whose
+    columns take few values has copies by nature, not by a pipeline mistake."""
+    if h is not None and table.n_rows > sample:
+        rows = np.sort(np.argpartition(h, sample - 1)[:sample])
+    else:
+        rows = np.arange(0, table.n_rows, max(1, table.n_rows // sample))
     log_p = 0.0
     for c in cols:
         counts = pd.Series(column_codes(table.frame[c].iloc[rows])).value_counts().to_numpy()
