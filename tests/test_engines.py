@@ -498,3 +498,21 @@ def test_a_sample_keeps_natural_copies_natural(tmp_path):
         ).document
         found = {f["kind"]: f for f in doc["dataset_findings"]}
         assert found["duplicate_rows_across_split"]["level"] not in ("high", "critical")
+
+
+def test_fitted_steps_are_not_judged_on_a_sample(big, tmp_path):
+    """A scaler fitted on all rows (scikit-learn's StandardScaler on breast-cancer rows) is
+    caught when the sample holds every row; on a sample, where the all-rows fingerprint
+    cannot hold and chance matches raised a clean column, fitscope says it did not run."""
+    from sklearn.preprocessing import StandardScaler
+
+    frame, _, _ = big
+    frame = frame.copy()
+    frame["mean radius"] = StandardScaler().fit_transform(frame[["mean radius"]]).ravel()
+    folder = _write_parts(frame, tmp_path / "parts", 4)
+    whole = fa.audit(str(folder), engine="stream", sample_rows=len(frame), **ARGS).document
+    row = next(c for c in whole["columns"] if c["column"] == "mean radius")
+    assert "fit_on_all_rows" in row["kinds"] and row["level"] in ("high", "critical")
+    part = fa.audit(str(folder), engine="stream", sample_rows=3000, **ARGS).document
+    assert not any("fit_on_all_rows" in c["kinds"] for c in part["columns"])
+    assert any(s["probe"] == "fitscope" and "sample" in s["reason"] for s in part["skipped"])

@@ -93,6 +93,8 @@ class Fitscope(Probe):
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
+        if table.population_rows is not None and table.population_rows > table.n_rows:
+            return [], [Skip(self.name, SAMPLED)]
         skipped: list[Skip] = []
         split = table.heldout is not None and table.heldout_rows >= 1
         if not split:
@@ -123,6 +125,16 @@ class Fitscope(Probe):
         if split and table.y is not None and table.target_problem is None:
             evidence.extend(_encodings(table, train))
         return evidence, skipped
+
+
+# a fit's fingerprint is exact over the rows it was fitted on; a sample's statistics match
+# neither fit but by chance (randhie's capped deductible matched the sample's all-rows cap:
+# a clean column at high), so on a sample of the table the probe does not judge
+SAMPLED = (
+    "not run on a sample: a fitted step's fingerprint (exact mean, quantile or category "
+    "rate) holds over every row it was fitted on, not over a sample of them; audit the "
+    "table with --engine memory to check fitted steps"
+)
 
 
 def _check_column(
