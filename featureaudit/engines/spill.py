@@ -4,8 +4,9 @@ Pass 1's row keys and strata codes (10 bytes a row) are written in batch order a
 batch by batch in pass 2. Pass 3's row and entity hashes go into ``BUCKETS`` files per side
 by their top bits, so each bucket, counted alone, fits in memory; a hash falls in the same
 bucket on both sides, so the exact copy and entity counts are sums over the buckets. Memory:
-one batch and one bucket (1/``BUCKETS`` of the hashes); disk: 8 bytes a row per hashed side
-and kind, 10 bytes a row for the keys, in a temporary folder (``TMPDIR``) removed at the end.
+one batch and one bucket (1/``BUCKETS`` of the hashes); disk: 10 bytes a row for the keys, 8
+for the row hash, 8 for the entity's and 8 per held-out row for its label time (up to 34), in a
+temporary folder (``TMPDIR``) removed at the end.
 """
 
 from __future__ import annotations
@@ -36,7 +37,7 @@ def spill_folder() -> tempfile.TemporaryDirectory[str]:
 def _full(exc: OSError, folder: str) -> InputFileError:
     if exc.errno == errno.ENOSPC:
         return InputFileError(
-            f"no space left in {folder!r} for the stream engine's spill files (about 26 bytes "
+            f"no space left in {folder!r} for the stream engine's spill files (up to 34 bytes "
             "a row); set TMPDIR to a folder on a larger disk."
         )
     return InputFileError(f"cannot write the stream engine's spill files in {folder!r}: {exc}.")
