@@ -48,6 +48,12 @@ def _write_parts(frame: pd.DataFrame, folder, parts: int, shuffle_seed: int | No
     return folder
 
 
+def _scan_stream(table, *extra: str):
+    """``featureaudit scan`` of ``table`` with the stream engine and ``extra`` flags."""
+    head = ["scan", str(table), "--target", "target", "--split-column", "split"]
+    return runner.invoke(app, [*head, "--engine", "stream", *extra])
+
+
 @pytest.fixture(scope="module")
 def big(tmp_path_factory):
     frame = _table(reps=20)  # 11,380 rows
@@ -200,24 +206,7 @@ def test_progress_is_silent_unless_shown(capsys):
 
 def test_quiet_scan_writes_nothing_to_stderr(big, tmp_path):
     _, seven, _ = big
-    out = runner.invoke(
-        app,
-        [
-            "scan",
-            str(seven),
-            "--target",
-            "target",
-            "--split-column",
-            "split",
-            "--engine",
-            "stream",
-            "--sample-rows",
-            "800",
-            "--quiet",
-            "--out",
-            str(tmp_path),
-        ],
-    )
+    out = _scan_stream(seven, "--sample-rows", "800", "--quiet", "--out", str(tmp_path))
     assert out.exit_code in (0, 1), out.output
     assert (tmp_path / "findings.json").is_file()
 
@@ -387,21 +376,7 @@ def test_a_part_without_a_column_exits_2_naming_it(tmp_path):
     frame = _table(reps=2)
     folder = _write_parts(frame, tmp_path / "parts", 2)
     frame.iloc[:50].drop(columns=["mean radius"]).to_parquet(folder / "part-02.parquet")
-    out = runner.invoke(
-        app,
-        [
-            "scan",
-            str(folder),
-            "--target",
-            "target",
-            "--split-column",
-            "split",
-            "--engine",
-            "stream",
-            "--out",
-            str(tmp_path / "r"),
-        ],
-    )
+    out = _scan_stream(folder, "--out", str(tmp_path / "r"))
     assert out.exit_code == 2 and "part-02.parquet" in out.output, out.output
     assert not (tmp_path / "r").exists()
 
