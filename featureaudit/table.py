@@ -545,9 +545,13 @@ def _has_relative_known_at(table: AuditTable) -> bool:
 def _partition_names(
     codes: np.ndarray, names: np.ndarray, is_train: np.ndarray, train_value: str
 ) -> np.ndarray:
-    """Each row's partition: the training value, or its own held-out value ("(missing)")."""
-    held = np.where(codes >= 0, names[codes], "(missing)").astype(str).astype(object)
-    return np.where(is_train, train_value, held).astype(object)
+    """Each row's partition: the training value, or its own held-out value ("(missing)").
+    One label per split value, indexed by the codes (a training row's value is the training
+    value itself); code -1 takes the last label."""
+    labels = np.array([*(str(n) for n in names[:-1]), "(missing)"], dtype=object)
+    out = labels[codes]
+    out[is_train] = train_value
+    return out
 
 
 def _set_folds(table: AuditTable, column: str, src: str) -> None:

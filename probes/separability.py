@@ -163,6 +163,15 @@ def _codes(s: pd.Series) -> np.ndarray:
     v = numeric_view(s)
     if v is not None:
         return v
+    if isinstance(s.dtype, pd.CategoricalDtype):  # the categories' texts ranked once
+        raw = s.cat.codes.to_numpy()
+        names = np.asarray(s.cat.categories.astype("string").astype(object), dtype=object)
+        used = np.zeros(len(names), dtype=bool)
+        used[raw[raw >= 0]] = True
+        _, rank = np.unique(names[used].astype(str), return_inverse=True)
+        ranks = np.full(len(names) + 1, np.nan)  # the last entry serves code -1 (missing)
+        ranks[np.flatnonzero(used)] = rank
+        return ranks[raw]
     text = s.astype("string")
     codes, _ = pd.factorize(text, sort=True, use_na_sentinel=True)
     return np.where(codes < 0, np.nan, codes).astype(np.float64)

@@ -27,7 +27,11 @@ import pandas as pd
 from featureaudit.evidence import Evidence
 from featureaudit.io import numeric_view
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
-from featureaudit.probes.fitscope._precision import mean_tolerance, value_error
+from featureaudit.probes.fitscope._precision import (
+    largest_value_error,
+    mean_tolerance,
+    value_error,
+)
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS
 from featureaudit.table import AuditTable
 
@@ -59,6 +63,15 @@ def _centred_candidates(
         mean, mean_train = float(v.sum()) / n, float(v @ weights) / n_train
         sd = float(np.sqrt(max(float(v @ v) / n - mean * mean, 0.0)))
         if sd == 0 or min(abs(mean), abs(mean_train)) > 1e-3 * sd:
+            continue
+        # the mean tolerances below are at most 5 e_max / sqrt(3 n) + 16 eps max|v|, with
+        # e_max the largest storage error: a mean past that bound on both sets of rows rules
+        # the column out before an error per value is worked out
+        e_max, top = largest_value_error(s, v), float(np.max(np.abs(v)))
+        if all(
+            abs(m) > max(5 * e_max / np.sqrt(3 * k) + 16 * np.finfo(float).eps * top, FLOOR * sd)
+            for m, k in ((mean, n), (mean_train, n_train))
+        ):
             continue
         e = value_error(s, v)
         floor = FLOOR * sd

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["value_error", "mean_tolerance", "sd_tolerance"]
+__all__ = ["value_error", "largest_value_error", "mean_tolerance", "sd_tolerance"]
 
 _EPS64 = np.finfo(np.float64).eps
 _EPS32 = float(np.finfo(np.float32).eps)
@@ -37,6 +37,31 @@ def value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> np.ndar
     if not candidates:
         return floor
     return np.maximum(np.maximum.reduce(candidates), floor)
+
+
+def largest_value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> float:
+    """The largest of :func:`value_error` over ``values``, without an error per value: the
+    storage spellings come from the same probe of values, and an error grows with the
+    value's magnitude (zeros err as values of magnitude 1 do)."""
+    finite = values[np.isfinite(values)]
+    if finite.size == 0:
+        return 0.0
+    top = float(np.max(np.abs(finite)))
+    if s.dtype == np.float32:
+        return 0.5 * _EPS32 * top + 1e-45
+    probe = finite[:: max(1, finite.size // sample)]
+    sig = _significant_digits(probe)
+    dec = _decimals(probe)
+    mags = [np.floor(np.log10(top))] if top > 0 else []
+    if np.any(values == 0):
+        mags.append(0.0)
+    floor = 4 * _EPS64 * top + 1e-300
+    candidates = []
+    if sig is not None and mags:
+        candidates.append(0.5 * 10.0 ** (max(mags) - sig + 1))
+    if dec is not None:
+        candidates.append(0.5 * 10.0**-dec)
+    return max([*candidates, floor])
 
 
 def _significant_digits(values: np.ndarray) -> int | None:

@@ -29,7 +29,7 @@ def looks_robust(v: np.ndarray, v_tr: np.ndarray) -> bool:
 
 
 def _centred_unit_iqr(x: np.ndarray) -> bool:
-    if not _median_may_be_zero(x):
+    if not _median_may_be_zero(x) or not _iqr_may_be_one(x):
         return False
     m, iqr = _median_iqr(x)
     return abs(m) <= 1e-3 and abs(iqr - 1) <= 1e-2
@@ -40,6 +40,20 @@ def _median_may_be_zero(x: np.ndarray, tol: float = 1e-3) -> bool:
     half the values at most tol, and likewise below): no percentile on most columns."""
     half = x.size / 2
     return bool(x.size) and (x <= tol).sum() >= half and (x >= -tol).sum() >= half
+
+
+def _iqr_may_be_one(x: np.ndarray, reach: float = 0.51) -> bool:
+    """A necessary condition, by two counts, of an IQR of at most 1.01 around a median within
+    1e-3 of 0: the quartiles' distances from the median sum to the IQR, so one of them is at
+    most 0.505, and q25 >= -0.506 leaves at most k + 1 values below it (k = floor(0.25 (n-1)),
+    numpy's linear interpolation), q75 <= 0.506 at least j + 1 values at or below it
+    (j = floor(0.75 (n-1))); ``reach`` 0.51 keeps a margin over 0.506."""
+    n = x.size
+    if n < 2:
+        return True
+    below = int(np.count_nonzero(x < -reach))
+    at_or_below = int(np.count_nonzero(x <= reach))
+    return below <= (n - 1) // 4 + 1 or at_or_below >= (3 * (n - 1)) // 4 + 1
 
 
 def robust_scaled(name, values, err, ok, train, split):

@@ -656,3 +656,45 @@ def test_the_median_gate_never_rules_out_a_median_near_zero(seed):
         assert _median_may_be_zero(x)
     assert not _median_may_be_zero(rng.normal(2, 1, 1000))
     assert not _median_may_be_zero(np.r_[np.full(3, -5.0), [0.01], np.full(3, 5.0)])
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_the_iqr_gate_never_rules_out_a_robust_scaled_column(seed):
+    # scikit-learn's RobustScaler output has median 0 and IQR 1 by numpy's percentiles (the
+    # reference); the two-count gate must pass every such column, of any shape, and rule out
+    # an unscaled normal column, whose IQR is 1.35 SDs
+    from sklearn.preprocessing import RobustScaler
+
+    from featureaudit.probes.fitscope._robust import _iqr_may_be_one, _median_iqr
+
+    rng = np.random.default_rng(seed)
+    shapes = (
+        lambda n: rng.normal(size=n),
+        lambda n: rng.lognormal(size=n),
+        lambda n: np.r_[rng.normal(-3, 0.1, n // 2), rng.normal(3, 0.1, n - n // 2)],
+        lambda n: rng.standard_t(2, size=n),
+        lambda n: rng.integers(0, 5, n) + rng.normal(0, 1e-3, n),
+    )
+    for draw in shapes:
+        for n in (5, 6, 7, 101, 1000):
+            v = RobustScaler().fit_transform(draw(n)[:, None]).ravel()
+            median, iqr = _median_iqr(v)
+            assert abs(median) <= 1e-3 and abs(iqr - 1) <= 1e-2
+            assert _iqr_may_be_one(v)
+    assert not _iqr_may_be_one(rng.normal(0, 1.0, 100_000))
+
+
+def test_the_largest_value_error_bounds_every_value_error(breast_cancer):
+    # value_error per value against its one-number bound, on scikit-learn's breast-cancer
+    # columns as float64, through CSV at 6 significant digits, and as float32
+    import io
+
+    from featureaudit.probes.fitscope._precision import largest_value_error, value_error
+
+    frame = breast_cancer.drop(columns="malignant")
+    csv = pd.read_csv(io.StringIO(frame.to_csv(index=False, float_format="%.6g")))
+    for table in (frame, csv, frame.astype(np.float32)):
+        for name in table.columns:
+            s = table[name]
+            v = s.to_numpy(dtype=float)
+            assert value_error(s, v).max() <= largest_value_error(s, v) * (1 + 1e-12), name
