@@ -9,6 +9,7 @@ sample; and a training row and its held-out copy share a key, so copies stay tog
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -220,14 +221,20 @@ class SampleRows:
             out.rows.setdefault(label, []).extend(other.rows[label])
         return out
 
-    def draw(self) -> pa.Table:
-        """The sample in key order (rows tied at a cut-off key are equal, so any of them do)."""
-        parts, keys = [], []
+    def draw(self, tiebreak: Callable[[pa.Table], np.ndarray] | None = None) -> pa.Table:
+        """The sample in key order. Keys hash the features only, so rows tied at a cut-off
+        key may differ elsewhere (time, entity, target): ``tiebreak`` gives each candidate
+        row a second key from its other columns, so which of them the sample takes does not
+        follow the file's order or partitions."""
+        parts, keys, seconds = [], [], []
         for label in sorted(self.keys):
             k = np.concatenate(self.keys[label])
-            take = np.argsort(k, kind="stable")[: self.cut[label][1]]
             rows = pa.concat_tables(self.rows[label], promote_options="default")
+            second = tiebreak(rows) if tiebreak is not None else np.zeros(k.size, np.uint64)
+            take = np.lexsort((second, k))[: self.cut[label][1]]
             parts.append(rows.take(pa.array(take)))
             keys.append(k[take])
+            seconds.append(second[take])
         table = pa.concat_tables(parts, promote_options="default")
-        return table.take(pa.array(np.argsort(np.concatenate(keys), kind="stable")))
+        order = np.lexsort((np.concatenate(seconds), np.concatenate(keys)))
+        return table.take(pa.array(order))

@@ -168,7 +168,7 @@ def _codes(s: pd.Series) -> np.ndarray:
         names = np.asarray(s.cat.categories.astype("string").astype(object), dtype=object)
         used = np.zeros(len(names), dtype=bool)
         used[raw[raw >= 0]] = True
-        _, rank = np.unique(names[used].astype(str), return_inverse=True)
+        _, rank = np.unique(names[used], return_inverse=True)  # Python's str order, NULs kept
         ranks = np.full(len(names) + 1, np.nan)  # the last entry serves code -1 (missing)
         ranks[np.flatnonzero(used)] = rank
         return ranks[raw]

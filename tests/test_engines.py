@@ -491,3 +491,74 @@ def test_fitted_steps_are_not_judged_on_a_sample(big, tmp_path):
     part = fa.audit(str(folder), engine="stream", sample_rows=3000, **ARGS).document
     assert not any("fit_on_all_rows" in c["kinds"] for c in part["columns"])
     assert any(s["probe"] == "fitscope" and "sample" in s["reason"] for s in part["skipped"])
+
+
+def test_parts_with_promotable_types_are_read_as_one_table(tmp_path):
+    """pandas writes a whole-number column with gaps as floats and text as categories or
+    strings: parts that differ so read as one table (the same exact figures as one part)."""
+    frame = _table(reps=2)
+    frame["visits"] = np.arange(len(frame)) % 7
+    frame["kind"] = np.where(np.arange(len(frame)) % 3 == 0, "a", "b")
+    whole = tmp_path / "whole"
+    whole.mkdir()
+    frame.to_parquet(whole / "all.parquet", index=False)
+    mixed = tmp_path / "mixed"
+    mixed.mkdir()
+    half = len(frame) // 2
+    frame.iloc[:half].to_parquet(mixed / "p0.parquet", index=False)
+    tail = frame.iloc[half:].assign(
+        visits=frame["visits"].iloc[half:].astype(float),
+        kind=frame["kind"].iloc[half:].astype("category"),
+    )
+    tail.to_parquet(mixed / "p1.parquet", index=False)
+    kw = dict(sample_rows=400, probes=["timing"], **ARGS)
+    a = fa.audit(str(whole), engine="stream", **kw).document["settings"]["exact"]
+    b = fa.audit(str(mixed), engine="stream", **kw).document["settings"]["exact"]
+    assert a == b
+
+
+@pytest.mark.parametrize("flag", ["--entity", "--label-time", "--cutoff-time"])
+def test_a_flag_naming_a_missing_column_exits_2_before_reading(big, flag, tmp_path):
+    _, seven, _ = big
+    out = _scan_stream(seven, flag, "nope", "--out", str(tmp_path / "r"))
+    assert out.exit_code == 2 and "'nope'" in out.output and flag in out.output, out.output
+
+
+def test_a_numeric_target_keeps_side_only_strata_per_batch(diabetes):
+    """A numeric target has a value per row: a batch keeps its rows' sides, not 65,536 labels
+    (the sample is stratified by side only for such a target anyway)."""
+    import pyarrow as pa
+
+    from featureaudit.engines.stream import FirstPass
+    from featureaudit.settings import Settings
+
+    frame = diabetes.assign(split=np.where(np.arange(len(diabetes)) % 4 == 0, "test", "train"))
+    batch = pa.Table.from_pandas(frame, preserve_index=False)
+    layout = Layout("split", "train", "progression")
+    part = FirstPass.map(batch, layout, Settings(sample_rows=100), keep_keys=True)
+    assert part.row_keys is not None
+    assert sorted(part.row_keys[1]) == ["heldout", "train"]
+
+
+def test_stream_sample_does_not_follow_row_order_when_keys_tie(tmp_path):
+    """Few-valued features: many rows share the features' key and differ in time and entity;
+    the tie-break over the other columns takes the same rows whatever the file's order."""
+    rng = np.random.default_rng(4)
+    n = 4000
+    frame = pd.DataFrame(
+        {
+            "a": rng.integers(0, 3, n),
+            "b": rng.integers(0, 2, n),
+            "target": rng.integers(0, 2, n),
+            "entity": rng.integers(0, 900, n),
+            "decided_at": pd.Timestamp("2024-01-01")
+            + pd.to_timedelta(rng.integers(0, 9000, n), "h"),
+            "split": np.where(rng.random(n) < 0.75, "train", "test"),
+        }
+    )
+    runs = []
+    for order in (None, 1):
+        folder = _write_parts(frame, tmp_path / f"parts{order}", 3, shuffle_seed=order)
+        doc = fa.audit(str(folder), engine="stream", sample_rows=500, **ARGS).document
+        runs.append((doc["columns"], doc["dataset_findings"]))
+    assert runs[0] == runs[1]

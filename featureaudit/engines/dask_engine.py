@@ -3,7 +3,8 @@ partitions of ``dask.dataframe.read_parquet``, on a given scheduler or a local c
 
 The merged partials (counts and the sample) are gathered to the client; the copy hashes are
 merged and counted on the workers, and only their counts come back. The probes run on the
-client on the sample, as with the stream engine. Three passes, as there.
+client on the sample, as with the stream engine. Three passes: the stream engine's two and
+its copy pass.
 """
 
 from __future__ import annotations
@@ -21,8 +22,10 @@ from featureaudit.engines.stream import (
     FirstPass,
     _report_engine,
     parquet_dataset,
+    require_columns,
     sample_rows,
     stream_layout,
+    whole_row_keys,
 )
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings
@@ -85,9 +88,7 @@ def dask_audit(
     arrow = parquet_dataset(data).schema  # the same checks of the path as stream
     schema = arrow.names
     layout = stream_layout(schema, build, dict(zip(arrow.names, arrow.types, strict=True)))
-    for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
-        if col is not None and col not in schema:
-            raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
+    require_columns(schema, build, data)
     cluster = None
     if scheduler is None:
         cluster = LocalCluster(
@@ -112,7 +113,7 @@ def dask_audit(
                 )
                 if tick:
                     tick("pass 2 of 3", rows)
-                sample = picked.draw().to_pandas()
+                sample = picked.draw(whole_row_keys(layout, settings)).to_pandas()
                 source = build.get("source") or Path(data).name
                 table = build_table(sample, **{**build, "source": source})
                 table.population_rows = int(sum(first.counts.partitions.values()))

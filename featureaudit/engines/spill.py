@@ -68,6 +68,15 @@ class CopyCounts:
         )
 
 
+def _close(files: list[IO[bytes]], folder: str) -> None:
+    """Close spill files; the last buffered writes land here, so a full disk shows here too."""
+    try:
+        for fh in files:
+            fh.close()
+    except OSError as exc:
+        raise _full(exc, folder) from exc
+
+
 def count_copies(
     train: np.ndarray,
     heldout: np.ndarray,
@@ -85,7 +94,8 @@ def count_copies(
 
 class KeySpill:
     """Pass 1's row keys and strata codes per batch, written in order and read back in order;
-    the few stratum labels of each batch stay in memory."""
+    the few stratum labels of each batch stay in memory (a numeric target's batches keep
+    the side only)."""
 
     def __init__(self, folder: str) -> None:
         self.folder = folder
@@ -103,8 +113,7 @@ class KeySpill:
 
     def read(self) -> Iterator[tuple[np.ndarray, np.ndarray, np.ndarray]]:
         """(keys, labels, strata codes) per batch, in the order they were written."""
-        self._keys.close()
-        self._codes.close()
+        _close([self._keys, self._codes], self.folder)
         with (
             open(Path(self.folder) / "keys.bin", "rb") as keys,
             open(Path(self.folder) / "strata.bin", "rb") as codes,
@@ -147,10 +156,7 @@ class HashSpill:
 
     def close(self) -> None:
         """Close every file unread (the spill is not needed after all)."""
-        for fh in self._files.values():
-            fh.close()
-        if self._times is not None:
-            self._times.close()
+        _close([*self._files.values(), *([self._times] if self._times else [])], self.folder)
 
     def add_times(self, times: np.ndarray) -> None:
         """Append held-out label times (ns), counted against the training maximum at the end
@@ -165,7 +171,7 @@ class HashSpill:
     def _count_times(self, train_max: float | None) -> int:
         if self._times is None:
             return 0
-        self._times.close()
+        _close([self._times], self.folder)
         if train_max is None:
             return 0
         count, chunk = 0, 1 << 22
@@ -177,8 +183,7 @@ class HashSpill:
     def counts(self, train_max: float | None = None) -> CopyCounts:
         """The exact figures, one bucket at a time (``train_max``: held-out label times
         spilled by :meth:`add_times` are counted against it)."""
-        for fh in self._files.values():
-            fh.close()
+        _close(list(self._files.values()), self.folder)
         self.heldout_before_train_max += self._count_times(train_max)
         total = CopyCounts(0, 0, 0, 0 if len(self.sides) > 2 else None, 0)
         for b in range(BUCKETS):

@@ -19,6 +19,7 @@ them in ``settings.exact``.
 from __future__ import annotations
 
 import os
+import shutil
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -76,28 +77,63 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
     if not files:
         raise InputFileError(f"folder {str(p)!r} holds no .parquet files; pass a Parquet folder.")
     try:
-        return ds.dataset([str(f) for f in files], format="parquet")
+        schemas = [pq.read_schema(f) for f in files]
     except (pa.ArrowInvalid, OSError) as exc:
         raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
+    return ds.dataset([str(f) for f in files], format="parquet", schema=_unified(schemas, p))
+
+
+def _unified(schemas: list[pa.Schema], path: Path) -> pa.Schema:
+    """One schema for every part, as pandas writes them: a column with gaps as floats in one
+    part and whole numbers in another reads as floats, categories and text as text; parts
+    whose types cannot meet are named. Columns keep the first part's order."""
+    try:
+        return pa.unify_schemas(schemas, promote_options="permissive")
+    except (pa.ArrowInvalid, pa.ArrowTypeError):
+        pass
+    plain = [
+        pa.schema(
+            [
+                f.with_type(f.type.value_type) if pa.types.is_dictionary(f.type) else f
+                for f in schema
+            ]
+        )
+        for schema in schemas
+    ]
+    try:
+        return pa.unify_schemas(plain, promote_options="permissive")
+    except (pa.ArrowInvalid, pa.ArrowTypeError) as exc:
+        first = str(exc).strip().splitlines()[0]
+        raise InputFileError(
+            f"the Parquet parts of {str(path)!r} disagree on a column's type ({first}); "
+            "write every part with the same types."
+        ) from exc
 
 
 def _batches(data: ds.Dataset, columns: list[str] | None = None) -> Iterator[pa.Table]:
     """Record batches of at most BATCH_ROWS rows, file after file, decoded page by page (no
     pre-buffering of whole row groups), with the table's columns (or ``columns``) in order."""
     names = list(columns or data.schema.names)
+    target = pa.schema([data.schema.field(c) for c in names])
     for path in data.files:
         try:
             part = pq.ParquetFile(path, pre_buffer=False, buffer_size=1 << 20)
-            missing = [c for c in names if c not in part.schema_arrow.names]
-            if missing:
-                raise InputFileError(
-                    f"Parquet part {path!r} lacks column {missing[0]!r} that the other parts "
-                    "have; give every part the same columns."
-                )
-            for batch in part.iter_batches(batch_size=BATCH_ROWS, columns=names):
-                if batch.num_rows:
-                    yield pa.Table.from_batches([batch])
-        except (pa.ArrowInvalid, pa.ArrowTypeError, OSError) as exc:
+            try:
+                present = set(part.schema_arrow.names)
+                missing = [c for c in names if c not in present]
+                if missing:
+                    raise InputFileError(
+                        f"Parquet part {path!r} lacks column {missing[0]!r} that the other "
+                        "parts have; give every part the same columns."
+                    )
+                for batch in part.iter_batches(batch_size=BATCH_ROWS, columns=names):
+                    if batch.num_rows:  # every part's batches in the one schema of all parts
+                        yield pa.Table.from_batches([batch]).cast(target)
+            finally:
+                part.close()
+        except InputFileError:
+            raise
+        except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError, OSError) as exc:
             first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
             raise InputFileError(
                 f"cannot read the Parquet parts ({path!r}): {first}. Check that every part "
@@ -153,6 +189,8 @@ class FirstPass:
         sketch.add(None, keys, strata)
         labels, inverse = np.unique(strata, return_inverse=True)
         values = {s.split("\t", 1)[-1] for s in labels}
+        if keep_keys and len(values) > MAX_CLASSES:  # a numeric target: the sample is by side
+            labels, inverse = np.unique(_strata(frame, layout, by_side=True), return_inverse=True)
         kept = (keys, labels, inverse.astype(np.uint16)) if keep_keys else None
         return cls(CountPartial.map(frame, layout), sketch, values, kept)._checked()
 
@@ -208,7 +246,18 @@ def stream_partials(
     )
     if rows is None or next(kept, None) is not None:
         raise InputFileError(_CHANGED)
-    return merged.counts, rows.draw()
+    return merged.counts, rows.draw(whole_row_keys(layout, settings))
+
+
+def whole_row_keys(layout: Layout, settings: Settings) -> Callable[[pa.Table], np.ndarray]:
+    """The sample's tie-break: a key over every column but the split, for the candidate rows
+    only (rows tied on the features' key may differ in time, entity or target)."""
+
+    def keys(rows: pa.Table) -> np.ndarray:
+        names = [c for c in rows.schema.names if c != layout.split_column]
+        return content_keys(_frame(rows), names, settings.seed + 1)
+
+    return keys
 
 
 def _spill_copies(
@@ -343,6 +392,24 @@ def stream_layout(
     return Layout(**{**layout.__dict__, "keys": keys or tuple(layout.key_columns(names))})
 
 
+_FLAGS = {
+    "split_column": "--split-column",
+    "target": "--target",
+    "label_time": "--label-time",
+    "cutoff_time": "--cutoff-time",
+    "entity": "--entity",
+    "fold_column": "--fold-column",
+}
+
+
+def require_columns(names: list[str], build: dict[str, Any], data: object) -> None:
+    """Every column a flag names is in the table, checked before the first pass reads it."""
+    for key, flag in _FLAGS.items():
+        col = build.get(key)
+        if col is not None and col not in names:
+            raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
+
+
 def stream_audit(
     data: str | os.PathLike[str],
     build: dict[str, Any],
@@ -363,9 +430,7 @@ def stream_audit(
     dataset = parquet_dataset(data)
     schema = dataset.schema
     layout = stream_layout(schema.names, build, dict(zip(schema.names, schema.types, strict=True)))
-    for flag, col in (("--split-column", layout.split_column), ("--target", layout.target)):
-        if col is not None and col not in dataset.schema.names:
-            raise SettingError(f"{flag} column {col!r} is not in {str(data)!r}.")
+    require_columns(dataset.schema.names, build, data)
     with spill_folder() as folder:
         early = HashSpill(str(Path(folder) / "copies"), entities=layout.entity is not None)
         counts, drawn = stream_partials(dataset, layout, settings, tick, folder, early)
@@ -380,6 +445,8 @@ def stream_audit(
             copies = early.counts(train_max)
         else:  # the sample made other columns features (an identifier found by its values)
             early.close()
+            for spilled in Path(folder).iterdir():  # room for pass 3's hashes
+                shutil.rmtree(spilled) if spilled.is_dir() else spilled.unlink()
             layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
             copies = copy_counts(dataset, layout, train_max, tick, folder)
             passes = "three passes"

@@ -38,7 +38,8 @@ from featureaudit.table import AuditTable
 __all__ = ["decorrelated"]
 
 FLOOR = 1e-9  # arithmetic of the fit, in SDs (mean) and in correlation
-MAX_CANDIDATES = 500  # cost bound: the correlation matrix of the centred columns
+MAX_CANDIDATES = 500
+EPS = float(np.finfo(np.float64).eps)  # cost bound: the correlation matrix of the centred columns
 
 
 def _centred_candidates(
@@ -68,8 +69,9 @@ def _centred_candidates(
         # e_max the largest storage error: a mean past that bound on both sets of rows rules
         # the column out before an error per value is worked out
         e_max, top = largest_value_error(s, v), float(np.max(np.abs(v)))
+        slack = 1 + 1e-6  # these means and np.mean's may differ in their last bits
         if all(
-            abs(m) > max(5 * e_max / np.sqrt(3 * k) + 16 * np.finfo(float).eps * top, FLOOR * sd)
+            abs(m) > slack * max(5 * e_max / np.sqrt(3 * k) + 16 * EPS * top, FLOOR * sd)
             for m, k in ((mean, n), (mean_train, n_train))
         ):
             continue
