@@ -15,9 +15,11 @@ from featureaudit.errors import SettingError
 __all__ = ["resolve_engine", "estimated_bytes", "available_bytes", "DASK_INSTALL", "FIT_SHARE"]
 
 DASK_INSTALL = "pip install 'featureaudit[dask]'"
-# the in-memory audit peaks near 4x the frame (benchmarks/speed.py) and a frame is about
-# 1.3x the Parquet data uncompressed; stream when that would pass half the memory available
-PEAK_FACTOR = 4 * 1.3
+# the in-memory audit peaks at 2.0-2.8x the frame (benchmarks/speed.py, 1,000,000 x 100:
+# 2.8x on 2026-12-03, 2.0x on 2026-12-04), taken as 3x, and a frame is about 1.3x the
+# Parquet data uncompressed; stream when that would pass half the memory available. A table
+# that fits is better audited in memory: fitscope does not run on a sample
+PEAK_FACTOR = 3 * 1.3
 FIT_SHARE = 0.5  # common practice, no source: leave half the memory to everything else
 
 
