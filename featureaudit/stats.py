@@ -38,12 +38,20 @@ def _fmt(x: float) -> str:
 
 
 def bin_codes(
-    s: pd.Series, n_bins: int, *, order: bool = False, sample: int = 50_000, seed: int = 0
+    s: pd.Series,
+    n_bins: int,
+    *,
+    order: bool = False,
+    sample: int = 50_000,
+    seed: int = 0,
+    pool: np.ndarray | None = None,
 ) -> Bins:
     """Code a column into at most ``n_bins`` quantile bins (numbers, datetimes) or its categories.
 
     ``order=True`` bins text by its sorted order (for identifiers whose order may carry the
-    target). Quantile edges come from a seeded sample of at most ``sample`` values.
+    target). Quantile edges come from a seeded sample of at most ``sample`` values, or from
+    the rows ``pool`` when given (rows chosen by content, so the edges do not follow the
+    file's order).
     """
     values = numeric_view(s)
     if values is None and order:
@@ -60,6 +68,7 @@ def bin_codes(
             sample=sample,
             seed=seed,
             datetime=pd.api.types.is_datetime64_any_dtype(s.dtype),
+            pool=pool,
         )
     if isinstance(s.dtype, pd.CategoricalDtype):
         codes = s.cat.codes.to_numpy().astype(np.int64) + 1
@@ -72,15 +81,27 @@ def bin_codes(
 
 
 def _numeric_bins(
-    values: np.ndarray, n_bins: int, *, sample: int, seed: int, datetime: bool
+    values: np.ndarray,
+    n_bins: int,
+    *,
+    sample: int,
+    seed: int,
+    datetime: bool,
+    pool: np.ndarray | None = None,
 ) -> Bins:
     finite = np.isfinite(values)
     codes = np.zeros(len(values), dtype=np.int64)
     present = values[finite]
     if present.size == 0:
         return Bins(codes, ["(missing)"], "values")
-    rng = np.random.default_rng(seed)
-    pool = present if present.size <= sample else present[rng.integers(0, present.size, sample)]
+    chosen = values[pool] if pool is not None and present.size > sample else None
+    if chosen is not None and np.isfinite(chosen).sum() >= min(sample, present.size) // 10:
+        pool = chosen[np.isfinite(chosen)]
+    elif present.size <= sample:
+        pool = present
+    else:
+        rng = np.random.default_rng(seed)
+        pool = present[rng.integers(0, present.size, sample)]
     label = _date_label if datetime else _fmt
     few = np.unique(pool[:5000])
     if few.size <= n_bins:

@@ -207,6 +207,7 @@ class SoloThresholds:
 
 
 THRESHOLDS = SoloThresholds()
+EDGE_ROWS = 50_000  # rows the quantile edges come from in larger tables (cost, no source)
 
 
 @dataclass(frozen=True)
@@ -420,6 +421,7 @@ class Solo(Probe):
             ]
         if table.target_problem:
             return [], [Skip(self.name, table.target_problem)]
+        row_keys = order_keys(table.frame, [table.target, *table.features], settings.seed + 104729)
         t = make_target(
             table.y,
             table.labelled,
@@ -427,7 +429,13 @@ class Solo(Probe):
             max(len(table.classes), 1),
             settings.folds,
             settings.seed,
-            order_keys(table.frame, [table.target, *table.features], settings.seed + 104729),
+            row_keys,
+        )
+        # quantile edges from the rows of smallest key: the same rows in any file order
+        edge_rows = (
+            np.sort(np.argpartition(row_keys, EDGE_ROWS - 1)[:EDGE_ROWS])
+            if table.n_rows > EDGE_ROWS
+            else None
         )
         if len(t.rows) < 4 * settings.folds:
             return [], [
@@ -443,7 +451,12 @@ class Solo(Probe):
 
         def one(name: str) -> tuple[str, Bins, CellScore | None]:
             b = bin_codes(
-                table.frame[name], settings.bins, order=name in table.id_columns, seed=settings.seed
+                table.frame[name],
+                settings.bins,
+                order=name in table.id_columns,
+                seed=settings.seed,
+                sample=EDGE_ROWS,
+                pool=edge_rows,
             )
             if not (b.codes[t.rows] > 0).any():
                 return name, b, None

@@ -553,3 +553,28 @@ def test_near_copy_where_peers_tell_the_target_only_nonlinearly(seed):
     assert _detail(result, "score_copy")["typical_peers_beyond_target"] >= 0.3
     honest = [c for c in frame.columns if c not in ("chosen", "score_copy")]
     assert not [c for c in honest if levels[c] in HIGH], levels
+
+
+def test_quantile_edges_in_a_large_table_do_not_follow_row_order():
+    # scikit-learn's breast-cancer rows tiled past the 50,000 rows that quantile edges are
+    # drawn from (1 % noise): the edges, and so every bin and score, are the same after a
+    # shuffle of the file (they were drawn by position)
+    from sklearn.datasets import load_breast_cancer
+
+    x, y = load_breast_cancer(return_X_y=True, as_frame=True)
+    rng = np.random.default_rng(0)
+    cols = list(x.columns[:6])
+    f = pd.concat([x[cols]] * 100, ignore_index=True)
+    f = f * (1 + rng.normal(0, 0.01, f.shape))
+    f["y"] = np.tile(y.to_numpy(), 100)
+
+    def bins(frame: pd.DataFrame) -> dict:
+        doc = fa.audit(frame, target="y", probes=["solo"], progress=False).document
+        return {
+            c["column"]: [b["bin"] for e in c["evidence"] for b in e["detail"].get("bins", [])]
+            for c in doc["columns"]
+        }
+
+    first = bins(f)
+    assert all(first.values())
+    assert bins(f.sample(frac=1, random_state=3).reset_index(drop=True)) == first
