@@ -38,8 +38,8 @@ from featureaudit.table import AuditTable
 __all__ = ["decorrelated"]
 
 FLOOR = 1e-9  # arithmetic of the fit, in SDs (mean) and in correlation
-MAX_CANDIDATES = 500
-EPS = float(np.finfo(np.float64).eps)  # cost bound: the correlation matrix of the centred columns
+MAX_CANDIDATES = 500  # cost bound: the correlation matrix of the centred columns
+EPS = float(np.finfo(np.float64).eps)
 
 
 def _centred_candidates(

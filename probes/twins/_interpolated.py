@@ -110,7 +110,7 @@ def _scaled(
     fewer past CELL_BUDGET cells; distinct counts, medians and IQRs from at most SCALE_ROWS
     of them, chosen by content)."""
     chosen: list[tuple[int, np.ndarray]] = []
-    rows = _by_content(np.flatnonzero(train), h, SCALE_ROWS)
+    rows = _queries(train, h, SCALE_ROWS)
     for c in cols:
         v = numeric_view(table.frame[c])
         if v is None:
@@ -143,21 +143,14 @@ def _fresh(x: np.ndarray, rows: np.ndarray) -> np.ndarray:
     return out
 
 
-def _by_content(rows: np.ndarray, h: np.ndarray, limit: int) -> np.ndarray:
-    """At most ``limit`` of ``rows``, those of smallest row hash, in row order: the same
-    rows whatever the file's order (rows that tie on the hash are equal in content)."""
-    if rows.size <= limit:
-        return rows
-    return np.sort(rows[np.argpartition(h[rows], limit - 1)[:limit]])
-
-
 def _budget(pool: int) -> int:
     """Rows to query against a pool of ``pool`` rows: MAX_QUERIES within PAIR_BUDGET."""
     return int(min(MAX_QUERIES, max(MIN_QUERIES, PAIR_BUDGET // max(pool, 1))))
 
 
 def _queries(mask: np.ndarray, h: np.ndarray, limit: int) -> np.ndarray:
-    """At most ``limit`` rows of ``mask``, those of smallest row hash (content-chosen)."""
+    """At most ``limit`` rows of ``mask``, those of smallest row hash, in row order: the same
+    rows whatever the file's order (content-chosen)."""
     idx = np.flatnonzero(mask)
     if idx.size <= limit:
         return idx
