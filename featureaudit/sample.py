@@ -22,6 +22,8 @@ __all__ = [
     "SampleSketch",
     "SampleRows",
     "content_keys",
+    "number_bits",
+    "NAN_BITS",
     "order_keys",
     "allocate",
     "MIN_PER_STRATUM",
@@ -34,7 +36,7 @@ MAX_CLASSES = 20  # beyond this many target values the sample is stratified by s
 _MULT = np.uint64(0x9E3779B97F4A7C15)
 _M1 = np.uint64(0xBF58476D1CE4E5B9)
 _M2 = np.uint64(0x94D049BB133111EB)
-_NAN = np.uint64(0x7FF8DEADBEEF0001)
+NAN_BITS = np.uint64(0x7FF8DEADBEEF0001)
 
 
 def _splitmix(x: np.ndarray) -> np.ndarray:
@@ -47,14 +49,21 @@ def _splitmix(x: np.ndarray) -> np.ndarray:
         return x ^ (x >> np.uint64(31))
 
 
+def number_bits(values: np.ndarray) -> np.ndarray:
+    """Each float's 64-bit pattern, one pattern for 0.0 and -0.0 and one for every NaN: equal
+    numbers get equal codes (row keys here, row hashes in the copy search)."""
+    with np.errstate(invalid="ignore"):
+        bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one zero, one copy
+    bits[np.isnan(values)] = NAN_BITS
+    return bits
+
+
 def _value_codes(s: pd.Series) -> np.ndarray:
     """A uint64 per value that does not depend on the batch it came in (categories hashed by
     their text, so two batches with different category lists agree)."""
     values = numeric_view(s)
     if values is not None:
-        bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one zero, one copy
-        bits[np.isnan(values)] = _NAN
-        return bits
+        return number_bits(values)
     if isinstance(s.dtype, pd.CategoricalDtype):  # each category's text hashed once
         names = np.asarray(s.cat.categories.astype(object), dtype=object).astype(str)
         table = pd.util.hash_array(np.r_[names, ["\x00NA"]].astype(object)).astype(np.uint64)

@@ -10,11 +10,11 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.io import numeric_view
+from featureaudit.sample import NAN_BITS, number_bits
 
 __all__ = ["row_hashes", "column_codes", "robust_params", "member"]
 
 _MULT = np.uint64(0x9E3779B97F4A7C15)
-_NAN = np.uint64(0x7FF8DEADBEEF0001)
 _M1 = np.uint64(0xBF58476D1CE4E5B9)
 
 
@@ -22,13 +22,10 @@ def column_codes(s: pd.Series) -> np.ndarray:
     """A uint64 pattern per value: float bits for numbers and times, a stable hash otherwise."""
     values = numeric_view(s)
     if values is not None:
-        with np.errstate(invalid="ignore"):
-            bits = np.add(values, 0.0).view(np.uint64)  # -0.0 + 0.0 is 0.0: one value
-        bits[np.isnan(values)] = _NAN
-        return bits
+        return number_bits(values)
     if isinstance(s.dtype, pd.CategoricalDtype):
         cats = pd.util.hash_array(np.asarray(s.cat.categories.astype(str), dtype=object))
-        table = np.r_[cats, np.uint64(_NAN)].astype(np.uint64)
+        table = np.r_[cats, np.uint64(NAN_BITS)].astype(np.uint64)
         return table[s.cat.codes.to_numpy()]  # code -1 (missing) takes the last entry
     return (
         pd.util.hash_pandas_object(s.astype(str).where(s.notna(), "\x00NA"), index=False)
