@@ -413,18 +413,22 @@ def test_sampled_figures_fall_within_their_stated_interval(big):
 
 
 def test_sample_keys_hash_the_declared_features_only():
+    import pyarrow as pa
+
     from featureaudit.engines.stream import stream_layout
+
+    def schema(names: list[str]) -> pa.Schema:
+        return pa.schema([(n, pa.float64()) for n in names])
 
     names = ["row_id", "a", "b", "note", "entity", "target", "split", "decided_at", "fold"]
     dictionary = pd.DataFrame(
         {"column": ["row_id", "note", "b"], "role": ["id", "ignore", "feature"]}
     )
     build = dict(ARGS, dictionary=dictionary, fold_column="fold")
-    assert stream_layout(names, build).keys == ("a", "b")
+    assert stream_layout(schema(names), build).keys == ("a", "b")
     # nothing declared: every column but the split
-    assert stream_layout(["a", "split"], {"split_column": "split"}).key_columns(["a", "split"]) == [
-        "a"
-    ]
+    layout = stream_layout(schema(["a", "split"]), {"split_column": "split"})
+    assert layout.key_columns(["a", "split"]) == ["a"]
 
 
 @pytest.mark.parametrize("name", ["ref_id", "reference"])

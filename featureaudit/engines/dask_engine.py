@@ -87,7 +87,7 @@ def dask_audit(
         )
     arrow = parquet_dataset(data).schema  # the same checks of the path as stream
     schema = arrow.names
-    layout = stream_layout(schema, build, dict(zip(arrow.names, arrow.types, strict=True)))
+    layout = stream_layout(arrow, build)
     require_columns(schema, build, data)
     cluster = None
     if scheduler is None:

@@ -16,7 +16,6 @@ from typing import Any, Protocol, TypeVar
 import numpy as np
 import pandas as pd
 
-from featureaudit.engines.spill import CopyCounts
 from featureaudit.probes.twins.hashing import row_hashes
 from featureaudit.times import as_datetime
 
@@ -24,7 +23,9 @@ __all__ = [
     "Layout",
     "CountPartial",
     "CopyPartial",
+    "CopyCounts",
     "copy_counts",
+    "unique_counts",
     "batch_hashes",
     "heldout_times",
     "sides",
@@ -139,7 +140,7 @@ class CountPartial:
         return out
 
 
-def _unique_counts(keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def unique_counts(keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     values, counts = np.unique(keys, return_counts=True)
     return values, counts.astype(np.int64)
 
@@ -206,10 +207,10 @@ class CopyPartial:
         cls, frame: pd.DataFrame, layout: Layout, train_max: float | None = None
     ) -> CopyPartial:
         held, h, e, before = batch_hashes(frame, layout, train_max)
-        out = cls(_unique_counts(h[~held]), _unique_counts(h[held]))
+        out = cls(unique_counts(h[~held]), unique_counts(h[held]))
         if e is not None:
-            out.train_entities = _unique_counts(e[~held])
-            out.heldout_entities = _unique_counts(e[held])
+            out.train_entities = unique_counts(e[~held])
+            out.heldout_entities = unique_counts(e[held])
         out.heldout_before_train_max = before
         return out
 
@@ -226,6 +227,31 @@ class CopyPartial:
 def _rows_in(a: tuple[np.ndarray, np.ndarray], pool: np.ndarray) -> int:
     """Rows counted in ``a`` whose key is in ``pool`` (both sorted distinct)."""
     return int(a[1][np.isin(a[0], pool, assume_unique=True)].sum())
+
+
+@dataclass(frozen=True)
+class CopyCounts:
+    """The exact copy figures, summed over buckets or counted from whole hash sets."""
+
+    distinct_training_rows: int
+    heldout_rows: int
+    heldout_with_twin: int
+    heldout_with_shared_entity: int | None  # None without an entity column
+    heldout_before_train_max: int
+
+    def __add__(self, other: CopyCounts) -> CopyCounts:
+        entity = (
+            None
+            if self.heldout_with_shared_entity is None and other.heldout_with_shared_entity is None
+            else (self.heldout_with_shared_entity or 0) + (other.heldout_with_shared_entity or 0)
+        )
+        return CopyCounts(
+            self.distinct_training_rows + other.distinct_training_rows,
+            self.heldout_rows + other.heldout_rows,
+            self.heldout_with_twin + other.heldout_with_twin,
+            entity,
+            self.heldout_before_train_max + other.heldout_before_train_max,
+        )
 
 
 def copy_counts(copies: CopyPartial) -> CopyCounts:

@@ -1,8 +1,9 @@
 """Spill files: the per-row data the stream engine keeps between passes, on disk, not in memory.
 
 Pass 1's row keys and strata codes (10 bytes a row) are written in batch order and read back
-batch by batch in pass 2. Pass 3's row and entity hashes go into ``BUCKETS`` files per side
-by their top bits, so each bucket, counted alone, fits in memory; a hash falls in the same
+batch by batch in pass 2. The row and entity hashes (pass 1's, or a third pass's when the
+sample's features differ from the declared ones) go into ``BUCKETS`` files per side by their
+top bits, so each bucket, counted alone, fits in memory; a hash falls in the same
 bucket on both sides, so the exact copy and entity counts are sums over the buckets. Memory:
 one batch and one bucket (1/``BUCKETS`` of the hashes); disk: 10 bytes a row for the keys, 8
 for the row hash, 8 for the entity's and 8 per held-out row for its label time (up to 34), in a
@@ -14,15 +15,15 @@ from __future__ import annotations
 import errno
 import tempfile
 from collections.abc import Iterator
-from dataclasses import dataclass
 from pathlib import Path
-from typing import IO, Any
+from typing import IO
 
 import numpy as np
 
+from featureaudit.engines.partials import CopyCounts, CopyPartial, copy_counts, unique_counts
 from featureaudit.errors import InputFileError
 
-__all__ = ["KeySpill", "HashSpill", "CopyCounts", "BUCKETS", "spill_folder"]
+__all__ = ["KeySpill", "HashSpill", "BUCKETS", "spill_folder"]
 
 BUCKETS = 32  # 100 million rows: 25 MB of hashes a bucket (cost, no source)
 _SHIFT = np.uint64(64 - 5)  # the top 5 bits of a hash name its bucket (2**5 == BUCKETS)
@@ -43,31 +44,6 @@ def _full(exc: OSError, folder: str) -> InputFileError:
     return InputFileError(f"cannot write the stream engine's spill files in {folder!r}: {exc}.")
 
 
-@dataclass(frozen=True)
-class CopyCounts:
-    """The exact copy figures, summed over buckets or counted from whole hash sets."""
-
-    distinct_training_rows: int
-    heldout_rows: int
-    heldout_with_twin: int
-    heldout_with_shared_entity: int | None  # None without an entity column
-    heldout_before_train_max: int
-
-    def __add__(self, other: CopyCounts) -> CopyCounts:
-        entity = (
-            None
-            if self.heldout_with_shared_entity is None and other.heldout_with_shared_entity is None
-            else (self.heldout_with_shared_entity or 0) + (other.heldout_with_shared_entity or 0)
-        )
-        return CopyCounts(
-            self.distinct_training_rows + other.distinct_training_rows,
-            self.heldout_rows + other.heldout_rows,
-            self.heldout_with_twin + other.heldout_with_twin,
-            entity,
-            self.heldout_before_train_max + other.heldout_before_train_max,
-        )
-
-
 def _close(files: list[IO[bytes]], folder: str) -> None:
     """Close spill files; the last buffered writes land here, so a full disk shows here too."""
     try:
@@ -75,21 +51,6 @@ def _close(files: list[IO[bytes]], folder: str) -> None:
             fh.close()
     except OSError as exc:
         raise _full(exc, folder) from exc
-
-
-def count_copies(
-    train: np.ndarray,
-    heldout: np.ndarray,
-    train_entities: np.ndarray | None,
-    heldout_entities: np.ndarray | None,
-) -> CopyCounts:
-    """Exact figures from whole hash arrays (one row each, repeats allowed)."""
-    pool = np.unique(train)
-    twins = int(np.isin(heldout, pool).sum()) if heldout.size else 0
-    shared = None
-    if train_entities is not None and heldout_entities is not None:
-        shared = int(np.isin(heldout_entities, np.unique(train_entities)).sum())
-    return CopyCounts(int(pool.size), int(heldout.size), twins, shared, 0)
 
 
 class KeySpill:
@@ -187,13 +148,8 @@ class HashSpill:
         self.heldout_before_train_max += self._count_times(train_max)
         total = CopyCounts(0, 0, 0, 0 if len(self.sides) > 2 else None, 0)
         for b in range(BUCKETS):
-            loaded: dict[str, Any] = {
-                side: np.fromfile(self._path(side, b), dtype=np.uint64) for side in self.sides
-            }
-            total = total + count_copies(
-                loaded["train"],
-                loaded["heldout"],
-                loaded.get("train_entities"),
-                loaded.get("heldout_entities"),
-            )
+            bucket = CopyPartial()
+            for side in self.sides:
+                setattr(bucket, side, unique_counts(np.fromfile(self._path(side, b), np.uint64)))
+            total = total + copy_counts(bucket)  # the copy counts every engine uses
         return total + CopyCounts(0, 0, 0, None, self.heldout_before_train_max)

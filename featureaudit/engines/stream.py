@@ -32,6 +32,7 @@ import pyarrow.dataset as ds
 import pyarrow.parquet as pq
 
 from featureaudit.engines.partials import (
+    CopyCounts,
     CountPartial,
     Layout,
     batch_hashes,
@@ -40,7 +41,7 @@ from featureaudit.engines.partials import (
     merge_all,
     sides,
 )
-from featureaudit.engines.spill import CopyCounts, HashSpill, KeySpill, spill_folder
+from featureaudit.engines.spill import HashSpill, KeySpill, spill_folder
 from featureaudit.errors import InputFileError, SettingError
 from featureaudit.findings import Findings
 from featureaudit.io import normalise_frame
@@ -51,7 +52,7 @@ __all__ = [
     "parquet_dataset",
     "stream_layout",
     "stream_partials",
-    "copy_counts",
+    "copy_pass",
     "stream_audit",
     "BATCH_ROWS",
 ]
@@ -320,7 +321,7 @@ def sample_rows(
     return out
 
 
-def copy_counts(
+def copy_pass(
     data: ds.Dataset,
     layout: Layout,
     train_max: float | None,
@@ -331,7 +332,7 @@ def copy_counts(
     one bucket at a time (exact: a hash falls in one bucket on both sides)."""
     if folder is None:
         with spill_folder() as tmp:
-            return copy_counts(data, layout, train_max, tick, tmp)
+            return copy_pass(data, layout, train_max, tick, tmp)
     columns = list(
         dict.fromkeys([*layout.features, layout.split_column, layout.entity, layout.label_time])
     )
@@ -354,9 +355,7 @@ def _whole_or_text(t: pa.DataType) -> bool:
     )
 
 
-def stream_layout(
-    names: list[str], build: dict[str, Any], types: dict[str, pa.DataType] | None = None
-) -> Layout:
+def stream_layout(schema: pa.Schema, build: dict[str, Any]) -> Layout:
     """The layout of a streamed table from the audit's inputs. The sample's row keys hash the
     features as far as the inputs declare them (not the split, target, times, entity, folds,
     nor a column the dictionary gives another role), the columns the copy search compares:
@@ -365,8 +364,7 @@ def stream_layout(
     one of 3,000 sampled rows' copies with chance 0.26: 1.5 % of held-out rows sampled with a
     copy against 6.4 % counted over every row). Whole-number and text columns named like an
     identifier are left out too: the audit takes them for identifiers when nearly every
-    value is distinct, which only the whole table can tell. ``types`` maps a column to its
-    Arrow type."""
+    value is distinct, which only the whole table can tell."""
     from featureaudit.dictionary import id_like_name
     from featureaudit.table import NON_FEATURE_ROLES, _dictionary
 
@@ -384,10 +382,8 @@ def stream_layout(
     if ddict is not None:
         roles = ddict.entries
         declared |= {c for c, e in roles.items() if e.role in (*NON_FEATURE_ROLES, "id")}
-    if types is not None:
-        declared |= {
-            c for c in names if id_like_name(c) and c in types and _whole_or_text(types[c])
-        }
+    names = schema.names
+    declared |= {f.name for f in schema if id_like_name(f.name) and _whole_or_text(f.type)}
     keys = tuple(c for c in names if c not in declared)
     return Layout(**{**layout.__dict__, "keys": keys or tuple(layout.key_columns(names))})
 
@@ -428,8 +424,7 @@ def stream_audit(
             "the same folder with a split column, or pass --engine memory with --test."
         )
     dataset = parquet_dataset(data)
-    schema = dataset.schema
-    layout = stream_layout(schema.names, build, dict(zip(schema.names, schema.types, strict=True)))
+    layout = stream_layout(dataset.schema, build)
     require_columns(dataset.schema.names, build, data)
     with spill_folder() as folder:
         early = HashSpill(str(Path(folder) / "copies"), entities=layout.entity is not None)
@@ -448,7 +443,7 @@ def stream_audit(
             for spilled in Path(folder).iterdir():  # room for pass 3's hashes
                 shutil.rmtree(spilled) if spilled.is_dir() else spilled.unlink()
             layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
-            copies = copy_counts(dataset, layout, train_max, tick, folder)
+            copies = copy_pass(dataset, layout, train_max, tick, folder)
             passes = "three passes"
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(counts, copies)
