@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.evidence import KINDS
+from featureaudit.kinds import KINDS
 from featureaudit.levels import Level
 
 __all__ = ["Acceptance", "SPLIT", "read_accepted", "apply_accepted", "is_accepted"]

@@ -133,7 +133,7 @@ def audit(
     horizon: str | None = None,
     entity: str | None = None,
     fold_column: str | None = None,
-    seed: int = 0,
+    seed: int | None = None,
     probes: list[str] | None = None,
     settings: Settings | None = None,
     source: str | None = None,
@@ -167,11 +167,14 @@ def audit(
     fold_column : str, optional
         The cross-validation fold of each training row; each fold is audited against the
         other training rows.
-    seed : int, default 0
-        Seeds every sample and fold, so the same inputs give the same findings. Any whole
-        number; one outside [0, 2**31 - 1) is mapped into it.
+    seed : int, optional
+        Seeds every sample and fold, so the same inputs give the same findings (default
+        ``settings.seed``, else 0). Any whole number; one outside [0, 2**31 - 1) is mapped
+        into it.
     settings : Settings, optional
-        Probe settings (folds, bins, ...); ``seed``, when not 0, wins over its seed.
+        Probe settings (folds, bins, ...). ``seed``, ``engine`` and ``sample_rows`` are
+        settings too: given both here and in ``settings`` with other values, they are an
+        error rather than one silently winning.
     code : list of paths, optional
         Training scripts or notebooks, audited as by ``featureaudit code``; their findings
         go into ``code_findings`` and, on named columns, into those columns' evidence.
@@ -223,7 +226,7 @@ def audit(
         fold_column=fold_column,
         scheduler=scheduler,
     )
-    chosen = _engine_settings(_settings(settings, seed), engine, sample_rows)
+    chosen = _settings(settings, seed=seed, engine=engine, sample_rows=sample_rows)
     if probes is not None and (
         isinstance(probes, str) or not all(isinstance(p, str) for p in probes)
     ):
@@ -247,21 +250,23 @@ def audit(
     return AuditResult(run_audit(table, chosen, probes=probes, progress=progress, code=code_result))
 
 
-def _settings(settings: object, seed: object) -> Settings:
-    """The settings to run with: ``settings`` (or the defaults), an explicit seed winning."""
+def _settings(settings: object, **given: object) -> Settings:
+    """The settings to run with: ``settings`` (or the defaults) with the settings given as
+    keywords (``seed``, ``engine``, ``sample_rows``) put in; a keyword that disagrees with
+    the same field of ``settings`` is an error, never silently overruled."""
     if settings is not None and not isinstance(settings, Settings):
         raise SettingError(
             f"settings must be a featureaudit.settings.Settings; got a "
             f"{type(settings).__name__} ({settings!r:.80}). Pass Settings(**values)."
         )
+    over = {k: v for k, v in given.items() if v is not None}
     if settings is None:
-        return Settings(seed=seed)  # type: ignore[arg-type]  # checked by Settings
-    if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
-        return Settings(**{**settings.to_dict(), "seed": seed})
+        return Settings(**over)  # type: ignore[arg-type]  # checked by Settings
+    asked = Settings(**over)  # type: ignore[arg-type]  # checked (and seeds mapped) here
+    clash = {k: v for k, v in over.items() if getattr(asked, k) != getattr(settings, k)}
+    if clash:
+        said = ", ".join(
+            f"{k}={v!r} and settings.{k}={getattr(settings, k)!r}" for k, v in clash.items()
+        )
+        raise SettingError(f"audit() got {said}; they disagree. Pass each once.")
     return settings
-
-
-def _engine_settings(settings: Settings, engine: str | None, rows: int | None) -> Settings:
-    """The settings with ``engine`` and ``sample_rows`` given as arguments put in."""
-    over = {k: v for k, v in (("engine", engine), ("sample_rows", rows)) if v is not None}
-    return Settings(**{**settings.to_dict(), **over}) if over else settings

@@ -42,11 +42,12 @@ from typing import Annotated, Any  # noqa: E402
 import typer  # noqa: E402
 from typer.core import TyperGroup  # noqa: E402
 
-from featureaudit import __version__  # noqa: E402
+from featureaudit._version import __version__  # noqa: E402
 from featureaudit.errors import FeatureAuditError, Interrupted, SettingError  # noqa: E402
 from featureaudit.findings import diff_findings, droplist, load_findings  # noqa: E402
 from featureaudit.inputs import Inputs  # noqa: E402
 from featureaudit.levels import Level  # noqa: E402
+from featureaudit.options import declared_options  # noqa: E402
 from featureaudit.settings import Settings, check_level, read_config  # noqa: E402
 
 __all__ = ["app", "main"]
@@ -177,6 +178,7 @@ def _reached(doc: dict[str, Any], level: str) -> list[str]:
 
 
 @app.command()
+@declared_options
 def scan(
     table: Annotated[
         Path,
@@ -185,70 +187,9 @@ def scan(
             help="CSV, TSV, Parquet, Feather/Arrow file or a folder of Parquet files.",
         ),
     ],
-    test: Annotated[str | None, typer.Option(help="Held-out table with the same columns.")] = None,
-    split_column: Annotated[str | None, typer.Option(help="Column that marks the split.")] = None,
-    train_value: Annotated[
-        str | None,
-        typer.Option(help="Value of --split-column that marks training rows [default: train]."),
-    ] = None,
-    target: Annotated[str | None, typer.Option(help="The outcome column.")] = None,
-    task: Annotated[str | None, typer.Option(help="binary, multiclass or numeric.")] = None,
-    dictionary: Annotated[str | None, typer.Option(help="Data dictionary CSV.")] = None,
-    label_time: Annotated[str | None, typer.Option(help="When each outcome became known.")] = None,
-    cutoff_time: Annotated[str | None, typer.Option(help="When each prediction is made.")] = None,
-    horizon: Annotated[
-        str | None, typer.Option(help="Cutoff = label time minus this, e.g. 30d.")
-    ] = None,
-    entity: Annotated[str | None, typer.Option(help="Customer, patient… a row belongs to.")] = None,
-    fold_column: Annotated[
-        str | None, typer.Option(help="The cross-validation fold of each training row.")
-    ] = None,
-    out: Annotated[
-        str | None, typer.Option(help="Report folder [default: featureaudit-report].")
-    ] = None,
-    fail_at: Annotated[
-        str | None,
-        typer.Option(help="Exit 1 when a finding reaches this level: critical, high, medium, low."),
-    ] = None,
-    seed: Annotated[
-        int | None, typer.Option(help="Seed of folds and samples [default: 0].")
-    ] = None,
-    fail_at_impact: Annotated[
-        float | None,
-        typer.Option(
-            help="Exit 1 when the as-given validation score exceeds a corrected one by more than "
-            "this, e.g. 0.02."
-        ),
-    ] = None,
-    accepted: Annotated[
-        str | None, typer.Option(help="CSV of reviewed suspects: column,kind,reason,...")
-    ] = None,
-    history: Annotated[
-        str | None, typer.Option(help="Folder that keeps every run's findings.")
-    ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
-    code: Annotated[
-        list[str] | None, typer.Option(help="Training script or notebook to audit (repeatable).")
-    ] = None,
-    encoding: Annotated[
-        str | None,
-        typer.Option(help="Encoding of CSV files that are not UTF-8 (e.g. latin-1, cp1252)."),
-    ] = None,
-    normalise_labels: Annotated[
-        bool,
-        typer.Option(
-            "--normalise-labels", help="Merge target labels differing only in case or spaces."
-        ),
-    ] = False,
-    # engine block: where the table is read (featureaudit/engines)
-    engine: Annotated[
-        str | None, typer.Option(help="auto, memory, stream or dask [default: auto].")
-    ] = None,
-    scheduler: Annotated[str | None, typer.Option(help="Dask scheduler address.")] = None,
-    sample_rows: Annotated[
-        int | None, typer.Option(help="Seeded sample for the model-based parts [default: 200000].")
-    ] = None,
-    quiet: Annotated[bool, typer.Option("--quiet", help="No progress on stderr.")] = False,
+    *,
+    flags: dict[str, Any],
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -257,10 +198,6 @@ def scan(
     """
     from featureaudit.api import audit
 
-    flags = {k: v for k, v in locals().items() if k not in ("table", "config", "audit")}
-    flags["code"] = flags.get("code") or None
-    flags["normalise_labels"] = flags.get("normalise_labels") or None
-    flags["quiet"] = flags.get("quiet") or None
     inputs, settings = _inputs_and_settings(flags, config)
     from featureaudit.accepted import apply_accepted, read_accepted
     from featureaudit.history import check_folder, load_runs, store_run

@@ -99,7 +99,7 @@ class _Bench:
     """The sample, its split into fitted and scored rows, and the reference model."""
 
     def __init__(self, table: AuditTable, settings: Settings, columns: list[str]) -> None:
-        from featureaudit.probes.separability import _matrix
+        from featureaudit.matrix import feature_matrix
 
         self.task = table.task or "binary"
         self.k = max(len(table.classes), 2)
@@ -114,7 +114,7 @@ class _Bench:
             else np.maximum(table.y, 0).astype(np.int64)
         )
         self.rows = _stratified(np.flatnonzero(lab), strata, settings.reference_rows, rng)
-        self.x = _matrix(table, columns, self.rows)
+        self.x = feature_matrix(table.frame, columns, self.rows)
         self.columns = columns
         self.y = table.y[self.rows] if self.task == "numeric" else table.y[self.rows].astype(int)
         h = held[self.rows]
@@ -438,7 +438,7 @@ def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN
 def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict):  # noqa: ANN202
     kind = f["kind"]
     if kind == "duplicate_rows_across_split":
-        from featureaudit.probes.twins.hashing import member, row_hashes
+        from featureaudit.hashing import member, row_hashes
 
         h = row_hashes(table.frame.iloc[bench.rows], bench.columns)
         if bench.heldout_mode:

@@ -7,12 +7,12 @@ import time
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
-from featureaudit import __version__
+from featureaudit._version import __version__
 from featureaudit.errors import FeatureAuditError, ProbeFailed, TooFewRows
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
-from featureaudit.registry import registered, thresholds_dict
+from featureaudit.registry import Probe, registered, thresholds_dict
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas
@@ -61,6 +61,10 @@ def run_audit(
         if show:
             print(f"[{i}/{len(names)}] {name} …", file=sys.stderr, flush=True)
         start = time.perf_counter()
+        gate = capability_skip(available[name], table)
+        if gate is not None:
+            skipped.append(gate)
+            continue
         try:
             with limited_blas():  # per-column pools and model fits set their own threads
                 found, skips = available[name]().run(table, settings)
@@ -127,16 +131,6 @@ def run_audit(
     return findings
 
 
-# What a pair's view contributes: the findings about the two sides, and fits on all rows.
-# Everything else (a column's own power, its timing) is the same on every pair and comes
-# from the run over the whole table.
-_PAIR_KINDS = (
-    "duplicate_rows_across_split",
-    "shared_entities_across_split",
-    "time_overlap_across_split",
-    "split_shift",
-    "fit_on_all_rows",
-)
 _FOLD_NOTE = "; this biases the cross-validated score, not the test score"
 
 
@@ -151,12 +145,20 @@ def _audit_pairs(
     tag what they found with the pair; nothing when the table is a single pair."""
     from dataclasses import replace
 
+    from featureaudit.kinds import PAIR_KINDS
+    from featureaudit.registry import PAIRS
     from featureaudit.splits import pair_views
 
+    # What a pair's view contributes: the kinds the kinds table judges per pair (the findings
+    # about the two sides, and fits on all rows). Everything else (a column's own power, its
+    # timing) is the same on every pair and comes from the run over the whole table.
+    pairs = {
+        pair: tuple(n for n in names if pair in available[n].capabilities.pairs) for pair in PAIRS
+    }
     out: list[Evidence] = []
-    for view in pair_views(table):
+    for view in pair_views(table, pairs):
         for name in view.probes:
-            if name not in names:
+            if capability_skip(available[name], view.table) is not None:
                 continue
             start = time.perf_counter()
             try:
@@ -169,7 +171,7 @@ def _audit_pairs(
             timings[name] = round(timings.get(name, 0.0) + time.perf_counter() - start, 3)
             label = f" ({view.sides[0]} vs {view.sides[1]})"
             for e in found:
-                if e.kind not in _PAIR_KINDS or (e.column is not None and e.rank < 1):
+                if e.kind not in PAIR_KINDS or (e.column is not None and e.rank < 1):
                     continue
                 summary = (e.summary or e.statistic) + label + (_FOLD_NOTE if view.fold else "")
                 detail = {**e.detail, "partitions": list(view.sides)}
@@ -177,6 +179,21 @@ def _audit_pairs(
                     detail["biases"] = "cross-validated score"
                 out.append(replace(e, summary=summary, detail=detail))
     return out
+
+
+NO_TARGET = "no target given: pass --target or give a column the role target in the dictionary"
+
+
+def capability_skip(probe: type[Probe], table: AuditTable) -> Skip | None:
+    """Why a probe cannot run on this table by what it declares (it needs a target the audit
+    lacks, or every row of a table of which the audit holds a sample), else ``None``."""
+    caps = probe.capabilities
+    if caps.needs_target and (table.target is None or table.y is None):
+        return Skip(probe.name, NO_TARGET)
+    sampled = table.population_rows is not None and table.population_rows > table.n_rows
+    if caps.needs_every_row and sampled:
+        return Skip(probe.name, f"not run on a sample: {caps.needs_every_row}")
+    return None
 
 
 def _fold_count(table: AuditTable) -> int | None:

@@ -31,7 +31,7 @@ from featureaudit.durations import parse_duration
 from featureaudit.errors import SettingError
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.levels import Ladder, Level
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.times import as_datetime
@@ -203,6 +203,7 @@ class Timing(Probe):
     scope = "column"
     kinds = ("recorded_after_cutoff", "time_overlap_across_split")
     thresholds = THRESHOLDS
+    capabilities = Capabilities(pairs=frozenset({"partition", "between_heldout", "fold"}))
 
     @classmethod
     def describe(cls, settings: Settings) -> str:

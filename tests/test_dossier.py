@@ -10,8 +10,8 @@ import pytest
 from markupsafe import escape
 
 import featureaudit as fa
-from featureaudit.evidence import KINDS
 from featureaudit.findings import Findings
+from featureaudit.kinds import KINDS
 from featureaudit.levels import LEVEL_NAMES
 from featureaudit.report import CAUTION, render_all, render_dossier, render_summary
 

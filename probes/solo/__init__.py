@@ -78,7 +78,7 @@ from featureaudit.probes.solo._peers import (
     reference_fit,
     unique_lift,
 )
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.sample import content_keys, order_keys
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
@@ -364,6 +364,7 @@ class Solo(Probe):
     scope = "column"
     kinds = ("target_proxy", "row_order_tells_target")
     thresholds = THRESHOLDS
+    capabilities = Capabilities(needs_target=True)
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
@@ -411,16 +412,8 @@ class Solo(Probe):
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
-        if table.target is None or table.y is None:
-            return [], [
-                Skip(
-                    self.name,
-                    "no target given: pass --target or give a column the "
-                    "role target in the dictionary",
-                )
-            ]
-        if table.target_problem:
-            return [], [Skip(self.name, table.target_problem)]
+        if table.target is None or table.y is None or table.target_problem:
+            return [], [Skip(self.name, table.target_problem or "no target values")]
         row_keys = order_keys(table.frame, [table.target, *table.features], settings.seed + 104729)
         t = make_target(
             table.y,

@@ -27,11 +27,11 @@ import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
+from featureaudit.hashing import column_codes, member, row_hashes
 from featureaudit.levels import Ladder, Level
 from featureaudit.probes.twins._interpolated import interpolated_rows
 from featureaudit.probes.twins._nearcopy import near_copies, row_labels
-from featureaudit.probes.twins.hashing import column_codes, member, row_hashes
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.splits import SIMULATED_HELDOUT_SHARE
 from featureaudit.table import AuditTable
@@ -202,6 +202,7 @@ class Twins(Probe):
     scope = "table"
     kinds = ("duplicate_rows_across_split", "shared_entities_across_split")
     thresholds = THRESHOLDS
+    capabilities = Capabilities(pairs=frozenset({"partition", "between_heldout", "fold"}))
 
     @classmethod
     def describe(cls, settings: Settings) -> str:

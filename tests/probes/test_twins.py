@@ -7,7 +7,7 @@ from sklearn.datasets import load_digits, load_iris
 
 import featureaudit as fa
 from featureaudit.demo import demo_paths
-from featureaudit.probes.twins.hashing import row_hashes
+from featureaudit.hashing import row_hashes
 
 HIGH = ("high", "critical")
 
