@@ -92,9 +92,7 @@ def findings_of(corpus: Path = CORPUS) -> tuple[dict[str, list[tuple[Spot, Level
         except Exception as exc:  # noqa: BLE001 - a skipped file is a figure of this benchmark
             skipped.append(f"{path.name}: {exc}")
             found = []
-        out[path.name] = [
-            ((path.name, f.kind, f.cell or 0, f.line), f.level) for f in found
-        ]
+        out[path.name] = [((path.name, f.kind, f.cell or 0, f.line), f.level) for f in found]
     return out, skipped
 
 
@@ -148,7 +146,11 @@ def misses(half: str | None = None) -> list[str]:
     found, _ = findings_of()
     out = []
     for name in sorted({r["file"] for r in rows if half in (None, r["half"])}):
-        want = [_spot(r["file"], r["kind"], r["line"]) for r in rows if r["file"] == name and r["kind"] != "clean"]
+        want = [
+            _spot(r["file"], r["kind"], r["line"])
+            for r in rows
+            if r["file"] == name and r["kind"] != "clean"
+        ]
         got = [(s, lv) for s, lv in found.get(name, [])]
         for s in want:
             if not any(_near(s, x) and lv >= Level.MEDIUM for x, lv in got):

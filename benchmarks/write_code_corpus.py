@@ -7,6 +7,7 @@ family, kind, level floor, line), so the labels exist before the tool runs. Halv
 family (``HALF``): thresholds and rules are tuned on ``tune`` and quoted on ``check``.
 """
 
+# ruff: noqa: E501 - the templates are code lines as people write them
 from __future__ import annotations
 
 import csv
@@ -52,8 +53,14 @@ MODELS = [
     "GradientBoostingClassifier()",
     "DecisionTreeClassifier(max_depth=5)",
 ]
-CSVS = [("churn.csv", "Exited"), ("heart.csv", "output"), ("diabetes.csv", "Outcome"),
-        ("loans.csv", "default"), ("titanic.csv", "Survived"), ("credit.csv", "Class")]
+CSVS = [
+    ("churn.csv", "Exited"),
+    ("heart.csv", "output"),
+    ("diabetes.csv", "Outcome"),
+    ("loans.csv", "default"),
+    ("titanic.csv", "Survived"),
+    ("credit.csv", "Class"),
+]
 
 FAMILIES: dict[str, tuple[str, str, list[dict[str, str]]]] = {}
 
@@ -75,7 +82,10 @@ def v(i: int, loader: str | bool = "csv", nb: bool = False, **kw: str) -> dict[s
 
 
 # ---- fit_before_split --------------------------------------------------------------------
-family("fb_transformer_then_split", "tune", """$HEAD
+family(
+    "fb_transformer_then_split",
+    "tune",
+    """$HEAD
 $LOADER
 # %%
 X_scaled = $T.fit_transform(X)  #! fit_before_split high
@@ -84,11 +94,21 @@ X_train, X_test, y_train, y_test = train_test_split(X_scaled, y, test_size=0.2, 
 model = $MODEL
 model.fit(X_train, y_train)
 print("test accuracy:", accuracy_score(y_test, model.predict(X_test)))
-""", [v(0, T="StandardScaler()"), v(1, "frame", T="MinMaxScaler()"), v(2, "xy", T="PCA(n_components=5)"),
-      v(3, "bunch", True, T="RobustScaler()"), v(4, "csv", True, T="SimpleImputer(strategy='median')"),
-      v(5, "kaggle", T="QuantileTransformer(n_quantiles=100)")])
+""",
+    [
+        v(0, T="StandardScaler()"),
+        v(1, "frame", T="MinMaxScaler()"),
+        v(2, "xy", T="PCA(n_components=5)"),
+        v(3, "bunch", True, T="RobustScaler()"),
+        v(4, "csv", True, T="SimpleImputer(strategy='median')"),
+        v(5, "kaggle", T="QuantileTransformer(n_quantiles=100)"),
+    ],
+)
 
-family("fb_fit_then_transform_cv", "check", """$HEAD
+family(
+    "fb_fit_then_transform_cv",
+    "check",
+    """$HEAD
 $LOADER
 # %%
 scaler = $T
@@ -98,11 +118,21 @@ X = scaler.transform(X)
 model = $MODEL
 scores = cross_val_score(model, X, y, cv=5)
 print("cv accuracy %.3f +- %.3f" % (scores.mean(), scores.std()))
-""", [v(0, T="StandardScaler()"), v(1, "frame", T="MinMaxScaler()"), v(2, "xy", True, T="StandardScaler()"),
-      v(3, "bunch", T="PCA(n_components=0.95)"), v(4, "kaggle", T="SimpleImputer()"),
-      v(5, "csv", True, T="RobustScaler()")])
+""",
+    [
+        v(0, T="StandardScaler()"),
+        v(1, "frame", T="MinMaxScaler()"),
+        v(2, "xy", True, T="StandardScaler()"),
+        v(3, "bunch", T="PCA(n_components=0.95)"),
+        v(4, "kaggle", T="SimpleImputer()"),
+        v(5, "csv", True, T="RobustScaler()"),
+    ],
+)
 
-family("fb_manual_scaling", "tune", """$HEAD
+family(
+    "fb_manual_scaling",
+    "tune",
+    """$HEAD
 $LOADER
 # %%
 $MANUAL
@@ -110,13 +140,29 @@ $MANUAL
 X_tr, X_te, y_tr, y_te = train_test_split(X, y, random_state=1, stratify=y)
 clf = $MODEL.fit(X_tr, y_tr)
 print(f1_score(y_te, clf.predict(X_te), average="macro"))
-""", [v(0, MANUAL="X = (X - X.mean()) / X.std()  #! fit_before_split high"),
-      v(1, "frame", MANUAL="X = (X - X.min()) / (X.max() - X.min())  #! fit_before_split high"),
-      v(2, "xy", MANUAL="X = (X - np.mean(X, axis=0)) / np.std(X, axis=0)  #! fit_before_split high"),
-      v(3, "bunch", True, MANUAL="X = X / X.max()  #! fit_before_split high"),
-      v(4, "csv", True, MANUAL="mu, sd = X.mean(), X.std()\nX = (X - mu) / sd  #! fit_before_split high")])
+""",
+    [
+        v(0, MANUAL="X = (X - X.mean()) / X.std()  #! fit_before_split high"),
+        v(1, "frame", MANUAL="X = (X - X.min()) / (X.max() - X.min())  #! fit_before_split high"),
+        v(
+            2,
+            "xy",
+            MANUAL="X = (X - np.mean(X, axis=0)) / np.std(X, axis=0)  #! fit_before_split high",
+        ),
+        v(3, "bunch", True, MANUAL="X = X / X.max()  #! fit_before_split high"),
+        v(
+            4,
+            "csv",
+            True,
+            MANUAL="mu, sd = X.mean(), X.std()\nX = (X - mu) / sd  #! fit_before_split high",
+        ),
+    ],
+)
 
-family("fb_fillna_loop", "check", """$HEAD
+family(
+    "fb_fillna_loop",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv")
 num_cols = df.select_dtypes("number").columns.drop("$t")
 # %%
@@ -128,13 +174,33 @@ X_train, X_valid, y_train, y_valid = train_test_split(X, y, test_size=0.25, rand
 model = $MODEL
 model.fit(X_train, y_train)
 print(roc_auc_score(y_valid, model.predict_proba(X_valid)[:, 1]))
-""", [v(0, FILL="for col in num_cols:\n    df[col] = df[col].fillna(df[col].mean())  #! fit_before_split high"),
-      v(1, FILL="for c in num_cols:\n    df[c].fillna(df[c].median(), inplace=True)  #! fit_before_split high"),
-      v(2, True, FILL="df[num_cols] = df[num_cols].fillna(df[num_cols].mean())  #! fit_before_split high"),
-      v(3, FILL="df = df.fillna(df.median(numeric_only=True))  #! fit_before_split high"),
-      v(4, FILL="for col in num_cols:\n    df[col] = df[col].clip(upper=df[col].quantile(0.99))  #! fit_before_split high")])
+""",
+    [
+        v(
+            0,
+            FILL="for col in num_cols:\n    df[col] = df[col].fillna(df[col].mean())  #! fit_before_split high",
+        ),
+        v(
+            1,
+            FILL="for c in num_cols:\n    df[c].fillna(df[c].median(), inplace=True)  #! fit_before_split high",
+        ),
+        v(
+            2,
+            True,
+            FILL="df[num_cols] = df[num_cols].fillna(df[num_cols].mean())  #! fit_before_split high",
+        ),
+        v(3, FILL="df = df.fillna(df.median(numeric_only=True))  #! fit_before_split high"),
+        v(
+            4,
+            FILL="for col in num_cols:\n    df[col] = df[col].clip(upper=df[col].quantile(0.99))  #! fit_before_split high",
+        ),
+    ],
+)
 
-family("fb_second_experiment", "tune", """$HEAD
+family(
+    "fb_second_experiment",
+    "tune",
+    """$HEAD
 $LOADER
 # %%
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.3, random_state=0)
@@ -146,12 +212,20 @@ X2 = $T.fit_transform(X)  #! fit_before_split high
 X_train, X_test, y_train, y_test = train_test_split(X2, y, test_size=0.3, random_state=0)
 model = $MODEL.fit(X_train, y_train)
 print("with $WHAT", model.score(X_test, y_test))
-""", [v(0, T="StandardScaler()", WHAT="scaling"), v(1, "xy", T="PCA(n_components=3)", WHAT="pca"),
-      v(2, "frame", True, T="MinMaxScaler()", WHAT="minmax"),
-      v(3, "bunch", T="StandardScaler()", WHAT="scaling"),
-      v(4, "kaggle", True, T="SimpleImputer(strategy='mean')", WHAT="imputation")])
+""",
+    [
+        v(0, T="StandardScaler()", WHAT="scaling"),
+        v(1, "xy", T="PCA(n_components=3)", WHAT="pca"),
+        v(2, "frame", True, T="MinMaxScaler()", WHAT="minmax"),
+        v(3, "bunch", T="StandardScaler()", WHAT="scaling"),
+        v(4, "kaggle", True, T="SimpleImputer(strategy='mean')", WHAT="imputation"),
+    ],
+)
 
-family("fb_training_name_before_split", "check", """$HEAD
+family(
+    "fb_training_name_before_split",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv")
 X_train = df.drop(columns=["$t"])
 y_train = df["$t"]
@@ -163,10 +237,20 @@ X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, test_size=0.2)
 model = $MODEL
 model.fit(X_tr, y_tr)
 print(accuracy_score(y_val, model.predict(X_val)))
-""", [v(0, T="StandardScaler()"), v(1, T="MinMaxScaler()"), v(2, True, T="SimpleImputer()"),
-      v(3, T="PCA(n_components=4)"), v(4, True, T="StandardScaler()")])
+""",
+    [
+        v(0, T="StandardScaler()"),
+        v(1, T="MinMaxScaler()"),
+        v(2, True, T="SimpleImputer()"),
+        v(3, T="PCA(n_components=4)"),
+        v(4, True, T="StandardScaler()"),
+    ],
+)
 
-family("fb_after_shuffle", "tune", """$HEAD
+family(
+    "fb_after_shuffle",
+    "tune",
+    """$HEAD
 df = pd.read_csv("$csv")
 df = df.sample(frac=1, random_state=42).reset_index(drop=True)
 # %%
@@ -177,20 +261,34 @@ train_df, test_df = train_test_split(df, test_size=0.2, random_state=42)
 model = $MODEL
 model.fit(train_df[features], train_df["$t"])
 print(accuracy_score(test_df["$t"], model.predict(test_df[features])))
-""", [v(0, T="StandardScaler()"), v(1, True, T="MinMaxScaler()"), v(2, T="RobustScaler()"),
-      v(3, T="StandardScaler()")])
+""",
+    [
+        v(0, T="StandardScaler()"),
+        v(1, True, T="MinMaxScaler()"),
+        v(2, T="RobustScaler()"),
+        v(3, T="StandardScaler()"),
+    ],
+)
 
-family("fb_variance_threshold", "check", """$HEAD
+family(
+    "fb_variance_threshold",
+    "check",
+    """$HEAD
 from sklearn.feature_selection import VarianceThreshold
 $LOADER
 vt = VarianceThreshold(threshold=0.01)
 X_reduced = vt.fit_transform(X)  #! fit_before_split high
 X_train, X_test, y_train, y_test = train_test_split(X_reduced, y, random_state=3)
 print($MODEL.fit(X_train, y_train).score(X_test, y_test))
-""", [v(0), v(1, "bunch"), v(2, "xy")])
+""",
+    [v(0), v(1, "bunch"), v(2, "xy")],
+)
 
 # ---- fit_on_heldout ----------------------------------------------------------------------
-family("fh_refit_on_test", "tune", """$HEAD
+family(
+    "fh_refit_on_test",
+    "tune",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.25, random_state=0)
 # %%
@@ -200,10 +298,20 @@ X_test = scaler.fit_transform(X_test)  #! fit_on_heldout high
 # %%
 model = $MODEL.fit(X_train, y_train)
 print(accuracy_score(y_test, model.predict(X_test)))
-""", [v(0, T="StandardScaler()"), v(1, "xy", T="MinMaxScaler()"), v(2, "frame", True, T="PCA(n_components=5)"),
-      v(3, "bunch", T="StandardScaler()"), v(4, "kaggle", T="SimpleImputer()")])
+""",
+    [
+        v(0, T="StandardScaler()"),
+        v(1, "xy", T="MinMaxScaler()"),
+        v(2, "frame", True, T="PCA(n_components=5)"),
+        v(3, "bunch", T="StandardScaler()"),
+        v(4, "kaggle", T="SimpleImputer()"),
+    ],
+)
 
-family("fh_encoder_loop", "check", """$HEAD
+family(
+    "fh_encoder_loop",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv")
 cat_cols = ["city", "segment", "channel"]
 train, rest = train_test_split(df, test_size=0.3, random_state=0)
@@ -216,10 +324,19 @@ for frame in [train, valid, test]:
 model = $MODEL
 model.fit(train.drop(columns=["$t"]), train["$t"])
 print(model.score(valid.drop(columns=["$t"]), valid["$t"]))
-""", [v(0, ENC="OrdinalEncoder()"), v(1, True, ENC="OrdinalEncoder(handle_unknown='use_encoded_value', unknown_value=-1)"),
-      v(2, ENC="OrdinalEncoder()"), v(3, ENC="StandardScaler()")])
+""",
+    [
+        v(0, ENC="OrdinalEncoder()"),
+        v(1, True, ENC="OrdinalEncoder(handle_unknown='use_encoded_value', unknown_value=-1)"),
+        v(2, ENC="OrdinalEncoder()"),
+        v(3, ENC="StandardScaler()"),
+    ],
+)
 
-family("fh_positional_slices", "tune", """$HEAD
+family(
+    "fh_positional_slices",
+    "tune",
+    """$HEAD
 df = pd.read_csv("$csv").sort_values("date")
 feats = [c for c in df.columns if c not in ("$t", "date")]
 valid = df.iloc[1:2000]
@@ -231,11 +348,18 @@ va_x = $VALFIT
 # %%
 model = $MODEL.fit(tr_x, train["$t"])
 print(accuracy_score(valid["$t"], model.predict(va_x)))
-""", [v(0, VALFIT="scaler.fit_transform(valid[feats])  #! fit_on_heldout high"),
-      v(1, True, VALFIT="StandardScaler().fit_transform(valid[feats])  #! fit_on_heldout high"),
-      v(2, VALFIT="scaler.fit(valid[feats]).transform(valid[feats])  #! fit_on_heldout high")])
+""",
+    [
+        v(0, VALFIT="scaler.fit_transform(valid[feats])  #! fit_on_heldout high"),
+        v(1, True, VALFIT="StandardScaler().fit_transform(valid[feats])  #! fit_on_heldout high"),
+        v(2, VALFIT="scaler.fit(valid[feats]).transform(valid[feats])  #! fit_on_heldout high"),
+    ],
+)
 
-family("fh_test_statistics", "check", """$HEAD
+family(
+    "fh_test_statistics",
+    "check",
+    """$HEAD
 train = pd.read_csv("train.csv")
 test = pd.read_csv("test.csv")
 features = ["age", "income", "tenure", "balance"]
@@ -244,16 +368,33 @@ $FIX
 # %%
 model = $MODEL.fit(train[features], train["$t"])
 print(accuracy_score(test["$t"], model.predict(test[features])))
-""", [v(0, FIX="train[features] = (train[features] - train[features].mean()) / train[features].std()\n"
-             "test[features] = (test[features] - test[features].mean()) / test[features].std()  #! fit_on_heldout medium"),
-      v(1, FIX="for col in features:\n    train[col] = train[col].fillna(train[col].median())\n"
-             "    test[col] = test[col].fillna(test[col].median())  #! fit_on_heldout medium"),
-      v(2, True, FIX="imp = SimpleImputer()\ntrain[features] = imp.fit_transform(train[features])\n"
-                   "test[features] = imp.fit_transform(test[features])  #! fit_on_heldout high"),
-      v(3, FIX="model0 = $MODEL.fit(test[features], test['$t'])  #! fit_on_heldout high")])
+""",
+    [
+        v(
+            0,
+            FIX="train[features] = (train[features] - train[features].mean()) / train[features].std()\n"
+            "test[features] = (test[features] - test[features].mean()) / test[features].std()  #! fit_on_heldout medium",
+        ),
+        v(
+            1,
+            FIX="for col in features:\n    train[col] = train[col].fillna(train[col].median())\n"
+            "    test[col] = test[col].fillna(test[col].median())  #! fit_on_heldout medium",
+        ),
+        v(
+            2,
+            True,
+            FIX="imp = SimpleImputer()\ntrain[features] = imp.fit_transform(train[features])\n"
+            "test[features] = imp.fit_transform(test[features])  #! fit_on_heldout high",
+        ),
+        v(3, FIX="model0 = $MODEL.fit(test[features], test['$t'])  #! fit_on_heldout high"),
+    ],
+)
 
 # ---- oversampled_before_split ------------------------------------------------------------
-family("os_sampler_then_split", "tune", """$HEAD
+family(
+    "os_sampler_then_split",
+    "tune",
+    """$HEAD
 from imblearn.over_sampling import $S
 $LOADER
 # %%
@@ -264,27 +405,69 @@ X_train, X_test, y_train, y_test = train_test_split(X_res, y_res, test_size=0.2,
 clf = $MODEL
 clf.fit(X_train, y_train)
 print(f1_score(y_test, clf.predict(X_test)))
-""", [v(0, S="SMOTE"), v(1, "frame", S="ADASYN"), v(2, "xy", True, S="RandomOverSampler"),
-      v(3, "kaggle", S="BorderlineSMOTE"), v(4, "csv", True, S="SMOTE")])
+""",
+    [
+        v(0, S="SMOTE"),
+        v(1, "frame", S="ADASYN"),
+        v(2, "xy", True, S="RandomOverSampler"),
+        v(3, "kaggle", S="BorderlineSMOTE"),
+        v(4, "csv", True, S="SMOTE"),
+    ],
+)
 
-family("os_sampler_then_folds", "check", """$HEAD
+family(
+    "os_sampler_then_folds",
+    "check",
+    """$HEAD
 from imblearn.over_sampling import $S
 $LOADER
 sm = $S(random_state=0)
 X_sm, y_sm = sm.fit_resample(X, y)  #! oversampled_before_split high
 # %%
 $CV
-""", [v(0, S="SMOTE", CV="skf = StratifiedKFold(n_splits=5, shuffle=True, random_state=0)\n"
-         "for fold, (tr, va) in enumerate(skf.split(X_sm, y_sm)):\n"
-         "    m = $MODEL.fit(X_sm[tr], y_sm[tr])\n    print(fold, f1_score(y_sm[va], m.predict(X_sm[va])))"),
-      v(1, "xy", S="RandomOverSampler", CV="print(cross_val_score($MODEL, X_sm, y_sm, cv=StratifiedKFold(5)).mean())"),
-      v(2, "frame", True, S="SMOTE", CV="kf = KFold(n_splits=5, shuffle=True)\nfor tr_idx, va_idx in kf.split(X_sm):\n"
-         "    model = $MODEL\n    model.fit(X_sm.iloc[tr_idx], y_sm.iloc[tr_idx])\n"
-         "    print(model.score(X_sm.iloc[va_idx], y_sm.iloc[va_idx]))"),
-      v(3, "bunch", S="ADASYN", CV="scores = cross_val_score($MODEL, X_sm, y_sm, cv=5, scoring='f1_macro')\nprint(scores)"),
-      v(4, "csv", S="SMOTE", CV="gs = GridSearchCV($MODEL, {'max_depth': [3, 5]}, cv=5)\ngs.fit(X_sm, y_sm)\nprint(gs.best_score_)")])
+""",
+    [
+        v(
+            0,
+            S="SMOTE",
+            CV="skf = StratifiedKFold(n_splits=5, shuffle=True, random_state=0)\n"
+            "for fold, (tr, va) in enumerate(skf.split(X_sm, y_sm)):\n"
+            "    m = $MODEL.fit(X_sm[tr], y_sm[tr])\n    print(fold, f1_score(y_sm[va], m.predict(X_sm[va])))",
+        ),
+        v(
+            1,
+            "xy",
+            S="RandomOverSampler",
+            CV="print(cross_val_score($MODEL, X_sm, y_sm, cv=StratifiedKFold(5)).mean())",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            S="SMOTE",
+            CV="kf = KFold(n_splits=5, shuffle=True)\nfor tr_idx, va_idx in kf.split(X_sm):\n"
+            "    model = $MODEL\n    model.fit(X_sm.iloc[tr_idx], y_sm.iloc[tr_idx])\n"
+            "    print(model.score(X_sm.iloc[va_idx], y_sm.iloc[va_idx]))",
+        ),
+        v(
+            3,
+            "bunch",
+            S="ADASYN",
+            CV="scores = cross_val_score($MODEL, X_sm, y_sm, cv=5, scoring='f1_macro')\nprint(scores)",
+        ),
+        v(
+            4,
+            "csv",
+            S="SMOTE",
+            CV="gs = GridSearchCV($MODEL, {'max_depth': [3, 5]}, cv=5)\ngs.fit(X_sm, y_sm)\nprint(gs.best_score_)",
+        ),
+    ],
+)
 
-family("os_manual_upsample", "tune", """$HEAD
+family(
+    "os_manual_upsample",
+    "tune",
+    """$HEAD
 from sklearn.utils import resample
 df = pd.read_csv("$csv")
 majority = df[df["$t"] == 0]
@@ -297,15 +480,35 @@ y = balanced["$t"]
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.2, random_state=1)
 model = $MODEL.fit(X_train, y_train)
 print(accuracy_score(y_test, model.predict(X_test)))
-""", [v(0, UP="minority_up = resample(minority, replace=True, n_samples=len(majority), random_state=1)  #! oversampled_before_split high\n"
-         "balanced = pd.concat([majority, minority_up])"),
-      v(1, True, UP="extra = minority.sample(n=len(majority), replace=True, random_state=0)  #! oversampled_before_split high\n"
-               "balanced = pd.concat([majority, extra]).sample(frac=1)"),
-      v(2, UP="up = resample(minority, replace=True, n_samples=5000)  #! oversampled_before_split high\n"
-         "balanced = pd.concat([majority, up], axis=0)"),
-      v(3, UP="balanced = pd.concat([majority, minority.sample(len(majority), replace=True)])  #! oversampled_before_split high")])
+""",
+    [
+        v(
+            0,
+            UP="minority_up = resample(minority, replace=True, n_samples=len(majority), random_state=1)  #! oversampled_before_split high\n"
+            "balanced = pd.concat([majority, minority_up])",
+        ),
+        v(
+            1,
+            True,
+            UP="extra = minority.sample(n=len(majority), replace=True, random_state=0)  #! oversampled_before_split high\n"
+            "balanced = pd.concat([majority, extra]).sample(frac=1)",
+        ),
+        v(
+            2,
+            UP="up = resample(minority, replace=True, n_samples=5000)  #! oversampled_before_split high\n"
+            "balanced = pd.concat([majority, up], axis=0)",
+        ),
+        v(
+            3,
+            UP="balanced = pd.concat([majority, minority.sample(len(majority), replace=True)])  #! oversampled_before_split high",
+        ),
+    ],
+)
 
-family("os_second_experiment", "check", """$HEAD
+family(
+    "os_second_experiment",
+    "check",
+    """$HEAD
 from imblearn.over_sampling import $S
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, stratify=y, random_state=0)
@@ -316,11 +519,20 @@ X_bal, y_bal = $S().fit_resample(X, y)  #! oversampled_before_split high
 X_train, X_test, y_train, y_test = train_test_split(X_bal, y_bal, stratify=y_bal, random_state=0)
 rf = $MODEL.fit(X_train, y_train)
 print("balanced", f1_score(y_test, rf.predict(X_test), average="macro"))
-""", [v(0, S="SMOTE"), v(1, "xy", S="RandomOverSampler"), v(2, "frame", True, S="SMOTE"),
-      v(3, "kaggle", S="ADASYN")])
+""",
+    [
+        v(0, S="SMOTE"),
+        v(1, "xy", S="RandomOverSampler"),
+        v(2, "frame", True, S="SMOTE"),
+        v(3, "kaggle", S="ADASYN"),
+    ],
+)
 
 # ---- selection_on_all_rows ---------------------------------------------------------------
-family("sel_selector_then_split", "tune", """$HEAD
+family(
+    "sel_selector_then_split",
+    "tune",
+    """$HEAD
 from sklearn.feature_selection import SelectKBest, f_classif, chi2, mutual_info_classif, RFE, SelectFromModel
 $LOADER
 # %%
@@ -331,12 +543,20 @@ print(X_new.shape)
 X_train, X_test, y_train, y_test = train_test_split(X_new, y, test_size=0.3, random_state=0)
 model = $MODEL.fit(X_train, y_train)
 print(model.score(X_test, y_test))
-""", [v(0, SEL="SelectKBest(f_classif, k=10)"), v(1, "bunch", SEL="SelectKBest(chi2, k=20)"),
-      v(2, "frame", True, SEL="RFE(LogisticRegression(max_iter=500), n_features_to_select=8)"),
-      v(3, "xy", SEL="SelectFromModel(RandomForestClassifier(n_estimators=100))"),
-      v(4, "kaggle", SEL="SelectKBest(mutual_info_classif, k=15)")])
+""",
+    [
+        v(0, SEL="SelectKBest(f_classif, k=10)"),
+        v(1, "bunch", SEL="SelectKBest(chi2, k=20)"),
+        v(2, "frame", True, SEL="RFE(LogisticRegression(max_iter=500), n_features_to_select=8)"),
+        v(3, "xy", SEL="SelectFromModel(RandomForestClassifier(n_estimators=100))"),
+        v(4, "kaggle", SEL="SelectKBest(mutual_info_classif, k=15)"),
+    ],
+)
 
-family("sel_corr_with_target", "check", """$HEAD
+family(
+    "sel_corr_with_target",
+    "check",
+    """$HEAD
 import seaborn as sns
 df = pd.read_csv("$csv")
 # %%
@@ -347,16 +567,36 @@ y = df["$t"]
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.2, random_state=2)
 model = $MODEL.fit(X_train, y_train)
 print(accuracy_score(y_test, model.predict(X_test)))
-""", [v(0, CORR="corr = df.corr()['$t'].abs().sort_values(ascending=False)  #! selection_on_all_rows high\n"
-         "top_features = corr.index[1:11]"),
-      v(1, True, CORR="target_corr = df.corrwith(df['$t']).abs()  #! selection_on_all_rows high\n"
-               "top_features = target_corr[target_corr > 0.1].index.drop('$t')"),
-      v(2, CORR="corr_matrix = df.corr()  #! selection_on_all_rows high\n"
-         "top_features = [c for c in corr_matrix.columns if abs(corr_matrix.loc[c, '$t']) > 0.2 and c != '$t']"),
-      v(3, CORR="cors = df.corr(numeric_only=True)['$t']  #! selection_on_all_rows high\n"
-         "top_features = cors.drop('$t').abs().nlargest(8).index")])
+""",
+    [
+        v(
+            0,
+            CORR="corr = df.corr()['$t'].abs().sort_values(ascending=False)  #! selection_on_all_rows high\n"
+            "top_features = corr.index[1:11]",
+        ),
+        v(
+            1,
+            True,
+            CORR="target_corr = df.corrwith(df['$t']).abs()  #! selection_on_all_rows high\n"
+            "top_features = target_corr[target_corr > 0.1].index.drop('$t')",
+        ),
+        v(
+            2,
+            CORR="corr_matrix = df.corr()  #! selection_on_all_rows high\n"
+            "top_features = [c for c in corr_matrix.columns if abs(corr_matrix.loc[c, '$t']) > 0.2 and c != '$t']",
+        ),
+        v(
+            3,
+            CORR="cors = df.corr(numeric_only=True)['$t']  #! selection_on_all_rows high\n"
+            "top_features = cors.drop('$t').abs().nlargest(8).index",
+        ),
+    ],
+)
 
-family("sel_search_on_all_rows", "tune", """$HEAD
+family(
+    "sel_search_on_all_rows",
+    "tune",
+    """$HEAD
 $LOADER
 # %%
 grid = GridSearchCV($MODEL, $GRID, cv=5)
@@ -366,10 +606,19 @@ best = grid.best_estimator_
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.2, random_state=0)
 best.fit(X_train, y_train)
 print("test", best.score(X_test, y_test))
-""", [v(0, GRID="{'C': [0.1, 1, 10]}"), v(1, "xy", GRID="{'max_depth': [3, 5, None]}"),
-      v(2, "frame", True, GRID="{'n_neighbors': [3, 5, 9]}"), v(3, "bunch", GRID="{'C': [1, 10]}")])
+""",
+    [
+        v(0, GRID="{'C': [0.1, 1, 10]}"),
+        v(1, "xy", GRID="{'max_depth': [3, 5, None]}"),
+        v(2, "frame", True, GRID="{'n_neighbors': [3, 5, 9]}"),
+        v(3, "bunch", GRID="{'C': [1, 10]}"),
+    ],
+)
 
-family("sel_second_experiment", "check", """$HEAD
+family(
+    "sel_second_experiment",
+    "check",
+    """$HEAD
 from sklearn.feature_selection import SelectKBest, f_classif, RFE
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)
@@ -378,11 +627,19 @@ print("all features", $MODEL.fit(X_train, y_train).score(X_test, y_test))
 X_k = $SEL.fit_transform(X, y)  #! selection_on_all_rows high
 X_train, X_test, y_train, y_test = train_test_split(X_k, y, random_state=0)
 print("selected", $MODEL.fit(X_train, y_train).score(X_test, y_test))
-""", [v(0, SEL="SelectKBest(f_classif, k=5)"), v(1, "xy", True, SEL="RFE(DecisionTreeClassifier(), n_features_to_select=4)"),
-      v(2, "bunch", SEL="SelectKBest(k=30)")])
+""",
+    [
+        v(0, SEL="SelectKBest(f_classif, k=5)"),
+        v(1, "xy", True, SEL="RFE(DecisionTreeClassifier(), n_features_to_select=4)"),
+        v(2, "bunch", SEL="SelectKBest(k=30)"),
+    ],
+)
 
 # ---- test_reused -------------------------------------------------------------------------
-family("tr_loop_picks_on_test", "tune", """$HEAD
+family(
+    "tr_loop_picks_on_test",
+    "tune",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.25, random_state=4)
 # %%
@@ -390,40 +647,87 @@ $LOOP
 # %%
 final = $FINAL.fit(X_train, y_train)
 print("test accuracy of the chosen model:", accuracy_score(y_test, final.predict(X_test)))
-""", [v(0, LOOP="best_acc, best_k = 0, None\nfor k in range(1, 31):\n    knn = KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train)\n"
-         "    acc = accuracy_score(y_test, knn.predict(X_test))  #! test_reused high\n    if acc > best_acc:\n        best_acc, best_k = acc, k",
-         FINAL="KNeighborsClassifier(n_neighbors=best_k)"),
-      v(1, "xy", LOOP="scores = []\ndepths = range(1, 15)\nfor d in depths:\n    tree = DecisionTreeClassifier(max_depth=d).fit(X_train, y_train)\n"
-         "    scores.append(tree.score(X_test, y_test))  #! test_reused high\nbest_depth = depths[int(np.argmax(scores))]",
-         FINAL="DecisionTreeClassifier(max_depth=best_depth)"),
-      v(2, "frame", True, LOOP="results = {}\nfor C in [0.01, 0.1, 1, 10, 100]:\n    svc = SVC(C=C).fit(X_train, y_train)\n"
-         "    results[C] = f1_score(y_test, svc.predict(X_test))  #! test_reused high\nbest_C = max(results, key=results.get)",
-         FINAL="SVC(C=best_C)"),
-      v(3, "bunch", LOOP="error_rate = []\nfor i in range(1, 40):\n    knn = KNeighborsClassifier(n_neighbors=i)\n    knn.fit(X_train, y_train)\n"
-         "    pred_i = knn.predict(X_test)\n    error_rate.append(np.mean(pred_i != y_test))  #! test_reused high\n"
-         "best_k = error_rate.index(min(error_rate)) + 1",
-         FINAL="KNeighborsClassifier(n_neighbors=best_k)"),
-      v(4, "kaggle", LOOP="best_score = 0\nfor n in [50, 100, 200, 400]:\n    rf = RandomForestClassifier(n_estimators=n).fit(X_train, y_train)\n"
-         "    score = roc_auc_score(y_test, rf.predict_proba(X_test)[:, 1])  #! test_reused high\n"
-         "    if score > best_score:\n        best_score = score\n        best_n = n",
-         FINAL="RandomForestClassifier(n_estimators=best_n)")])
+""",
+    [
+        v(
+            0,
+            LOOP="best_acc, best_k = 0, None\nfor k in range(1, 31):\n    knn = KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train)\n"
+            "    acc = accuracy_score(y_test, knn.predict(X_test))  #! test_reused high\n    if acc > best_acc:\n        best_acc, best_k = acc, k",
+            FINAL="KNeighborsClassifier(n_neighbors=best_k)",
+        ),
+        v(
+            1,
+            "xy",
+            LOOP="scores = []\ndepths = range(1, 15)\nfor d in depths:\n    tree = DecisionTreeClassifier(max_depth=d).fit(X_train, y_train)\n"
+            "    scores.append(tree.score(X_test, y_test))  #! test_reused high\nbest_depth = depths[int(np.argmax(scores))]",
+            FINAL="DecisionTreeClassifier(max_depth=best_depth)",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            LOOP="results = {}\nfor C in [0.01, 0.1, 1, 10, 100]:\n    svc = SVC(C=C).fit(X_train, y_train)\n"
+            "    results[C] = f1_score(y_test, svc.predict(X_test))  #! test_reused high\nbest_C = max(results, key=results.get)",
+            FINAL="SVC(C=best_C)",
+        ),
+        v(
+            3,
+            "bunch",
+            LOOP="error_rate = []\nfor i in range(1, 40):\n    knn = KNeighborsClassifier(n_neighbors=i)\n    knn.fit(X_train, y_train)\n"
+            "    pred_i = knn.predict(X_test)\n    error_rate.append(np.mean(pred_i != y_test))  #! test_reused high\n"
+            "best_k = error_rate.index(min(error_rate)) + 1",
+            FINAL="KNeighborsClassifier(n_neighbors=best_k)",
+        ),
+        v(
+            4,
+            "kaggle",
+            LOOP="best_score = 0\nfor n in [50, 100, 200, 400]:\n    rf = RandomForestClassifier(n_estimators=n).fit(X_train, y_train)\n"
+            "    score = roc_auc_score(y_test, rf.predict_proba(X_test)[:, 1])  #! test_reused high\n"
+            "    if score > best_score:\n        best_score = score\n        best_n = n",
+            FINAL="RandomForestClassifier(n_estimators=best_n)",
+        ),
+    ],
+)
 
-family("tr_key_lambda", "check", """$HEAD
+family(
+    "tr_key_lambda",
+    "check",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)
 # %%
 $PICK
 # %%
 print("chosen", best)
-""", [v(0, PICK="def fit_k(k):\n    return KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train)\n\n"
-         "best = max(range(1, 25), key=lambda k: accuracy_score(y_test, fit_k(k).predict(X_test)))  #! test_reused high"),
-      v(1, "xy", PICK="candidates = [LogisticRegression(max_iter=500), SVC(), RandomForestClassifier()]\n"
-         "best = max(candidates, key=lambda m: m.fit(X_train, y_train).score(X_test, y_test))  #! test_reused high"),
-      v(2, "frame", True, PICK="scores = {d: DecisionTreeClassifier(max_depth=d).fit(X_train, y_train).score(X_test, y_test) for d in range(2, 12)}  #! test_reused high\n"
-         "best = max(scores, key=scores.get)"),
-      v(3, "bunch", PICK="models = {'lr': LogisticRegression(max_iter=300), 'rf': RandomForestClassifier()}\n"
-         "ranked = sorted(models, key=lambda n: f1_score(y_test, models[n].fit(X_train, y_train).predict(X_test), average='macro'), reverse=True)  #! test_reused high\n"
-         "best = ranked[0]")])
+""",
+    [
+        v(
+            0,
+            PICK="def fit_k(k):\n    return KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train)\n\n"
+            "best = max(range(1, 25), key=lambda k: accuracy_score(y_test, fit_k(k).predict(X_test)))  #! test_reused high",
+        ),
+        v(
+            1,
+            "xy",
+            PICK="candidates = [LogisticRegression(max_iter=500), SVC(), RandomForestClassifier()]\n"
+            "best = max(candidates, key=lambda m: m.fit(X_train, y_train).score(X_test, y_test))  #! test_reused high",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            PICK="scores = {d: DecisionTreeClassifier(max_depth=d).fit(X_train, y_train).score(X_test, y_test) for d in range(2, 12)}  #! test_reused high\n"
+            "best = max(scores, key=scores.get)",
+        ),
+        v(
+            3,
+            "bunch",
+            PICK="models = {'lr': LogisticRegression(max_iter=300), 'rf': RandomForestClassifier()}\n"
+            "ranked = sorted(models, key=lambda n: f1_score(y_test, models[n].fit(X_train, y_train).predict(X_test), average='macro'), reverse=True)  #! test_reused high\n"
+            "best = ranked[0]",
+        ),
+    ],
+)
 
 KERAS = """import numpy as np
 import pandas as pd
@@ -446,15 +750,34 @@ $CB
 loss, acc = model.evaluate(X_test, y_test)
 print("test accuracy", acc)
 """
-family("tr_keras_validation_test", "tune", KERAS, [
-    v(0, CB="es = EarlyStopping(monitor='val_loss', patience=5, restore_best_weights=True)\n"
-            "history = model.fit(X_train, y_train, epochs=200, batch_size=32, validation_data=(X_test, y_test), callbacks=[es])  #! test_reused medium"),
-    v(1, True, CB="ckpt = ModelCheckpoint('best.h5', save_best_only=True, monitor='val_accuracy')\n"
-                  "model.fit(X_train, y_train, epochs=50, validation_data=(X_test, y_test), callbacks=[ckpt])  #! test_reused medium\n"
-                  "model = keras.models.load_model('best.h5')"),
-    v(2, CB="history = model.fit(X_train, y_train, epochs=100, validation_data=(X_test, y_test), callbacks=[EarlyStopping(patience=10)])  #! test_reused medium"),
-    v(3, CB="callbacks = [EarlyStopping(monitor='val_loss', patience=3), ModelCheckpoint('m.keras', save_best_only=True)]\n"
-            "model.fit(X_train, y_train, validation_data=(X_test, y_test), epochs=30, callbacks=callbacks)  #! test_reused medium")])
+family(
+    "tr_keras_validation_test",
+    "tune",
+    KERAS,
+    [
+        v(
+            0,
+            CB="es = EarlyStopping(monitor='val_loss', patience=5, restore_best_weights=True)\n"
+            "history = model.fit(X_train, y_train, epochs=200, batch_size=32, validation_data=(X_test, y_test), callbacks=[es])  #! test_reused medium",
+        ),
+        v(
+            1,
+            True,
+            CB="ckpt = ModelCheckpoint('best.h5', save_best_only=True, monitor='val_accuracy')\n"
+            "model.fit(X_train, y_train, epochs=50, validation_data=(X_test, y_test), callbacks=[ckpt])  #! test_reused medium\n"
+            "model = keras.models.load_model('best.h5')",
+        ),
+        v(
+            2,
+            CB="history = model.fit(X_train, y_train, epochs=100, validation_data=(X_test, y_test), callbacks=[EarlyStopping(patience=10)])  #! test_reused medium",
+        ),
+        v(
+            3,
+            CB="callbacks = [EarlyStopping(monitor='val_loss', patience=3), ModelCheckpoint('m.keras', save_best_only=True)]\n"
+            "model.fit(X_train, y_train, validation_data=(X_test, y_test), epochs=30, callbacks=callbacks)  #! test_reused medium",
+        ),
+    ],
+)
 
 BOOST = """import pandas as pd
 import lightgbm as lgb
@@ -471,55 +794,124 @@ $FIT
 # %%
 print("test auc", roc_auc_score(y_test, $PRED))
 """
-family("tr_eval_set_test", "check", BOOST, [
-    v(0, FIT="model = lgb.LGBMClassifier(n_estimators=5000, learning_rate=0.02)\n"
+family(
+    "tr_eval_set_test",
+    "check",
+    BOOST,
+    [
+        v(
+            0,
+            FIT="model = lgb.LGBMClassifier(n_estimators=5000, learning_rate=0.02)\n"
             "model.fit(X_train, y_train, eval_set=(X_test, y_test), callbacks=[lgb.early_stopping(100)])  #! test_reused medium",
-      PRED="model.predict_proba(X_test)[:, 1]"),
-    v(1, FIT="model = xgb.XGBClassifier(n_estimators=2000, early_stopping_rounds=50)\n"
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            1,
+            FIT="model = xgb.XGBClassifier(n_estimators=2000, early_stopping_rounds=50)\n"
             "model.fit(X_train, y_train, eval_set=[(X_test, y_test)], verbose=False)  #! test_reused medium",
-      PRED="model.predict_proba(X_test)[:, 1]"),
-    v(2, True, FIT="clf = CatBoostClassifier(iterations=3000, verbose=0)\n"
-                  "clf.fit(X_train, y_train, eval_set=(X_test, y_test), early_stopping_rounds=200)  #! test_reused medium",
-      PRED="clf.predict_proba(X_test)[:, 1]"),
-    v(3, FIT="model = xgb.XGBClassifier(n_estimators=1000)\n"
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            2,
+            True,
+            FIT="clf = CatBoostClassifier(iterations=3000, verbose=0)\n"
+            "clf.fit(X_train, y_train, eval_set=(X_test, y_test), early_stopping_rounds=200)  #! test_reused medium",
+            PRED="clf.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            3,
+            FIT="model = xgb.XGBClassifier(n_estimators=1000)\n"
             "model.fit(X_train, y_train, eval_set=(X_test, y_test), early_stopping_rounds=20)  #! test_reused medium",
-      PRED="model.predict_proba(X_test)[:, 1]")])
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+    ],
+)
 
-family("tr_native_train_test", "check", BOOST, [
-    v(0, FIT="dtrain = xgb.DMatrix(X_train, label=y_train)\ndtest = xgb.DMatrix(X_test, label=y_test)\n"
+family(
+    "tr_native_train_test",
+    "check",
+    BOOST,
+    [
+        v(
+            0,
+            FIT="dtrain = xgb.DMatrix(X_train, label=y_train)\ndtest = xgb.DMatrix(X_test, label=y_test)\n"
             "params = {'objective': 'binary:logistic', 'eta': 0.05}\n"
             "bst = xgb.train(params, dtrain, num_boost_round=1000, evals=[(dtrain, 'train'), (dtest, 'test')], early_stopping_rounds=50)  #! test_reused medium",
-      PRED="bst.predict(dtest)"),
-    v(1, FIT="train_set = lgb.Dataset(X_train, y_train)\nvalid_set = lgb.Dataset(X_test, y_test)\n"
+            PRED="bst.predict(dtest)",
+        ),
+        v(
+            1,
+            FIT="train_set = lgb.Dataset(X_train, y_train)\nvalid_set = lgb.Dataset(X_test, y_test)\n"
             "gbm = lgb.train({'objective': 'binary'}, train_set, 2000, valid_sets=[valid_set], callbacks=[lgb.early_stopping(50)])  #! test_reused medium",
-      PRED="gbm.predict(X_test, num_iteration=gbm.best_iteration)"),
-    v(2, True, FIT="dtr = xgb.DMatrix(X_train, y_train)\ndte = xgb.DMatrix(X_test, y_test)\n"
-                  "watchlist = [(dtr, 'train'), (dte, 'eval')]\n"
-                  "booster = xgb.train({'max_depth': 4}, dtr, 500, watchlist, early_stopping_rounds=30)  #! test_reused medium",
-      PRED="booster.predict(dte)")])
+            PRED="gbm.predict(X_test, num_iteration=gbm.best_iteration)",
+        ),
+        v(
+            2,
+            True,
+            FIT="dtr = xgb.DMatrix(X_train, y_train)\ndte = xgb.DMatrix(X_test, y_test)\n"
+            "watchlist = [(dtr, 'train'), (dte, 'eval')]\n"
+            "booster = xgb.train({'max_depth': 4}, dtr, 500, watchlist, early_stopping_rounds=30)  #! test_reused medium",
+            PRED="booster.predict(dte)",
+        ),
+    ],
+)
 
 # ---- clean forms -------------------------------------------------------------------------
-family("clean_pipeline_cv", "tune", """$HEAD
+family(
+    "clean_pipeline_cv",
+    "tune",
+    """$HEAD
 from imblearn.pipeline import Pipeline as ImbPipeline
 from imblearn.over_sampling import SMOTE
 from sklearn.feature_selection import SelectKBest, f_classif
 $LOADER
 # %%
 $PIPE
-""", [v(0, PIPE="pipe = make_pipeline(StandardScaler(), $MODEL)\nscores = cross_val_score(pipe, X, y, cv=5)\nprint(scores.mean())"),
-      v(1, "xy", PIPE="pipe = Pipeline([('scale', StandardScaler()), ('pca', PCA(n_components=5)), ('clf', $MODEL)])\n"
-         "print(cross_val_score(pipe, X, y, cv=StratifiedKFold(5, shuffle=True, random_state=0)).mean())"),
-      v(2, "frame", True, PIPE="pipe = ImbPipeline([('smote', SMOTE()), ('clf', $MODEL)])\nprint(cross_val_score(pipe, X, y, scoring='f1', cv=5))"),
-      v(3, "bunch", PIPE="pipe = Pipeline([('sel', SelectKBest(f_classif, k=20)), ('clf', $MODEL)])\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)\n"
-         "search = GridSearchCV(pipe, {'sel__k': [10, 20, 40]}, cv=5).fit(X_train, y_train)\nprint(search.score(X_test, y_test))"),
-      v(4, "kaggle", PIPE="pipe = make_pipeline(SimpleImputer(strategy='median'), StandardScaler(), $MODEL)\n"
-         "X_train, X_valid, y_train, y_valid = train_test_split(X, y, test_size=0.2)\npipe.fit(X_train, y_train)\n"
-         "print(accuracy_score(y_valid, pipe.predict(X_valid)))"),
-      v(5, "csv", PIPE="skf = StratifiedKFold(n_splits=5)\nfor tr, va in skf.split(X, y):\n"
-         "    pipe = make_pipeline(StandardScaler(), $MODEL)\n    pipe.fit(X.iloc[tr], y.iloc[tr])\n    print(pipe.score(X.iloc[va], y.iloc[va]))")])
+""",
+    [
+        v(
+            0,
+            PIPE="pipe = make_pipeline(StandardScaler(), $MODEL)\nscores = cross_val_score(pipe, X, y, cv=5)\nprint(scores.mean())",
+        ),
+        v(
+            1,
+            "xy",
+            PIPE="pipe = Pipeline([('scale', StandardScaler()), ('pca', PCA(n_components=5)), ('clf', $MODEL)])\n"
+            "print(cross_val_score(pipe, X, y, cv=StratifiedKFold(5, shuffle=True, random_state=0)).mean())",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            PIPE="pipe = ImbPipeline([('smote', SMOTE()), ('clf', $MODEL)])\nprint(cross_val_score(pipe, X, y, scoring='f1', cv=5))",
+        ),
+        v(
+            3,
+            "bunch",
+            PIPE="pipe = Pipeline([('sel', SelectKBest(f_classif, k=20)), ('clf', $MODEL)])\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)\n"
+            "search = GridSearchCV(pipe, {'sel__k': [10, 20, 40]}, cv=5).fit(X_train, y_train)\nprint(search.score(X_test, y_test))",
+        ),
+        v(
+            4,
+            "kaggle",
+            PIPE="pipe = make_pipeline(SimpleImputer(strategy='median'), StandardScaler(), $MODEL)\n"
+            "X_train, X_valid, y_train, y_valid = train_test_split(X, y, test_size=0.2)\npipe.fit(X_train, y_train)\n"
+            "print(accuracy_score(y_valid, pipe.predict(X_valid)))",
+        ),
+        v(
+            5,
+            "csv",
+            PIPE="skf = StratifiedKFold(n_splits=5)\nfor tr, va in skf.split(X, y):\n"
+            "    pipe = make_pipeline(StandardScaler(), $MODEL)\n    pipe.fit(X.iloc[tr], y.iloc[tr])\n    print(pipe.score(X.iloc[va], y.iloc[va]))",
+        ),
+    ],
+)
 
-family("clean_fit_on_train", "check", """$HEAD
+family(
+    "clean_fit_on_train",
+    "check",
+    """$HEAD
 from imblearn.over_sampling import SMOTE
 from sklearn.feature_selection import SelectKBest, f_classif
 $LOADER
@@ -529,16 +921,48 @@ $FIT
 # %%
 model = $MODEL.fit(X_tr, y_tr)
 print(accuracy_score(y_test, model.predict(X_te)))
-""", [v(0, FIT="scaler = StandardScaler().fit(X_train)\nX_tr, X_te, y_tr = scaler.transform(X_train), scaler.transform(X_test), y_train"),
-      v(1, "xy", FIT="sel = SelectKBest(f_classif, k=5)\nX_tr = sel.fit_transform(X_train, y_train)\nX_te = sel.transform(X_test)\ny_tr = y_train"),
-      v(2, "frame", True, FIT="X_tr, y_tr = SMOTE(random_state=0).fit_resample(X_train, y_train)\nX_te = X_test"),
-      v(3, "bunch", FIT="pca = PCA(n_components=10)\nX_tr = pca.fit_transform(X_train)\nX_te = pca.transform(X_test)\ny_tr = y_train"),
-      v(4, "kaggle", FIT="mu, sd = X_train.mean(), X_train.std()\nX_tr = (X_train - mu) / sd\nX_te = (X_test - mu) / sd\ny_tr = y_train"),
-      v(5, "csv", True, FIT="X_train = X_train.copy()\nX_test = X_test.copy()\nfor col in X_train.columns:\n"
-         "    med = X_train[col].median()\n    X_train[col] = X_train[col].fillna(med)\n    X_test[col] = X_test[col].fillna(med)\n"
-         "X_tr, X_te, y_tr = X_train, X_test, y_train")])
+""",
+    [
+        v(
+            0,
+            FIT="scaler = StandardScaler().fit(X_train)\nX_tr, X_te, y_tr = scaler.transform(X_train), scaler.transform(X_test), y_train",
+        ),
+        v(
+            1,
+            "xy",
+            FIT="sel = SelectKBest(f_classif, k=5)\nX_tr = sel.fit_transform(X_train, y_train)\nX_te = sel.transform(X_test)\ny_tr = y_train",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            FIT="X_tr, y_tr = SMOTE(random_state=0).fit_resample(X_train, y_train)\nX_te = X_test",
+        ),
+        v(
+            3,
+            "bunch",
+            FIT="pca = PCA(n_components=10)\nX_tr = pca.fit_transform(X_train)\nX_te = pca.transform(X_test)\ny_tr = y_train",
+        ),
+        v(
+            4,
+            "kaggle",
+            FIT="mu, sd = X_train.mean(), X_train.std()\nX_tr = (X_train - mu) / sd\nX_te = (X_test - mu) / sd\ny_tr = y_train",
+        ),
+        v(
+            5,
+            "csv",
+            True,
+            FIT="X_train = X_train.copy()\nX_test = X_test.copy()\nfor col in X_train.columns:\n"
+            "    med = X_train[col].median()\n    X_train[col] = X_train[col].fillna(med)\n    X_test[col] = X_test[col].fillna(med)\n"
+            "X_tr, X_te, y_tr = X_train, X_test, y_train",
+        ),
+    ],
+)
 
-family("clean_honest_early_stopping", "tune", """import pandas as pd
+family(
+    "clean_honest_early_stopping",
+    "tune",
+    """import pandas as pd
 import lightgbm as lgb
 import xgboost as xgb
 from sklearn.model_selection import train_test_split
@@ -554,23 +978,46 @@ X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, test_size=0.2, ran
 $FIT
 # %%
 print("test auc", roc_auc_score(y_test, $PRED))
-""", [v(0, FIT="model = lgb.LGBMClassifier(n_estimators=3000)\nmodel.fit(X_tr, y_tr, eval_set=[(X_val, y_val)], callbacks=[lgb.early_stopping(100)])",
-         PRED="model.predict_proba(X_test)[:, 1]"),
-      v(1, True, FIT="dtr = xgb.DMatrix(X_tr, y_tr)\ndval = xgb.DMatrix(X_val, y_val)\n"
-         "bst = xgb.train({'objective': 'binary:logistic'}, dtr, 1000, evals=[(dval, 'valid')], early_stopping_rounds=40)",
-         PRED="bst.predict(xgb.DMatrix(X_test))"),
-      v(2, FIT="net = keras.Sequential([keras.layers.Dense(16, activation='relu'), keras.layers.Dense(1, activation='sigmoid')])\n"
-         "net.compile(optimizer='adam', loss='binary_crossentropy')\n"
-         "net.fit(X_tr, y_tr, validation_data=(X_val, y_val), epochs=100, callbacks=[EarlyStopping(patience=5)])",
-         PRED="net.predict(X_test).ravel()"),
-      v(3, FIT="net = keras.Sequential([keras.layers.Dense(8), keras.layers.Dense(1, activation='sigmoid')])\n"
-         "net.compile(optimizer='adam', loss='binary_crossentropy')\n"
-         "net.fit(X_train, y_train, validation_split=0.2, epochs=50, callbacks=[EarlyStopping(patience=3)])",
-         PRED="net.predict(X_test).ravel()"),
-      v(4, FIT="model = xgb.XGBClassifier(n_estimators=800, early_stopping_rounds=30)\nmodel.fit(X_tr, y_tr, eval_set=[(X_val, y_val)])",
-         PRED="model.predict_proba(X_test)[:, 1]")])
+""",
+    [
+        v(
+            0,
+            FIT="model = lgb.LGBMClassifier(n_estimators=3000)\nmodel.fit(X_tr, y_tr, eval_set=[(X_val, y_val)], callbacks=[lgb.early_stopping(100)])",
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            1,
+            True,
+            FIT="dtr = xgb.DMatrix(X_tr, y_tr)\ndval = xgb.DMatrix(X_val, y_val)\n"
+            "bst = xgb.train({'objective': 'binary:logistic'}, dtr, 1000, evals=[(dval, 'valid')], early_stopping_rounds=40)",
+            PRED="bst.predict(xgb.DMatrix(X_test))",
+        ),
+        v(
+            2,
+            FIT="net = keras.Sequential([keras.layers.Dense(16, activation='relu'), keras.layers.Dense(1, activation='sigmoid')])\n"
+            "net.compile(optimizer='adam', loss='binary_crossentropy')\n"
+            "net.fit(X_tr, y_tr, validation_data=(X_val, y_val), epochs=100, callbacks=[EarlyStopping(patience=5)])",
+            PRED="net.predict(X_test).ravel()",
+        ),
+        v(
+            3,
+            FIT="net = keras.Sequential([keras.layers.Dense(8), keras.layers.Dense(1, activation='sigmoid')])\n"
+            "net.compile(optimizer='adam', loss='binary_crossentropy')\n"
+            "net.fit(X_train, y_train, validation_split=0.2, epochs=50, callbacks=[EarlyStopping(patience=3)])",
+            PRED="net.predict(X_test).ravel()",
+        ),
+        v(
+            4,
+            FIT="model = xgb.XGBClassifier(n_estimators=800, early_stopping_rounds=30)\nmodel.fit(X_tr, y_tr, eval_set=[(X_val, y_val)])",
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+    ],
+)
 
-family("clean_eda", "check", """$HEAD
+family(
+    "clean_eda",
+    "check",
+    """$HEAD
 import matplotlib.pyplot as plt
 import seaborn as sns
 df = pd.read_csv("$csv")
@@ -582,13 +1029,37 @@ y = df["$t"]
 X_train, X_test, y_train, y_test = train_test_split(X, y, stratify=y, random_state=0)
 pipe = make_pipeline(StandardScaler(), $MODEL).fit(X_train, y_train)
 print(pipe.score(X_test, y_test))
-""", [v(0, EDA="print(df.describe())\nplt.figure(figsize=(12, 10))\nsns.heatmap(df.corr(), annot=True, cmap='coolwarm')\nplt.show()"),
-      v(1, True, EDA="corr = df.corr()\nprint(corr['$t'].sort_values(ascending=False))\nsns.pairplot(df, hue='$t')"),
-      v(2, EDA="enc = OneHotEncoder()\nencoded = enc.fit_transform(df[['city']]).toarray()\nprint(encoded[:5])\nprint(enc.categories_)"),
-      v(3, EDA="print(df.isnull().sum())\nprint(df['$t'].value_counts(normalize=True))\ndf.hist(bins=30, figsize=(15, 10))"),
-      v(4, True, EDA="scaled = StandardScaler().fit_transform(df.select_dtypes('number'))\nplt.boxplot(scaled)\nplt.title('scaled features')")])
+""",
+    [
+        v(
+            0,
+            EDA="print(df.describe())\nplt.figure(figsize=(12, 10))\nsns.heatmap(df.corr(), annot=True, cmap='coolwarm')\nplt.show()",
+        ),
+        v(
+            1,
+            True,
+            EDA="corr = df.corr()\nprint(corr['$t'].sort_values(ascending=False))\nsns.pairplot(df, hue='$t')",
+        ),
+        v(
+            2,
+            EDA="enc = OneHotEncoder()\nencoded = enc.fit_transform(df[['city']]).toarray()\nprint(encoded[:5])\nprint(enc.categories_)",
+        ),
+        v(
+            3,
+            EDA="print(df.isnull().sum())\nprint(df['$t'].value_counts(normalize=True))\ndf.hist(bins=30, figsize=(15, 10))",
+        ),
+        v(
+            4,
+            True,
+            EDA="scaled = StandardScaler().fit_transform(df.select_dtypes('number'))\nplt.boxplot(scaled)\nplt.title('scaled features')",
+        ),
+    ],
+)
 
-family("clean_shuffle_then_split", "tune", """$HEAD
+family(
+    "clean_shuffle_then_split",
+    "tune",
+    """$HEAD
 df = pd.read_csv("$csv")
 df = df.sample(frac=1, random_state=0)
 X = df.drop(columns=["$t"])
@@ -597,11 +1068,28 @@ X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.2)
 # %%
 $FIT
 print(model.score(X_test_s, y_test))
-""", [v(0, FIT="sc = StandardScaler().fit(X_train)\nX_train_s, X_test_s = sc.transform(X_train), sc.transform(X_test)\nmodel = $MODEL.fit(X_train_s, y_train)"),
-      v(1, True, FIT="imp = SimpleImputer()\nX_train_s = imp.fit_transform(X_train)\nX_test_s = imp.transform(X_test)\nmodel = $MODEL.fit(X_train_s, y_train)"),
-      v(2, FIT="mn, mx = X_train.min(), X_train.max()\nX_train_s = (X_train - mn) / (mx - mn)\nX_test_s = (X_test - mn) / (mx - mn)\nmodel = $MODEL.fit(X_train_s, y_train)")])
+""",
+    [
+        v(
+            0,
+            FIT="sc = StandardScaler().fit(X_train)\nX_train_s, X_test_s = sc.transform(X_train), sc.transform(X_test)\nmodel = $MODEL.fit(X_train_s, y_train)",
+        ),
+        v(
+            1,
+            True,
+            FIT="imp = SimpleImputer()\nX_train_s = imp.fit_transform(X_train)\nX_test_s = imp.transform(X_test)\nmodel = $MODEL.fit(X_train_s, y_train)",
+        ),
+        v(
+            2,
+            FIT="mn, mx = X_train.min(), X_train.max()\nX_train_s = (X_train - mn) / (mx - mn)\nX_test_s = (X_test - mn) / (mx - mn)\nmodel = $MODEL.fit(X_train_s, y_train)",
+        ),
+    ],
+)
 
-family("clean_positional_split", "check", """$HEAD
+family(
+    "clean_positional_split",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv").sort_values("date")
 feats = [c for c in df.columns if c not in ("$t", "date")]
 $SLICES
@@ -611,40 +1099,86 @@ tr_x = scaler.fit_transform(train[feats])
 te_x = scaler.transform(holdout[feats])
 model = $MODEL.fit(tr_x, train["$t"])
 print(accuracy_score(holdout["$t"], model.predict(te_x)))
-""", [v(0, SLICES="cut = int(len(df) * 0.8)\ntrain = df.iloc[:cut]\nholdout = df.iloc[cut:]"),
-      v(1, True, SLICES="holdout = df.iloc[1:20000]\ntrain = df.iloc[20001:]"),
-      v(2, SLICES="train, holdout = df[:-5000], df[-5000:]"),
-      v(3, SLICES="n = len(df)\nholdout = df.iloc[: n // 5]\ntrain = df.iloc[n // 5 :]")])
+""",
+    [
+        v(0, SLICES="cut = int(len(df) * 0.8)\ntrain = df.iloc[:cut]\nholdout = df.iloc[cut:]"),
+        v(1, True, SLICES="holdout = df.iloc[1:20000]\ntrain = df.iloc[20001:]"),
+        v(2, SLICES="train, holdout = df[:-5000], df[-5000:]"),
+        v(3, SLICES="n = len(df)\nholdout = df.iloc[: n // 5]\ntrain = df.iloc[n // 5 :]"),
+    ],
+)
 
-family("clean_report_each_model", "tune", """$HEAD
+family(
+    "clean_report_each_model",
+    "tune",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)
 # %%
 $LOOK
-""", [v(0, LOOK="models = [LogisticRegression(max_iter=1000), RandomForestClassifier(), SVC()]\nfor m in models:\n"
-         "    m.fit(X_train, y_train)\n    print(type(m).__name__, accuracy_score(y_test, m.predict(X_test)))"),
-      v(1, "xy", LOOK="for name, m in {'lr': LogisticRegression(max_iter=300), 'tree': DecisionTreeClassifier()}.items():\n"
-         "    m.fit(X_train, y_train)\n    print(name, f1_score(y_test, m.predict(X_test), average='macro'))"),
-      v(2, "bunch", True, LOOK="best_score, best_k = 0, None\nfor k in range(1, 20):\n"
-         "    cv = cross_val_score(KNeighborsClassifier(n_neighbors=k), X_train, y_train, cv=5).mean()\n"
-         "    if cv > best_score:\n        best_score, best_k = cv, k\n"
-         "final = KNeighborsClassifier(n_neighbors=best_k).fit(X_train, y_train)\nprint(final.score(X_test, y_test))")])
+""",
+    [
+        v(
+            0,
+            LOOK="models = [LogisticRegression(max_iter=1000), RandomForestClassifier(), SVC()]\nfor m in models:\n"
+            "    m.fit(X_train, y_train)\n    print(type(m).__name__, accuracy_score(y_test, m.predict(X_test)))",
+        ),
+        v(
+            1,
+            "xy",
+            LOOK="for name, m in {'lr': LogisticRegression(max_iter=300), 'tree': DecisionTreeClassifier()}.items():\n"
+            "    m.fit(X_train, y_train)\n    print(name, f1_score(y_test, m.predict(X_test), average='macro'))",
+        ),
+        v(
+            2,
+            "bunch",
+            True,
+            LOOK="best_score, best_k = 0, None\nfor k in range(1, 20):\n"
+            "    cv = cross_val_score(KNeighborsClassifier(n_neighbors=k), X_train, y_train, cv=5).mean()\n"
+            "    if cv > best_score:\n        best_score, best_k = cv, k\n"
+            "final = KNeighborsClassifier(n_neighbors=best_k).fit(X_train, y_train)\nprint(final.score(X_test, y_test))",
+        ),
+    ],
+)
 
-family("clean_cv_choice", "check", """$HEAD
+family(
+    "clean_cv_choice",
+    "check",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=1)
 X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, random_state=2)
 # %%
 $CHOOSE
 print("test", accuracy_score(y_test, final.predict(X_test)))
-""", [v(0, CHOOSE="scores = []\nfor d in range(2, 12):\n    scores.append(DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr).score(X_val, y_val))\n"
-         "best = 2 + int(np.argmax(scores))\nfinal = DecisionTreeClassifier(max_depth=best).fit(X_train, y_train)"),
-      v(1, "xy", True, CHOOSE="best = max(range(1, 15), key=lambda k: KNeighborsClassifier(n_neighbors=k).fit(X_tr, y_tr).score(X_val, y_val))\n"
-         "final = KNeighborsClassifier(n_neighbors=best).fit(X_train, y_train)"),
-      v(2, "frame", CHOOSE="grid = GridSearchCV(make_pipeline(StandardScaler(), SVC()), {'svc__C': [0.1, 1, 10]}, cv=5)\n"
-         "final = grid.fit(X_train, y_train)"),
-      v(3, "bunch", CHOOSE="res = {}\nfor C in [0.1, 1, 10]:\n    res[C] = cross_val_score(LogisticRegression(C=C, max_iter=500), X_train, y_train, cv=5).mean()\n"
-         "final = LogisticRegression(C=max(res, key=res.get), max_iter=500).fit(X_train, y_train)")])
+""",
+    [
+        v(
+            0,
+            CHOOSE="scores = []\nfor d in range(2, 12):\n    scores.append(DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr).score(X_val, y_val))\n"
+            "best = 2 + int(np.argmax(scores))\nfinal = DecisionTreeClassifier(max_depth=best).fit(X_train, y_train)",
+        ),
+        v(
+            1,
+            "xy",
+            True,
+            CHOOSE="best = max(range(1, 15), key=lambda k: KNeighborsClassifier(n_neighbors=k).fit(X_tr, y_tr).score(X_val, y_val))\n"
+            "final = KNeighborsClassifier(n_neighbors=best).fit(X_train, y_train)",
+        ),
+        v(
+            2,
+            "frame",
+            CHOOSE="grid = GridSearchCV(make_pipeline(StandardScaler(), SVC()), {'svc__C': [0.1, 1, 10]}, cv=5)\n"
+            "final = grid.fit(X_train, y_train)",
+        ),
+        v(
+            3,
+            "bunch",
+            CHOOSE="res = {}\nfor C in [0.1, 1, 10]:\n    res[C] = cross_val_score(LogisticRegression(C=C, max_iter=500), X_train, y_train, cv=5).mean()\n"
+            "final = LogisticRegression(C=max(res, key=res.get), max_iter=500).fit(X_train, y_train)",
+        ),
+    ],
+)
 
 # ---- notebooks as written: magics, % continuations, lines ending in ? --------------------
 NB = """%matplotlib inline
@@ -663,28 +1197,95 @@ Check the held-out score.'''
 print("accuracy: %.3f"
       % acc)
 """
-family("nb_magics_leaky", "tune", NB, [
-    v(0, nb=True, BODY="X = StandardScaler().fit_transform(X)  #! fit_before_split high\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X, y)\nacc = $MODEL.fit(X_train, y_train).score(X_test, y_test)"),
-    v(1, "frame", nb=True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "acc = 0\nfor k in range(1, 20):\n    a = KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train).score(X_test, y_test)  #! test_reused high\n"
-         "    if a > acc:\n        acc = a"),
-    v(2, "kaggle", nb=True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\npca = PCA(5).fit(X_train)\n"
-         "X_test = PCA(5).fit_transform(X_test)  #! fit_on_heldout high\nacc = $MODEL.fit(pca.transform(X_train), y_train).score(X_test, y_test)")])
-family("nb_magics_clean", "check", NB, [
-    v(3, nb=True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "pipe = make_pipeline(StandardScaler(), $MODEL).fit(X_train, y_train)\nacc = pipe.score(X_test, y_test)"),
-    v(4, "xy", nb=True, BODY="acc = cross_val_score(make_pipeline(MinMaxScaler(), $MODEL), X, y, cv=5).mean()"),
-    v(5, "bunch", nb=True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "sc = StandardScaler().fit(X_train)\nacc = $MODEL.fit(sc.transform(X_train), y_train).score(sc.transform(X_test), y_test)")])
-family("nb_magics_leaky_check", "check", NB, [
-    v(1, "csv", nb=True, BODY="from imblearn.over_sampling import SMOTE\nX, y = SMOTE().fit_resample(X, y)  #! oversampled_before_split high\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X, y)\nacc = $MODEL.fit(X_train, y_train).score(X_test, y_test)"),
-    v(2, "xy", nb=True, BODY="X = (X - X.mean(axis=0)) / X.std(axis=0)  #! fit_before_split high\n"
-         "acc = cross_val_score($MODEL, X, y, cv=5).mean()")])
-family("nb_magics_clean_tune", "tune", NB, [
-    v(0, "frame", nb=True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "imp = SimpleImputer().fit(X_train)\nacc = $MODEL.fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test)")])
+family(
+    "nb_magics_leaky",
+    "tune",
+    NB,
+    [
+        v(
+            0,
+            nb=True,
+            BODY="X = StandardScaler().fit_transform(X)  #! fit_before_split high\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X, y)\nacc = $MODEL.fit(X_train, y_train).score(X_test, y_test)",
+        ),
+        v(
+            1,
+            "frame",
+            nb=True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "acc = 0\nfor k in range(1, 20):\n    a = KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train).score(X_test, y_test)  #! test_reused high\n"
+            "    if a > acc:\n        acc = a",
+        ),
+        v(
+            2,
+            "kaggle",
+            nb=True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\npca = PCA(5).fit(X_train)\n"
+            "X_test = PCA(5).fit_transform(X_test)  #! fit_on_heldout high\nacc = $MODEL.fit(pca.transform(X_train), y_train).score(X_test, y_test)",
+        ),
+    ],
+)
+family(
+    "nb_magics_clean",
+    "check",
+    NB,
+    [
+        v(
+            3,
+            nb=True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "pipe = make_pipeline(StandardScaler(), $MODEL).fit(X_train, y_train)\nacc = pipe.score(X_test, y_test)",
+        ),
+        v(
+            4,
+            "xy",
+            nb=True,
+            BODY="acc = cross_val_score(make_pipeline(MinMaxScaler(), $MODEL), X, y, cv=5).mean()",
+        ),
+        v(
+            5,
+            "bunch",
+            nb=True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "sc = StandardScaler().fit(X_train)\nacc = $MODEL.fit(sc.transform(X_train), y_train).score(sc.transform(X_test), y_test)",
+        ),
+    ],
+)
+family(
+    "nb_magics_leaky_check",
+    "check",
+    NB,
+    [
+        v(
+            1,
+            "csv",
+            nb=True,
+            BODY="from imblearn.over_sampling import SMOTE\nX, y = SMOTE().fit_resample(X, y)  #! oversampled_before_split high\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X, y)\nacc = $MODEL.fit(X_train, y_train).score(X_test, y_test)",
+        ),
+        v(
+            2,
+            "xy",
+            nb=True,
+            BODY="X = (X - X.mean(axis=0)) / X.std(axis=0)  #! fit_before_split high\n"
+            "acc = cross_val_score($MODEL, X, y, cv=5).mean()",
+        ),
+    ],
+)
+family(
+    "nb_magics_clean_tune",
+    "tune",
+    NB,
+    [
+        v(
+            0,
+            "frame",
+            nb=True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "imp = SimpleImputer().fit(X_train)\nacc = $MODEL.fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test)",
+        )
+    ],
+)
 
 
 # ---- writing -----------------------------------------------------------------------------
@@ -730,8 +1331,13 @@ def write_all() -> int:
                     "nbformat_minor": 5,
                     "metadata": {"kernelspec": {"name": "python3", "display_name": "Python 3"}},
                     "cells": [
-                        {"cell_type": "code", "metadata": {}, "execution_count": None,
-                         "outputs": [], "source": [ln + "\n" for ln in c[:-1]] + c[-1:]}
+                        {
+                            "cell_type": "code",
+                            "metadata": {},
+                            "execution_count": None,
+                            "outputs": [],
+                            "source": [ln + "\n" for ln in c[:-1]] + c[-1:],
+                        }
                         for c in cells
                     ],
                 }
