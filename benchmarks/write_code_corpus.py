@@ -1288,6 +1288,118 @@ family(
 )
 
 
+# ---- second batch, written after the first results: new families in both halves -----------
+family("t2_scale_function", "tune", """$HEAD
+from sklearn import preprocessing
+$LOADER
+$SCALE
+X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.3)
+clf = $MODEL.fit(X_train, y_train)
+print(clf.score(X_test, y_test))
+""", [v(0, SCALE="X = preprocessing.scale(X)  #! fit_before_split high"),
+      v(1, "xy", SCALE="X = preprocessing.StandardScaler().fit(X).transform(X)  #! fit_before_split high"),
+      v(2, "bunch", SCALE="X = preprocessing.minmax_scale(X)  #! fit_before_split high")])
+
+family("c2_scale_function", "check", """$HEAD
+from sklearn.preprocessing import scale, robust_scale, normalize
+$LOADER
+$SCALE
+X_tr, X_te, y_tr, y_te = train_test_split(X, y, random_state=5)
+m = $MODEL
+m.fit(X_tr, y_tr)
+print(accuracy_score(y_te, m.predict(X_te)))
+""", [v(3, SCALE="X = scale(X)  #! fit_before_split high"),
+      v(4, "frame", SCALE="X = robust_scale(X)  #! fit_before_split high"),
+      v(5, "xy", SCALE="X = normalize(X)")])
+
+family("t2_function_prep", "tune", """$HEAD
+$DEF
+$LOADER_DF
+$USE
+""", [v(0, DEF="def preprocess(data):\n    data = data.fillna(data.mean())  #! fit_before_split high\n    return data",
+         LOADER_DF='df = pd.read_csv("$csv")',
+         USE='df = preprocess(df)\nX, y = df.drop(columns=["$t"]), df["$t"]\n'
+             'X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))'),
+      v(1, DEF="def prep(frame):\n    return StandardScaler().fit_transform(frame)  #! fit_on_heldout high",
+         LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
+         USE='X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train = prep(X_train)\nX_test = prep(X_test)\n'
+             'print($MODEL.fit(X_train, y_train).score(X_test, y_test))'),
+      v(2, DEF="def scale_pair(train, test):\n    sc = StandardScaler().fit(train)\n    return sc.transform(train), sc.transform(test)",
+         LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
+         USE='X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train, X_test = scale_pair(X_train, X_test)\n'
+             'print($MODEL.fit(X_train, y_train).score(X_test, y_test))')])
+
+family("c2_function_prep", "check", """$HEAD
+NUM = ["age", "income", "balance"]
+$DEF
+df = pd.read_csv("$csv")
+$USE
+""", [v(3, DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_before_split high\n    return df",
+         USE='df = clean(df)\ntrain, test = train_test_split(df, test_size=0.2)\n'
+             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))'),
+      v(4, DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_on_heldout medium\n    return df",
+         USE='train, test = train_test_split(df, test_size=0.2)\ntrain = clean(train)\ntest = clean(test)\n'
+             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))'),
+      v(5, DEF="def add_features(df):\n    df['ratio'] = df['income'] / (df['balance'] + 1)\n    df['log_income'] = np.log1p(df['income'])\n    return df",
+         USE='df = add_features(df)\ntrain, test = train_test_split(df, test_size=0.2)\n'
+             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))')])
+
+family("t2_sampler_on_test", "tune", """$HEAD
+from imblearn.over_sampling import SMOTE, ADASYN
+$LOADER
+X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.3, stratify=y)
+X_train, y_train = SMOTE().fit_resample(X_train, y_train)
+$TEST
+model = $MODEL.fit(X_train, y_train)
+print(f1_score(y_test, model.predict(X_test)))
+""", [v(0, TEST="X_test, y_test = SMOTE().fit_resample(X_test, y_test)  #! fit_on_heldout high"),
+      v(1, "xy", TEST="X_test, y_test = ADASYN().fit_resample(X_test, y_test)  #! fit_on_heldout high"),
+      v(2, "bunch", TEST="print(pd.Series(y_test).value_counts())")])
+
+family("c2_sampler_on_test", "check", """$HEAD
+from imblearn.over_sampling import SMOTE, RandomOverSampler
+$LOADER
+X_tr, X_te, y_tr, y_te = train_test_split(X, y, test_size=0.25)
+ros = $S
+X_tr_b, y_tr_b = ros.fit_resample(X_tr, y_tr)
+$TEST
+clf = $MODEL.fit(X_tr_b, y_tr_b)
+print(f1_score(y_te_b, clf.predict(X_te_b)))
+""", [v(3, S="RandomOverSampler()", TEST="X_te_b, y_te_b = ros.fit_resample(X_te, y_te)  #! fit_on_heldout high"),
+      v(4, "frame", S="SMOTE(k_neighbors=3)", TEST="X_te_b, y_te_b = SMOTE().fit_resample(X_te, y_te)  #! fit_on_heldout high"),
+      v(5, "xy", S="SMOTE()", TEST="X_te_b, y_te_b = X_te, y_te")])
+
+family("t2_target_mean_encoding", "tune", """$HEAD
+df = pd.read_csv("$csv")
+$ENC
+X = df.drop(columns=["$t", "city"])
+y = df["$t"]
+X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)
+print($MODEL.fit(X_train, y_train).score(X_test, y_test))
+""", [v(0, ENC="df['city_te'] = df.groupby('city')['$t'].transform('mean')  #! fit_before_split high"),
+      v(1, ENC="means = df.groupby('city')['$t'].mean()  #! fit_before_split high\ndf['city_te'] = df['city'].map(means)"),
+      v(2, ENC="df['city_n'] = df.groupby('city')['age'].transform('count')\ndf['city_code'] = df['city'].astype('category').cat.codes")])
+
+family("c2_target_mean_encoding", "check", """$HEAD
+df = pd.read_csv("$csv")
+$ENC
+features = [c for c in df.columns if c not in ("$t", "segment")]
+train, valid = train_test_split(df, test_size=0.2, random_state=1)
+model = $MODEL.fit(train[features], train["$t"])
+print(roc_auc_score(valid["$t"], model.predict_proba(valid[features])[:, 1]))
+""", [v(3, ENC="df['segment_rate'] = df.groupby('segment')['$t'].transform('mean')  #! fit_before_split high"),
+      v(4, ENC="rate = df.groupby('segment')['$t'].mean().to_dict()  #! fit_before_split high\ndf['segment_rate'] = df['segment'].map(rate)"),
+      v(5, ENC="train_part, _ = train_test_split(df, test_size=0.2, random_state=1)\nrate = train_part.groupby('segment')['$t'].mean()\ndf['segment_rate'] = df['segment'].map(rate)")])
+
+family("t2_keras_holdout_slices", "tune", KERAS.replace("$CB", "$CB"), [
+    v(0, CB="x_val, partial_x = X_train[:1000], X_train[1000:]\ny_val, partial_y = y_train[:1000], y_train[1000:]\n"
+            "model.fit(partial_x, partial_y, epochs=40, validation_data=(x_val, y_val), callbacks=[EarlyStopping(patience=4)])")])
+
+family("c2_keras_holdout_slices", "check", KERAS, [
+    v(1, CB="x_val = X_train[:500]\nx_part = X_train[500:]\ny_val = y_train[:500]\ny_part = y_train[500:]\n"
+            "model.fit(x_part, y_part, epochs=20, validation_data=(x_val, y_val), callbacks=[ModelCheckpoint('b.keras', save_best_only=True)])")])
+
+
 # ---- writing -----------------------------------------------------------------------------
 MARK = re.compile(r"\s*#! (\w+) (\w+)\s*$")
 
