@@ -28,15 +28,16 @@ class Context:
     flow: Flow
 
     def split_of(self, ev: Event, *, cv: str) -> Split | None:
-        """A split that divides rows the event's fit saw. ``cv`` says which cross-validation
-        splits count: "all"; "unsplit" (only folds of rows never split before: folds inside a
-        training part are the model's own business for an unsupervised scaler); "none"."""
+        """A split that divides rows the event's fit saw. ``cv`` says which splits count:
+        "all"; "none" (no cross-validation folds); "primary" (only splits of rows never split
+        before: folds or a validation slice carved from a training part leave the test rows
+        untouched by an unsupervised scaler)."""
         if not ev.prov or ev.role in HELDOUT:
             return None
         for s in self.flow.splits:
             if s.key and len({x.side for x in self.flow.splits if x.key == s.key}) < 2:
                 continue  # one positional slice alone (a preview) divides nothing
-            if s.cv and (cv == "none" or (cv == "unsplit" and len(s.prov) > 1)):
+            if (s.cv and cv == "none") or (cv == "primary" and len(s.prov) > 1):
                 continue
             if not s.cv and not self.used(s):
                 continue
@@ -155,7 +156,7 @@ def rule_transformer(ctx: Context, i: int, ev: Event) -> Finding | None:
     """A scaler, imputer, encoder or decomposition fitted on rows a later split divides."""
     if ev.what != "fit" or ev.family != "transformer":
         return None
-    s = ctx.split_of(ev, cv="unsplit")
+    s = ctx.split_of(ev, cv="primary")
     if s is None:
         return None
     text = _split_text(s)
@@ -180,7 +181,10 @@ def rule_statistic(ctx: Context, i: int, ev: Event) -> Finding | None:
     """A pandas/numpy statistic of rows a later split divides, applied to the data."""
     if ev.what != "stat_use":
         return None
-    s = ctx.split_of(ev, cv="unsplit")
+    grouped = ev.extra.get("grouped")
+    if grouped is not None and not set(grouped) & ctx.flow.targets:
+        return None  # a count or mean of a feature per group: common practice, no source
+    s = ctx.split_of(ev, cv="primary")
     if s is None:
         return None
     text = _split_text(s)

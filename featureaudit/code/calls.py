@@ -90,7 +90,7 @@ CALLBACKS = {"EarlyStopping", "ModelCheckpoint", "early_stopping"}
 JOINS = {"concat", "vstack", "hstack", "concatenate", "append", "merge", "column_stack"}
 MODULES = {"np", "numpy", "pd", "pandas"}
 BOOSTERS = {"xgb", "xgboost", "lgb", "lightgbm"}
-FITS = {"fit", "fit_transform", "fit_resample", "fit_predict"}
+FITS = {"fit", "fit_transform", "fit_resample", "fit_predict", "fit_sample"}
 APPLIES = {
     "transform",
     "predict",
@@ -225,7 +225,7 @@ def _cross_val(c: Call) -> Val:
     x = c.args[1] if len(c.args) > 1 else c.kw.get("X")
     if x is not None and x.kind == "rows" and c.flow.unit is not None:
         c.flow.splits.append(Split(c.flow.unit, c.line, c.name, x.prov, cv=True))
-    c.flow.model_fit(x, est)
+    c.flow.model_fit(x, est, y=c.args[2] if len(c.args) > 2 else c.kw.get("y"))
     return Val("score", None)
 
 
@@ -271,12 +271,34 @@ def _booster_train(c: Call) -> Val | None:
     if not (isinstance(c.e.func, ast.Attribute) and dotted(c.e.func.value) in BOOSTERS):
         return None
     rows = c.args[1] if len(c.args) > 1 else c.kw.get("dtrain") or c.kw.get("train_set")
-    c.flow.model_fit(rows)
+    c.flow.model_fit(rows, y=rows)
     _early_stop(c, None, c.args[3:])
     return Val("estimator", cls=dotted(c.e.func))
 
 
+SCALE_FUNCTIONS = {
+    "scale",
+    "minmax_scale",
+    "robust_scale",
+    "maxabs_scale",
+    "quantile_transform",
+    "power_transform",
+}
+
+
+def _scale_function(c: Call) -> Val | None:
+    """``preprocessing.scale(X)`` fits and applies a scaler in one call."""
+    rows = c.x
+    if rows is None or rows.kind != "rows":
+        return None
+    idx = c.flow.event(
+        "fit", rows, c.line, cls=c.name, family="transformer", extra={"method": "()"}
+    )
+    return rows.tainted(frozenset({idx}))
+
+
 BY_NAME: dict[str, Handler] = {
+    **dict.fromkeys(SCALE_FUNCTIONS, _scale_function),
     "train_test_split": _tts,
     **dict.fromkeys(CV_CALLS, _cross_val),
     "enumerate": _enumerate,
@@ -438,7 +460,7 @@ def _fit(c: Call, est: Val) -> Val | None:
         if est.family in ("transformer", "selector", "sampler", "harmless"):
             taint = frozenset({idx})
     if est.family in (None, "pipeline", "search"):
-        c.flow.model_fit(rows, est)
+        c.flow.model_fit(rows, est, y=y)
         _early_stop(c, est, [])
     if est.family == "search" and rows is not None and c.flow.unit is not None:
         c.flow.splits.append(Split(c.flow.unit, c.line, est.cls, rows.prov, cv=True))
@@ -448,7 +470,7 @@ def _fit(c: Call, est: Val) -> Val | None:
         return fitted
     _update(c, fitted)
     out = rows.tainted(taint) if rows is not None else None
-    if c.name == "fit_resample":
+    if c.name in ("fit_resample", "fit_sample"):
         return Val("tuple", items=(out, y))
     return out
 
@@ -549,11 +571,17 @@ def _query(c: Call, rows: Val) -> Val | None:
     return rows
 
 
+def _groupby(c: Call, rows: Val) -> Val:
+    """A grouped statistic (``df.groupby("city")["y"].transform("mean")``): a statistic of the
+    rows, naming the column it aggregates once subscripted."""
+    return Val("stat", rows.role, rows.prov, rows.trail, cls="groupby")
+
+
 def _rows_apply(c: Call, rows: Val) -> Val | None:
     """Any other method of rows (fillna, clip, where, replace, ...): a statistic among its
     arguments is applied to the rows."""
     taint = c.flow.stat_use([rows, *c.args, *c.kw.values()], c.line, [rows])
-    if c.name in ("groupby", "value_counts", "nunique", "count", "isna", "isnull", "head"):
+    if c.name in ("value_counts", "nunique", "count", "isna", "isnull", "head"):
         return None
     return rows.tainted(taint)
 
@@ -565,6 +593,7 @@ ROWS_METHODS: dict[str, Callable[[Call, Val], Val | None]] = {
     "sample": _sample,
     "drop": _drop,
     "query": _query,
+    "groupby": _groupby,
 }
 
 
@@ -581,7 +610,7 @@ def _unknown_fit(c: Call, owner: Val | None) -> Val | None:
     """A model the tables do not know (Keras, a booster object): trained on its first rows."""
     rows = rows_of(c.args[:1])
     if rows:
-        c.flow.model_fit(rows[0])
+        c.flow.model_fit(rows[0], y=c.args[1] if len(c.args) > 1 else c.kw.get("y"))
         _early_stop(c, None, [])
     return None
 

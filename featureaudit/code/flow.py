@@ -108,6 +108,7 @@ class Flow:
         self.reached: set[int] = set()  # events whose output reached a model's training rows
         self.applied: set[int] = set()  # statistics that chose the columns of some rows
         self.model_provs: set[tuple[str, ...]] = set()  # rows models were trained or scored on
+        self.targets: set[str] = set()  # columns models were trained to predict
         self.model_sides: set[str] = set()  # positional sides a model was fitted on
         self.known_sides = fitted_sides  # ... as found by the first walk
         self.loops: list[int] = []
@@ -265,7 +266,9 @@ class Flow:
             return
         old = self.env.get(name)
         if old is not None and old.kind == "rows":
-            self.env[name] = old.tainted(val.taint)
+            line = getattr(target, "lineno", 0)
+            taint = self.stat_use([val], line, [old]) if val.kind == "stat" else frozenset()
+            self.env[name] = old.tainted(val.taint | taint)
         elif val.kind == "score":
             self.env[name] = val
 
@@ -398,7 +401,8 @@ class Flow:
                 return base.items[s.value]
             return None
         if base.kind in ("stat", "score"):
-            return base
+            cols = self._columns(e.slice) if base.cls == "groupby" else ()
+            return replace(base, columns=cols) if cols else base
         if base.kind != "rows":
             return None
         index = e.slice.elts[0] if isinstance(e.slice, ast.Tuple) and e.slice.elts else e.slice
@@ -423,12 +427,13 @@ class Flow:
         assert self.unit is not None
         key = f"P[{'/'.join(base.prov)}]"
         side = f"{key}@{self.unit.cell or 0}:{e.lineno}:{e.col_offset}"
+        held = VALID if base.role == TRAIN else TEST
         if side in self.known_sides:
             role = TRAIN
         elif any(s.startswith(key) for s in self.known_sides):
-            role = TEST
+            role = held
         else:
-            role = TRAIN if index.lower is None else TEST
+            role = TRAIN if index.lower is None else held
         self.splits.append(
             Split(self.unit, e.lineno, "positional slices", base.prov, key=key, side=side)
         )
@@ -513,7 +518,10 @@ class Flow:
                 columns=rows[0].columns or stat.columns,
                 loop=self.loops[-1] if self.loops else None,
                 prov=stat.prov,
-                extra={"applied_to": rows[0].role},
+                extra={
+                    "applied_to": rows[0].role,
+                    "grouped": stat.columns if stat.cls == "groupby" else None,
+                },
             )
         )
         return frozenset({len(self.events) - 1})
@@ -528,11 +536,13 @@ class Flow:
             "score", held.role if held else None, loop=self.loops[-1] if self.loops else None
         )
 
-    def model_fit(self, rows: Val | None, est: Val | None = None) -> None:
-        """A model is trained on ``rows``: whatever shaped them (or the estimator) reached it,
-        and a positional side it is fitted on is the training side."""
+    def model_fit(self, rows: Val | None, est: Val | None = None, y: Val | None = None) -> None:
+        """A model is trained on ``rows`` to predict ``y``: whatever shaped the rows (or the
+        estimator) reached it, and a positional side it is fitted on is the training side."""
         taint = (rows.taint if rows else frozenset()) | (est.taint if est else frozenset())
         self.reached |= taint
+        if y is not None and y.kind == "rows":
+            self.targets.update(y.columns)
         if rows is not None:
             self.model_provs.add(rows.prov)
             self.model_sides.update(s for s in rows.prov if s.startswith("P["))
