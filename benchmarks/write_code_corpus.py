@@ -1400,6 +1400,112 @@ family("c2_keras_holdout_slices", "check", KERAS, [
             "model.fit(x_part, y_part, epochs=20, validation_data=(x_val, y_val), callbacks=[ModelCheckpoint('b.keras', save_best_only=True)])")])
 
 
+# ---- third batch: check families only, labelled and run once, the tool not changed after -----
+TEXT = """import pandas as pd
+from sklearn.feature_extraction.text import TfidfVectorizer, CountVectorizer
+from sklearn.model_selection import train_test_split, cross_val_score
+from sklearn.pipeline import make_pipeline
+from sklearn.linear_model import LogisticRegression
+from sklearn.naive_bayes import MultinomialNB
+from sklearn.metrics import accuracy_score
+df = pd.read_csv("$csv")
+$BODY
+"""
+family("b3_text_vectoriser", "check", TEXT, [
+    v(0, BODY="vec = TfidfVectorizer(stop_words='english', max_features=5000)\nX = vec.fit_transform(df['text'])  #! fit_before_split high\n"
+         "X_train, X_test, y_train, y_test = train_test_split(X, df['label'], test_size=0.2)\n"
+         "nb = MultinomialNB().fit(X_train, y_train)\nprint(accuracy_score(y_test, nb.predict(X_test)))"),
+    v(1, True, BODY="cv = CountVectorizer()\nbow = cv.fit_transform(df.review)  #! fit_before_split high\n"
+         "print(cross_val_score(LogisticRegression(max_iter=1000), bow, df.sentiment, cv=5).mean())"),
+    v(2, BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
+         "pipe = make_pipeline(TfidfVectorizer(), LogisticRegression(max_iter=1000)).fit(X_train, y_train)\n"
+         "print(pipe.score(X_test, y_test))"),
+    v(3, BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
+         "tfidf = TfidfVectorizer()\nXtr = tfidf.fit_transform(X_train)\nXte = tfidf.fit_transform(X_test)  #! fit_on_heldout high\n"
+         "print(MultinomialNB().fit(Xtr, y_train).score(Xte, y_test))")])
+
+family("b3_time_mask_split", "check", """$HEAD
+df = pd.read_csv("$csv", parse_dates=["date"])
+num = ["age", "income", "balance"]
+$BODY
+model = $MODEL.fit(train[num], train["$t"])
+print(accuracy_score(test["$t"], model.predict(test[num])))
+""", [v(0, BODY="df[num] = StandardScaler().fit_transform(df[num])  #! fit_before_split high\n"
+         "train = df[df['date'] < '2021-01-01']\ntest = df[df['date'] >= '2021-01-01']"),
+      v(1, True, BODY="train = df[df.date < '2021-01-01'].copy()\ntest = df[df.date >= '2021-01-01'].copy()\n"
+         "sc = MinMaxScaler().fit(train[num])\ntrain[num] = sc.transform(train[num])\ntest[num] = sc.transform(test[num])"),
+      v(2, BODY="df[num] = df[num].fillna(df[num].median())  #! fit_before_split high\n"
+         "train = df[df['split'] == 'train']\ntest = df[df['split'] == 'test']")])
+
+family("b3_imputers_all_rows", "check", """$HEAD
+from sklearn.impute import KNNImputer
+from sklearn.experimental import enable_iterative_imputer
+from sklearn.impute import IterativeImputer
+$LOADER
+$BODY
+""", [v(0, BODY="X = pd.DataFrame(KNNImputer(n_neighbors=5).fit_transform(X), columns=X.columns)  #! fit_before_split high\n"
+         "X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
+      v(1, "frame", True, BODY="imp = IterativeImputer(max_iter=10)\nX_imp = imp.fit_transform(X)  #! fit_before_split high\n"
+         "print(cross_val_score($MODEL, X_imp, y, cv=StratifiedKFold(5)).mean())"),
+      v(2, "kaggle", BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\nimp = KNNImputer().fit(X_train)\n"
+         "print($MODEL.fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test))")])
+
+family("b3_selection_scores", "check", """$HEAD
+from sklearn.feature_selection import RFECV, mutual_info_classif
+$LOADER
+$BODY
+""", [v(0, "frame", BODY="rfecv = RFECV(LogisticRegression(max_iter=500), cv=5).fit(X, y)  #! selection_on_all_rows high\n"
+         "X_sel = rfecv.transform(X)\nprint(cross_val_score($MODEL, X_sel, y, cv=5).mean())"),
+      v(1, "frame", BODY="mi = mutual_info_classif(X, y)  #! selection_on_all_rows high\ntop = X.columns[np.argsort(mi)[-10:]]\n"
+         "X_train, X_test, y_train, y_test = train_test_split(X[top], y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
+      v(2, "frame", True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+         "rfecv = RFECV(DecisionTreeClassifier(), cv=5).fit(X_train, y_train)\n"
+         "print($MODEL.fit(rfecv.transform(X_train), y_train).score(rfecv.transform(X_test), y_test))")])
+
+family("b3_clean_everyday", "check", """$HEAD
+from sklearn.preprocessing import LabelEncoder
+import joblib
+df = pd.read_csv("$csv")
+$BODY
+""", [v(0, BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX = StandardScaler().fit_transform(X)\n"
+         "model = $MODEL.fit(X, y)\nprint('training accuracy', model.score(X, y))\njoblib.dump(model, 'model.pkl')"),
+      v(1, BODY="for col in ['city', 'segment', 'channel']:\n    df[col] = LabelEncoder().fit_transform(df[col])\n"
+         "df = pd.get_dummies(df, columns=['region'])\nX_train, X_test, y_train, y_test = train_test_split(df.drop(columns=['$t']), df['$t'])\n"
+         "print($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
+      v(2, True, BODY="df = df.dropna()\ndf['age_band'] = pd.cut(df['age'], bins=[0, 30, 50, 120])\n"
+         "X_train, X_test, y_train, y_test = train_test_split(df[['age', 'income']], df['$t'], test_size=0.3)\n"
+         "pipe = make_pipeline(StandardScaler(), $MODEL)\nprint(cross_val_score(pipe, X_train, y_train, cv=5).mean())\n"
+         "print(pipe.fit(X_train, y_train).score(X_test, y_test))"),
+      v(3, BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+         "m = $MODEL.fit(X_train, y_train)\nfor name, Xp, yp in [('train', X_train, y_train), ('test', X_test, y_test)]:\n"
+         "    print(name, accuracy_score(yp, m.predict(Xp)))")])
+
+family("b3_choose_on_test", "check", """$HEAD
+$LOADER
+X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=8)
+$BODY
+""", [v(0, BODY="best_model, best_f1 = None, -1\nfor model in [LogisticRegression(max_iter=500), RandomForestClassifier(), SVC()]:\n"
+         "    model.fit(X_train, y_train)\n    f1 = f1_score(y_test, model.predict(X_test), average='macro')  #! test_reused high\n"
+         "    if f1 > best_f1:\n        best_model, best_f1 = model, f1\nprint('best', best_model, best_f1)"),
+      v(1, "xy", BODY="accs = [accuracy_score(y_test, KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train).predict(X_test)) for k in range(1, 21)]  #! test_reused high\n"
+         "k_best = int(np.argmax(accs)) + 1\nprint(k_best, max(accs))"),
+      v(2, "bunch", True, BODY="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, random_state=9)\n"
+         "best_model, best_acc = None, 0\nfor d in [2, 4, 8, 16]:\n    model = DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr)\n"
+         "    acc = accuracy_score(y_val, model.predict(X_val))\n    if acc > best_acc:\n        best_model, best_acc = model, acc\n"
+         "print('test', accuracy_score(y_test, best_model.predict(X_test)))")])
+
+family("b3_boost_monitoring", "check", BOOST, [
+    v(0, FIT="model = xgb.XGBClassifier(n_estimators=300)\nmodel.fit(X_train, y_train, eval_set=[(X_train, y_train), (X_test, y_test)], verbose=50)",
+      PRED="model.predict_proba(X_test)[:, 1]"),
+    v(1, FIT="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, test_size=0.15)\n"
+             "model = lgb.LGBMClassifier(n_estimators=4000)\n"
+             "model.fit(X_tr, y_tr, eval_set=(X_val, y_val), callbacks=[lgb.early_stopping(200), lgb.log_evaluation(100)])",
+      PRED="model.predict_proba(X_test)[:, 1]"),
+    v(2, True, FIT="model = lgb.LGBMClassifier(n_estimators=4000)\n"
+             "model.fit(X_train, y_train, eval_set=[(X_test, y_test)], eval_metric='auc', callbacks=[lgb.early_stopping(stopping_rounds=100)])  #! test_reused medium",
+      PRED="model.predict_proba(X_test)[:, 1]")])
+
+
 # ---- writing -----------------------------------------------------------------------------
 MARK = re.compile(r"\s*#! (\w+) (\w+)\s*$")
 
