@@ -1289,18 +1289,32 @@ family(
 
 
 # ---- second batch, written after the first results: new families in both halves -----------
-family("t2_scale_function", "tune", """$HEAD
+family(
+    "t2_scale_function",
+    "tune",
+    """$HEAD
 from sklearn import preprocessing
 $LOADER
 $SCALE
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.3)
 clf = $MODEL.fit(X_train, y_train)
 print(clf.score(X_test, y_test))
-""", [v(0, SCALE="X = preprocessing.scale(X)  #! fit_before_split high"),
-      v(1, "xy", SCALE="X = preprocessing.StandardScaler().fit(X).transform(X)  #! fit_before_split high"),
-      v(2, "bunch", SCALE="X = preprocessing.minmax_scale(X)  #! fit_before_split high")])
+""",
+    [
+        v(0, SCALE="X = preprocessing.scale(X)  #! fit_before_split high"),
+        v(
+            1,
+            "xy",
+            SCALE="X = preprocessing.StandardScaler().fit(X).transform(X)  #! fit_before_split high",
+        ),
+        v(2, "bunch", SCALE="X = preprocessing.minmax_scale(X)  #! fit_before_split high"),
+    ],
+)
 
-family("c2_scale_function", "check", """$HEAD
+family(
+    "c2_scale_function",
+    "check",
+    """$HEAD
 from sklearn.preprocessing import scale, robust_scale, normalize
 $LOADER
 $SCALE
@@ -1308,43 +1322,82 @@ X_tr, X_te, y_tr, y_te = train_test_split(X, y, random_state=5)
 m = $MODEL
 m.fit(X_tr, y_tr)
 print(accuracy_score(y_te, m.predict(X_te)))
-""", [v(3, SCALE="X = scale(X)  #! fit_before_split high"),
-      v(4, "frame", SCALE="X = robust_scale(X)  #! fit_before_split high"),
-      v(5, "xy", SCALE="X = normalize(X)")])
+""",
+    [
+        v(3, SCALE="X = scale(X)  #! fit_before_split high"),
+        v(4, "frame", SCALE="X = robust_scale(X)  #! fit_before_split high"),
+        v(5, "xy", SCALE="X = normalize(X)"),
+    ],
+)
 
-family("t2_function_prep", "tune", """$HEAD
+family(
+    "t2_function_prep",
+    "tune",
+    """$HEAD
 $DEF
 $LOADER_DF
 $USE
-""", [v(0, DEF="def preprocess(data):\n    data = data.fillna(data.mean())  #! fit_before_split high\n    return data",
-         LOADER_DF='df = pd.read_csv("$csv")',
-         USE='df = preprocess(df)\nX, y = df.drop(columns=["$t"]), df["$t"]\n'
-             'X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))'),
-      v(1, DEF="def prep(frame):\n    return StandardScaler().fit_transform(frame)  #! fit_on_heldout high",
-         LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
-         USE='X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train = prep(X_train)\nX_test = prep(X_test)\n'
-             'print($MODEL.fit(X_train, y_train).score(X_test, y_test))'),
-      v(2, DEF="def scale_pair(train, test):\n    sc = StandardScaler().fit(train)\n    return sc.transform(train), sc.transform(test)",
-         LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
-         USE='X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train, X_test = scale_pair(X_train, X_test)\n'
-             'print($MODEL.fit(X_train, y_train).score(X_test, y_test))')])
+""",
+    [
+        v(
+            0,
+            DEF="def preprocess(data):\n    data = data.fillna(data.mean())  #! fit_before_split high\n    return data",
+            LOADER_DF='df = pd.read_csv("$csv")',
+            USE='df = preprocess(df)\nX, y = df.drop(columns=["$t"]), df["$t"]\n'
+            "X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            1,
+            DEF="def prep(frame):\n    return StandardScaler().fit_transform(frame)  #! fit_on_heldout high",
+            LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
+            USE="X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train = prep(X_train)\nX_test = prep(X_test)\n"
+            "print($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            2,
+            DEF="def scale_pair(train, test):\n    sc = StandardScaler().fit(train)\n    return sc.transform(train), sc.transform(test)",
+            LOADER_DF='df = pd.read_csv("$csv")\nX, y = df.drop(columns=["$t"]), df["$t"]',
+            USE="X_train, X_test, y_train, y_test = train_test_split(X, y)\nX_train, X_test = scale_pair(X_train, X_test)\n"
+            "print($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+    ],
+)
 
-family("c2_function_prep", "check", """$HEAD
+family(
+    "c2_function_prep",
+    "check",
+    """$HEAD
 NUM = ["age", "income", "balance"]
 $DEF
 df = pd.read_csv("$csv")
 $USE
-""", [v(3, DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_before_split high\n    return df",
-         USE='df = clean(df)\ntrain, test = train_test_split(df, test_size=0.2)\n'
-             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))'),
-      v(4, DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_on_heldout medium\n    return df",
-         USE='train, test = train_test_split(df, test_size=0.2)\ntrain = clean(train)\ntest = clean(test)\n'
-             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))'),
-      v(5, DEF="def add_features(df):\n    df['ratio'] = df['income'] / (df['balance'] + 1)\n    df['log_income'] = np.log1p(df['income'])\n    return df",
-         USE='df = add_features(df)\ntrain, test = train_test_split(df, test_size=0.2)\n'
-             'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))')])
+""",
+    [
+        v(
+            3,
+            DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_before_split high\n    return df",
+            USE="df = clean(df)\ntrain, test = train_test_split(df, test_size=0.2)\n"
+            'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))',
+        ),
+        v(
+            4,
+            DEF="def clean(df):\n    for c in NUM:\n        df[c] = df[c].fillna(df[c].median())  #! fit_on_heldout medium\n    return df",
+            USE="train, test = train_test_split(df, test_size=0.2)\ntrain = clean(train)\ntest = clean(test)\n"
+            'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))',
+        ),
+        v(
+            5,
+            DEF="def add_features(df):\n    df['ratio'] = df['income'] / (df['balance'] + 1)\n    df['log_income'] = np.log1p(df['income'])\n    return df",
+            USE="df = add_features(df)\ntrain, test = train_test_split(df, test_size=0.2)\n"
+            'model = $MODEL.fit(train[NUM], train["$t"])\nprint(model.score(test[NUM], test["$t"]))',
+        ),
+    ],
+)
 
-family("t2_sampler_on_test", "tune", """$HEAD
+family(
+    "t2_sampler_on_test",
+    "tune",
+    """$HEAD
 from imblearn.over_sampling import SMOTE, ADASYN
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, test_size=0.3, stratify=y)
@@ -1352,11 +1405,22 @@ X_train, y_train = SMOTE().fit_resample(X_train, y_train)
 $TEST
 model = $MODEL.fit(X_train, y_train)
 print(f1_score(y_test, model.predict(X_test)))
-""", [v(0, TEST="X_test, y_test = SMOTE().fit_resample(X_test, y_test)  #! fit_on_heldout high"),
-      v(1, "xy", TEST="X_test, y_test = ADASYN().fit_resample(X_test, y_test)  #! fit_on_heldout high"),
-      v(2, "bunch", TEST="print(pd.Series(y_test).value_counts())")])
+""",
+    [
+        v(0, TEST="X_test, y_test = SMOTE().fit_resample(X_test, y_test)  #! fit_on_heldout high"),
+        v(
+            1,
+            "xy",
+            TEST="X_test, y_test = ADASYN().fit_resample(X_test, y_test)  #! fit_on_heldout high",
+        ),
+        v(2, "bunch", TEST="print(pd.Series(y_test).value_counts())"),
+    ],
+)
 
-family("c2_sampler_on_test", "check", """$HEAD
+family(
+    "c2_sampler_on_test",
+    "check",
+    """$HEAD
 from imblearn.over_sampling import SMOTE, RandomOverSampler
 $LOADER
 X_tr, X_te, y_tr, y_te = train_test_split(X, y, test_size=0.25)
@@ -1365,39 +1429,102 @@ X_tr_b, y_tr_b = ros.fit_resample(X_tr, y_tr)
 $TEST
 clf = $MODEL.fit(X_tr_b, y_tr_b)
 print(f1_score(y_te_b, clf.predict(X_te_b)))
-""", [v(3, S="RandomOverSampler()", TEST="X_te_b, y_te_b = ros.fit_resample(X_te, y_te)  #! fit_on_heldout high"),
-      v(4, "frame", S="SMOTE(k_neighbors=3)", TEST="X_te_b, y_te_b = SMOTE().fit_resample(X_te, y_te)  #! fit_on_heldout high"),
-      v(5, "xy", S="SMOTE()", TEST="X_te_b, y_te_b = X_te, y_te")])
+""",
+    [
+        v(
+            3,
+            S="RandomOverSampler()",
+            TEST="X_te_b, y_te_b = ros.fit_resample(X_te, y_te)  #! fit_on_heldout high",
+        ),
+        v(
+            4,
+            "frame",
+            S="SMOTE(k_neighbors=3)",
+            TEST="X_te_b, y_te_b = SMOTE().fit_resample(X_te, y_te)  #! fit_on_heldout high",
+        ),
+        v(5, "xy", S="SMOTE()", TEST="X_te_b, y_te_b = X_te, y_te"),
+    ],
+)
 
-family("t2_target_mean_encoding", "tune", """$HEAD
+family(
+    "t2_target_mean_encoding",
+    "tune",
+    """$HEAD
 df = pd.read_csv("$csv")
 $ENC
 X = df.drop(columns=["$t", "city"])
 y = df["$t"]
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=0)
 print($MODEL.fit(X_train, y_train).score(X_test, y_test))
-""", [v(0, ENC="df['city_te'] = df.groupby('city')['$t'].transform('mean')  #! fit_before_split high"),
-      v(1, ENC="means = df.groupby('city')['$t'].mean()  #! fit_before_split high\ndf['city_te'] = df['city'].map(means)"),
-      v(2, ENC="df['city_n'] = df.groupby('city')['age'].transform('count')\ndf['city_code'] = df['city'].astype('category').cat.codes")])
+""",
+    [
+        v(
+            0,
+            ENC="df['city_te'] = df.groupby('city')['$t'].transform('mean')  #! fit_before_split high",
+        ),
+        v(
+            1,
+            ENC="means = df.groupby('city')['$t'].mean()  #! fit_before_split high\ndf['city_te'] = df['city'].map(means)",
+        ),
+        v(
+            2,
+            ENC="df['city_n'] = df.groupby('city')['age'].transform('count')\ndf['city_code'] = df['city'].astype('category').cat.codes",
+        ),
+    ],
+)
 
-family("c2_target_mean_encoding", "check", """$HEAD
+family(
+    "c2_target_mean_encoding",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv")
 $ENC
 features = [c for c in df.columns if c not in ("$t", "segment")]
 train, valid = train_test_split(df, test_size=0.2, random_state=1)
 model = $MODEL.fit(train[features], train["$t"])
 print(roc_auc_score(valid["$t"], model.predict_proba(valid[features])[:, 1]))
-""", [v(3, ENC="df['segment_rate'] = df.groupby('segment')['$t'].transform('mean')  #! fit_before_split high"),
-      v(4, ENC="rate = df.groupby('segment')['$t'].mean().to_dict()  #! fit_before_split high\ndf['segment_rate'] = df['segment'].map(rate)"),
-      v(5, ENC="train_part, _ = train_test_split(df, test_size=0.2, random_state=1)\nrate = train_part.groupby('segment')['$t'].mean()\ndf['segment_rate'] = df['segment'].map(rate)")])
+""",
+    [
+        v(
+            3,
+            ENC="df['segment_rate'] = df.groupby('segment')['$t'].transform('mean')  #! fit_before_split high",
+        ),
+        v(
+            4,
+            ENC="rate = df.groupby('segment')['$t'].mean().to_dict()  #! fit_before_split high\ndf['segment_rate'] = df['segment'].map(rate)",
+        ),
+        v(
+            5,
+            ENC="train_part, _ = train_test_split(df, test_size=0.2, random_state=1)\nrate = train_part.groupby('segment')['$t'].mean()\ndf['segment_rate'] = df['segment'].map(rate)",
+        ),
+    ],
+)
 
-family("t2_keras_holdout_slices", "tune", KERAS.replace("$CB", "$CB"), [
-    v(0, CB="x_val, partial_x = X_train[:1000], X_train[1000:]\ny_val, partial_y = y_train[:1000], y_train[1000:]\n"
-            "model.fit(partial_x, partial_y, epochs=40, validation_data=(x_val, y_val), callbacks=[EarlyStopping(patience=4)])")])
+family(
+    "t2_keras_holdout_slices",
+    "tune",
+    KERAS.replace("$CB", "$CB"),
+    [
+        v(
+            0,
+            CB="x_val, partial_x = X_train[:1000], X_train[1000:]\ny_val, partial_y = y_train[:1000], y_train[1000:]\n"
+            "model.fit(partial_x, partial_y, epochs=40, validation_data=(x_val, y_val), callbacks=[EarlyStopping(patience=4)])",
+        )
+    ],
+)
 
-family("c2_keras_holdout_slices", "check", KERAS, [
-    v(1, CB="x_val = X_train[:500]\nx_part = X_train[500:]\ny_val = y_train[:500]\ny_part = y_train[500:]\n"
-            "model.fit(x_part, y_part, epochs=20, validation_data=(x_val, y_val), callbacks=[ModelCheckpoint('b.keras', save_best_only=True)])")])
+family(
+    "c2_keras_holdout_slices",
+    "check",
+    KERAS,
+    [
+        v(
+            1,
+            CB="x_val = X_train[:500]\nx_part = X_train[500:]\ny_val = y_train[:500]\ny_part = y_train[500:]\n"
+            "model.fit(x_part, y_part, epochs=20, validation_data=(x_val, y_val), callbacks=[ModelCheckpoint('b.keras', save_best_only=True)])",
+        )
+    ],
+)
 
 
 # ---- third batch: check families only, labelled and run once, the tool not changed after -----
@@ -1411,99 +1538,229 @@ from sklearn.metrics import accuracy_score
 df = pd.read_csv("$csv")
 $BODY
 """
-family("b3_text_vectoriser", "check", TEXT, [
-    v(0, BODY="vec = TfidfVectorizer(stop_words='english', max_features=5000)\nX = vec.fit_transform(df['text'])  #! fit_before_split high\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X, df['label'], test_size=0.2)\n"
-         "nb = MultinomialNB().fit(X_train, y_train)\nprint(accuracy_score(y_test, nb.predict(X_test)))"),
-    v(1, True, BODY="cv = CountVectorizer()\nbow = cv.fit_transform(df.review)  #! fit_before_split high\n"
-         "print(cross_val_score(LogisticRegression(max_iter=1000), bow, df.sentiment, cv=5).mean())"),
-    v(2, BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
-         "pipe = make_pipeline(TfidfVectorizer(), LogisticRegression(max_iter=1000)).fit(X_train, y_train)\n"
-         "print(pipe.score(X_test, y_test))"),
-    v(3, BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
-         "tfidf = TfidfVectorizer()\nXtr = tfidf.fit_transform(X_train)\nXte = tfidf.fit_transform(X_test)  #! fit_on_heldout high\n"
-         "print(MultinomialNB().fit(Xtr, y_train).score(Xte, y_test))")])
+family(
+    "b3_text_vectoriser",
+    "check",
+    TEXT,
+    [
+        v(
+            0,
+            BODY="vec = TfidfVectorizer(stop_words='english', max_features=5000)\nX = vec.fit_transform(df['text'])  #! fit_before_split high\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X, df['label'], test_size=0.2)\n"
+            "nb = MultinomialNB().fit(X_train, y_train)\nprint(accuracy_score(y_test, nb.predict(X_test)))",
+        ),
+        v(
+            1,
+            True,
+            BODY="cv = CountVectorizer()\nbow = cv.fit_transform(df.review)  #! fit_before_split high\n"
+            "print(cross_val_score(LogisticRegression(max_iter=1000), bow, df.sentiment, cv=5).mean())",
+        ),
+        v(
+            2,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
+            "pipe = make_pipeline(TfidfVectorizer(), LogisticRegression(max_iter=1000)).fit(X_train, y_train)\n"
+            "print(pipe.score(X_test, y_test))",
+        ),
+        v(
+            3,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(df['text'], df['label'], test_size=0.2)\n"
+            "tfidf = TfidfVectorizer()\nXtr = tfidf.fit_transform(X_train)\nXte = tfidf.fit_transform(X_test)  #! fit_on_heldout high\n"
+            "print(MultinomialNB().fit(Xtr, y_train).score(Xte, y_test))",
+        ),
+    ],
+)
 
-family("b3_time_mask_split", "check", """$HEAD
+family(
+    "b3_time_mask_split",
+    "check",
+    """$HEAD
 df = pd.read_csv("$csv", parse_dates=["date"])
 num = ["age", "income", "balance"]
 $BODY
 model = $MODEL.fit(train[num], train["$t"])
 print(accuracy_score(test["$t"], model.predict(test[num])))
-""", [v(0, BODY="df[num] = StandardScaler().fit_transform(df[num])  #! fit_before_split high\n"
-         "train = df[df['date'] < '2021-01-01']\ntest = df[df['date'] >= '2021-01-01']"),
-      v(1, True, BODY="train = df[df.date < '2021-01-01'].copy()\ntest = df[df.date >= '2021-01-01'].copy()\n"
-         "sc = MinMaxScaler().fit(train[num])\ntrain[num] = sc.transform(train[num])\ntest[num] = sc.transform(test[num])"),
-      v(2, BODY="df[num] = df[num].fillna(df[num].median())  #! fit_before_split high\n"
-         "train = df[df['split'] == 'train']\ntest = df[df['split'] == 'test']")])
+""",
+    [
+        v(
+            0,
+            BODY="df[num] = StandardScaler().fit_transform(df[num])  #! fit_before_split high\n"
+            "train = df[df['date'] < '2021-01-01']\ntest = df[df['date'] >= '2021-01-01']",
+        ),
+        v(
+            1,
+            True,
+            BODY="train = df[df.date < '2021-01-01'].copy()\ntest = df[df.date >= '2021-01-01'].copy()\n"
+            "sc = MinMaxScaler().fit(train[num])\ntrain[num] = sc.transform(train[num])\ntest[num] = sc.transform(test[num])",
+        ),
+        v(
+            2,
+            BODY="df[num] = df[num].fillna(df[num].median())  #! fit_before_split high\n"
+            "train = df[df['split'] == 'train']\ntest = df[df['split'] == 'test']",
+        ),
+    ],
+)
 
-family("b3_imputers_all_rows", "check", """$HEAD
+family(
+    "b3_imputers_all_rows",
+    "check",
+    """$HEAD
 from sklearn.impute import KNNImputer
 from sklearn.experimental import enable_iterative_imputer
 from sklearn.impute import IterativeImputer
 $LOADER
 $BODY
-""", [v(0, BODY="X = pd.DataFrame(KNNImputer(n_neighbors=5).fit_transform(X), columns=X.columns)  #! fit_before_split high\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
-      v(1, "frame", True, BODY="imp = IterativeImputer(max_iter=10)\nX_imp = imp.fit_transform(X)  #! fit_before_split high\n"
-         "print(cross_val_score($MODEL, X_imp, y, cv=StratifiedKFold(5)).mean())"),
-      v(2, "kaggle", BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\nimp = KNNImputer().fit(X_train)\n"
-         "print($MODEL.fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test))")])
+""",
+    [
+        v(
+            0,
+            BODY="X = pd.DataFrame(KNNImputer(n_neighbors=5).fit_transform(X), columns=X.columns)  #! fit_before_split high\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X, y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            1,
+            "frame",
+            True,
+            BODY="imp = IterativeImputer(max_iter=10)\nX_imp = imp.fit_transform(X)  #! fit_before_split high\n"
+            "print(cross_val_score($MODEL, X_imp, y, cv=StratifiedKFold(5)).mean())",
+        ),
+        v(
+            2,
+            "kaggle",
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\nimp = KNNImputer().fit(X_train)\n"
+            "print($MODEL.fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test))",
+        ),
+    ],
+)
 
-family("b3_selection_scores", "check", """$HEAD
+family(
+    "b3_selection_scores",
+    "check",
+    """$HEAD
 from sklearn.feature_selection import RFECV, mutual_info_classif
 $LOADER
 $BODY
-""", [v(0, "frame", BODY="rfecv = RFECV(LogisticRegression(max_iter=500), cv=5).fit(X, y)  #! selection_on_all_rows high\n"
-         "X_sel = rfecv.transform(X)\nprint(cross_val_score($MODEL, X_sel, y, cv=5).mean())"),
-      v(1, "frame", BODY="mi = mutual_info_classif(X, y)  #! selection_on_all_rows high\ntop = X.columns[np.argsort(mi)[-10:]]\n"
-         "X_train, X_test, y_train, y_test = train_test_split(X[top], y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
-      v(2, "frame", True, BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "rfecv = RFECV(DecisionTreeClassifier(), cv=5).fit(X_train, y_train)\n"
-         "print($MODEL.fit(rfecv.transform(X_train), y_train).score(rfecv.transform(X_test), y_test))")])
+""",
+    [
+        v(
+            0,
+            "frame",
+            BODY="rfecv = RFECV(LogisticRegression(max_iter=500), cv=5).fit(X, y)  #! selection_on_all_rows high\n"
+            "X_sel = rfecv.transform(X)\nprint(cross_val_score($MODEL, X_sel, y, cv=5).mean())",
+        ),
+        v(
+            1,
+            "frame",
+            BODY="mi = mutual_info_classif(X, y)  #! selection_on_all_rows high\ntop = X.columns[np.argsort(mi)[-10:]]\n"
+            "X_train, X_test, y_train, y_test = train_test_split(X[top], y)\nprint($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            2,
+            "frame",
+            True,
+            BODY="X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "rfecv = RFECV(DecisionTreeClassifier(), cv=5).fit(X_train, y_train)\n"
+            "print($MODEL.fit(rfecv.transform(X_train), y_train).score(rfecv.transform(X_test), y_test))",
+        ),
+    ],
+)
 
-family("b3_clean_everyday", "check", """$HEAD
+family(
+    "b3_clean_everyday",
+    "check",
+    """$HEAD
 from sklearn.preprocessing import LabelEncoder
 import joblib
 df = pd.read_csv("$csv")
 $BODY
-""", [v(0, BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX = StandardScaler().fit_transform(X)\n"
-         "model = $MODEL.fit(X, y)\nprint('training accuracy', model.score(X, y))\njoblib.dump(model, 'model.pkl')"),
-      v(1, BODY="for col in ['city', 'segment', 'channel']:\n    df[col] = LabelEncoder().fit_transform(df[col])\n"
-         "df = pd.get_dummies(df, columns=['region'])\nX_train, X_test, y_train, y_test = train_test_split(df.drop(columns=['$t']), df['$t'])\n"
-         "print($MODEL.fit(X_train, y_train).score(X_test, y_test))"),
-      v(2, True, BODY="df = df.dropna()\ndf['age_band'] = pd.cut(df['age'], bins=[0, 30, 50, 120])\n"
-         "X_train, X_test, y_train, y_test = train_test_split(df[['age', 'income']], df['$t'], test_size=0.3)\n"
-         "pipe = make_pipeline(StandardScaler(), $MODEL)\nprint(cross_val_score(pipe, X_train, y_train, cv=5).mean())\n"
-         "print(pipe.fit(X_train, y_train).score(X_test, y_test))"),
-      v(3, BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX_train, X_test, y_train, y_test = train_test_split(X, y)\n"
-         "m = $MODEL.fit(X_train, y_train)\nfor name, Xp, yp in [('train', X_train, y_train), ('test', X_test, y_test)]:\n"
-         "    print(name, accuracy_score(yp, m.predict(Xp)))")])
+""",
+    [
+        v(
+            0,
+            BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX = StandardScaler().fit_transform(X)\n"
+            "model = $MODEL.fit(X, y)\nprint('training accuracy', model.score(X, y))\njoblib.dump(model, 'model.pkl')",
+        ),
+        v(
+            1,
+            BODY="for col in ['city', 'segment', 'channel']:\n    df[col] = LabelEncoder().fit_transform(df[col])\n"
+            "df = pd.get_dummies(df, columns=['region'])\nX_train, X_test, y_train, y_test = train_test_split(df.drop(columns=['$t']), df['$t'])\n"
+            "print($MODEL.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            2,
+            True,
+            BODY="df = df.dropna()\ndf['age_band'] = pd.cut(df['age'], bins=[0, 30, 50, 120])\n"
+            "X_train, X_test, y_train, y_test = train_test_split(df[['age', 'income']], df['$t'], test_size=0.3)\n"
+            "pipe = make_pipeline(StandardScaler(), $MODEL)\nprint(cross_val_score(pipe, X_train, y_train, cv=5).mean())\n"
+            "print(pipe.fit(X_train, y_train).score(X_test, y_test))",
+        ),
+        v(
+            3,
+            BODY="X = df.drop(columns=['$t'])\ny = df['$t']\nX_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+            "m = $MODEL.fit(X_train, y_train)\nfor name, Xp, yp in [('train', X_train, y_train), ('test', X_test, y_test)]:\n"
+            "    print(name, accuracy_score(yp, m.predict(Xp)))",
+        ),
+    ],
+)
 
-family("b3_choose_on_test", "check", """$HEAD
+family(
+    "b3_choose_on_test",
+    "check",
+    """$HEAD
 $LOADER
 X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=8)
 $BODY
-""", [v(0, BODY="best_model, best_f1 = None, -1\nfor model in [LogisticRegression(max_iter=500), RandomForestClassifier(), SVC()]:\n"
-         "    model.fit(X_train, y_train)\n    f1 = f1_score(y_test, model.predict(X_test), average='macro')  #! test_reused high\n"
-         "    if f1 > best_f1:\n        best_model, best_f1 = model, f1\nprint('best', best_model, best_f1)"),
-      v(1, "xy", BODY="accs = [accuracy_score(y_test, KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train).predict(X_test)) for k in range(1, 21)]  #! test_reused high\n"
-         "k_best = int(np.argmax(accs)) + 1\nprint(k_best, max(accs))"),
-      v(2, "bunch", True, BODY="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, random_state=9)\n"
-         "best_model, best_acc = None, 0\nfor d in [2, 4, 8, 16]:\n    model = DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr)\n"
-         "    acc = accuracy_score(y_val, model.predict(X_val))\n    if acc > best_acc:\n        best_model, best_acc = model, acc\n"
-         "print('test', accuracy_score(y_test, best_model.predict(X_test)))")])
+""",
+    [
+        v(
+            0,
+            BODY="best_model, best_f1 = None, -1\nfor model in [LogisticRegression(max_iter=500), RandomForestClassifier(), SVC()]:\n"
+            "    model.fit(X_train, y_train)\n    f1 = f1_score(y_test, model.predict(X_test), average='macro')  #! test_reused high\n"
+            "    if f1 > best_f1:\n        best_model, best_f1 = model, f1\nprint('best', best_model, best_f1)",
+        ),
+        v(
+            1,
+            "xy",
+            BODY="accs = [accuracy_score(y_test, KNeighborsClassifier(n_neighbors=k).fit(X_train, y_train).predict(X_test)) for k in range(1, 21)]  #! test_reused high\n"
+            "k_best = int(np.argmax(accs)) + 1\nprint(k_best, max(accs))",
+        ),
+        v(
+            2,
+            "bunch",
+            True,
+            BODY="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, random_state=9)\n"
+            "best_model, best_acc = None, 0\nfor d in [2, 4, 8, 16]:\n    model = DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr)\n"
+            "    acc = accuracy_score(y_val, model.predict(X_val))\n    if acc > best_acc:\n        best_model, best_acc = model, acc\n"
+            "print('test', accuracy_score(y_test, best_model.predict(X_test)))",
+        ),
+    ],
+)
 
-family("b3_boost_monitoring", "check", BOOST, [
-    v(0, FIT="model = xgb.XGBClassifier(n_estimators=300)\nmodel.fit(X_train, y_train, eval_set=[(X_train, y_train), (X_test, y_test)], verbose=50)",
-      PRED="model.predict_proba(X_test)[:, 1]"),
-    v(1, FIT="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, test_size=0.15)\n"
-             "model = lgb.LGBMClassifier(n_estimators=4000)\n"
-             "model.fit(X_tr, y_tr, eval_set=(X_val, y_val), callbacks=[lgb.early_stopping(200), lgb.log_evaluation(100)])",
-      PRED="model.predict_proba(X_test)[:, 1]"),
-    v(2, True, FIT="model = lgb.LGBMClassifier(n_estimators=4000)\n"
-             "model.fit(X_train, y_train, eval_set=[(X_test, y_test)], eval_metric='auc', callbacks=[lgb.early_stopping(stopping_rounds=100)])  #! test_reused medium",
-      PRED="model.predict_proba(X_test)[:, 1]")])
+family(
+    "b3_boost_monitoring",
+    "check",
+    BOOST,
+    [
+        v(
+            0,
+            FIT="model = xgb.XGBClassifier(n_estimators=300)\nmodel.fit(X_train, y_train, eval_set=[(X_train, y_train), (X_test, y_test)], verbose=50)",
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            1,
+            FIT="X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, test_size=0.15)\n"
+            "model = lgb.LGBMClassifier(n_estimators=4000)\n"
+            "model.fit(X_tr, y_tr, eval_set=(X_val, y_val), callbacks=[lgb.early_stopping(200), lgb.log_evaluation(100)])",
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+        v(
+            2,
+            True,
+            FIT="model = lgb.LGBMClassifier(n_estimators=4000)\n"
+            "model.fit(X_train, y_train, eval_set=[(X_test, y_test)], eval_metric='auc', callbacks=[lgb.early_stopping(stopping_rounds=100)])  #! test_reused medium",
+            PRED="model.predict_proba(X_test)[:, 1]",
+        ),
+    ],
+)
 
 
 # ---- writing -----------------------------------------------------------------------------
