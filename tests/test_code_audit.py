@@ -536,3 +536,18 @@ def test_out_that_is_not_a_writable_folder_is_one_line_exit_2(tmp_path: Path, wh
     errors = [ln for ln in res.stderr.splitlines() if ln.strip()]
     assert len(errors) == 1 and "--out" in errors[0] and "Traceback" not in res.output
     assert blocker.read_text() == "keep me\n"
+
+
+def test_frames_of_two_sources_joined_then_sliced_apart_are_one_table(tmp_path: Path) -> None:
+    # train.csv and test.csv concatenated, filled with the joined medians, sliced apart again:
+    # the statistic saw the rows the slice later holds out
+    script = tmp_path / "joined.py"
+    script.write_text(
+        "import pandas as pd\ntrain = pd.read_csv('train.csv')\ntest = pd.read_csv('test.csv')\n"
+        "y = train['Survived']\nfull = pd.concat([train.drop(columns=['Survived']), test])\n"
+        "full = full.fillna(full.median())\nX = full[: len(train)]\nX_sub = full[len(train) :]\n"
+        "model = RandomForestClassifier().fit(X, y)\npred = model.predict(X_sub)\n"
+    )
+    assert [(f.kind, f.line, f.level) for f in audit_file(script)[0]] == [
+        ("fit_before_split", 6, Level.HIGH)
+    ]

@@ -238,10 +238,13 @@ def _join(c: Call) -> Val | None:
     parts = rows_of(c.args)
     if not parts:
         return None
+    # parts of one table rejoin where they last shared rows; frames of different sources
+    # (train.csv and test.csv) become a new table of their own, which a later split divides
+    prov = common_prefix([v.prov for v in parts]) or (f"join@{c.site()}",)
     return Val(
         "rows",
         merge_roles([v.role for v in parts]),
-        prov=common_prefix([v.prov for v in parts]),
+        prov=prov,
         trail=parts[0].trail,
         taint=frozenset().union(*(v.taint for v in parts)),
     )
