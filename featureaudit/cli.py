@@ -421,11 +421,12 @@ def code_cmd(
     Example: featureaudit code train.py notebooks/ --format sarif --fail-at high
     """
     from featureaudit.code import audit_code
-    from featureaudit.code.output import document, sarif, text_lines, write_outputs
+    from featureaudit.code.output import check_out, document, sarif, text_lines, write_outputs
 
     if format not in ("text", "json", "sarif"):
         raise SettingError(f"--format {format!r} is not one of text, json, sarif.")
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
+    check_out(Path(out))
     result = audit_code(list(paths))
     write_outputs(result, Path(out), with_sarif=format == "sarif")
     if format == "json":

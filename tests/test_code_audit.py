@@ -14,6 +14,7 @@ from featureaudit.cli import app
 from featureaudit.code import audit_code
 from featureaudit.code.audit import audit_file
 from featureaudit.code.output import sarif
+from featureaudit.levels import Level
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = ROOT / "tests" / "code_cases"
@@ -47,7 +48,8 @@ def test_finding_carries_columns_code_and_remedy() -> None:
     d = f.to_dict()
     assert d["evidence"]["columns"] == ["income", "age"]
     assert d["evidence"]["code"].startswith("imp = SimpleImputer().fit(")
-    assert "Pipeline" in d["evidence"]["remedy"] and d["level"] == "medium"
+    # the imputer's output never reaches a model in this case: looked at, so low
+    assert "Pipeline" in d["evidence"]["remedy"] and d["level"] == "low"
 
 
 # The SARIF 2.1.0 fields the OASIS standard marks required (sarifLog: version, runs; run: tool;
@@ -254,11 +256,12 @@ def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_c
     cols = {c["column"]: c for c in doc["columns"]}
     for name in ("mean radius", "mean texture"):
         ev = [e for e in cols[name]["evidence"] if e["probe"] == "code"]
-        assert [e["kind"] for e in ev] == ["fit_on_all_rows"] and ev[0]["level"] == "medium"
+        # the scaled columns train the model: a fit on all rows that reaches it is high
+        assert [e["kind"] for e in ev] == ["fit_on_all_rows"] and ev[0]["level"] == "high"
         assert ev[0]["detail"]["line"] == 8 and "fit_on_all_rows" in cols[name]["kinds"]
     # solo finds nothing strong on "mean texture", so the code evidence sets its level and its
     # remedy: refit, not drop
-    assert cols["mean texture"]["level"] == "medium"
+    assert cols["mean texture"]["level"] == "high"
     assert cols["mean texture"]["remedy"] == "refit_on_training_rows"
     assert not [e for e in cols["worst area"]["evidence"] if e["probe"] == "code"]
     html = result.write(tmp_path / "report")
@@ -313,3 +316,238 @@ def test_scan_cli_takes_code_repeatedly(tmp_path: Path, breast_cancer) -> None:
         "oversampled_before_split",
     ]
     assert len(doc["settings"]["code_files"]) == 2
+
+
+# ---- the development corpus (benchmarks/code_corpus, labels written with the files) ----------
+def test_corpus_check_half_meets_the_bar() -> None:
+    # the issue's bar, on the half not used to tune: precision and recall >= 0.9 per kind at
+    # medium or above, and the fits on all rows that reach the model found at high
+    from code_corpus import findings_of, labels, table
+
+    from featureaudit.levels import Level
+
+    rows = labels()
+    assert len({r["file"] for r in rows}) >= 150
+    found, skipped = findings_of()
+    assert skipped == []  # no valid script or notebook is skipped
+    t = table(rows, found, "check")
+    for kind in (
+        "fit_before_split",
+        "fit_on_heldout",
+        "oversampled_before_split",
+        "test_reused",
+        "selection_on_all_rows",
+    ):
+        hit, right, n_got, n_want = t[(kind, Level.MEDIUM)]  # type: ignore[misc]
+        assert n_want >= 5 and right / n_got >= 0.9 and hit / n_want >= 0.9, kind
+    hit, _, _, n_want = t[("fit_before_split", Level.HIGH)]  # type: ignore[misc]
+    assert hit == n_want
+
+
+def test_corpus_halves_are_split_by_family() -> None:
+    from code_corpus import labels
+
+    halves: dict[str, set[str]] = {}
+    for r in labels():
+        halves.setdefault(r["family"], set()).add(r["half"])
+    assert all(len(h) == 1 for h in halves.values())
+    assert {h for hs in halves.values() for h in hs} == {"tune", "check"}
+
+
+# ---- one leaky and one clean snippet per rule of the rule table ------------------------------
+LOAD = (
+    "import pandas as pd\n"
+    "from sklearn.model_selection import train_test_split\n"
+    "df = pd.read_csv('loans.csv')\n"
+    "X = df.drop(columns=['late'])\n"
+    "y = df['late']\n"
+)
+FIT = (
+    "X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+    "model = LogisticRegression().fit(X_train, y_train)\n"
+    "print(model.score(X_test, y_test))\n"
+)
+RULE_CASES = {
+    "rule_sampler": (
+        "X, y = SMOTE().fit_resample(X, y)\n" + FIT,
+        FIT + "X_r, y_r = SMOTE().fit_resample(X_train, y_train)\n",
+    ),
+    "rule_resample": (
+        "X = resample(X, replace=True, n_samples=900)\n" + FIT,
+        "X = resample(X, replace=False, n_samples=900)\n" + FIT,
+    ),
+    "rule_selector": (
+        "X = SelectKBest(k=5).fit_transform(X, y)\n" + FIT,
+        FIT + "sel = SelectKBest(k=5).fit(X_train, y_train)\n",
+    ),
+    "rule_search": (
+        "g = GridSearchCV(SVC(), {'C': [1, 10]}).fit(X, y)\n" + FIT.replace("model = ", "m = "),
+        "X_train, X_test, y_train, y_test = train_test_split(X, y)\n"
+        "g = GridSearchCV(SVC(), {'C': [1, 10]}).fit(X_train, y_train)\n"
+        "print(g.score(X_test, y_test))\n",
+    ),
+    "rule_transformer": (
+        "X = StandardScaler().fit_transform(X)\n" + FIT,
+        "X = StandardScaler().fit_transform(X)\nmodel = LogisticRegression().fit(X, y)\n",
+    ),
+    "rule_statistic": (
+        "X = X.fillna(X.median())\n" + FIT,
+        FIT + "X_train = X_train.fillna(X_train.median())\n",
+    ),
+    "rule_fit_heldout": (
+        FIT + "X_test = StandardScaler().fit_transform(X_test)\n",
+        FIT + "X_test = StandardScaler().fit(X_train).transform(X_test)\n",
+    ),
+    "rule_statistic_heldout": (
+        FIT + "X_test = X_test - X_test.mean()\n",
+        FIT + "X_test = X_test - X_train.mean()\n",
+    ),
+    "rule_correlation": (
+        "c = df.corr()['late'].abs()\nX = X[c[c > 0.1].index.drop('late')]\n" + FIT,
+        "import seaborn as sns\nsns.heatmap(df.corr())\n" + FIT,
+    ),
+    "rule_score_function": (
+        "F, p = f_classif(X, y)\n" + FIT,
+        FIT + "F, p = f_classif(X_train, y_train)\n",
+    ),
+    "rule_early_stop": (
+        FIT + "m = XGBClassifier(early_stopping_rounds=9)\n"
+        "m.fit(X_train, y_train, eval_set=[(X_test, y_test)])\n",
+        FIT + "m = XGBClassifier()\nm.fit(X_train, y_train, eval_set=[(X_test, y_test)])\n",
+    ),
+    "rule_test_choice": (
+        FIT + "best = max([1, 5, 9], key=lambda k: KNeighborsClassifier(k)"
+        ".fit(X_train, y_train).score(X_test, y_test))\n",
+        FIT + "for k in [1, 5, 9]:\n"
+        "    print(k, KNeighborsClassifier(k).fit(X_train, y_train).score(X_test, y_test))\n",
+    ),
+}
+
+
+def test_every_rule_has_a_case() -> None:
+    from featureaudit.code.audit import RULES
+
+    assert {r.__name__ for r in RULES} == set(RULE_CASES)
+
+
+@pytest.mark.parametrize("rule", sorted(RULE_CASES))
+def test_each_rule_fires_on_its_leak_and_not_on_the_clean_form(tmp_path: Path, rule: str) -> None:
+    # our own snippets; the expectation of each is the rule's docstring, written before the rule
+    from featureaudit.code import audit as audit_module
+    from featureaudit.code.flow import analyse
+    from featureaudit.code.parse import read_units
+
+    fn = getattr(audit_module, rule)
+    leaky, clean = RULE_CASES[rule]
+    for text, want in ((leaky, True), (clean, False)):
+        path = tmp_path / f"{rule}_{want}.py"
+        path.write_text(LOAD + text)
+        flow = analyse(read_units(path))
+        ctx = audit_module.Context(flow)
+        fired = [f for i, ev in enumerate(flow.events) if (f := fn(ctx, i, ev)) is not None]
+        strong = [f for f in fired if f.level >= Level.MEDIUM]
+        assert bool(strong) is want, (rule, want, [f.summary for f in fired])
+
+
+def test_fit_on_all_rows_is_high_when_it_reaches_the_model_and_low_when_only_shown(
+    tmp_path: Path,
+) -> None:
+    reach = tmp_path / "reach.py"
+    reach.write_text(LOAD + "X = MinMaxScaler().fit_transform(X)\n" + FIT)
+    shown = tmp_path / "shown.py"
+    shown.write_text(LOAD + "print(OneHotEncoder().fit_transform(df[['city']]))\n" + FIT)
+    assert [(f.kind, f.level) for f in audit_file(reach)[0]] == [("fit_before_split", Level.HIGH)]
+    assert [f.level for f in audit_file(shown)[0]] == [Level.LOW]
+
+
+def test_positional_sides_are_read_from_use_not_position(tmp_path: Path) -> None:
+    # the first slice is the validation side here: a model is fitted on the second
+    text = (
+        "import pandas as pd\ndf = pd.read_csv('t.csv')\n"
+        "valid = df.iloc[1:2000]\ntrain = df.iloc[2001:]\n"
+        "sc = StandardScaler()\na = sc.fit_transform(train[['x']])\n"
+        "model = Ridge().fit(a, train['y'])\n"
+        "b = {}\n"
+    )
+    path = tmp_path / "pos.py"
+    path.write_text(text.replace("b = {}", "b = sc.transform(valid[['x']])"))
+    assert audit_file(path)[0] == []
+    path.write_text(text.replace("b = {}", "b = StandardScaler().fit_transform(valid[['x']])"))
+    assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 8)]
+
+
+# ---- notebooks as written, and inputs the parser cannot take ---------------------------------
+def _notebook(path: Path, sources: list[object]) -> Path:
+    cells = [{"cell_type": "code", "metadata": {}, "outputs": [], "source": s} for s in sources]
+    path.write_text(
+        json.dumps({"nbformat": 4, "nbformat_minor": 5, "metadata": {}, "cells": cells})
+    )
+    return path
+
+
+def test_notebook_percent_continuation_question_mark_and_number_cells_are_audited(
+    tmp_path: Path,
+) -> None:
+    nb = _notebook(
+        tmp_path / "nb.ipynb",
+        [
+            ["%matplotlib inline\n", LOAD, "X.describe?\n"],
+            ["print('rows: %d'\n", "      % len(X))\n", "q = '''is it high?\n", "no'''\n"],
+            3,
+            None,
+            ["X = StandardScaler().fit_transform(X)\n", FIT],
+        ],
+    )
+    found, units = audit_file(nb)
+    assert units == 5
+    assert [(f.cell, f.line, f.kind) for f in found] == [(5, 1, "fit_before_split")]
+
+
+@pytest.mark.parametrize(
+    "text",
+    ["x = " + "+".join(["1"] * 100_000) + "\n", "x = a" + ".b" * 50_000 + "\n"],
+    ids=["100k-terms", "50k-attributes"],
+)
+def test_expression_too_deep_is_one_line_exit_2(tmp_path: Path, text: str) -> None:
+    deep = tmp_path / "deep.py"
+    deep.write_text(text)
+    res = CliRunner().invoke(app, ["code", str(deep), "--out", str(tmp_path / "o")])
+    assert res.exit_code == 2, res.output
+    errors = [ln for ln in res.stderr.splitlines() if ln.strip()]
+    assert len(errors) == 1 and "deep.py" in errors[0] and "nested too deeply" in errors[0]
+
+
+def test_expression_deep_for_the_walk_is_still_audited(tmp_path: Path) -> None:
+    # parses, but is deeper than the walk's recursion: that statement is left out, the rest read
+    script = tmp_path / "wide.py"
+    script.write_text(
+        LOAD + "z = " + "+".join(["X"] * 2500) + "\nX = StandardScaler().fit_transform(X)\n" + FIT
+    )
+    assert [f.kind for f in audit_file(script)[0]] == ["fit_before_split"]
+
+
+@pytest.mark.parametrize("where", ["file", "under-a-file"])
+def test_out_that_is_not_a_writable_folder_is_one_line_exit_2(tmp_path: Path, where: str) -> None:
+    blocker = tmp_path / "taken"
+    blocker.write_text("keep me\n")
+    out = blocker if where == "file" else blocker / "sub"
+    res = CliRunner().invoke(app, ["code", str(CASES / "scaler_leaky.py"), "--out", str(out)])
+    assert res.exit_code == 2
+    errors = [ln for ln in res.stderr.splitlines() if ln.strip()]
+    assert len(errors) == 1 and "--out" in errors[0] and "Traceback" not in res.output
+    assert blocker.read_text() == "keep me\n"
+
+
+def test_frames_of_two_sources_joined_then_sliced_apart_are_one_table(tmp_path: Path) -> None:
+    # train.csv and test.csv concatenated, filled with the joined medians, sliced apart again:
+    # the statistic saw the rows the slice later holds out
+    script = tmp_path / "joined.py"
+    script.write_text(
+        "import pandas as pd\ntrain = pd.read_csv('train.csv')\ntest = pd.read_csv('test.csv')\n"
+        "y = train['Survived']\nfull = pd.concat([train.drop(columns=['Survived']), test])\n"
+        "full = full.fillna(full.median())\nX = full[: len(train)]\nX_sub = full[len(train) :]\n"
+        "model = RandomForestClassifier().fit(X, y)\npred = model.predict(X_sub)\n"
+    )
+    assert [(f.kind, f.line, f.level) for f in audit_file(script)[0]] == [
+        ("fit_before_split", 6, Level.HIGH)
+    ]

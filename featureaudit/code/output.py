@@ -13,9 +13,10 @@ from typing import Any
 from featureaudit._version import __version__
 from featureaudit.code.audit import CodeAudit
 from featureaudit.code.rules import KINDS, REMEDY
+from featureaudit.errors import SettingError
 from featureaudit.levels import Level
 
-__all__ = ["SCHEMA", "document", "sarif", "text_lines", "write_outputs"]
+__all__ = ["SCHEMA", "check_out", "document", "sarif", "text_lines", "write_outputs"]
 
 SCHEMA = "featureaudit.code/1"
 _SARIF_LEVEL = {
@@ -115,6 +116,22 @@ def _write(path: Path, text: str) -> None:
     with os.fdopen(fd, "w", encoding="utf-8") as fh:
         fh.write(text)
     os.replace(tmp, path)
+
+
+def check_out(out: Path) -> None:
+    """Make sure ``--out`` is a folder we can write into, before any work (one clear line)."""
+    if out.exists() and not out.is_dir():
+        raise SettingError(f"--out {out}: is a file, not a folder; name a folder for the results.")
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        fd, probe = tempfile.mkstemp(dir=out, prefix=".featureaudit-write-check.")
+        os.close(fd)
+        os.remove(probe)
+    except OSError as exc:
+        raise SettingError(
+            f"--out {out}: cannot write there ({exc.strerror or exc}); name a folder you can "
+            "write to."
+        ) from exc
 
 
 def write_outputs(result: CodeAudit, out: Path, *, with_sarif: bool) -> list[Path]:

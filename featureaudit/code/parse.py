@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 import ast
+import io
 import json
+import tokenize
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -26,19 +28,57 @@ class Unit:
         return self.lines[number - 1].strip() if 0 < number <= len(self.lines) else ""
 
 
+def _looks_magic(text: str) -> bool:
+    head = text.strip()
+    return head.startswith(("%", "!", "?")) or head.endswith("?")
+
+
+def _complete(lines: list[str]) -> bool:
+    """Do these lines close every bracket and string they open?"""
+    text = "\n".join(lines) + "\n"
+    try:
+        for _ in tokenize.generate_tokens(io.StringIO(text).readline):
+            pass
+    except (tokenize.TokenError, IndentationError, SyntaxError):
+        return False
+    return not text.rstrip().endswith("\\")
+
+
+def _is_magic(lines: list[str], index: int) -> bool:
+    """A magic begins a statement (the lines before it are complete: a line starting with
+    ``%`` inside a call is string formatting) and, for a trailing ``?``, ends it too (a line
+    opening a string that ends in ``?`` is text)."""
+    if not _looks_magic(lines[index]) or not _complete(lines[:index]):
+        return False
+    return not lines[index].rstrip().endswith("?") or _complete(lines[: index + 1])
+
+
 def _strip_magics(source: str) -> str:
-    """Blank IPython magics and shell escapes (``%``, ``!``, ``?``) so ``ast`` parses the cell
-    while line numbers stay where they were."""
-    out = []
-    for text in source.splitlines():
-        head = text.lstrip()
-        out.append("" if head.startswith(("%", "!", "?")) or head.endswith("?") else text)
-    return "\n".join(out)
+    """Blank IPython magics, shell escapes and help requests (a line starting with ``%``, ``!``
+    or ``?``, or ending in ``?``) that begin a statement, so ``ast`` parses the cell while line
+    numbers stay where they were; lines inside an open bracket or string are kept."""
+    lines = source.splitlines()
+    for i in range(len(lines)):
+        if _is_magic(lines, i):
+            lines[i] = ""
+    return "\n".join(lines)
+
+
+def _cell_source(src: object) -> str:
+    """A cell's source as text: a list of lines, one string, or anything else (a number)."""
+    if isinstance(src, list):
+        return "".join(str(x) for x in src)
+    return "" if src is None else str(src)
 
 
 def _parse(source: str, name: str) -> ast.Module:
     try:
         return ast.parse(source, filename=name)
+    except RecursionError as exc:
+        raise InputFileError(
+            f"{name}: an expression is nested too deeply for Python's parser to read; split "
+            "it into smaller statements or leave the file out of the paths to audit."
+        ) from exc
     except SyntaxError as exc:
         raise InputFileError(
             f"{name}: line {exc.lineno}: Python syntax error ({exc.msg}); fix "
@@ -85,9 +125,12 @@ def read_units(path: str | Path) -> list[Unit]:
     for index, cell in enumerate(cells, start=1):
         if not isinstance(cell, dict) or cell.get("cell_type") != "code":
             continue
-        src = cell.get("source", "")
-        source = "".join(src) if isinstance(src, list) else str(src)
-        clean = _strip_magics(source)
+        source = _cell_source(cell.get("source", ""))
+        clean = source
+        try:
+            ast.parse(source)
+        except (SyntaxError, ValueError, RecursionError):
+            clean = _strip_magics(source)
         units.append(
             Unit(name, index, _parse(clean, f"{name} cell {index}"), tuple(source.splitlines()))
         )

@@ -1,8 +1,9 @@
 """What the code audit knows: estimator families, the kinds it reports, their levels and remedies.
 
-Levels are common practice, no source: a fit that uses the target (selection, target encoding,
-resampling) inflates the held-out score far more than an unsupervised scaler, whose statistics
-on all rows shift the held-out rows only slightly.
+Levels are common practice, no source: a fit on rows that include held-out rows is ``high``
+when its output reaches the model that is then evaluated (the evaluation is no longer on unseen
+rows, whatever the fit), and ``low`` when its output is only looked at (a table, a plot);
+early stopping on the test set chooses one number on it and is ``medium``.
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ from typing import Any
 
 from featureaudit.levels import Level
 
-__all__ = ["Finding", "KINDS", "family_of", "LEVELS", "REMEDY"]
+__all__ = ["Finding", "KINDS", "family_of", "LEVELS", "REMEDY", "UNUSED_LEVEL"]
 
 TRANSFORMERS = {
     "StandardScaler",
@@ -39,6 +40,7 @@ TRANSFORMERS = {
     "SplineTransformer",
     "FactorAnalysis",
     "IncrementalPCA",
+    "VarianceThreshold",
 }
 SUPERVISED_TRANSFORMERS = {"TargetEncoder"}
 SELECTORS = {
@@ -52,7 +54,6 @@ SELECTORS = {
     "SelectFromModel",
     "SequentialFeatureSelector",
     "GenericUnivariateSelect",
-    "VarianceThreshold",
 }
 SCORE_FUNCS = {
     "f_classif",
@@ -136,10 +137,10 @@ KINDS = {
 }
 
 LEVELS = {  # (kind, variant) -> level; common practice, no source (see the module docstring)
-    ("fit_before_split", "unsupervised"): Level.MEDIUM,
-    ("fit_before_split", "encoder"): Level.LOW,
+    ("fit_before_split", "unsupervised"): Level.HIGH,
+    ("fit_before_split", "encoder"): Level.HIGH,
     ("fit_before_split", "supervised"): Level.HIGH,
-    ("fit_before_split", "pandas"): Level.MEDIUM,
+    ("fit_before_split", "pandas"): Level.HIGH,
     ("selection_on_all_rows", "features"): Level.HIGH,
     ("selection_on_all_rows", "search"): Level.HIGH,
     ("test_reused", "loop"): Level.HIGH,
@@ -148,6 +149,7 @@ LEVELS = {  # (kind, variant) -> level; common practice, no source (see the modu
     ("fit_on_heldout", "pandas"): Level.MEDIUM,
     ("oversampled_before_split", "resample"): Level.HIGH,
 }
+UNUSED_LEVEL = Level.LOW  # a fit on all rows whose output never reaches a model: looked at
 
 REMEDY = {
     "fit_before_split": "fit it on the training rows only: put it in a Pipeline with the model, "
@@ -184,10 +186,11 @@ class Finding:
     code: str
     flow: str
     columns: tuple[str, ...] = field(default=())
+    reached: bool = True  # the fitted output reaches a model's training rows
 
     @property
     def level(self) -> Level:
-        return LEVELS[(self.kind, self.variant)]
+        return LEVELS[(self.kind, self.variant)] if self.reached else UNUSED_LEVEL
 
     @property
     def remedy(self) -> str:

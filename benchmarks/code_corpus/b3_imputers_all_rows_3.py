@@ -1,0 +1,22 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+from sklearn.impute import KNNImputer
+from sklearn.experimental import enable_iterative_imputer
+from sklearn.impute import IterativeImputer
+train = pd.read_csv("train.csv")
+X = train.drop(["Id", "Outcome"], axis=1)
+y = train["Outcome"]
+X_train, X_test, y_train, y_test = train_test_split(X, y)
+imp = KNNImputer().fit(X_train)
+print(SVC(probability=True).fit(imp.transform(X_train), y_train).score(imp.transform(X_test), y_test))

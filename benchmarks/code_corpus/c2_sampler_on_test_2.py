@@ -1,0 +1,26 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+from imblearn.over_sampling import SMOTE, RandomOverSampler
+from sklearn.datasets import load_breast_cancer
+data = load_breast_cancer()
+df = pd.DataFrame(data.data, columns=data.feature_names)
+df['target'] = data.target
+X = df.drop('target', axis=1)
+y = df['target']
+X_tr, X_te, y_tr, y_te = train_test_split(X, y, test_size=0.25)
+ros = SMOTE(k_neighbors=3)
+X_tr_b, y_tr_b = ros.fit_resample(X_tr, y_tr)
+X_te_b, y_te_b = SMOTE().fit_resample(X_te, y_te)
+clf = GradientBoostingClassifier().fit(X_tr_b, y_tr_b)
+print(f1_score(y_te_b, clf.predict(X_te_b)))

@@ -1,0 +1,24 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+df = pd.read_csv("churn.csv")
+X = df.drop(columns=["Exited"])
+y = df["Exited"]
+X_train, X_test, y_train, y_test = train_test_split(X, y, random_state=1)
+X_tr, X_val, y_tr, y_val = train_test_split(X_train, y_train, random_state=2)
+scores = []
+for d in range(2, 12):
+    scores.append(DecisionTreeClassifier(max_depth=d).fit(X_tr, y_tr).score(X_val, y_val))
+best = 2 + int(np.argmax(scores))
+final = DecisionTreeClassifier(max_depth=best).fit(X_train, y_train)
+print("test", accuracy_score(y_test, final.predict(X_test)))

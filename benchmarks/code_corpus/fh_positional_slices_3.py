@@ -1,0 +1,22 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+df = pd.read_csv("diabetes.csv").sort_values("date")
+feats = [c for c in df.columns if c not in ("Outcome", "date")]
+valid = df.iloc[1:2000]
+train = df.iloc[2001:]
+scaler = StandardScaler()
+tr_x = scaler.fit_transform(train[feats])
+va_x = scaler.fit(valid[feats]).transform(valid[feats])
+model = SVC(probability=True).fit(tr_x, train["Outcome"])
+print(accuracy_score(valid["Outcome"], model.predict(va_x)))

@@ -1,0 +1,19 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+from imblearn.over_sampling import RandomOverSampler
+from sklearn.datasets import load_wine
+X, y = load_wine(return_X_y=True)
+sm = RandomOverSampler(random_state=0)
+X_sm, y_sm = sm.fit_resample(X, y)
+print(cross_val_score(RandomForestClassifier(n_estimators=200, random_state=0), X_sm, y_sm, cv=StratifiedKFold(5)).mean())

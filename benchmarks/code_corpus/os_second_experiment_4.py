@@ -1,0 +1,24 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+from imblearn.over_sampling import ADASYN
+train = pd.read_csv("train.csv")
+X = train.drop(["Id", "default"], axis=1)
+y = train["default"]
+X_train, X_test, y_train, y_test = train_test_split(X, y, stratify=y, random_state=0)
+rf = KNeighborsClassifier(n_neighbors=7).fit(X_train, y_train)
+print("plain", f1_score(y_test, rf.predict(X_test), average="macro"))
+X_bal, y_bal = ADASYN().fit_resample(X, y)
+X_train, X_test, y_train, y_test = train_test_split(X_bal, y_bal, stratify=y_bal, random_state=0)
+rf = KNeighborsClassifier(n_neighbors=7).fit(X_train, y_train)
+print("balanced", f1_score(y_test, rf.predict(X_test), average="macro"))

@@ -1,0 +1,24 @@
+import numpy as np
+import pandas as pd
+from sklearn.model_selection import train_test_split, cross_val_score, StratifiedKFold, KFold, GridSearchCV
+from sklearn.preprocessing import StandardScaler, MinMaxScaler, RobustScaler, OneHotEncoder, OrdinalEncoder, QuantileTransformer
+from sklearn.impute import SimpleImputer
+from sklearn.decomposition import PCA
+from sklearn.pipeline import Pipeline, make_pipeline
+from sklearn.metrics import accuracy_score, f1_score, roc_auc_score, mean_squared_error
+from sklearn.linear_model import LogisticRegression, Ridge
+from sklearn.ensemble import RandomForestClassifier, GradientBoostingClassifier
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.svm import SVC
+from sklearn.tree import DecisionTreeClassifier
+from sklearn.feature_selection import SelectKBest, f_classif, chi2, mutual_info_classif, RFE, SelectFromModel
+from sklearn.datasets import load_digits
+digits = load_digits()
+X = digits.data
+y = digits.target
+selector = SelectKBest(chi2, k=20)
+X_new = selector.fit_transform(X, y)
+print(X_new.shape)
+X_train, X_test, y_train, y_test = train_test_split(X_new, y, test_size=0.3, random_state=0)
+model = RandomForestClassifier(n_estimators=200, random_state=0).fit(X_train, y_train)
+print(model.score(X_test, y_test))
