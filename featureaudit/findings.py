@@ -1,4 +1,4 @@
-"""findings.json (schema ``featureaudit.findings/2``; reads 1 and 2): build, read, drop, diff."""
+"""findings.json (schema ``featureaudit.findings/3``; reads 1, 2 and 3): build, read, drop, diff."""
 
 from __future__ import annotations
 
@@ -12,10 +12,19 @@ from featureaudit.errors import InputFileError
 from featureaudit.evidence import clean_json
 from featureaudit.levels import Level
 
-__all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
+__all__ = [
+    "SCHEMA",
+    "Findings",
+    "load_findings",
+    "droplist",
+    "refit_list",
+    "diff_findings",
+    "DiffLine",
+]
 
-SCHEMA = "featureaudit.findings/2"
-READABLE = ("featureaudit.findings/1", SCHEMA)  # schema 2 keeps every field of 1
+SCHEMA = "featureaudit.findings/3"
+# each schema keeps every field of the one before
+READABLE = ("featureaudit.findings/1", "featureaudit.findings/2", SCHEMA)
 
 
 @dataclass(frozen=True)
@@ -91,7 +100,7 @@ def load_findings(path: str | Path) -> Findings:
         got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
         raise InputFileError(
             f"findings file {str(p)!r} has schema {got!r}; this version reads "
-            f"{' and '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
+            f"{', '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
             "to produce it."
         )
     for key in ("columns", "dataset_findings"):
@@ -146,6 +155,17 @@ def droplist(
         if Level.parse(c.get("level", "none")) >= floor
         and (refit or c.get("remedy") != "refit_on_training_rows")
         and (accepted or not c.get("accepted"))
+    ]
+    cols.sort(key=lambda c: -float(c.get("score") or 0.0))
+    return [c["column"] for c in cols]
+
+
+def refit_list(findings: Findings) -> list[str]:
+    """Columns to keep but refit on the training rows, most suspect first (not accepted)."""
+    cols = [
+        c
+        for c in findings.columns
+        if c.get("remedy") == "refit_on_training_rows" and not c.get("accepted")
     ]
     cols.sort(key=lambda c: -float(c.get("score") or 0.0))
     return [c["column"] for c in cols]
