@@ -249,6 +249,7 @@ def _words(plan: _Plan, scheme: str, removed: int, scored: int) -> str:
         parts.append("no column to drop")
     parts += plan.notes
     if plan.dedup:
-        parts.append(f"{removed} of {scored} scored rows with an exact copy among the fitted "
-                     "rows removed")
+        parts.append(
+            f"{removed} of {scored} scored rows with an exact copy among the fitted rows removed"
+        )
     return "; ".join(parts)

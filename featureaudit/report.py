@@ -8,8 +8,9 @@ from typing import Any
 
 import jinja2
 
-from featureaudit.findings import Findings, droplist
+from featureaudit.findings import Findings, droplist, refit_list
 from featureaudit.levels import Level
+from featureaudit.markdown import md_code, md_text
 from featureaudit.names import quote_name
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
@@ -42,6 +43,8 @@ def _env() -> jinja2.Environment:
     env.filters["visible"] = _visible
     env.filters["fmt"] = _fmt
     env.filters["md"] = _md
+    env.filters["text"] = md_text
+    env.globals["code"] = md_code
     env.filters["words"] = statistic_words
     from featureaudit import charts
 
@@ -70,20 +73,60 @@ def _fmt(value: Any) -> str:
     return _visible(value)
 
 
+METRIC_NAMES = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}
+
+
 def impact_line(doc: dict[str, Any]) -> str:
-    """ "validation AUC 0.97 as given; 0.84 (0.82–0.86) without the suspects", or ""."""
+    """The headline: "validation AUC 0.97 as given → 0.90 (0.88–0.92) with the remedies
+    applied; 0.84 without every suspect", or "" when impact was not measured."""
     block = doc.get("impact")
     if not block:
         return ""
-    name = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(block["metric"], "score")
-    lo, hi = (block.get("ci95") or [None, None])[:2]
-    ci = f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
+    name = METRIC_NAMES.get(block["metric"], "score")
+    rem = block.get("remedied")
+    head = f"validation {name} {block['as_given']:.2f} as given"
+    if rem:
+        head += f" → {rem['value']:.2f}{_ci(rem.get('ci95'))} with the remedies applied"
     if not block.get("suspects_removed"):
-        return f"validation {name} {block['as_given']:.2f} as given; no suspect at high or above"
-    return (
-        f"validation {name} {block['as_given']:.2f} as given; "
-        f"{block['without_suspects']:.2f}{ci} without the suspects"
-    )
+        return head + ("" if rem else "; no suspect at high or above")
+    without = f"{block['without_suspects']:.2f}{_ci(block.get('ci95'))}"
+    if rem:
+        return f"{head} ({without} with every suspect removed, refit columns too)"
+    return f"{head}; {without} without the suspects"
+
+
+def _ci(ci: Any) -> str:
+    lo, hi = (ci or [None, None])[:2]
+    return f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
+
+
+def undecided(doc: dict[str, Any]) -> list[dict[str, Any]]:
+    """Checks that ran on a column but could not judge it ("cannot tell"): too few values,
+    or both fits explain it. Shown apart from levels, never as "none"."""
+    out = []
+    for c in doc.get("columns", []):
+        for e in c.get("evidence", []):
+            d = e.get("detail") or {}
+            if d.get("fitted_on") == "cannot tell" and d.get("checked") != []:
+                out.append(
+                    {"column": c["column"], "probe": e.get("probe"), "summary": e.get("summary")}
+                )
+    return out
+
+
+def code_refs(doc: dict[str, Any]) -> dict[str, str]:
+    """Per column, its training-code findings in a few words (they are stated in full once,
+    in the training-code section)."""
+    refs: dict[str, list[str]] = {}
+    for c in doc.get("columns", []):
+        for e in c.get("evidence", []):
+            d = e.get("detail") or {}
+            if "code_kind" in d:
+                where = f"{d.get('file')} line {d.get('line')}"
+                refs.setdefault(c["column"], []).append(
+                    f"{str(d['code_kind']).replace('_', ' ')} at {where}"
+                )
+    return {k: "; ".join(dict.fromkeys(v)) for k, v in refs.items()}
 
 
 def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
@@ -219,7 +262,10 @@ def render_summary(findings: Findings) -> str:
                 :20
             ],
             drops=droplist(findings, "high"),
-            refits=_refits(doc),
+            refits=refit_list(findings),
+            split_findings=[f for f in doc["dataset_findings"] if f["level"] != "none"],
+            code_refs=code_refs(doc),
+            undecided=undecided(doc),
         )
     )
 

@@ -109,7 +109,8 @@ def test_remedied_groups_folds_by_entity_on_a_panel_as_group_kfold_does():
     x = df.drop(columns=["choice", "split", *result.droplist()]).to_numpy()
     pred = np.zeros(len(y))
     for tr, te in GroupKFold(3).split(x, y, groups=df.individual):
-        pred[te] = lgb.LGBMClassifier(**_direct_params()).fit(x[tr], y[tr]).predict_proba(x[te])[:, 1]
+        model = lgb.LGBMClassifier(**_direct_params()).fit(x[tr], y[tr])
+        pred[te] = model.predict_proba(x[te])[:, 1]
     direct = roc_auc_score(y, pred)
     lo, hi = rem["ci95"]
     assert lo - 0.005 <= direct <= hi + 0.005, (direct, rem)
@@ -133,9 +134,7 @@ def test_refit_column_inverts_each_affine_scaling_exactly(breast_cancer):
         table = build_table(frame, target="malignant", split_column="split")
         verdict = {
             "column": name,
-            "evidence": [
-                {"probe": "fitscope", "level": "high", "detail": {"all_rows": all_rows}}
-            ],
+            "evidence": [{"probe": "fitscope", "level": "high", "detail": {"all_rows": all_rows}}],
         }
         out, words = refit_column(table, values, verdict)
         # reference: sklearn.preprocessing scalers fitted on the training rows' raw values
@@ -144,7 +143,11 @@ def test_refit_column_inverts_each_affine_scaling_exactly(breast_cancer):
         scaler = StandardScaler() if name == "sd" else MinMaxScaler()
         want = scaler.fit(raw[tr, None]).transform(raw[:, None])[:, 0]
         assert out is not None and np.allclose(out, want, atol=1e-9), words
-    cap = {"column": "sd", "evidence": [{"probe": "fitscope", "level": "high",
-                                          "detail": {"fingerprint": "capped at quantiles"}}]}
+    cap = {
+        "column": "sd",
+        "evidence": [
+            {"probe": "fitscope", "level": "high", "detail": {"fingerprint": "capped at quantiles"}}
+        ],
+    }
     out, words = refit_column(table, frame["sd"].to_numpy(), cap)
     assert out is None and "kept as it is" in words
