@@ -161,21 +161,6 @@ def _fail(exc: BaseException) -> None:
     sys.exit(2)
 
 
-def _reached(doc: dict[str, Any], level: str) -> list[str]:
-    floor = Level.parse(level)
-    hits = [
-        c["column"]
-        for c in doc["columns"]
-        if Level.parse(c["level"]) >= floor and not c.get("accepted")
-    ]
-    hits += [
-        f"{f['kind']} (split)"
-        for f in doc["dataset_findings"]
-        if Level.parse(f["level"]) >= floor and not f.get("accepted")
-    ]
-    return hits
-
-
 @app.command()
 def scan(
     table: Annotated[
@@ -281,15 +266,13 @@ def scan(
     if history_dir is not None:
         store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
-    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
-    if fail and _reached(result.document, fail):
-        return 1
-    if inputs.fail_at_impact is not None:
-        from featureaudit.impact import largest_lift
+    from featureaudit.outcome import gate_reason
 
-        lift = largest_lift(result.document)
-        if lift is not None and lift > float(inputs.fail_at_impact):
-            return 1
+    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
+    reason = gate_reason(result.document, fail, inputs.fail_at_impact)
+    if reason:
+        print(f"featureaudit: {reason}", file=sys.stderr)
+        return 1
     return 0
 
 
@@ -304,33 +287,11 @@ def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inp
 
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
-    from featureaudit.findings import Findings
-    from featureaudit.names import quote_name
-    from featureaudit.report import verdict_line
+    from featureaudit.outcome import outcome_lines
 
-    d = doc["dataset"]
-    target = (
-        f"target {d['target']} ({d['task']})"
-        if d["target"] is not None
-        else "no target (probes that need one are skipped; pass --target)"
-    )
-    print(
-        f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-        f"{d['heldout_rows']} held out), {target}"
-    )
-    print(verdict_line(Findings(doc)))
-    top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
-    for c in top:
-        note = "  [accepted after review]" if c.get("accepted") else ""
-        name = quote_name(c["column"])
-        print(f"  {c['level']:<8} {c['score']:.2f}  {name}: {c['summary']}{note}")
-    for f in doc["dataset_findings"]:
-        if Level.parse(f["level"]) >= Level.MEDIUM:
-            note = "  [accepted after review]" if f.get("accepted") else ""
-            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}{note}")
+    print("\n".join(outcome_lines(doc, out_dir)))
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
-    print(f"dossier: {out_dir / 'dossier.html'}")
 
 
 @app.command("droplist")

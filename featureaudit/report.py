@@ -151,7 +151,8 @@ def verdict_line(findings: Findings) -> str:
     and reviewed (accepted) ones are counted apart."""
     counts: dict[str, int] = {}
     accepted = 0
-    for item in [*findings.columns, *findings.dataset_findings]:
+    code = findings.document.get("code_findings") or []
+    for item in [*findings.columns, *findings.dataset_findings, *code]:
         if item.get("accepted") and Level.parse(item["level"]) >= Level.MEDIUM:
             accepted += 1
             continue
@@ -169,6 +170,9 @@ def verdict_line(findings: Findings) -> str:
             f"and remember what the audit cannot see.{reviewed}"
         )
     parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
+    in_code = sum(Level.parse(f.get("level", "none")) >= Level.HIGH for f in code)
+    if in_code:
+        parts.append(f"{in_code} of them in the training code")
     medium = f"; {counts['medium']} more at medium" if counts.get("medium") else ""
     return (
         f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
