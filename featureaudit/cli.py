@@ -177,7 +177,10 @@ def scan(
         typer.Option(help="Value of --split-column that marks training rows [default: train]."),
     ] = None,
     target: Annotated[str | None, typer.Option(help="The outcome column.")] = None,
-    task: Annotated[str | None, typer.Option(help="binary, multiclass or numeric.")] = None,
+    task: Annotated[
+        str | None,
+        typer.Option(metavar="[binary|multiclass|numeric]", help="Overrides the inferred task."),
+    ] = None,
     dictionary: Annotated[str | None, typer.Option(help="Data dictionary CSV.")] = None,
     label_time: Annotated[str | None, typer.Option(help="When each outcome became known.")] = None,
     cutoff_time: Annotated[str | None, typer.Option(help="When each prediction is made.")] = None,
@@ -193,7 +196,9 @@ def scan(
     ] = None,
     fail_at: Annotated[
         str | None,
-        typer.Option(help="Exit 1 when a finding reaches this level: critical, high, medium, low."),
+        typer.Option(
+            metavar="[critical|high|medium|low]", help="Exit 1 when a finding reaches this level."
+        ),
     ] = None,
     seed: Annotated[
         int | None, typer.Option(help="Seed of folds and samples [default: 0].")
@@ -227,7 +232,8 @@ def scan(
     ] = False,
     # engine block: where the table is read (featureaudit/engines)
     engine: Annotated[
-        str | None, typer.Option(help="auto, memory, stream or dask [default: auto].")
+        str | None,
+        typer.Option(metavar="[auto|memory|stream|dask]", help="Engine [default: auto]."),
     ] = None,
     scheduler: Annotated[str | None, typer.Option(help="Dask scheduler address.")] = None,
     sample_rows: Annotated[
@@ -299,8 +305,10 @@ def droplist_cmd(
     findings: Annotated[
         Path, typer.Argument(metavar="FINDINGS", help="findings.json written by scan.")
     ],
-    at_least: Annotated[str, typer.Option(help="Lowest level to drop.")] = "high",
-    format: Annotated[str, typer.Option(help="text or json.")] = "text",
+    at_least: Annotated[
+        str, typer.Option(metavar="[critical|high|medium|low]", help="Lowest level to drop.")
+    ] = "high",
+    format: Annotated[str, typer.Option(metavar="[text|json]", help="Output format.")] = "text",
 ) -> int:
     """Print the columns to drop from a findings file, most suspect first.
 
@@ -325,9 +333,15 @@ def diff(
     old: Annotated[Path, typer.Argument(metavar="OLD", help="findings.json of the earlier run.")],
     new: Annotated[Path, typer.Argument(metavar="NEW", help="findings.json of the later run.")],
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]",
+            help="Exit 1 when a new or raised finding reaches this level.",
+        ),
     ] = None,
-    format: Annotated[str, typer.Option(help="text, json or markdown.")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|markdown]", help="Output format.")
+    ] = "text",
 ) -> int:
     """Print columns and split findings that are new, gone or changed level between two runs,
     highest level first; accepted ones are marked and never fail.
@@ -435,9 +449,14 @@ def code_cmd(
         ),
     ],
     out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
-    format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|sarif]", help="Output on stdout.")
+    ] = "text",
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]", help="Exit 1 when a finding reaches this level."
+        ),
     ] = None,
 ) -> int:
     """Audit training code statically (nothing is run) for leakage the table cannot show.
