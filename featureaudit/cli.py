@@ -344,18 +344,21 @@ def diff(
     ] = "text",
 ) -> int:
     """Print columns and split findings that are new, gone or changed level between two runs,
-    highest level first; accepted ones are marked and never fail.
+    highest level first ("cannot tell" where a check could not judge the new run), after the
+    tables compared, the change of the headline score and the dictionary's coverage; accepted
+    ones are marked and never fail.
 
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
     --fail-at high --format markdown
     """
-    from featureaudit.diff_format import FORMATS, format_diff
+    from featureaudit.diff_format import FORMATS, diff_context, format_diff
 
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
     if format not in FORMATS:
         raise SettingError(f"--format {format!r} is not one of {', '.join(FORMATS)}.")
-    lines = diff_findings(load_findings(old), load_findings(new))
-    print(format_diff(lines, format))
+    before, after = load_findings(old), load_findings(new)
+    lines = diff_findings(before, after)
+    print(format_diff(lines, format, diff_context(before, after)))
     if level and any(d.counts_at(level) for d in lines):
         return 1
     return 0

@@ -175,7 +175,7 @@ def refit_list(findings: Findings) -> list[str]:
 class DiffLine:
     """One change between two runs; ``accepted`` is the later run's review record, if any."""
 
-    change: str  # new, gone, raised, lowered
+    change: str  # new, gone, raised, lowered, cannot tell, added (a column new, no finding)
     scope: str  # column or split (the words `scan` uses)
     name: str
     old_level: str | None
@@ -185,10 +185,12 @@ class DiffLine:
 
     @property
     def levels(self) -> str:
-        if self.change == "new":
+        if self.change in ("new", "added"):
             return self.new_level or ""
         if self.change == "gone":
             return self.old_level or ""
+        if self.change == "cannot tell":
+            return f"{self.old_level} -> cannot tell"
         return f"{self.old_level} -> {self.new_level}"
 
     def counts_at(self, level: str) -> bool:
@@ -207,7 +209,7 @@ class DiffLine:
             else ""
         )
         return (
-            f"{self.change:<8} {self.scope:<7} {self.name}  {self.levels}"
+            f"{self.change:<11} {self.scope:<7} {self.name}  {self.levels}"
             + (f"  ({self.detail})" if self.detail else "")
             + note
         )
@@ -239,9 +241,44 @@ def _split_names(findings: list[dict[str, Any]]) -> dict[str, str]:
     }
 
 
+def cannot_tell_probes(column: dict[str, Any]) -> set[str]:
+    """Probes that ran on a column but could not judge it (``fitted_on: cannot tell``, or a
+    check with too few values): their silence is not a level."""
+    out = set()
+    for e in column.get("evidence", []):
+        d = e.get("detail") or {}
+        if d.get("fitted_on") == "cannot tell" or str(e.get("summary", "")).startswith(
+            "could not judge"
+        ):
+            out.add(str(e.get("probe")))
+    return out
+
+
+def raised_by(column: dict[str, Any]) -> set[str]:
+    """Probes whose evidence set the column's level."""
+    level = Level.parse(column.get("level", "none"))
+    return {
+        str(e.get("probe"))
+        for e in column.get("evidence", [])
+        if Level.parse(e.get("level", "none")) >= level > Level.NONE
+    }
+
+
+def _change(scope: str, was_item: dict, item: dict) -> str | None:
+    was, level = was_item.get("level", "none"), item.get("level", "none")
+    if was == level:
+        return None
+    if scope == "column" and Level.parse(level) < Level.parse(was):
+        if cannot_tell_probes(item) & raised_by(was_item):
+            return "cannot tell"
+    return "raised" if Level.parse(level) > Level.parse(was) else "lowered"
+
+
 def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
     """Columns and split findings that are new, gone, or changed level between two runs,
-    highest level first."""
+    highest level first. A lower level where the probe that raised it could not judge the
+    new run is ``cannot tell``, never ``lowered``; a column new to the table with no finding
+    is ``added``."""
     lines: list[DiffLine] = []
     names = {**_split_names(old.dataset_findings), **_split_names(new.dataset_findings)}
     pairs = [
@@ -261,20 +298,22 @@ def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
             level = item.get("level", "none")
             summary, accepted = item.get("summary", ""), item.get("accepted") or None
             if key not in before:
-                if scope == "split" or level != "none":
-                    lines.append(DiffLine("new", scope, shown(key), None, level, summary, accepted))
+                change = "new" if scope == "split" or level != "none" else "added"
+                lines.append(DiffLine(change, scope, shown(key), None, level, summary, accepted))
                 continue
-            was = before[key].get("level", "none")
-            if was != level:
-                change = "raised" if Level.parse(level) > Level.parse(was) else "lowered"
+            change = _change(scope, before[key], item)
+            if change is not None:
+                was = before[key].get("level", "none")
                 lines.append(DiffLine(change, scope, shown(key), was, level, summary, accepted))
         for key, item in before.items():
             if key not in after:
                 lines.append(DiffLine("gone", scope, shown(key), item.get("level", "none"), None))
-    order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
+    order = {"new": 0, "raised": 1, "cannot tell": 2, "lowered": 3, "gone": 4, "added": 5}
     lines.sort(
         key=lambda d: (
-            -Level.parse(d.new_level or d.old_level or "none"),
+            -Level.parse(
+                (d.old_level if d.change == "cannot tell" else d.new_level) or d.old_level or "none"
+            ),
             order[d.change],
             d.scope,
             d.name,

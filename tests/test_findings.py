@@ -134,6 +134,7 @@ def test_diff_new_gone_raised_lowered():
         ("gone", "gone"),
         ("new", "fresh"),
         ("gone", "duplicate_rows_across_split"),
+        ("added", "quiet"),  # new to the table, no finding
     }
 
 
