@@ -268,9 +268,9 @@ def _change(scope: str, was_item: dict, item: dict) -> str | None:
     was, level = was_item.get("level", "none"), item.get("level", "none")
     if was == level:
         return None
-    if scope == "column" and Level.parse(level) < Level.parse(was):
-        if cannot_tell_probes(item) & raised_by(was_item):
-            return "cannot tell"
+    lowered = scope == "column" and Level.parse(level) < Level.parse(was)
+    if lowered and cannot_tell_probes(item) & raised_by(was_item):
+        return "cannot tell"
     return "raised" if Level.parse(level) > Level.parse(was) else "lowered"
 
 
