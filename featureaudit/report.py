@@ -7,6 +7,7 @@ from functools import lru_cache
 from typing import Any
 
 import jinja2
+from markupsafe import Markup, escape
 
 from featureaudit.findings import Findings, droplist, refit_list
 from featureaudit.levels import Level
@@ -22,6 +23,17 @@ CAUTION = (
     "apply to them."
 )
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
+
+
+_BREAK_AFTER = re.compile(r"([_./\\-]+)")
+
+
+def breakable(value: Any) -> Markup:
+    """A column or file name for HTML: escaped, control characters shown, and a line-break
+    opportunity (``<wbr>``) after each ``_ . / \\ -``, so a long name wraps between its
+    words, never inside one (on screen and in print)."""
+    text = str(escape(_visible(value)))
+    return Markup(_BREAK_AFTER.sub(r"\1<wbr>", text))
 
 
 def _visible(value: Any) -> str:
@@ -44,6 +56,7 @@ def _env() -> jinja2.Environment:
     env.filters["fmt"] = _fmt
     env.filters["md"] = _md
     env.filters["text"] = md_text
+    env.filters["name"] = breakable
     env.globals["code"] = md_code
     env.filters["words"] = statistic_words
     from featureaudit import charts
@@ -241,13 +254,15 @@ def render_dossier(findings: Findings, *, history: list[Findings] | None = None)
             splits=[f for f in doc["dataset_findings"] if f["level"] != "none"],
             quiet_splits=[f for f in doc["dataset_findings"] if f["level"] == "none"],
             drops=droplist(findings, "high"),
-            refits=_refits(doc),
+            refits=refit_list(findings),
             split_groups=split_groups([f for f in doc["dataset_findings"] if f["level"] != "none"]),
             methods=list(doc.get("settings", {}).get("methods", {}).items()),
             trend={n: trend_svg(p) for n, p in trends.items()},
             runs=len(runs),
             marks=changed,
-            undocumented=undocumented_timing(doc),
+            undocumented=[n for n in undocumented_timing(doc) if n not in _timed(doc)],
+            code_refs=code_refs(doc),
+            code_ids=_code_ids(doc),
             warnings=[w for w in doc.get("warnings", []) if not str(w).startswith(TIMING_NOTE)],
         )
     )
@@ -284,9 +299,25 @@ def split_groups(found: list[dict[str, Any]]) -> list[tuple[str, list[dict[str, 
     return list(groups.items())
 
 
-def _refits(doc: dict[str, Any]) -> list[str]:
-    """Columns to refit on the training rows rather than drop."""
-    return [c["column"] for c in doc["columns"] if c.get("remedy") == "refit_on_training_rows"]
+def _timed(doc: dict[str, Any]) -> set[str]:
+    """Columns the timing checks judged anyway (from their values or the cutoff): the
+    "timing not documented" note does not name them."""
+    return {
+        c["column"]
+        for c in doc["columns"]
+        if any(
+            e.get("kind") == "recorded_after_cutoff" and e.get("level") != "none"
+            for e in c.get("evidence", [])
+        )
+    }
+
+
+def _code_ids(doc: dict[str, Any]) -> dict[str, int]:
+    """``file:line:kind`` of each training-code finding -> its card's number (1-based)."""
+    return {
+        f"{f.get('file')}:{f.get('line')}:{f.get('kind')}": i
+        for i, f in enumerate(doc.get("code_findings") or [], start=1)
+    }
 
 
 def render_all(findings: Findings, *, history: list[Findings] | None = None) -> dict[str, str]:
