@@ -13,7 +13,7 @@ import pandas as pd
 from featureaudit.dictionary import DataDictionary
 from featureaudit.engines import resolve_engine
 from featureaudit.errors import SettingError
-from featureaudit.findings import Findings, droplist
+from featureaudit.findings import Findings, droplist, refit_list
 from featureaudit.inputs import Inputs
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
@@ -70,9 +70,28 @@ class AuditResult:
         )
 
     def suspects(self, at_least: str = "high") -> list[str]:
-        """Column names at level ``at_least`` or above, most suspect first."""
+        """Every column at level ``at_least`` or above, most suspect first, whatever its
+        remedy: columns to drop *and* columns to refit, accepted ones included. For what to
+        do with them, see :meth:`droplist` and :meth:`refit_list`."""
         level = check_level(at_least, flag="at_least")
         return droplist(self.findings, level, refit=True, accepted=True)
+
+    def droplist(self, at_least: str = "high") -> list[str]:
+        """Columns whose remedy is ``drop``, at ``at_least`` or above and not accepted after
+        review, most suspect first: the lines of ``droplist.txt``."""
+        level = check_level(at_least, flag="at_least")
+        return droplist(self.findings, level)
+
+    def refit_list(self) -> list[str]:
+        """Columns to keep but refit on the training rows (remedy ``refit_on_training_rows``),
+        most suspect first; accepted ones are left out."""
+        return refit_list(self.findings)
+
+    @property
+    def impact(self) -> dict[str, Any] | None:
+        """The ``impact`` block: the validation score as given, with the remedies applied
+        (``remedied``), without the suspects, and per finding; ``None`` when not measured."""
+        return self.document.get("impact")
 
     def write(
         self,

@@ -162,21 +162,6 @@ def _fail(exc: BaseException) -> None:
     sys.exit(2)
 
 
-def _reached(doc: dict[str, Any], level: str) -> list[str]:
-    floor = Level.parse(level)
-    hits = [
-        c["column"]
-        for c in doc["columns"]
-        if Level.parse(c["level"]) >= floor and not c.get("accepted")
-    ]
-    hits += [
-        f"{f['kind']} (split)"
-        for f in doc["dataset_findings"]
-        if Level.parse(f["level"]) >= floor and not f.get("accepted")
-    ]
-    return hits
-
-
 @app.command()
 @declared_options
 def scan(
@@ -218,15 +203,13 @@ def scan(
     if history_dir is not None:
         store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
-    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
-    if fail and _reached(result.document, fail):
-        return 1
-    if inputs.fail_at_impact is not None:
-        from featureaudit.impact import largest_lift
+    from featureaudit.outcome import gate_reason
 
-        lift = largest_lift(result.document)
-        if lift is not None and lift > float(inputs.fail_at_impact):
-            return 1
+    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
+    reason = gate_reason(result.document, fail, inputs.fail_at_impact)
+    if reason:
+        print(f"featureaudit: {reason}", file=sys.stderr)
+        return 1
     return 0
 
 
@@ -241,33 +224,11 @@ def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inp
 
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
-    from featureaudit.findings import Findings
-    from featureaudit.names import quote_name
-    from featureaudit.report import verdict_line
+    from featureaudit.outcome import outcome_lines
 
-    d = doc["dataset"]
-    target = (
-        f"target {d['target']} ({d['task']})"
-        if d["target"] is not None
-        else "no target (probes that need one are skipped; pass --target)"
-    )
-    print(
-        f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-        f"{d['heldout_rows']} held out), {target}"
-    )
-    print(verdict_line(Findings(doc)))
-    top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
-    for c in top:
-        note = "  [accepted after review]" if c.get("accepted") else ""
-        name = quote_name(c["column"])
-        print(f"  {c['level']:<8} {c['score']:.2f}  {name}: {c['summary']}{note}")
-    for f in doc["dataset_findings"]:
-        if Level.parse(f["level"]) >= Level.MEDIUM:
-            note = "  [accepted after review]" if f.get("accepted") else ""
-            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}{note}")
+    print("\n".join(outcome_lines(doc, out_dir)))
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
-    print(f"dossier: {out_dir / 'dossier.html'}")
 
 
 @app.command("droplist")
@@ -275,8 +236,10 @@ def droplist_cmd(
     findings: Annotated[
         Path, typer.Argument(metavar="FINDINGS", help="findings.json written by scan.")
     ],
-    at_least: Annotated[str, typer.Option(help="Lowest level to drop.")] = "high",
-    format: Annotated[str, typer.Option(help="text or json.")] = "text",
+    at_least: Annotated[
+        str, typer.Option(metavar="[critical|high|medium|low]", help="Lowest level to drop.")
+    ] = "high",
+    format: Annotated[str, typer.Option(metavar="[text|json]", help="Output format.")] = "text",
 ) -> int:
     """Print the columns to drop from a findings file, most suspect first.
 
@@ -301,23 +264,32 @@ def diff(
     old: Annotated[Path, typer.Argument(metavar="OLD", help="findings.json of the earlier run.")],
     new: Annotated[Path, typer.Argument(metavar="NEW", help="findings.json of the later run.")],
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]",
+            help="Exit 1 when a new or raised finding reaches this level.",
+        ),
     ] = None,
-    format: Annotated[str, typer.Option(help="text, json or markdown.")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|markdown]", help="Output format.")
+    ] = "text",
 ) -> int:
     """Print columns and split findings that are new, gone or changed level between two runs,
-    highest level first; accepted ones are marked and never fail.
+    highest level first ("cannot tell" where a check could not judge the new run), after the
+    tables compared, the change of the headline score and the dictionary's coverage; accepted
+    ones are marked and never fail.
 
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
     --fail-at high --format markdown
     """
-    from featureaudit.diff_format import FORMATS, format_diff
+    from featureaudit.diff_format import FORMATS, diff_context, format_diff
 
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
     if format not in FORMATS:
         raise SettingError(f"--format {format!r} is not one of {', '.join(FORMATS)}.")
-    lines = diff_findings(load_findings(old), load_findings(new))
-    print(format_diff(lines, format))
+    before, after = load_findings(old), load_findings(new)
+    lines = diff_findings(before, after)
+    print(format_diff(lines, format, diff_context(before, after)))
     if level and any(d.counts_at(level) for d in lines):
         return 1
     return 0
@@ -411,9 +383,14 @@ def code_cmd(
         ),
     ],
     out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
-    format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|sarif]", help="Output on stdout.")
+    ] = "text",
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]", help="Exit 1 when a finding reaches this level."
+        ),
     ] = None,
 ) -> int:
     """Audit training code statically (nothing is run) for leakage the table cannot show.

@@ -190,13 +190,34 @@ def _radius(i: int, n: int) -> float:
     return 2.6 if i == n - 1 else 1.6
 
 
+def _undecided(runs: list[Run]) -> set[tuple[int, str]]:
+    """(run index, column) where the column is at none because the probe that raised it in
+    the run before could not judge it: shown as "cannot tell", not as a level."""
+    from featureaudit.findings import cannot_tell_probes, raised_by
+
+    out = set()
+    for i in range(1, len(runs)):
+        before = {c["column"]: c for c in runs[i - 1].findings.columns}
+        for c in runs[i].findings.columns:
+            was = before.get(c["column"])
+            if was and c.get("level", "none") == "none" and cannot_tell_probes(c) & raised_by(was):
+                out.add((i, c["column"]))
+    return out
+
+
 def history_lines(runs: list[Run], column: str | None = None) -> list[str]:
-    """The `featureaudit history` table: per column, level and score in each run, oldest
-    first, and the runs (by number) that raised it."""
+    """The `featureaudit history` table: each run's table and size, then per column, level
+    and score in each run, oldest first ("cannot tell" where a check could not judge it),
+    and the runs (by number) that raised it."""
     if not runs:
         return ["no runs stored yet"]
-    out = ["runs, oldest first:"]
-    out += [f"  {i:>3}  {r.created}  {r.name}" for i, r in enumerate(runs, start=1)]
+    out = ["runs, oldest first (run, created, table, rows, stored as):"]
+    for i, r in enumerate(runs, start=1):
+        d = r.findings.document.get("dataset") or {}
+        out.append(
+            f"  {i:>3}  {r.created}  {d.get('source', '?')}  {d.get('rows', '?')} rows  {r.name}"
+        )
+    undecided = _undecided(runs)
     table = series([r.findings for r in runs])
     splits: dict[str, list[tuple[str, float] | None]] = {}
     for i, r in enumerate(runs):
@@ -220,6 +241,8 @@ def history_lines(runs: list[Run], column: str | None = None) -> list[str]:
             cells.append(
                 f"{'-':<13}"
                 if p is None
+                else f"{'cannot tell':<13}"
+                if (i, name) in undecided
                 else (f"{p[0]:<13}" if name.endswith(" (split)") else f"{p[0]:<8} {p[1]:.2f}")
             )
             prev = points[i - 1] if i else None

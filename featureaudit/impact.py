@@ -101,6 +101,7 @@ class _Bench:
     def __init__(self, table: AuditTable, settings: Settings, columns: list[str]) -> None:
         from featureaudit.matrix import feature_matrix
 
+        self.table = table
         self.task = table.task or "binary"
         self.k = max(len(table.classes), 2)
         self.seed = settings.seed
@@ -239,18 +240,22 @@ def _stratified(rows: np.ndarray, strata: np.ndarray, size: int, rng) -> np.ndar
     return np.sort(np.concatenate(parts))
 
 
-def column_change(bench: _Bench, base: _Scored, column: str, how: str) -> tuple[_Scored, dict]:
-    """One column corrected (removed, or refitted on the training rows): the corrected
-    predictions and the column's ``impact`` entry. Kept in one function so that a
-    measurement made elsewhere can replace it."""
+def column_change(
+    bench: _Bench, base: _Scored, column: str, how: str, verdict: dict | None = None
+) -> tuple[_Scored, dict]:
+    """One column corrected (removed, or refitted on the training rows as
+    :func:`featureaudit.remedied.refit_column` does): the corrected predictions and the
+    column's ``impact`` entry. Kept in one function so that a measurement made elsewhere can
+    replace it."""
     j = bench.columns.index(column)
     if how == "refit":
+        from featureaudit.remedied import refit_column
+
         x = bench.x.copy()
-        v = x[bench.fit_rows, j]
-        v = v[np.isfinite(v)]
-        sd = float(np.std(v)) or 1.0
-        x[:, j] = (x[:, j] - float(np.mean(v)) if v.size else x[:, j]) / sd
-        text = "the column re-standardised on the training rows (a refit of its scaling)"
+        new, text = refit_column(bench.table, x[:, j], verdict or {"column": column})
+        text = text.removeprefix(f"{column}: ")
+        if new is not None:
+            x[:, j] = new
         s = _Scored(bench.score(x), base.keep)
     else:
         text = "the column removed"
@@ -345,7 +350,7 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         if entry is not None:
             corrected = as_given - entry["change"]
         else:
-            s, entry = column_change(bench, base, c["column"], how)
+            s, entry = column_change(bench, base, c["column"], how, c)
             corrected = bench.value(s)
         shared = (
             _beyond_other_suspects(bench, without, suspects, c["column"], entry)
@@ -389,6 +394,9 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         "by_finding": by,
         "negligible_below": NEGLIGIBLE,
     }
+    from featureaudit.remedied import measure_remedied
+
+    block["remedied"] = measure_remedied(table, bench, columns, dataset_findings)
     return block, per_column
 
 
@@ -566,16 +574,27 @@ def shift_weights(bench: _Bench) -> np.ndarray:
     return out
 
 
-def largest_lift(doc: dict[str, Any]) -> float | None:
-    """How far the as-given score exceeds the lowest corrected one (``--fail-at-impact``)."""
+def largest_lift(doc: dict[str, Any]) -> tuple[float, str] | None:
+    """How far the as-given score exceeds a corrected one (``--fail-at-impact``), and which:
+    the score with the remedies applied, or a single finding's correction; without the
+    remedied score (a schema 2 file), the score without the suspects counts too."""
     block = doc.get("impact")
     if not block:
         return None
-    scores = [block.get("without_suspects")] + [
-        e.get("corrected") for e in block.get("by_finding", [])
+    rem = block.get("remedied") or {}
+    named: list[tuple[float | None, str]] = [
+        (rem.get("value"), "the score with the remedies applied")
     ]
-    scores = [s for s in scores if s is not None]
-    return max(0.0, block["as_given"] - min(scores)) if scores else None
+    if not rem:
+        named.append((block.get("without_suspects"), "the score without the suspects"))
+    for e in block.get("by_finding", []):
+        what = f"column {e['column']!r}" if e.get("column") else f"split finding {e.get('kind')}"
+        named.append((e.get("corrected"), f"{what} corrected ({e.get('how')})"))
+    found = [(float(block["as_given"]) - v, w) for v, w in named if v is not None]
+    if not found:
+        return None
+    lift, which = max(found, key=lambda t: t[0])
+    return max(0.0, lift), which
 
 
 def check_fail_at_impact(value: object) -> float:

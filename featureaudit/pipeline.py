@@ -96,6 +96,7 @@ def run_audit(
         "audited_columns": len(verdicts),
         "partitions": table.partitions or {"all rows": table.n_rows},
         "folds": _fold_count(table),
+        "dictionary": _dictionary_coverage(table),
     }
     columns = [v.to_dict() for v in verdicts]
     pair = _compared_pair(table)
@@ -194,6 +195,20 @@ def capability_skip(probe: type[Probe], table: AuditTable) -> Skip | None:
     if caps.needs_every_row and sampled:
         return Skip(probe.name, f"not run on a sample: {caps.needs_every_row}")
     return None
+
+
+def _dictionary_coverage(table: AuditTable) -> dict | None:
+    """The dictionary's file, the line of each column it names (findings.sarif points there)
+    and the audited columns it does not name (``diff`` reports coverage)."""
+    d = table.dictionary
+    if d is None:
+        return None
+    audited = table.id_columns + table.features
+    return {
+        "source": d.source,
+        "lines": {c: e.line for c, e in d.entries.items() if c in table.frame.columns},
+        "audited_not_covered": [c for c in audited if c not in d.entries],
+    }
 
 
 def _fold_count(table: AuditTable) -> int | None:
