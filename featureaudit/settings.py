@@ -10,13 +10,19 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.inputs import TASKS
+from featureaudit.inputs import TASKS, shown
 from featureaudit.levels import LEVEL_NAMES, Level
 
-__all__ = ["Settings", "read_config", "config_keys", "TASKS"]
+__all__ = ["Settings", "read_config", "config_keys", "check_counts", "shown", "TASKS"]
 
 ENGINES = ("auto", "memory", "stream", "dask")
 SEED_SPAN = 2**31 - 1  # seeds are mapped into [0, 2**31 - 1): every library here takes them
+# upper bounds of the count settings (common practice, no source): a row count past 2**31 - 1
+# is beyond any table pandas holds in one frame (a larger value would mean "every row" anyway)
+# and a thread count past 1,024 beyond any machine; folds are also bounded by the table's
+# labelled training rows, checked when the table is read (check_counts)
+MAX_ROWS = 2**31 - 1
+MAX_JOBS = 1024
 
 
 def config_keys() -> tuple[str, ...]:
@@ -51,11 +57,12 @@ class Settings:
         _whole(self, "seed", None, None, "any whole number")
         if not 0 <= self.seed < SEED_SPAN:  # numpy takes any size, other libraries do not
             object.__setattr__(self, "seed", int(self.seed) % SEED_SPAN)
-        _whole(self, "folds", 2, None, "a whole number, at least 2")
+        _whole(self, "folds", 2, MAX_ROWS, f"a whole number from 2 to at most {MAX_ROWS:,}")
         _whole(self, "bins", 2, 256, "a whole number from 2 to 256")
-        _whole(self, "reference_rows", 100, None, "a whole number, at least 100")
-        _whole(self, "min_rows", 0, None, "a whole number, at least 0")
-        _whole(self, "n_jobs", 1, None, "a whole number, at least 1")
+        rows = f"at most {MAX_ROWS:,}"
+        _whole(self, "reference_rows", 100, MAX_ROWS, f"a whole number, at least 100 and {rows}")
+        _whole(self, "min_rows", 0, MAX_ROWS, f"a whole number, at least 0 and {rows}")
+        _whole(self, "n_jobs", 1, MAX_JOBS, f"a whole number, at least 1 and at most {MAX_JOBS}")
         share = self.share_tolerance
         if not _is_number(share) or not 0 <= share < 1:
             raise SettingError(_bad("share_tolerance", share, "a number in [0, 1)"))
@@ -68,7 +75,7 @@ class Settings:
             self.time_tolerance, what="time_tolerance"
         ) < pd.Timedelta(0):
             raise SettingError(_bad("time_tolerance", self.time_tolerance, "not negative"))
-        _whole(self, "sample_rows", 100, None, "a whole number, at least 100")
+        _whole(self, "sample_rows", 100, MAX_ROWS, f"a whole number, at least 100 and {rows}")
         if self.engine not in ENGINES:
             raise SettingError(_bad("engine", self.engine, "one of " + ", ".join(ENGINES)))
 
@@ -98,7 +105,8 @@ def read_config(path: str | Path) -> dict[str, Any]:
     unknown = sorted(set(data) - set(config_keys()))
     if unknown:
         raise SettingError(
-            f"config {str(p)!r} has unknown keys {unknown}; known keys are "
+            f"config {str(p)!r} has unknown keys [{', '.join(shown(k) for k in unknown[:10])}]; "
+            "known keys are "
             f"{', '.join(config_keys())}."
         )
     return data
@@ -111,7 +119,20 @@ def _is_number(value: Any) -> bool:
 def _bad(name: str, value: Any, allowed: str) -> str:
     flagged = ("seed", "engine", "sample_rows")  # the settings that scan takes as flags
     where = f"--{name.replace('_', '-')}" if name in flagged else f"setting {name}"
-    return f"{where} (config key {name}) must be {allowed}; got {value!r} ({type(value).__name__})."
+    return (
+        f"{where} (config key {name}) must be {allowed}; got {shown(value)} "
+        f"({type(value).__name__})."
+    )
+
+
+def check_counts(settings: Settings, *, rows: int, source: str) -> None:
+    """The count settings that the table bounds: ``folds`` at most its labelled training
+    rows (``rows``); raise :class:`SettingError` naming the setting, the value and the rows."""
+    if settings.folds > max(rows, 2):
+        raise SettingError(
+            f"setting folds (config key folds) is {settings.folds} but table {source!r} has "
+            f"{rows} labelled training rows; pass folds of at most {max(rows, 2)} (default 5)."
+        )
 
 
 def _whole(settings: Settings, name: str, low: int | None, high: int | None, allowed: str) -> None:
