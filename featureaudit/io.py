@@ -160,14 +160,14 @@ def check_parquet_parts(files: list[Path], folder: Path) -> list[pa.Schema]:
                 "every column name is unique."
             )
         schemas.append(schema)
-    first, base = files[0], schemas[0]
+    lead, base = files[0], schemas[0]
     for f, schema in zip(files[1:], schemas[1:], strict=True):
         lacks = [n for n in base.names if n not in schema.names]
         extra = [n for n in schema.names if n not in base.names]
         if lacks or extra:
             what = f"lacks column {lacks[0]!r}" if lacks else f"has column {extra[0]!r}"
             raise InputFileError(
-                f"Parquet part {str(f)!r} {what} that {first.name!r} "
+                f"Parquet part {str(f)!r} {what} that {lead.name!r} "
                 f"{'has' if lacks else 'lacks'}; give every part of {str(folder)!r} the same "
                 "columns."
             )
@@ -175,7 +175,7 @@ def check_parquet_parts(files: list[Path], folder: Path) -> list[pa.Schema]:
             if not _types_meet(base.field(field.name).type, field.type):
                 raise InputFileError(
                     f"Parquet part {str(f)!r} stores column {field.name!r} as {field.type}, "
-                    f"but {first.name!r} stores it as {base.field(field.name).type}; write "
+                    f"but {lead.name!r} stores it as {base.field(field.name).type}; write "
                     "every part with the same types."
                 )
     return schemas

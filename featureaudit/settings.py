@@ -22,6 +22,7 @@ SEED_SPAN = 2**31 - 1  # seeds are mapped into [0, 2**31 - 1): every library her
 # and a thread count past 1,024 beyond any machine; folds are also bounded by the table's
 # labelled training rows, checked when the table is read (check_counts)
 MAX_ROWS = 2**31 - 1
+DEFAULT_FOLDS = 5
 MAX_JOBS = 1024
 
 
@@ -43,7 +44,7 @@ class Settings:
     """Knobs of the probes; every one is recorded in findings.json under ``settings``."""
 
     seed: int = 0
-    folds: int = 5  # out-of-fold folds of the single-column scores
+    folds: int = DEFAULT_FOLDS  # out-of-fold folds of the single-column scores
     bins: int = 20  # quantile bins per numeric column
     reference_rows: int = 20_000  # sample for the model-based reference (seeded, stratified)
     min_rows: int = 100  # below this, levels are capped at medium (small sample)
@@ -127,11 +128,14 @@ def _bad(name: str, value: Any, allowed: str) -> str:
 
 def check_counts(settings: Settings, *, rows: int, source: str) -> None:
     """The count settings that the table bounds: ``folds`` at most its labelled training
-    rows (``rows``); raise :class:`SettingError` naming the setting, the value and the rows."""
-    if settings.folds > max(rows, 2):
+    rows (``rows``), or the default when the table has fewer; raise :class:`SettingError`
+    naming the setting, the value and the rows."""
+    default = DEFAULT_FOLDS
+    limit = max(rows, default)  # the default adapts to a small table (each probe caps it)
+    if settings.folds > limit:
         raise SettingError(
             f"setting folds (config key folds) is {settings.folds} but table {source!r} has "
-            f"{rows} labelled training rows; pass folds of at most {max(rows, 2)} (default 5)."
+            f"{rows} labelled training rows; pass folds of at most {limit} (default {default})."
         )
 
 
