@@ -97,8 +97,14 @@ def read_dictionary(path: str | Path, *, encoding: str | None = None) -> DataDic
 
 def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary:
     """Parse dictionary CSV text (see :func:`read_dictionary`)."""
-    reader = csv.reader(io.StringIO(text))
-    rows = list(reader)
+    reader = csv.reader(io.StringIO(text, newline=""))  # quoted line breaks stay in a cell
+    try:
+        rows = list(reader)
+    except csv.Error as exc:
+        raise DictionaryError(
+            f"dictionary {source!r} line {reader.line_num} is not valid CSV ({exc}); quote "
+            "cells that hold line breaks or quotes."
+        ) from exc
     if not rows:
         raise DictionaryError(
             f"dictionary {source!r} is empty; it needs a header row with at "

@@ -261,3 +261,19 @@ def test_any_text_in_a_history_folder_fails_only_clearly(tmp_path_factory, text)
         assert "\n" not in str(exc) and "0123456789ab.json" in str(exc)
         return
     assert len(runs) == 1
+
+
+@PROFILE
+@given(st.lists(st.lists(st.text(max_size=8), max_size=5), max_size=5))
+def test_any_csv_as_a_dictionary_fails_only_clearly(rows):
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(["column", "role", "known_at", "description"])
+    writer.writerows(rows)
+    try:
+        read = parse_dictionary(buf.getvalue(), source="d.csv")
+    except FeatureAuditError as exc:
+        assert "\n" not in str(exc) and "d.csv" in str(exc)
+        return
+    for entry in read.entries.values():  # what it accepts is whole
+        assert entry.line >= 2 and entry.role
