@@ -11,10 +11,11 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.doors import python_words
 from featureaudit.engines import resolve_engine
 from featureaudit.errors import SettingError
 from featureaudit.findings import Findings, droplist, refit_list
-from featureaudit.inputs import Inputs
+from featureaudit.inputs import Inputs, shown
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
 from featureaudit.settings import Settings, check_level
@@ -101,6 +102,7 @@ class AuditResult:
     ) -> list[Path]:
         """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``;
         ``history`` (earlier runs, oldest first) adds each suspect's trend to the dossier."""
+        _check_history(history)
         return write_files(out, render_all(self.findings, history=history))
 
     def __repr__(self) -> str:
@@ -227,46 +229,118 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
+    data, columns = _text_column_names(data, locals())
+    with python_words():
+        return _audit(data, columns, seed, probes, settings, engine, sample_rows, progress)
+
+
+def _audit(
+    data: object,
+    given: dict[str, Any],
+    seed: object,
+    probes: list[str] | None,
+    settings: Settings | None,
+    engine: str | None,
+    sample_rows: int | None,
+    progress: bool | None,
+) -> AuditResult:
+    """The body of :func:`audit`: check every argument, then run the engine that fits."""
+    names = ("test", "split_column", "train_value", "target", "task", "dictionary",
+             "label_time", "cutoff_time", "horizon", "entity", "source", "encoding",
+             "fold_column", "scheduler")  # fmt: skip
     inputs = Inputs(
-        test=test,
-        split_column=split_column,
-        train_value=train_value,
-        target=target,
-        task=task,
-        dictionary=dictionary,
-        label_time=label_time,
-        cutoff_time=cutoff_time,
-        horizon=horizon,
-        entity=entity,
-        source=source,
-        code=code or None,
-        encoding=encoding,
-        normalise_labels=normalise_labels or None,
-        fold_column=fold_column,
-        scheduler=scheduler,
+        **{k: given[k] for k in names},
+        code=given["code"] or None,
+        normalise_labels=given["normalise_labels"] or None,
     )
     chosen = _settings(settings, seed=seed, engine=engine, sample_rows=sample_rows)
-    if probes is not None and (
-        isinstance(probes, str) or not all(isinstance(p, str) for p in probes)
-    ):
-        raise SettingError(f"probes must be a list of probe names; got {probes!r}.")
+    _check_probes(probes)
+    if inputs.scheduler is not None and chosen.engine != "dask":
+        raise SettingError(
+            f"--scheduler {inputs.scheduler!r} names a Dask cluster, which only --engine dask "
+            f"uses (the engine is {chosen.engine!r}); pass --engine dask too, or drop --scheduler."
+        )
     code_result = None
     if inputs.code:  # read first: an unreadable file stops the audit before any table work
         from featureaudit.code.join import read_code
 
-        given = inputs.code
-        code_result = read_code([given] if isinstance(given, str | os.PathLike) else list(given))
+        paths = inputs.code
+        code_result = read_code([paths] if isinstance(paths, str | os.PathLike) else list(paths))
     engine_name = resolve_engine(chosen.engine, data, inputs.test)
     if engine_name in ("stream", "dask"):
         from featureaudit.engines.run import run_stream
 
-        given = inputs.table_inputs().items()
-        build = {k: v for k, v in given if v is not None and k not in ("code", "scheduler")}
+        build = {
+            k: v
+            for k, v in inputs.table_inputs().items()
+            if v is not None and k not in ("code", "scheduler")
+        }
         return AuditResult(
             run_stream(data, build, chosen, probes, progress, engine_name, inputs.scheduler)
         )
     table = build_table(data, inputs)
     return AuditResult(run_audit(table, chosen, probes=probes, progress=progress, code=code_result))
+
+
+_COLUMN_ARGUMENTS = ("target", "split_column", "label_time", "cutoff_time", "entity", "fold_column")
+
+
+def _text_column_names(data: object, given: dict[str, Any]) -> tuple[object, dict[str, Any]]:
+    """A DataFrame whose column names are not text (whole numbers from a NumPy array) is read
+    with its names as text, and said so in a warning; column arguments given as such a name
+    (``target=3``) are taken as its text (``"3"``)."""
+    import numbers
+    import warnings
+
+    given = dict(given)
+    if not isinstance(data, pd.DataFrame) or all(isinstance(c, str) for c in data.columns):
+        return data, given
+    odd = [c for c in data.columns if not isinstance(c, str)]
+    whole = all(isinstance(c, numbers.Integral) and not isinstance(c, bool) for c in odd)
+    names = set(odd)
+    for key in _COLUMN_ARGUMENTS:
+        value = given.get(key)
+        if not isinstance(value, str | bool) and value in names:
+            given[key] = str(value)
+    listed = ", ".join(repr(c) for c in odd[:5]) + (", …" if len(odd) > 5 else "")
+    kind = "whole numbers" if whole else "not text"
+    warnings.warn(
+        f"the DataFrame's column names {listed} are {kind}; they are read as text "
+        f"({', '.join(repr(str(c)) for c in odd[:3])}…) and reported that way.",
+        UserWarning,
+        stacklevel=3,
+    )
+    return data, given
+
+
+def _check_probes(probes: object) -> None:
+    """``probes``: None (every registered probe) or a non-empty list of probe names."""
+    if probes is None:
+        return
+    if isinstance(probes, str) or not isinstance(probes, list | tuple):
+        raise SettingError(f"probes must be a list of probe names; got {shown(probes)}.")
+    if not all(isinstance(p, str) for p in probes):
+        raise SettingError(f"probes must be a list of probe names; got {shown(probes)}.")
+    if not probes:
+        from featureaudit.registry import registered
+
+        raise SettingError(
+            "probes=[] would run no probe and report nothing; pass None for every probe, or "
+            f"name some of {sorted(registered())}."
+        )
+
+
+def _check_history(history: object) -> None:
+    """``write(history=...)``: None or a list of earlier runs' Findings, oldest first."""
+    if history is None:
+        return
+    if isinstance(history, list | tuple) and all(isinstance(h, Findings) for h in history):
+        return
+    raise SettingError(
+        "history must be a list of earlier runs' Findings, oldest first (e.g. [run.findings "
+        "for run in featureaudit.history.load_runs(folder)]); got "
+        f"{shown(history)} ({type(history).__name__})."
+    )
 
 
 def _settings(settings: object, **given: object) -> Settings:

@@ -25,8 +25,12 @@ def _interrupted_line(signum: int, argv: list[str], replaced: bool) -> str:
 
 
 def _exit_at_once(signum: int, frame: object) -> None:
-    """While the modules load nothing is written yet: say so and leave, without a traceback."""
-    print(_interrupted_line(signum, sys.argv[1:], False), file=sys.stderr, flush=True)
+    """Outside a command (while the modules load, or during interpreter exit after one) say
+    which report stands and leave at once, without a traceback: the new one when this
+    process swapped it in, else the earlier one."""
+    writer = sys.modules.get("featureaudit.writer")
+    replaced = bool(getattr(writer, "swapped", None))
+    print(_interrupted_line(signum, sys.argv[1:], replaced), file=sys.stderr, flush=True)
     os._exit(128 + signum)
 
 
@@ -83,6 +87,7 @@ class _OneLineErrors(TyperGroup):
             sys.exit(2)
         previous = _raise_on_signals()
         try:
+            _refuse_repeated_options(self, argv)
             rv = super().main(*args, **kwargs)
         except Interrupted as exc:
             from featureaudit.writer import swapped
@@ -109,6 +114,30 @@ class _OneLineErrors(TyperGroup):
             for sig, handler in previous.items():
                 signal.signal(sig, handler)
         sys.exit(rv if isinstance(rv, int) else 0)
+
+
+def _refuse_repeated_options(group: TyperGroup, argv: list[str]) -> None:
+    """An option that takes one value, given twice (``--target y --target a``), is an error
+    rather than the last one silently winning."""
+    command = group.commands.get(argv[0]) if argv else None
+    if command is None:
+        return
+    single = {
+        opt
+        for param in command.params
+        if getattr(param, "param_type_name", "") == "option" and not getattr(param, "multiple", 0)
+        for opt in param.opts
+    }
+    seen: set[str] = set()
+    for token in argv[1:]:
+        if token == "--":
+            break
+        name = token.split("=", 1)[0]
+        if name in single and name in seen:
+            raise SettingError(
+                f"{name} was given more than once; pass it once (with the value you mean)."
+            )
+        seen.add(name)
 
 
 def _raise_on_signals() -> dict[int, Any]:
@@ -190,12 +219,15 @@ def scan(
     reviewed = read_accepted(inputs.accepted) if inputs.accepted else None
     history_dir = check_folder(inputs.history) if inputs.history else None
     earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
-    result = audit(
-        str(table),
-        **inputs.table_inputs(),
-        settings=settings,
-        progress=False if inputs.quiet else None,
-    )
+    from featureaudit.doors import command_line
+
+    with command_line():
+        result = audit(
+            str(table),
+            **inputs.table_inputs(),
+            settings=settings,
+            progress=False if inputs.quiet else None,
+        )
     if reviewed is not None:
         apply_accepted(result.document, reviewed)
     out_dir = Path(inputs.out or "featureaudit-report")
@@ -216,8 +248,11 @@ def scan(
 def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inputs, Settings]:
     """The config file's values under the flags given (flags win), checked once, here."""
     values = dict(read_config(config)) if config else {}
-    values.update({k: v for k, v in flags.items() if v is not None})
     names = set(Settings.names())
+    if values:  # each config value is checked, also one that a flag overrides
+        Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="config")
+        Settings(**{k: v for k, v in values.items() if k in names})
+    values.update({k: v for k, v in flags.items() if v is not None})
     inputs = Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="scan")
     settings = Settings(**{k: v for k, v in values.items() if k in names})
     return inputs, settings

@@ -96,6 +96,16 @@ def load_findings(path: str | Path) -> Findings:
             f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
             "findings.json that `featureaudit scan` wrote."
         ) from exc
+    except RecursionError:
+        raise InputFileError(
+            f"findings file {str(p)!r} is nested too deeply to be a findings file; pass the "
+            "findings.json that `featureaudit scan` wrote."
+        ) from None
+    except OSError as exc:
+        raise InputFileError(
+            f"cannot read findings file {str(p)!r}: {exc.strerror or exc}; pass a findings.json "
+            "you can read."
+        ) from exc
     if not isinstance(doc, dict) or doc.get("schema") not in READABLE:
         got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
         raise InputFileError(
@@ -136,6 +146,8 @@ def _entry_problem(entry: object, required: str) -> str | None:
         isinstance(score, bool) or not isinstance(score, int | float) or score != score
     ):
         return f"has score {score!r}, not a number"
+    if score is not None and not 0 <= score <= 1:
+        return f"has score {score!r}, not a number from 0 to 1"
     return None
 
 

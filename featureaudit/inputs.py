@@ -14,7 +14,7 @@ from typing import Any
 
 from featureaudit.errors import SettingError
 
-__all__ = ["Inputs", "InputSpec", "input_specs", "TASKS"]
+__all__ = ["Inputs", "InputSpec", "input_specs", "shown", "TASKS"]
 
 TASKS = ("binary", "multiclass", "numeric")
 
@@ -290,10 +290,22 @@ def _as_text(value: Any) -> str:
     return str(value)
 
 
+SHOWN = 60  # characters of a value shown in an error; the rest is counted, not echoed
+
+
+def shown(value: Any) -> str:
+    """``repr(value)``, cut to its first SHOWN characters when longer (a 10 MB config value
+    is not echoed whole on the one error line)."""
+    text = repr(value)
+    if len(text) <= SHOWN:
+        return text
+    return f"{text[:SHOWN]}… ({len(text):,} characters)"
+
+
 def _message(spec: InputSpec, value: Any) -> str:
-    shown = repr(value) if not hasattr(value, "shape") else f"a {type(value).__name__}"
+    given = shown(value) if not hasattr(value, "shape") else f"a {type(value).__name__}"
     where = spec.flag if spec.flag == spec.name else f"{spec.flag} (config key {spec.name})"
-    return f"{where} must be {spec.allowed}; got {shown} ({type(value).__name__})."
+    return f"{where} must be {spec.allowed}; got {given} ({type(value).__name__})."
 
 
 def input_specs() -> tuple[InputSpec, ...]:

@@ -7,13 +7,15 @@ import time
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
+import numpy as np
+
 from featureaudit._version import __version__
 from featureaudit.errors import FeatureAuditError, ProbeFailed, TooFewRows
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
 from featureaudit.registry import Probe, registered, thresholds_dict
-from featureaudit.settings import Settings
+from featureaudit.settings import Settings, check_counts
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas
 
@@ -44,6 +46,7 @@ def run_audit(
             f"table {table.source!r} has {table.n_rows} row{'s' * (table.n_rows != 1)}: too few "
             f"rows to audit (at least {MIN_ROWS} are needed); pass the whole table."
         )
+    check_counts(settings, rows=_labelled_training_rows(table), source=table.source)
     available = registered()
     names = list(available) if probes is None else list(probes)
     unknown = [n for n in names if n not in available]
@@ -259,3 +262,10 @@ def _after_rank(
     for c in columns:
         c["impact"] = clean_json(per_column.get(c["column"]))
     return clean_json(block), round(time.perf_counter() - start, 3)
+
+
+def _labelled_training_rows(table: AuditTable) -> int:
+    """The rows the out-of-fold scores split into folds: training rows with a target value
+    (every training row when there is no target)."""
+    train = np.ones(table.n_rows, dtype=bool) if table.heldout is None else ~table.heldout
+    return int((train & table.labelled).sum()) if table.y is not None else int(train.sum())

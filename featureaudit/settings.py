@@ -12,13 +12,20 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.inputs import TASKS
+from featureaudit.inputs import TASKS, shown
 from featureaudit.levels import LEVEL_NAMES, Level
 
-__all__ = ["Settings", "read_config", "config_keys", "TASKS"]
+__all__ = ["Settings", "read_config", "config_keys", "check_counts", "shown", "TASKS"]
 
 ENGINES = ("auto", "memory", "stream", "dask")
 SEED_SPAN = 2**31 - 1  # seeds are mapped into [0, 2**31 - 1): every library here takes them
+# upper bounds of the count settings (common practice, no source): a row count past 2**31 - 1
+# is beyond any table pandas holds in one frame (a larger value would mean "every row" anyway)
+# and a thread count past 1,024 beyond any machine; folds are also bounded by the table's
+# labelled training rows, checked when the table is read (check_counts)
+MAX_ROWS = 2**31 - 1
+DEFAULT_FOLDS = 5
+MAX_JOBS = 1024
 
 
 def config_keys() -> tuple[str, ...]:
@@ -102,20 +109,29 @@ class Settings:
         0, "any whole number", _seed, flag="--seed", help="Seed of folds and samples [default: 0]."
     )
     # out-of-fold folds of the single-column scores
-    folds: int = _setting(5, "a whole number, at least 2", _whole_in(2, None))
+    folds: int = _setting(
+        DEFAULT_FOLDS, f"a whole number from 2 to at most {MAX_ROWS:,}", _whole_in(2, MAX_ROWS)
+    )
     # quantile bins per numeric column
     bins: int = _setting(20, "a whole number from 2 to 256", _whole_in(2, 256))
     # sample for the model-based reference (seeded, stratified)
-    reference_rows: int = _setting(20_000, "a whole number, at least 100", _whole_in(100, None))
+    reference_rows: int = _setting(
+        20_000, f"a whole number, at least 100 and at most {MAX_ROWS:,}", _whole_in(100, MAX_ROWS)
+    )
     # below this, levels are capped at medium (small sample)
-    min_rows: int = _setting(100, "a whole number, at least 0", _whole_in(0, None))
+    min_rows: int = _setting(
+        100, f"a whole number, at least 0 and at most {MAX_ROWS:,}", _whole_in(0, MAX_ROWS)
+    )
     # "auto": follows the times' resolution (see probes/timing.py)
     time_tolerance: str = _setting("auto", '"auto" or a duration, not negative', _tolerance)
     # shares of rows below this are not flagged
     share_tolerance: float = _setting(0.01, "a number in [0, 1)", _share)
     # threads: the CPUs this process may use
     n_jobs: int = _setting(
-        None, "a whole number, at least 1", _whole_in(1, None), factory=_default_jobs
+        None,
+        f"a whole number, at least 1 and at most {MAX_JOBS}",
+        _whole_in(1, MAX_JOBS),
+        factory=_default_jobs,
     )
     # auto, memory, stream or dask (featureaudit/engines)
     engine: str = _setting(
@@ -129,8 +145,8 @@ class Settings:
     # rows of the seeded sample the stream and dask engines audit
     sample_rows: int = _setting(
         200_000,
-        "a whole number, at least 100",
-        _whole_in(100, None),
+        f"a whole number, at least 100 and at most {MAX_ROWS:,}",
+        _whole_in(100, MAX_ROWS),
         flag="--sample-rows",
         help="Seeded sample for the model-based parts [default: 200000].",
     )
@@ -174,7 +190,8 @@ def read_config(path: str | Path) -> dict[str, Any]:
     unknown = sorted(set(data) - set(config_keys()))
     if unknown:
         raise SettingError(
-            f"config {str(p)!r} has unknown keys {unknown}; known keys are "
+            f"config {str(p)!r} has unknown keys [{', '.join(shown(k) for k in unknown[:10])}]; "
+            "known keys are "
             f"{', '.join(config_keys())}."
         )
     return data
@@ -189,8 +206,22 @@ def _bad(f: Field[Any], value: Any) -> str:
     where = flag if flag else f"setting {f.name}"
     allowed = f.metadata["allowed"]
     return (
-        f"{where} (config key {f.name}) must be {allowed}; got {value!r} ({type(value).__name__})."
+        f"{where} (config key {f.name}) must be {allowed}; got {shown(value)} "
+        f"({type(value).__name__})."
     )
+
+
+def check_counts(settings: Settings, *, rows: int, source: str) -> None:
+    """The count settings that the table bounds: ``folds`` at most its labelled training
+    rows (``rows``), or the default when the table has fewer; raise :class:`SettingError`
+    naming the setting, the value and the rows."""
+    default = DEFAULT_FOLDS
+    limit = max(rows, default)  # the default adapts to a small table (each probe caps it)
+    if settings.folds > limit:
+        raise SettingError(
+            f"setting folds (config key folds) is {settings.folds} but table {source!r} has "
+            f"{rows} labelled training rows; pass folds of at most {limit} (default {default})."
+        )
 
 
 def check_level(value: str, *, flag: str) -> str:

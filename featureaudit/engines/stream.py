@@ -77,10 +77,15 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
     )
     if not files:
         raise InputFileError(f"folder {str(p)!r} holds no .parquet files; pass a Parquet folder.")
-    try:
-        schemas = [pq.read_schema(f) for f in files]
-    except (pa.ArrowInvalid, OSError) as exc:
-        raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
+    if len(files) > 1:  # each part readable, with the first part's columns and types
+        from featureaudit.io import check_parquet_parts
+
+        schemas = check_parquet_parts(files, p)
+    else:
+        try:
+            schemas = [pq.read_schema(f) for f in files]
+        except (pa.ArrowInvalid, OSError) as exc:
+            raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
     return ds.dataset([str(f) for f in files], format="parquet", schema=_unified(schemas, p))
 
 
