@@ -132,6 +132,7 @@ def audit(
     cutoff_time: str | None = None,
     horizon: str | None = None,
     entity: str | None = None,
+    order: str | None = None,
     fold_column: str | None = None,
     seed: int = 0,
     probes: list[str] | None = None,
@@ -164,6 +165,9 @@ def audit(
         ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
+    order : str, optional
+        A sortable column (period number, date, sequence) that orders each entity's rows when
+        no label or cutoff time does (dictionary role ``order``).
     fold_column : str, optional
         The cross-validation fold of each training row; each fold is audited against the
         other training rows.
@@ -216,6 +220,7 @@ def audit(
         cutoff_time=cutoff_time,
         horizon=horizon,
         entity=entity,
+        order=order,
         source=source,
         code=code or None,
         encoding=encoding,

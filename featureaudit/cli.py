@@ -200,6 +200,9 @@ def scan(
         str | None, typer.Option(help="Cutoff = label time minus this, e.g. 30d.")
     ] = None,
     entity: Annotated[str | None, typer.Option(help="Customer, patient… a row belongs to.")] = None,
+    order: Annotated[
+        str | None, typer.Option(help="Sortable column (period, date) ordering each entity's rows.")
+    ] = None,
     fold_column: Annotated[
         str | None, typer.Option(help="The cross-validation fold of each training row.")
     ] = None,

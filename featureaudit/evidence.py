@@ -25,6 +25,7 @@ KINDS = (
     "shared_entities_across_split",
     "time_overlap_across_split",
     "split_shift",
+    "computed_from_later_rows",
 )
 
 

@@ -1,4 +1,4 @@
-"""findings.json (schema ``featureaudit.findings/2``; reads 1 and 2): build, read, drop, diff."""
+"""findings.json (schema ``featureaudit.findings/3``; reads 1, 2 and 3): build, read, drop, diff."""
 
 from __future__ import annotations
 
@@ -14,8 +14,9 @@ from featureaudit.levels import Level
 
 __all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
 
-SCHEMA = "featureaudit.findings/2"
-READABLE = ("featureaudit.findings/1", SCHEMA)  # schema 2 keeps every field of 1
+SCHEMA = "featureaudit.findings/3"
+# each schema keeps every field of the one before (3 adds the kind computed_from_later_rows)
+READABLE = ("featureaudit.findings/1", "featureaudit.findings/2", SCHEMA)
 
 
 @dataclass(frozen=True)

@@ -126,6 +126,7 @@ class Inputs:
     cutoff_time: str | None = _declare("--cutoff-time", _COLUMN, _text)
     horizon: str | None = _declare("--horizon", "a duration such as 30d or P30D", _text)
     entity: str | None = _declare("--entity", _COLUMN, _text)
+    order: str | None = _declare("--order", _COLUMN, _text)
     fold_column: str | None = _declare("--fold-column", _COLUMN, _text)
     source: str | None = _declare("source", "a name for the table (text)", _text)
     out: str | None = _declare("--out", "a folder path (not empty)", _path, scan_only=True)

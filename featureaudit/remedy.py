@@ -21,6 +21,7 @@ REMEDIES = (
     "split_by_time",
     "deduplicate",
     "review",
+    "recompute_before_cutoff",
 )
 _SPLIT = {
     "duplicate_rows_across_split": "deduplicate",
@@ -37,6 +38,9 @@ _WORDS = {
     "regroup_split": "split by entity, so every entity's rows fall on one side (grouped folds)",
     "split_by_time": "split by time: train on earlier rows, validate on later ones",
     "deduplicate": "remove held-out rows that have a copy among the training rows",
+    "recompute_before_cutoff": "recompute it from the rows known at the moment of prediction "
+    "(a window or statistic ending before the label, a lag that looks back, a group mean "
+    "cross-fitted on the training rows, a note written before the decision), or drop it",
     "review": "review it: the evidence is not strong enough, or the fix depends on how the "
     "data was made",
 }
@@ -46,7 +50,8 @@ def column_remedy(column: dict[str, Any]) -> str | None:
     """The remedy of one column verdict (``None`` for a column at level none).
 
     A column whose evidence at its own level is only preprocessing fingerprints (fitscope's,
-    or the training code's fits on all rows) is refitted; otherwise it is dropped at high or
+    or the training code's fits on all rows) is refitted; one whose top evidence is
+    ``computed_from_later_rows`` is recomputed before the cutoff; otherwise it is dropped at high or
     above and reviewed below.
     """
     level = Level.parse(column.get("level", "none"))
@@ -55,7 +60,19 @@ def column_remedy(column: dict[str, Any]) -> str | None:
     top = [e for e in column.get("evidence", []) if Level.parse(e.get("level", "none")) >= level]
     if top and all(_refit_evidence(e) for e in top):
         return "refit_on_training_rows"
+    if level >= Level.MEDIUM and _later_rows_on_top(column.get("evidence", [])):
+        return "recompute_before_cutoff"
     return "drop" if level >= Level.HIGH else "review"
+
+
+def _later_rows_on_top(evidence: list[dict[str, Any]]) -> bool:
+    """Is ``computed_from_later_rows`` among the evidence at the strongest evidence level?"""
+    levels = [Level.parse(e.get("level", "none")) for e in evidence]
+    peak = max(levels, default=Level.NONE)
+    return any(
+        lv == peak and e.get("kind") == "computed_from_later_rows"
+        for lv, e in zip(levels, evidence, strict=True)
+    )
 
 
 def _refit_evidence(e: dict[str, Any]) -> bool:

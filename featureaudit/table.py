@@ -19,11 +19,21 @@ from featureaudit.durations import parse_duration
 from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
 from featureaudit.inputs import Inputs
 from featureaudit.io import UNPARSED_DATES, as_frame, normalise_frame
+from featureaudit.ordering import order_ranks
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
 
-NON_FEATURE_ROLES = ("target", "label_time", "cutoff_time", "split", "weight", "ignore", "entity")
+NON_FEATURE_ROLES = (
+    "target",
+    "label_time",
+    "cutoff_time",
+    "split",
+    "weight",
+    "ignore",
+    "entity",
+    "order",
+)
 FEW_CLASSES = 20  # common practice, no source: an integer target with at most 20 values is a label
 
 
@@ -48,6 +58,9 @@ class AuditTable:
     cutoff_source: str | None = None  # "column:X", "horizon:30 days", "label time"
     horizon: pd.Timedelta | None = None  # --horizon, kept for durations compared without times
     entity: str | None = None
+    # --order (or role order): dense ranks of a sortable column, NaN where missing
+    order: np.ndarray | None = None
+    order_column: str | None = None
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None  # why target-based probes cannot run
@@ -93,6 +106,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     train_value = spec.train_value if spec.train_value is not None else "train"
     dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
     horizon, entity, source = spec.horizon, spec.entity, spec.source
+    order = spec.order
     encoding, normalise_labels = spec.encoding, bool(spec.normalise_labels)
     fold_column = spec.fold_column
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
@@ -129,6 +143,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": label_time,
         "cutoff_time": cutoff_time,
         "entity": entity,
+        "order": order,
     }
     flag_names = {
         "target": "--target",
@@ -136,6 +151,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": "--label-time",
         "cutoff_time": "--cutoff-time",
         "entity": "--entity",
+        "order": "--order",
     }
     chosen: dict[str, str | None] = {}
     for role, value in flags.items():
@@ -212,6 +228,9 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         _set_folds(table, fold_column, src)
     _set_target(table, chosen["target"], task, normalise_labels)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
+    if chosen["order"] is not None:
+        table.order = order_ranks(frame[chosen["order"]], column=chosen["order"], source=src)
+        table.order_column = chosen["order"]
     for name in frame.columns:
         role = roles.get(name, "feature")
         if role == "id":
