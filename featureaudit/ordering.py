@@ -17,6 +17,8 @@ __all__ = ["order_ranks"]
 
 def order_ranks(s: pd.Series, *, column: str, source: str) -> np.ndarray:
     """Dense ranks (1, 2, ...) of ``s`` as floats, NaN where missing; raises when unsortable."""
+    if isinstance(s.dtype, pd.CategoricalDtype):
+        s = s.astype(object)  # the values, not the order in which categories were met
     present = s.dropna()
     if present.empty:
         raise SettingError(
@@ -42,10 +44,18 @@ def _sortable(s: pd.Series, present: pd.Series, column: str, source: str) -> pd.
             f"({kind}: {', '.join(types)}); pass a column whose values are all numbers, all "
             "dates or all text."
         )
-    numbers = pd.to_numeric(s, errors="coerce")
-    if numbers.notna().sum() == len(present):
-        return numbers
-    dates = pd.to_datetime(s, errors="coerce", format="ISO8601")
-    if dates.notna().sum() == len(present):
-        return dates
+    for what, parsed in (
+        ("numbers", pd.to_numeric(s, errors="coerce")),
+        ("dates", pd.to_datetime(s, errors="coerce", format="ISO8601")),
+    ):
+        read = int(parsed.notna().sum())
+        if read == len(present):
+            return parsed
+        if read > 0 and what == "numbers" or read >= len(present) / 2:
+            example = present[parsed[present.index].isna()].iloc[0]
+            raise SettingError(
+                f"--order column {column!r} of {source} mixes {what} with other text (e.g. "
+                f"{example!r}), which do not sort together; pass a column whose values are "
+                "all numbers, all dates or all text."
+            )
     return s.astype(object)

@@ -153,23 +153,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "entity": "--entity",
         "order": "--order",
     }
-    chosen: dict[str, str | None] = {}
-    for role, value in flags.items():
-        if value is not None:
-            _require(frame, value, flag_names[role], src)
-            chosen[role] = value
-        else:
-            named = [c for c, r in roles.items() if r == role]
-            if len(named) > 1:
-                raise SettingError(
-                    f"dictionary {ddict.source if ddict else ''!r} gives role "
-                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
-                    f"{flag_names[role]}."
-                )
-            chosen[role] = named[0] if named else None
-    for role, col in chosen.items():
-        if col is not None:
-            roles[col] = role
+    chosen = _choose_roles(frame, roles, flags, flag_names, ddict, src)
     if test is not None and chosen["split"] is not None:
         warnings.append(
             f"--test names the held-out rows, so split column {chosen['split']!r} "
@@ -238,6 +222,36 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         elif role not in NON_FEATURE_ROLES:
             table.features.append(name)
     return table
+
+
+def _choose_roles(
+    frame: pd.DataFrame,
+    roles: dict[str, str],
+    flags: dict[str, str | None],
+    flag_names: dict[str, str],
+    ddict: DataDictionary | None,
+    src: str,
+) -> dict[str, str | None]:
+    """The column of each role: the flag's (checked to exist), else the dictionary's one
+    column with that role; ``roles`` is updated with the choices."""
+    chosen: dict[str, str | None] = {}
+    for role, value in flags.items():
+        if value is not None:
+            _require(frame, value, flag_names[role], src)
+            chosen[role] = value
+        else:
+            named = [c for c, r in roles.items() if r == role]
+            if len(named) > 1:
+                raise SettingError(
+                    f"dictionary {ddict.source if ddict else ''!r} gives role "
+                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
+                    f"{flag_names[role]}."
+                )
+            chosen[role] = named[0] if named else None
+    for role, col in chosen.items():
+        if col is not None:
+            roles[col] = role
+    return chosen
 
 
 def _dictionary(given: object, encoding: str | None = None) -> DataDictionary | None:

@@ -95,7 +95,8 @@ class Lineage(Probe):
             f"least {th.text_distinct:.0%} distinct, three words or more) is read with "
             f"scikit-learn's CountVectorizer out of {settings.folds} content-chosen folds: "
             f"AUC {th.auc_high:g} (R² {th.r2_high:g}) that removes {th.gain_high:.0%} of the "
-            "error the other columns together leave, with phrases of one outcome (in {th.phrase_min_docs}+ rows, "
+            "error the other columns together leave, with phrases of one outcome (in "
+            f"{th.phrase_min_docs}+ rows, "
             f"binomial chance below {th.phrase_alpha:g} after Bonferroni) covering "
             f"{th.coverage:.0%} of rows, is high."
         )
@@ -244,10 +245,10 @@ def _group_means(
     scopes = {"all labelled rows": labelled}
     if table.heldout is not None and (labelled & table.heldout).any():
         scopes["training rows"] = labelled & ~table.heldout
-    keys = content_keys(table.frame, [table.target, *table.features], settings.seed + 7919)
+    keys = content_keys(table.frame, [target, *table.features], settings.seed + 7919)
     half = (keys & np.uint64(1)) == 0
-    pairs = [(x, g) for x in numbers for g in _groupings(table) if g != x][:MAX_PAIRS]
-    groupings = _groupings(table) if pairs else {}
+    groupings = _groupings(table) if numbers else {}
+    pairs = [(x, g) for x in numbers for g in groupings if g != x][:MAX_PAIRS]
     for x_name, g_name in pairs:
         codes, labels = groupings[g_name]
         f = group_figures(codes, numbers[x_name], np.nan_to_num(y), scopes, half, th)

@@ -116,7 +116,8 @@ def _varying(codes, x, y, scopes, k, groups, th) -> GroupFigures | None:  # noqa
     loo = np.full(len(x), np.nan)
     fit = rows & (counts[np.maximum(codes, 0)] >= 2) & (codes >= 0)
     loo[fit] = (sums[codes[fit]] - y[fit]) / (counts[codes[fit]] - 1)
-    u_loo, n = unexplained(x, loo, th.min_rows)
+    # within each group: a leave-one-out mean moves exactly against the row's own outcome
+    u_loo, n = unexplained(_within(codes, x, fit), _within(codes, loo, fit), th.min_rows)
     enc = _encoding(codes, y, rows, 0.0, k)
     if n >= th.min_rows and u_loo <= th.close:
         return GroupFigures("leave_one_out", u_loo, 1.0, groups, scope, 0.0, _few_means(codes, enc))
@@ -130,6 +131,14 @@ def _varying(codes, x, y, scopes, k, groups, th) -> GroupFigures | None:  # noqa
     if 1.0 - u_track < TRACKS:
         return None
     return GroupFigures("varies", u_track, 1.0, groups, scope, 0.0, _few_means(codes, enc))
+
+
+def _within(codes: np.ndarray, v: np.ndarray, rows: np.ndarray) -> np.ndarray:
+    """``v`` minus its group's mean over ``rows`` (NaN elsewhere)."""
+    out = np.full(len(v), np.nan)
+    ok = rows & np.isfinite(v)
+    out[ok] = v[ok] - pd.Series(v[ok]).groupby(codes[ok]).transform("mean").to_numpy()
+    return out
 
 
 def _few_means(codes: np.ndarray, enc: np.ndarray) -> dict[str, float]:

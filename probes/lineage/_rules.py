@@ -46,7 +46,7 @@ WINDOW_RULES = (
         "window_with_later_rows_exact",
         Level.HIGH,
         lambda f, th: (
-            f.rows >= th.min_rows and f.u_later <= th.exact and f.u_later <= th.ratio * f.u_earlier
+            f.rows >= th.min_rows and f.u_later <= th.exact and f.u_later < th.ratio * f.u_earlier
         ),
         "a window that reaches the label or later explains it exactly, far beyond any window "
         "that ends before",
@@ -57,7 +57,7 @@ WINDOW_RULES = (
         lambda f, th: (
             f.rows >= th.min_rows
             and f.u_later <= th.close
-            and f.u_later <= th.ratio_medium * f.u_earlier
+            and f.u_later < th.ratio_medium * f.u_earlier
         ),
         "a window that reaches the label or later explains it closely, beyond any window that "
         "ends before",
@@ -104,7 +104,7 @@ GROUP_RULES = (
             f.variant == "in_sample"
             and f.groups >= th.min_groups
             and f.u_fit <= th.exact
-            and f.u_fit <= th.ratio * f.u_half
+            and f.u_fit < th.ratio * f.u_half
         ),
         "equals its group's target mean computed with the row's own outcome",
     ),
