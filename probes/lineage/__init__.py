@@ -94,11 +94,10 @@ class Lineage(Probe):
             "high as target proxies; cross-fitted ones are clean. Free text (values at "
             f"least {th.text_distinct:.0%} distinct, three words or more) is read with "
             f"scikit-learn's CountVectorizer out of {settings.folds} content-chosen folds: "
-            f"AUC {th.auc_high:g} (R² {th.r2_high:g}) that removes {th.gain_high:.0%} of the "
-            "error the other columns together leave, with phrases of one outcome (in "
-            f"{th.phrase_min_docs}+ rows, "
-            f"binomial chance below {th.phrase_alpha:g} after Bonferroni) covering "
-            f"{th.coverage:.0%} of rows, is high."
+            f"AUC at least {th.auc_floor:g} (R² {th.r2_floor:g}), and added to the other "
+            f"columns removing {th.gain_high:.0%} of the error they leave, with phrases of "
+            f"one outcome (in {th.phrase_min_docs}+ rows, binomial chance below "
+            f"{th.phrase_alpha:g} after Bonferroni) covering {th.coverage:.0%} of rows, is high."
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
@@ -162,7 +161,7 @@ def _windows(
     windows = target_windows(seq, y, th)
     out: list[Evidence] = []
     for name, values in numbers.items():
-        f = window_figures(values[seq.rows], windows, th)
+        f = window_figures(values[seq.rows], windows, th, seq.group if table.entity else None)
         if f is None:
             continue
         rule = decide(WINDOW_RULES, f, th)
@@ -185,7 +184,7 @@ def _windows(
             text = honest_window_sentence(f, target)
             out.append(
                 _evidence(name, LATER, rule, "later_window_r2", 1 - f.u_later, 1 - th.exact,
-                          text, 0.0, detail)
+                          text, 0.0, {**detail, "explains": ["target_proxy"]})
             )  # fmt: skip
     return out
 
@@ -295,7 +294,7 @@ def _texts(table: AuditTable, settings: Settings) -> list[Evidence]:
         kinds = ["target_proxy", LATER] if rule.level >= Level.MEDIUM else ["target_proxy"]
         detail = {"phrases": [list(p) for p in f.named], "coverage": f.coverage,
                   "reference": f.reference, "distinct_phrases": f.phrases}  # fmt: skip
-        threshold = th.r2_high if numeric else th.auc_high
+        threshold = th.r2_floor if numeric else th.auc_floor
         out += [
             _evidence(name, k, rule, f.statistic, f.power, threshold, text_sentence(f),
                       f.power, detail)

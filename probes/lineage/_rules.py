@@ -132,22 +132,22 @@ TEXT_RULES = (
         "text_carries_outcome",
         Level.HIGH,
         lambda f, th: (
-            f.power >= (th.r2_high if f.numeric else th.auc_high)
+            f.power >= (th.r2_floor if f.numeric else th.auc_floor)
             and f.gain >= th.gain_high
             and f.coverage >= th.coverage
         ),
-        "its words alone predict the target beyond the other columns, and phrases that occur "
+        "its words remove much of the error the other columns leave, and phrases that occur "
         "with only one outcome cover many rows",
     ),
     Rule(
         "text_predicts",
         Level.MEDIUM,
         lambda f, th: (
-            f.power >= (th.r2_medium if f.numeric else th.auc_medium)
+            f.power >= (th.r2_floor if f.numeric else th.auc_floor)
             and f.gain >= th.gain_medium
             and f.phrases > 0
         ),
-        "its words predict the target beyond the other columns, with phrases of one outcome",
+        "its words add to the other columns, with phrases of one outcome",
     ),
     Rule(
         "text_phrases_only",

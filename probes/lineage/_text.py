@@ -27,6 +27,9 @@ from featureaudit.probes.lineage._thresholds import LineageThresholds
 __all__ = ["TextFigures", "text_figures", "is_free_text"]
 
 MAX_PHRASES = 5
+# phrases are made of words (letters only): a number in a note is the row's own value, which
+# the other columns already hold, not something written after the outcome
+WORDS = r"(?u)\b[^\W\d_]{2,}\b"
 
 
 @dataclass(frozen=True)
@@ -36,6 +39,7 @@ class TextFigures:
     power: float
     reference: float
     gain: float  # share of the other columns' error (1 - AUC or 1 - R²) the words remove
+    # when added to them (out of fold, the words' own out-of-fold score as one more input)
     coverage: float  # share of labelled rows holding a phrase of one outcome
     phrases: int
     named: list[tuple[str, str, int]]  # (phrase, outcome, rows)
@@ -122,7 +126,9 @@ def other_columns(frame: pd.DataFrame, names: list[str]) -> np.ndarray:
 def _phrases(docs: np.ndarray, outcome: np.ndarray, names: list[str], th: LineageThresholds):  # noqa: ANN202
     """Phrases (1-3 words) in ``phrase_min_docs`` rows or more that occur with one outcome
     only, beyond chance (binomial tail, Bonferroni over the phrases)."""
-    vec = CountVectorizer(ngram_range=(1, 3), binary=True, min_df=th.phrase_min_docs)
+    vec = CountVectorizer(
+        ngram_range=(1, 3), binary=True, min_df=th.phrase_min_docs, token_pattern=WORDS
+    )
     try:
         counts = vec.fit_transform(docs).tocsc()
     except ValueError:
@@ -172,7 +178,10 @@ def text_figures(
         outcome, names = y.astype(int), classes
     named, coverage, count = _phrases(text, outcome, names, th)
     power, reference = _power(y, p, numeric), _power(y, ref, numeric)
-    gain = 1.0 - (1.0 - power) / max(1.0 - reference, 1e-9)
+    # what the words add to the other columns: the reference refitted with the words' score
+    score = p.reshape(len(y), -1)
+    both = _oof_reference(np.column_stack([others, score]), y, folds, numeric, k, seed)
+    gain = 1.0 - (1.0 - _power(y, both, numeric)) / max(1.0 - reference, 1e-9)
     return TextFigures(
         power, reference, gain, coverage, count, named, numeric, "oof_r2" if numeric else "oof_auc"
     )

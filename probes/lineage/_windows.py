@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from featureaudit.probes.lineage._fit import unexplained
+from featureaudit.probes.lineage._fit import unexplained, unexplained_within
 from featureaudit.probes.lineage._sequence import Sequence
 from featureaudit.probes.lineage._thresholds import LineageThresholds
 
@@ -85,12 +85,22 @@ def target_windows(
 
 
 def window_figures(
-    x_sorted: np.ndarray, windows: list[tuple[Window, np.ndarray]], th: LineageThresholds
+    x_sorted: np.ndarray,
+    windows: list[tuple[Window, np.ndarray]],
+    th: LineageThresholds,
+    group: np.ndarray | None = None,
 ) -> WindowFigures | None:
-    """The best window with later rows and the best without, for one column (sorted rows)."""
+    """The best window with later rows and the best without, for one column (sorted rows).
+
+    With ``group`` (the entity of each sorted row) a line per entity is also fitted, so a
+    window rescaled within each entity (standardised per entity) is matched as well."""
     best: dict[bool, tuple[float, int, Window]] = {}
     for window, values in windows:
         u, n = unexplained(x_sorted, values, th.min_rows)
+        if group is not None and u > th.exact:
+            u_in, n_in = unexplained_within(x_sorted, values, group, th.min_rows, th.min_group_rows)
+            if n_in >= th.min_rows and u_in < u:
+                u, n = u_in, n_in
         if n < th.min_rows:
             continue
         key = window.later

@@ -13,6 +13,7 @@ from sklearn.datasets import load_breast_cancer
 from sklearn.preprocessing import TargetEncoder
 
 import featureaudit as fa
+from featureaudit.findings import droplist
 from featureaudit.levels import Level
 from featureaudit.probes.lineage._rules import (
     GROUP_RULES,
@@ -278,15 +279,19 @@ def test_window_rules(figures, rule):
     assert decide(WINDOW_RULES, figures, TH).name == rule
 
 
+def _s(split: bool, holds_all: float, holds_train: float) -> SimpleNamespace:
+    return SimpleNamespace(split=split, holds_all=holds_all, holds_train=holds_train)
+
+
 @pytest.mark.parametrize(
     ("figures", "rule"),
     [
-        (SimpleNamespace(split=True, holds_all=1.0, holds_train=0.0), "scaled_over_heldout_periods"),
-        (SimpleNamespace(split=True, holds_all=0.0, holds_train=1.0), "scaled_over_training_periods"),
-        (SimpleNamespace(split=False, holds_all=1.0, holds_train=0.0), "scaled_over_whole_history"),
-        (SimpleNamespace(split=False, holds_all=0.5, holds_train=0.0), "not_scaled_per_entity"),
+        (_s(True, 1.0, 0.0), "scaled_over_heldout_periods"),
+        (_s(True, 0.0, 1.0), "scaled_over_training_periods"),
+        (_s(False, 1.0, 0.0), "scaled_over_whole_history"),
+        (_s(False, 0.5, 0.0), "not_scaled_per_entity"),
     ],
-)  # fmt: skip
+)
 def test_scale_rules(figures, rule):
     assert decide(SCALE_RULES, figures, TH).name == rule
 
@@ -334,3 +339,22 @@ def test_every_rule_table_ends_with_a_rule_that_always_holds():
     for table in (WINDOW_RULES, SCALE_RULES, GROUP_RULES, TEXT_RULES):
         assert table[-1].condition(SimpleNamespace(), TH) is True
         assert len({r.name for r in table}) == len(table)
+
+
+def test_dossier_explains_the_window_the_group_and_the_phrases_with_the_remedy(tmp_path):
+    g = _grunfeld()
+    g["firm_invest_mean"] = g.groupby("firm")["invest"].transform("mean")
+    result = fa.audit(g, target="invest", split_column="split", entity="firm", order="year")
+    result.write(tmp_path)
+    html = (tmp_path / "dossier.html").read_text()
+    cols = _by_column(result)
+    for name in ("roll_with_label", "firm_invest_mean", "value_z_all"):
+        assert cols[name]["remedy"] == "recompute_before_cutoff", name
+        assert name in droplist(result.findings)  # not refitted: recomputed or dropped
+    assert "mean over the 3 periods t-2..t" in html
+    assert "its group in &#39;firm&#39;" in html or "its group in 'firm'" in html
+    assert "recompute it from the rows known at the moment of prediction" in html
+    notes = fa.audit(_notes(), target="benign")
+    notes.write(tmp_path / "notes")
+    text = (tmp_path / "notes" / "dossier.html").read_text()
+    assert "phrases that occur with one outcome only" in text
