@@ -153,6 +153,7 @@ def audit(
     cutoff_time: str | None = None,
     horizon: str | None = None,
     entity: str | None = None,
+    order: str | None = None,
     fold_column: str | None = None,
     seed: int | None = None,
     probes: list[str] | None = None,
@@ -185,6 +186,9 @@ def audit(
         ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
+    order : str, optional
+        A sortable column (period number, date, sequence) that orders each entity's rows when
+        no label or cutoff time does (dictionary role ``order``).
     fold_column : str, optional
         The cross-validation fold of each training row; each fold is audited against the
         other training rows.
@@ -246,7 +250,7 @@ def _audit(
 ) -> AuditResult:
     """The body of :func:`audit`: check every argument, then run the engine that fits."""
     names = ("test", "split_column", "train_value", "target", "task", "dictionary",
-             "label_time", "cutoff_time", "horizon", "entity", "source", "encoding",
+             "label_time", "cutoff_time", "horizon", "entity", "order", "source", "encoding",
              "fold_column", "scheduler")  # fmt: skip
     inputs = Inputs(
         **{k: given[k] for k in names},

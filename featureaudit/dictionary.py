@@ -19,6 +19,7 @@ import pandas as pd
 from featureaudit.durations import parse_duration
 from featureaudit.errors import DictionaryError, DurationError, InputFileError
 from featureaudit.names import quote_name, unquote_name
+from featureaudit.prose import looks_like_prose
 
 __all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
 
@@ -29,6 +30,7 @@ ROLES = (
     "entity",
     "label_time",
     "cutoff_time",
+    "order",
     "split",
     "weight",
     "ignore",
@@ -243,6 +245,8 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
     )
     if not is_integer_or_text:
         return "feature"  # floats, booleans: never identifiers
+    if looks_like_prose(s):
+        return "feature"  # free text: every note may differ, yet it is read as words
     n = int(s.notna().sum())
     unique_share = s.nunique(dropna=True) / n if n else 0.0
     id_name = id_like_name(name)

@@ -23,7 +23,7 @@ __all__ = [
 ]
 
 SCHEMA = "featureaudit.findings/3"
-# each schema keeps every field of the one before
+# each schema keeps every field of the one before (3 adds the kind computed_from_later_rows)
 READABLE = ("featureaudit.findings/1", "featureaudit.findings/2", SCHEMA)
 
 

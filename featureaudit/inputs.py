@@ -165,6 +165,12 @@ class Inputs:
     fold_column: str | None = _declare(
         "--fold-column", _COLUMN, _text, help="The cross-validation fold of each training row."
     )
+    order: str | None = _declare(
+        "--order",
+        _COLUMN,
+        _text,
+        help="Sortable column (period, date) ordering each entity's rows.",
+    )
     source: str | None = _declare("source", "a name for the table (text)", _text)
     out: str | None = _declare(
         "--out",

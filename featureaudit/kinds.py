@@ -40,8 +40,9 @@ REMEDY_WORDS = {
     "refit_on_training_rows": "refit its preprocessing (scaler, imputer, cap or encoding) on "
     "the training rows only and apply it to the held-out rows; keep "
     "the column",
-    "recompute_before_cutoff": "recompute it from rows known before each row's moment of "
-    "prediction (the entity's earlier periods, training rows only); keep the column",
+    "recompute_before_cutoff": "recompute it from the rows known at the moment of prediction "
+    "(a window or statistic ending before the label, a lag that looks back, a group mean "
+    "cross-fitted on the training rows, a note written before the decision), or drop it",
     "regroup_split": "split by entity, so every entity's rows fall on one side (grouped folds)",
     "split_by_time": "split by time: train on earlier rows, validate on later ones",
     "deduplicate": "remove held-out rows that have a copy among the training rows",
@@ -96,14 +97,6 @@ KIND_TABLE: tuple[Kind, ...] = (
         per_pair=True,
     ),
     Kind(
-        "computed_from_later_rows",
-        "column",
-        "recompute_before_cutoff",
-        "computed from rows of the same entity or series that come after the row's moment of "
-        "prediction, or from the row's own outcome",
-        per_pair=False,
-    ),
-    Kind(
         "row_order_tells_target",
         "split",
         "review",
@@ -137,6 +130,15 @@ KIND_TABLE: tuple[Kind, ...] = (
         "review",
         "a model tells held-out rows from training rows (adversarial validation)",
         per_pair=True,
+    ),
+    Kind(
+        "computed_from_later_rows",
+        "column",
+        "recompute_before_cutoff",
+        "the value was computed from the entity's later rows or from the row's own outcome: a "
+        "window that includes the label, a lead used as a lag, a per-entity statistic over "
+        "every period, a group mean of the target in sample, a note written after the decision",
+        per_pair=False,
     ),
 )
 

@@ -21,15 +21,25 @@ def column_remedy(column: dict[str, Any]) -> str | None:
 
     When every piece of evidence at the column's own level takes one remedy that keeps the
     column (a refit of preprocessing fitted on all rows, a recomputation from earlier rows),
-    that is the remedy; otherwise the column is dropped at high or above and reviewed below.
+    that is the remedy. A feature built from later rows is recomputed (from medium up) when
+    that evidence is among the strongest, even beside the target power it lends: the feature's
+    idea may be sound, its window is not. Otherwise the column is dropped at high or above and
+    reviewed below.
     """
     level = Level.parse(column.get("level", "none"))
     if level == Level.NONE:
         return None
-    top = [e for e in column.get("evidence", []) if Level.parse(e.get("level", "none")) >= level]
+    evidence = column.get("evidence", [])
+    top = [e for e in evidence if Level.parse(e.get("level", "none")) >= level]
     remedies = {evidence_remedy(e) for e in top}
     if len(remedies) == 1 and (only := remedies.pop()) in KEEP_REMEDIES:
         return only
+    peak = max((Level.parse(e.get("level", "none")) for e in evidence), default=Level.NONE)
+    strongest = [e for e in evidence if Level.parse(e.get("level", "none")) == peak]
+    if level >= Level.MEDIUM and any(
+        e.get("kind") == "computed_from_later_rows" for e in strongest
+    ):
+        return "recompute_before_cutoff"
     return "drop" if level >= Level.HIGH else "review"
 
 

@@ -25,11 +25,21 @@ from featureaudit.errors import (
 )
 from featureaudit.inputs import Inputs
 from featureaudit.io import UNPARSED_DATES, as_frame, normalise_frame
+from featureaudit.ordering import order_ranks
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
 
-NON_FEATURE_ROLES = ("target", "label_time", "cutoff_time", "split", "weight", "ignore", "entity")
+NON_FEATURE_ROLES = (
+    "target",
+    "label_time",
+    "cutoff_time",
+    "split",
+    "weight",
+    "ignore",
+    "entity",
+    "order",
+)
 FEW_CLASSES = 20  # common practice, no source: an integer target with at most 20 values is a label
 # common practice, no source: a target needs as many labelled rows as a table needs rows
 # (pipeline.MIN_ROWS); with fewer no fold holds a labelled row to score
@@ -57,6 +67,9 @@ class AuditTable:
     cutoff_source: str | None = None  # "column:X", "horizon:30 days", "label time"
     horizon: pd.Timedelta | None = None  # --horizon, kept for durations compared without times
     entity: str | None = None
+    # --order (or role order): dense ranks of a sortable column, NaN where missing
+    order: np.ndarray | None = None
+    order_column: str | None = None
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None  # why target-based probes cannot run
@@ -102,6 +115,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     train_value = spec.train_value if spec.train_value is not None else "train"
     dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
     horizon, entity, source = spec.horizon, spec.entity, spec.source
+    order = spec.order
     encoding, normalise_labels = spec.encoding, bool(spec.normalise_labels)
     fold_column = spec.fold_column
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
@@ -138,6 +152,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": label_time,
         "cutoff_time": cutoff_time,
         "entity": entity,
+        "order": order,
     }
     flag_names = {
         "target": "--target",
@@ -145,25 +160,10 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": "--label-time",
         "cutoff_time": "--cutoff-time",
         "entity": "--entity",
+        "order": "--order",
     }
-    chosen: dict[str, str | None] = {}
-    for role, value in flags.items():
-        if value is not None:
-            _require(frame, value, flag_names[role], src)
-            chosen[role] = value
-        else:
-            named = [c for c, r in roles.items() if r == role]
-            if len(named) > 1:
-                raise SettingError(
-                    f"dictionary {ddict.source if ddict else ''!r} gives role "
-                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
-                    f"{flag_names[role]}."
-                )
-            chosen[role] = named[0] if named else None
+    chosen = _choose_roles(frame, roles, flags, flag_names, ddict, src)
     _one_role_each(chosen, flags, flag_names, fold_column, ddict)
-    for role, col in chosen.items():
-        if col is not None:
-            roles[col] = role
     if test is not None and chosen["split"] is not None:
         warnings.append(
             f"--test names the held-out rows, so split column {chosen['split']!r} "
@@ -222,6 +222,9 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         _set_folds(table, fold_column, src)
     _set_target(table, chosen["target"], task, normalise_labels)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
+    if chosen["order"] is not None:
+        table.order = order_ranks(frame[chosen["order"]], column=chosen["order"], source=src)
+        table.order_column = chosen["order"]
     for name in frame.columns:
         role = roles.get(name, "feature")
         if role == "id":
@@ -260,6 +263,36 @@ def _one_role_each(
             f"{'split column' if role == 'split' else role} ({said(role)}); a column holds one "
             f"role. Pass {names[role]} with another column, or another --target."
         )
+
+
+def _choose_roles(
+    frame: pd.DataFrame,
+    roles: dict[str, str],
+    flags: dict[str, str | None],
+    flag_names: dict[str, str],
+    ddict: DataDictionary | None,
+    src: str,
+) -> dict[str, str | None]:
+    """The column of each role: the flag's (checked to exist), else the dictionary's one
+    column with that role; ``roles`` is updated with the choices."""
+    chosen: dict[str, str | None] = {}
+    for role, value in flags.items():
+        if value is not None:
+            _require(frame, value, flag_names[role], src)
+            chosen[role] = value
+        else:
+            named = [c for c, r in roles.items() if r == role]
+            if len(named) > 1:
+                raise SettingError(
+                    f"dictionary {ddict.source if ddict else ''!r} gives role "
+                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
+                    f"{flag_names[role]}."
+                )
+            chosen[role] = named[0] if named else None
+    for role, col in chosen.items():
+        if col is not None:
+            roles[col] = role
+    return chosen
 
 
 def _dictionary(given: object, encoding: str | None = None) -> DataDictionary | None:

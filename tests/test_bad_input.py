@@ -94,7 +94,9 @@ def test_unknown_target_lists_the_columns(good_csv):
     )
 
 
-@pytest.mark.parametrize("flag", ["--split-column", "--label-time", "--entity", "--cutoff-time"])
+@pytest.mark.parametrize(
+    "flag", ["--split-column", "--label-time", "--entity", "--cutoff-time", "--order"]
+)
 def test_unknown_column_flags(good_csv, flag):
     assert_one_line_exit_2(cli("scan", good_csv, "--target", "y", flag, "nope"), flag, "'nope'")
 

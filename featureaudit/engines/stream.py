@@ -381,7 +381,7 @@ def stream_layout(schema: pa.Schema, build: dict[str, Any]) -> Layout:
         entity=build.get("entity"),
     )
     declared = {build.get(k) for k in ("split_column", "target", "label_time", "cutoff_time")}
-    declared |= {build.get("entity"), build.get("fold_column")}
+    declared |= {build.get("entity"), build.get("fold_column"), build.get("order")}
     given = build.get("dictionary")
     ddict = _dictionary(given, build.get("encoding")) if given is not None else None
     if ddict is not None:
@@ -400,6 +400,7 @@ _FLAGS = {
     "cutoff_time": "--cutoff-time",
     "entity": "--entity",
     "fold_column": "--fold-column",
+    "order": "--order",
 }
 
 

@@ -743,7 +743,9 @@ def _proxy_evidence(
         summary = f"alone predicts the target almost exactly ({txt})"
     elif why == "function":
         statistic, value = "determinism_given_target", score.determinism
-        threshold = {lv: u for lv, u, _ in th.function_of_target}[rank]
+        # a small sample lowers a function of the target to medium: quote the lowest floor
+        floors = {lv: u for lv, u, _ in th.function_of_target}
+        threshold = floors.get(rank, min(floors.values()))
         summary = (
             f"is almost a function of the target: the target accounts for "
             f"{score.determinism:.0%} of its entropy ({txt})"

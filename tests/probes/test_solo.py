@@ -578,3 +578,17 @@ def test_quantile_edges_in_a_large_table_do_not_follow_row_order():
     first = bins(f)
     assert all(first.values())
     assert bins(f.sample(frac=1, random_state=3).reset_index(drop=True)) == first
+
+
+def test_small_table_with_a_function_of_the_target_is_reported_not_crashed():
+    # Real data: statsmodels' engel (first 90 rows, under min_rows): the target's quintile
+    # number is a function of the target; the small sample lowers it to medium, which once
+    # raised KeyError looking up the threshold of that level.
+    import statsmodels.api as sm
+
+    frame = sm.datasets.engel.load_pandas().data.iloc[:90].copy()
+    frame["quintile"] = pd.qcut(frame["income"], 5, labels=False)
+    doc = fa.audit(frame, target="income", probes=["solo"]).document
+    col = next(c for c in doc["columns"] if c["column"] == "quintile")
+    assert col["level"] == "medium"
+    assert col["evidence"][0]["threshold"] is not None
