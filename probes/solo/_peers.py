@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 from scipy.special import ndtri
 
+from featureaudit.models import lgbm_params
 from featureaudit.threads import limited_blas, model_threads
 
 __all__ = [
@@ -226,21 +227,7 @@ def reference_fit(
         )
     x = inp.z_tree[:, columns]
     y = inp.y_codes
-    params: dict[str, Any] = dict(
-        n_estimators=40,
-        learning_rate=0.15,
-        num_leaves=15,
-        min_child_samples=10,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=model_threads(n_jobs, len(inp.y_codes)),
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
-        max_bin=31,
-    )
+    params = lgbm_params(seed, model_threads(n_jobs, len(inp.y_codes)))
     with limited_blas():
         return _reference_fit(x, y, params, task, n_classes, seed, folds)
 
