@@ -55,7 +55,7 @@ row position at high from 7 and 13 of 22 runs to 0.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 import numpy as np
 from scipy.special import ndtri
@@ -78,6 +78,14 @@ from featureaudit.probes.solo._peers import (
     reference_fit,
     unique_lift,
 )
+from featureaudit.probes.solo._rules import Rule, decide, facts
+from featureaudit.probes.solo._thresholds import (
+    EDGE_ROWS,
+    THRESHOLDS,
+    ProxyFigures,
+    SoloThresholds,
+    measurable,
+)
 from featureaudit.registry import Probe, ProbeOutput, register
 from featureaudit.sample import content_keys, order_keys
 from featureaudit.settings import Settings
@@ -86,258 +94,11 @@ from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
 
-@dataclass(frozen=True)
-class SoloThresholds:
-    """The numbers the ``solo`` levels use, with their sources.
-
-    - ``share_floors`` / ``share_power``: target share beyond peers (above the table's typical
-      share) and power per level. Breast cancer: a 5 %-flipped copy of the target reaches
-      0.49, no honest column more than 0.05 (measured, ``tests/probes/test_solo.py``); the
-      floors sit between, checked on wine, diabetes and the demo scenario. On the detection
-      bench (3 seeds, 7 datasets) no clean column reached high (0 false positives).
-    - ``deterministic``: power alone that is critical; ``function_of_target``: (Theil's U,
-      power) per level; ``strong_alone``: power worth a ``low`` even when explained; common
-      practice, no source.
-    - ``match_margin`` / ``match_power``: alone within this of all other columns together,
-      with at least this power; common practice, no source.
-    - ``min_peers``: fewer other columns cannot tell a leak from a strong feature; common
-      practice, no source.
-    - ``beyond_max`` / ``peer_signal``: an effect of the outcome leaves the peers at most
-      ``beyond_max`` beyond the target, and the peers must then explain ``peer_signal`` of
-      the column; set on breast cancer and wine (measured), no other source.
-    - ``missing_as_encoding``: numeric columns missing this often enter the peer test encoded;
-      common practice, no source.
-    - ``max_reference`` / ``strong_reference_fits``: columns in the reference model of a wide
-      table, and how many strong columns get their own leave-one-out reference fit (cost).
-    - ``order_power`` / ``order_z``: identifiers and row position; z against the Mann–Whitney
-      null (z >= 4 for high is common practice for many parallel tests, no source).
-    - ``lift_columns`` / ``lift_power``: how many suspects or strong columns get a unique
-      lift (two reference fits each; cost), and the power a column needs to get one.
-    - ``lift_nil`` / ``lift_large``: a relative error reduction under 0.1 (pooled and in
-      every fold: one fold above leaves the lift unsettled, star98's count) is nil, from 0.3
-      (with every fold positive) large. On the bench's new cases planted leaks add 0.4–1.0
-      (measured, 3 seeds); the two cut-offs themselves are common practice, no source.
-    - ``lift_error_floor``: when the rest of the table already predicts the target with
-      1 − AUC (or 1 − R²) under 0.005 the lift cannot be measured (palmerpenguins: the
-      measurements tell the species at 1 − AUC ≈ 0.002, measured); determinism then needs
-      a share beyond the typical one to reach high. ``lift_error_rows``: the same when that
-      error amounts to less than one row of the smallest class wholly misranked (penguins'
-      0.011 is under one Chinstrap row, so its fold lifts swing from 0 to 1); common
-      practice, no source.
-    - ``share_z_high``: the share's robust z (median, 1.4826·MAD, scale at least
-      ``share_scale_floor``) among the table's other columns on the −log(1 − share) scale,
-      needed for high by a share: breast cancer's 5 %-flipped, jittered copy stands at
-      z ≈ 7 (share 0.6 against a typical 0.02); honest columns that stand out as far (z up
-      to 8 there) are explained by their peers beyond the target and stay below high;
-      digits' honest pixels stand at z ≈ 2 (measured, 3 was chosen between).
-    - ``share_z_function``: the z a near-function of the target needs when its lift cannot
-      be measured: wine's 5 %-flipped copy of the cultivar stands at z ≈ 2.6, palmerpenguins'
-      honest island at 0.2 (measured); 2 was chosen between and checked on the bench's
-      clean columns (see the figures below).
-    - ``table_beyond``: where the peers' linear fit explains too little of the target to
-      expect them to explain an outcome-caused column (``peer_signal``), the table itself can
-      still show the test's power: its other columns' median ``peers_beyond_target`` at 0.3
-      or more (statsmodels' modechoice: 0.68 for the honest columns, 0.006 for a jittered
-      near copy of the choice, whose peers reach AUC 0.98 only nonlinearly; measured). On
-      the bench no clean column is outcome-caused-looking without that power (0 of 2991
-      re-decided, 3 seeds), so the value is common practice (3x ``beyond_max``), no source.
-    - ``presence_power``: |TPR − FPR| of one bin's indicator; filled-only-when-positive
-      columns reach 0.9 or more, breast cancer's honest columns about 0.14 (measured).
-    False positives at high on the bench (3 seeds, 2026-12-03): 0 of 996 clean columns in
-    the new cases and 0 of 60 clean cases, 0 of 1710 clean columns in the original planted
-    cases, 0 of 21 clean controls; planted leaks at high: 63 of 63 new, 118 of 126 original.
-    """
-
-    share_floors: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.35),
-        (Level.HIGH, 0.20),
-        (Level.MEDIUM, 0.10),
-        (Level.LOW, 0.05),
-    )
-    share_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.5),
-        (Level.HIGH, 0.3),
-        (Level.MEDIUM, 0.2),
-        (Level.LOW, 0.1),
-    )
-    deterministic: float = 0.98
-    function_of_target: tuple[tuple[Level, float, float], ...] = (
-        (Level.CRITICAL, 0.7, 0.8),
-        (Level.HIGH, 0.5, 0.5),
-    )
-    strong_alone: float = 0.8
-    match_margin: float = 0.02
-    match_power: float = 0.6
-    min_peers: int = 3
-    beyond_max: float = 0.10
-    peer_signal: float = 0.08
-    missing_as_encoding: float = 0.01
-    max_reference: int = 200
-    strong_reference_fits: int = 2
-    lift_columns: int = 3
-    lift_power: float = 0.3
-    lift_nil: float = 0.1
-    lift_error_floor: float = 0.005
-    lift_error_rows: float = 1.0
-    lift_large: float = 0.3
-    share_z_high: float = 3.0
-    share_z_function: float = 2.0
-    table_beyond: float = 0.3
-    share_scale_floor: float = 0.01
-    presence_power: float = 0.8
-    order_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.6),
-        (Level.HIGH, 0.2),
-        (Level.MEDIUM, 0.1),
-    )
-    order_z: tuple[tuple[Level, float], ...] = (
-        (Level.HIGH, 4.0),
-        (Level.MEDIUM, 3.0),
-        (Level.LOW, 2.0),
-    )
-
-    def share(self, level: Level) -> float:
-        return dict(self.share_floors)[level]
-
-    def share_min_power(self, level: Level) -> float:
-        return dict(self.share_power)[level]
-
-    def order(self, table: tuple[tuple[Level, float], ...], level: Level) -> float:
-        return dict(table)[level]
-
-
-THRESHOLDS = SoloThresholds()
-EDGE_ROWS = 50_000  # rows the quantile edges come from in larger tables (cost, no source)
-
-
-@dataclass(frozen=True)
-class ProxyFigures:
-    """What the level of a ``target_proxy`` follows from: the column's figures only."""
-
-    power: float
-    determinism: float
-    share: float | None = None
-    typical_share: float = 0.0
-    others_power: float | None = None
-    peers_beyond_target: float | None = None
-    expected_r2_if_effect: float = 0.0
-    n_peers: int = 0
-    small: bool = False
-    share_z: float | None = None
-    lift: float | None = None
-    lift_low: float = 0.0
-    lift_high: float | None = None
-    lift_error: float = 1.0
-    presence: float = 0.0
-    lift_error_rows: float | None = None
-    typical_beyond: float | None = None
-
-
-def _measurable(error: float, error_rows: float | None, th: SoloThresholds) -> bool:
-    """Whether the rest of the table leaves enough error for a column to reduce: 1 − AUC (or
-    1 − R²) of at least ``lift_error_floor`` and, for classes, at least ``lift_error_rows``
-    rows of the smallest class wholly misranked."""
-    return error >= th.lift_error_floor and (error_rows is None or error_rows >= th.lift_error_rows)
-
-
-def _lift_class(f: ProxyFigures, th: SoloThresholds) -> str:
-    """What the column adds to the rest of the table: ``unknown`` (not measured),
-    ``unmeasurable`` (the rest already predicts the target almost without error), ``nil``,
-    ``some`` or ``large``."""
-    if f.lift is None:
-        return "unknown"
-    if not _measurable(f.lift_error, f.lift_error_rows, th):
-        return "unmeasurable"
-    if f.lift < th.lift_nil and (f.lift_high is None or f.lift_high < th.lift_nil):
-        return "nil"  # every fold agrees: nothing added
-    return "large" if f.lift >= th.lift_large and f.lift_low > 0 else "some"
-
-
 def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Level, str]:
-    """The level of a ``target_proxy`` and the rule that set it (a pure function)."""
-    power, share, typical = f.power, f.share, f.typical_share
-    enough_peers = f.n_peers >= th.min_peers and share is not None
-    effect_like = f.peers_beyond_target is not None and f.peers_beyond_target <= th.beyond_max
-    tellable = f.expected_r2_if_effect >= th.peer_signal
-    # the peers' linear fit may miss what they tell of the target (modechoice: an AUC of 0.98
-    # from a linear R² of 0.14), yet the table shows the test's power when its other columns
-    # are typically explained by their peers well beyond the target: one near 0 stands out
-    table_tells = f.typical_beyond is not None and f.typical_beyond >= th.table_beyond
-    level, why = Level.NONE, "explained"
-    for lv in (Level.LOW, Level.MEDIUM, Level.HIGH, Level.CRITICAL):
-        if (
-            enough_peers
-            and share is not None
-            and share >= typical + th.share(lv)
-            and power >= th.share_min_power(lv)
-        ):
-            level, why = lv, "share"
-    lift = _lift_class(f, th)
-    told = effect_like and (tellable or lift == "large" or (table_tells and lift != "nil"))
-    stands_out = f.share_z is None or f.share_z >= th.share_z_high
-    if why == "share" and level >= Level.HIGH and not stands_out:
-        level, why = Level.MEDIUM, "share_typical"
-    if why == "share" and level >= Level.HIGH and not told:
-        level, why = Level.MEDIUM, "share_untold"
-    if (
-        enough_peers
-        and share is not None
-        and f.share_z is not None
-        and f.share_z >= th.share_z_high
-        and share >= typical + th.share(Level.MEDIUM)
-        and power >= th.share_min_power(Level.HIGH)
-        and told
-        and level < Level.HIGH
-    ):
-        level, why = Level.HIGH, "share_calibrated"
-    if power >= th.strong_alone and level < Level.LOW:
-        level, why = Level.LOW, "strong"
-    if (
-        enough_peers
-        and f.others_power is not None
-        and power >= th.match_power
-        and power >= f.others_power - th.match_margin
-        and effect_like
-        and tellable
-        and level < Level.HIGH
-    ):
-        level, why = Level.HIGH, "match"
-    if f.presence >= th.presence_power and lift == "large" and level < Level.HIGH:
-        level, why = Level.HIGH, "presence"
-    for lv, u_min, p_min in sorted(th.function_of_target):
-        if f.determinism >= u_min and power >= p_min and level <= lv:
-            level, why = lv, "function"
-    beyond_typical = share is not None and share >= typical + th.share(Level.LOW)
-    if why == "function" and level >= Level.HIGH:
-        # a code the class nearly determines is a leak only through what it adds to the rest:
-        # a large lift, or a share beyond peers that stands out among the table's columns.
-        # Where nothing can be measured, near-identity with the target (the critical rule's
-        # figures) still holds at high; a looser tie does not (palmerpenguins' island: U 0.51,
-        # z 0.2-0.4, lifts from nil to 0.8 on an error of under one row, measured)
-        stands_apart = f.share_z is None or f.share_z >= th.share_z_function
-        if lift == "nil":
-            level, why = Level.LOW, "no_lift"
-        elif lift in ("large", "unknown") or (beyond_typical and stands_apart):
-            pass
-        elif lift == "unmeasurable" and level >= Level.CRITICAL:
-            level = Level.HIGH
-        else:  # an unmeasurable lift is no evidence: low; some lift: medium
-            level, why = (Level.LOW if lift == "unmeasurable" else Level.MEDIUM), "no_lift"
-    elif lift == "nil" and level >= Level.HIGH:
-        level, why = Level.MEDIUM, "no_lift"
-    if power >= th.deterministic:
-        explained = (
-            enough_peers
-            and share is not None
-            and not effect_like
-            and share < typical + th.share(Level.LOW)
-        )
-        level, why = (Level.HIGH if explained else Level.CRITICAL), "deterministic"
-    if f.small and level >= Level.HIGH:
-        level = Level.MEDIUM
-    if not enough_peers and level >= Level.HIGH and why not in ("deterministic", "function"):
-        level = Level.MEDIUM
-    return level, why
+    """The level of a ``target_proxy`` and the name of the rule that set it (a pure function:
+    the first rule of ``RULES`` whose condition holds, lowered by ``CAPS``)."""
+    level, rule = decide(facts(f, th))
+    return level, rule.name
 
 
 def decide_order(z: float, power: float, small: bool, th: SoloThresholds = THRESHOLDS) -> Level:
@@ -539,7 +300,7 @@ def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidenc
         )
     elif (
         lift is not None
-        and _measurable(lift["error_without"], lift.get("error_rows"), th)
+        and measurable(lift["error_without"], lift.get("error_rows"), th)
         and lift["value"] < th.lift_nil
     ):
         why = (
@@ -702,6 +463,45 @@ def _presence_power(score: CellScore, t: Target) -> float:
     return float(np.max(np.abs(pos / n_pos - neg / n_neg)))
 
 
+def _shown(rule: Rule, rank: Level, f: ProxyFigures, score: CellScore, t: Target):  # noqa: ANN202
+    """The statistic, value and threshold a rule shows on the evidence."""
+    th = THRESHOLDS
+    if rule.shows == "share" and f.share is not None:
+        # the rules that hold a share at its level show that level's floor; the ones that
+        # lower a share from high show the high floor it reached
+        held = rule.name in ("share_critical", "share_high", "share_medium", "share_low")
+        floor = th.share(rank if held else Level.HIGH)
+        return "target_share_beyond_peers", f.share, f.typical_share + floor
+    if rule.shows == "determinism":
+        return (
+            "determinism_given_target",
+            f.determinism,
+            dict((lv, u) for lv, u, _ in th.function_of_target)[rule.level],
+        )
+    if rule.shows == "match" and f.others_power is not None:
+        return score.statistic, score.value, _threshold(t, f.others_power - th.match_margin)
+    if rule.name.startswith("deterministic"):
+        return score.statistic, score.value, _threshold(t, th.deterministic)
+    return score.statistic, score.value, _threshold(t, th.share_min_power(Level.HIGH))
+
+
+def _says(rule: Rule, f: ProxyFigures, score: CellScore) -> str:
+    """The rule's sentence filled with the column's figures."""
+    lift = (
+        "not measured"
+        if f.lift is None
+        else f"{f.lift:.2f}, {f.lift_low:.2f} to "
+        + (f"{f.lift_high:.2f} over folds" if f.lift_high is not None else "?")
+    )
+    return rule.says.format(
+        txt=_power_text(score),
+        share=f.share or 0.0,
+        determinism=score.determinism,
+        others=(1 + (f.others_power or 0.0)) / 2 if score.statistic != "oof_r2" else f.others_power,
+        lift=lift,
+    )
+
+
 def _proxy_evidence(
     name: str,
     score: CellScore,
@@ -712,92 +512,44 @@ def _proxy_evidence(
     small: bool,
     n_peers: int,
 ) -> Evidence:
-    th = THRESHOLDS
     figures = _proxy_figures(score, t, peer, ref, small, n_peers)
-    power, share, typical = figures.power, figures.share, figures.typical_share
-    others, beyond = figures.others_power, figures.peers_beyond_target
-    effect_like = beyond is not None and beyond <= th.beyond_max
-    expected = figures.expected_r2_if_effect
-    rank, why = decide_proxy(figures, th)
-    level = rank.label
-    enough_peers = n_peers >= th.min_peers and share is not None
-    statistic, value = score.statistic, score.value
-    threshold = _threshold(t, th.share_min_power(Level.HIGH))
-    txt = _power_text(score)
-    if why == "share":
-        assert share is not None  # decide_proxy reads the share only when it was measured
-        statistic, value, threshold = "target_share_beyond_peers", share, typical + th.share(rank)
-        summary = (
-            f"the target explains {share:.0%} of what the other columns leave "
-            f"unexplained in it ({txt}): it looks caused by the outcome"
-        )
-    elif why == "share_untold":
-        assert share is not None
-        statistic, value = "target_share_beyond_peers", share
-        threshold = typical + th.share(Level.HIGH)
-        reason = (
-            "the other columns explain it beyond the target, as they would an honest feature"
-            if not effect_like
-            else "the other columns say too little about "
-            "the target to tell an effect of the outcome from a strong cause"
-        )
-        summary = (
-            f"the target explains {share:.0%} of what the other columns leave "
-            f"unexplained in it ({txt}), but {reason}"
-        )
-    elif why == "deterministic":
-        threshold = _threshold(t, th.deterministic)
-        summary = f"alone predicts the target almost exactly ({txt})"
-    elif why == "function":
-        statistic, value = "determinism_given_target", score.determinism
-        threshold = {lv: u for lv, u, _ in th.function_of_target}[rank]
-        summary = (
-            f"is almost a function of the target: the target accounts for "
-            f"{score.determinism:.0%} of its entropy ({txt})"
-        )
-    elif why == "match":
-        assert others is not None  # decide_proxy matches only against a measured power
-        threshold = _threshold(t, others - th.match_margin)
-        summary = (
-            f"alone ({txt}) matches all the other columns together ({_threshold(t, others):.3f})"
-        )
-    else:
-        share_txt = f"; the target adds {share:.0%} beyond its peers" if share is not None else ""
-        summary = f"{txt}{share_txt}" + (
-            ", so it is explained by other columns" if why == "strong" else ""
-        )
-    if small and level != "none":
+    x = facts(figures)
+    rank, rule = decide(x)
+    statistic, value, threshold = _shown(rule, rule.level, figures, score, t)
+    summary = _says(rule, figures, score)
+    if small and rank != Level.NONE:
         summary += f" (small sample: {len(t.rows)} labelled rows)"
-    if not enough_peers and level != "none" and why not in ("deterministic", "function"):
+    if not x.enough_peers and rank != Level.NONE and rule.needs_peers:
         summary += " (too few other columns to compare with)"
+    share = figures.share
     detail = {
         **common_detail(score, b, t),
         "share_beyond_peers": share,
-        "typical_share": typical,
+        "typical_share": figures.typical_share,
         "r2_on_peers": peer.get("r2_peers"),
         "r2_on_peers_and_target": peer.get("r2_peers_target"),
         "r2_on_target": peer.get("r2_target"),
-        "peers_beyond_target": beyond,
+        "peers_beyond_target": figures.peers_beyond_target,
         "target_r2_on_peers": peer.get("target_r2_on_peers"),
-        "expected_r2_on_peers_if_effect": expected,
+        "expected_r2_on_peers_if_effect": figures.expected_r2_if_effect,
         "peers": peer.get("peers"),
-        "reference_power": others,
+        "reference_power": figures.others_power,
         "reference_rows": ref.get("rows"),
         "reference_columns": ref.get("columns"),
-        "decided_by": why,
+        "decided_by": rule.name,
         "share_z": peer.get("share_z"),
         "typical_peers_beyond_target": figures.typical_beyond,
         "presence_power": figures.presence,
         "unique_lift": peer.get("unique_lift"),
     }
-    severity = 0.5 * power + 0.5 * min(1.0, (share or 0.0) / 0.5)
+    severity = 0.5 * score.power + 0.5 * min(1.0, (share or 0.0) / 0.5)
     return Evidence(
         "solo",
         "target_proxy",
         statistic,
         value,
         threshold,
-        level,
+        rank.label,
         column=name,
         summary=summary,
         severity=severity,
