@@ -557,6 +557,96 @@ def _proxy_evidence(
     )
 
 
+def _sample_rows(
+    table: AuditTable, t: Target, features: list[str], settings: Settings
+) -> np.ndarray:
+    """The reference sample: at most ``reference_rows`` labelled rows of smallest content key
+    (per class), in content order (then target: rows tied on the key share their features),
+    so the reference's folds and its trees' sums see the same rows in the same order
+    whatever the file's order (wine, shuffled: 0.9985 vs 0.9970 reference power flipped a
+    noisy copy of the target between medium and high)."""
+    n = len(t.rows)
+    take = min(n, settings.reference_rows)
+    keys = content_keys(table.frame.iloc[t.rows], features, settings.seed + 1)
+    pick = np.arange(n)
+    if take < n:  # the rows of smallest content key (per class): the file's order plays no part
+        groups = (
+            [np.arange(n)]
+            if t.task == "numeric"
+            else [np.flatnonzero(t.y == k) for k in range(t.n_classes)]
+        )
+        pick = np.sort(
+            np.concatenate(
+                [
+                    g[np.argsort(keys[g], kind="stable")[: max(1, round(take * g.size / n))]]
+                    for g in groups
+                    if g.size
+                ]
+            )
+        )
+    return pick[np.lexsort((t.y[pick], keys[pick]))]
+
+
+def _sample_column(
+    table: AuditTable, t: Target, name: str, score: CellScore, b: Bins, pick: np.ndarray
+) -> np.ndarray:
+    """One column on the sample, standardised, NaN where missing: its normal scores, or its
+    out-of-fold encoding (the most varied class's score for several classes)."""
+    if b.codes is None:  # run() kept codes only for encoded columns
+        values = numeric_view(table.frame[name])
+        assert values is not None  # a column without codes is numeric
+        raw = normal_scores(values[t.rows][pick])
+    else:
+        pred = score.row_scores(t, b.codes)[pick]
+        if pred.ndim == 2:
+            pred = pred[:, int(np.argmax(pred.var(axis=0)))] if t.n_classes > 2 else pred[:, 1]
+        raw = pred.astype(np.float64)
+    mu, sd = np.nanmean(raw) if np.isfinite(raw).any() else 0.0, np.nanstd(raw)
+    return (raw - mu) / sd if sd > 0 else np.zeros_like(raw)
+
+
+def _peer_input(
+    table: AuditTable,
+    t: Target,
+    features: list[str],
+    scores: dict[str, CellScore],
+    bins: dict[str, Bins],
+    pick: np.ndarray,
+    ids: list[str],
+) -> tuple[PeerInput, PeerInput]:
+    """The sample's columns and target for the peer test, and the same with the identifiers
+    ``ids`` after the features (for the fits only)."""
+    trees = [_sample_column(table, t, c, scores[c], bins[c], pick) for c in features]
+    cols = [np.nan_to_num(z, nan=0.0) for z in trees]
+    y = t.y[pick]
+    y_main = 0
+    if t.task == "numeric":
+        y_block, y_main = _target_basis(normal_scores(y)), 1
+    else:
+        y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
+    power = np.array([scores[c].power for c in features])
+    inp = PeerInput(
+        features, np.column_stack(cols), np.column_stack(trees), y_block, y, power, y_main
+    )
+    if not ids:
+        return inp, inp
+    extra = [normal_scores(order_values(table.frame[c])[t.rows][pick]) for c in ids]
+    extra = [np.nan_to_num((e - np.nanmean(e)) / (np.nanstd(e) or 1.0)) for e in extra]
+    with_ids = PeerInput(
+        features + ids,
+        np.column_stack(cols + extra),
+        np.column_stack(trees + extra),
+        y_block,
+        y,
+        np.r_[power, [scores[c].power for c in ids]],
+        y_main,
+    )
+    return inp, with_ids
+
+
+_BIG_LIFT = {"value": 1.0, "low": 1.0, "high": 1.0, "folds": 0, "error_without": 1.0}
+
+
 def _peer_figures(
     table: AuditTable,
     t: Target,
@@ -572,53 +662,9 @@ def _peer_figures(
     sample."""
     if len(features) < 2:
         return {}, {}
-    n = len(t.rows)
-    take = min(n, settings.reference_rows)
-    keys = content_keys(table.frame.iloc[t.rows], features, settings.seed + 1)
-    pick = np.arange(n)
-    if take < n:  # the rows of smallest content key (per class): the file's order plays no part
-        groups = [np.flatnonzero(t.y == k) for k in range(t.n_classes)]
-        if t.task == "numeric":
-            groups = [np.arange(n)]
-        pick = np.sort(
-            np.concatenate(
-                [
-                    g[np.argsort(keys[g], kind="stable")[: max(1, round(take * g.size / n))]]
-                    for g in groups
-                    if g.size
-                ]
-            )
-        )
-    # the sample in content order (then target: rows tied on the key share their features),
-    # so the reference's folds and its trees' sums see the same rows in the same order
-    # whatever the file's order (wine, shuffled: 0.9985 vs 0.9970 reference power flipped a
-    # noisy copy of the target between medium and high)
-    pick = pick[np.lexsort((t.y[pick], keys[pick]))]
-    cols, trees = [], []
-    for name in features:
-        if bins[name].codes is None:  # run() kept codes only for encoded columns
-            values = numeric_view(table.frame[name])
-            assert values is not None  # a column without codes is numeric
-            raw = normal_scores(values[t.rows][pick])
-        else:
-            pred = scores[name].row_scores(t, bins[name].codes)[pick]
-            if pred.ndim == 2:
-                pred = pred[:, int(np.argmax(pred.var(axis=0)))] if t.n_classes > 2 else pred[:, 1]
-            raw = pred.astype(np.float64)
-        mu, sd = np.nanmean(raw) if np.isfinite(raw).any() else 0.0, np.nanstd(raw)
-        z = (raw - mu) / sd if sd > 0 else np.zeros_like(raw)
-        trees.append(z)
-        cols.append(np.nan_to_num(z, nan=0.0))
-    y = t.y[pick]
-    y_main = 0
-    if t.task == "numeric":
-        y_block, y_main = _target_basis(normal_scores(y)), 1
-    else:
-        y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
-    power = np.array([scores[c].power for c in features])
-    inp = PeerInput(
-        features, np.column_stack(cols), np.column_stack(trees), y_block, y, power, y_main
-    )
+    pick = _sample_rows(table, t, features, settings)
+    ids = ids or []
+    inp, fit_inp = _peer_input(table, t, features, scores, bins, pick, ids)
     shares = dependence_shares(
         inp,
         flag_share=THRESHOLDS.share(Level.HIGH),
@@ -629,88 +675,78 @@ def _peer_figures(
     flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
     _share_z(shares)
     _typical_beyond(shares)
+    power = inp.power
     keep = np.array(
         [i for i in np.argsort(-power) if features[i] not in flagged][: THRESHOLDS.max_reference],
         dtype=np.int64,
     )  # the reference
-    ids = ids or []
-    if ids:  # identifiers join the sample's columns for the fits only, after the features
-        extra = [normal_scores(order_values(table.frame[c])[t.rows][pick]) for c in ids]
-        extra = [np.nan_to_num((e - np.nanmean(e)) / (np.nanstd(e) or 1.0)) for e in extra]
-        inp = PeerInput(
-            features + ids,
-            np.column_stack(cols + extra),
-            np.column_stack(trees + extra),
-            y_block,
-            y,
-            np.r_[power, [scores[c].power for c in ids]],
-            y_main,
-        )
-    fits: dict[tuple[int, ...], RefFit] = {}
-
-    def fit(columns: np.ndarray) -> RefFit:
-        key = tuple(sorted(int(c) for c in columns))
-        if key not in fits:
-            fits[key] = reference_fit(
-                inp,
-                np.array(key, dtype=np.int64),
-                t.task,
-                t.n_classes,
-                settings.seed,
-                n_jobs=settings.n_jobs,
-            )
-        return fits[key]
-
-    ref = {"power": fit(keep).power, "rows": int(take), "columns": int(keep.size)}
-    counts = np.bincount(y.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
+    fits = _Fits(fit_inp, t, settings)
+    rows = min(len(t.rows), settings.reference_rows)
+    ref = {"power": fits(keep).power, "rows": int(rows), "columns": int(keep.size)}
+    counts = np.bincount(inp.y_codes.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
     smallest = int(counts[counts > 0].min()) if counts.size else None
     n_peers = len(features) - 1
     # suspects: the columns a large unique lift would raise to high, strongest first
-    big = {
-        "value": 1.0,
-        "low": 1.0,
-        "high": 1.0,
-        "folds": 0,
-        "error_without": 1.0,
-        "error_with": 0.0,
-    }
+    by_power = np.argsort(-power, kind="stable")
     suspects = [
         i
-        for i in np.argsort(-power, kind="stable")
+        for i in by_power
         if decide_proxy(
-            _proxy_figures(scores[features[i]], t, shares[features[i]], ref, small, n_peers, big)
+            _proxy_figures(
+                scores[features[i]], t, shares[features[i]], ref, small, n_peers, _BIG_LIFT
+            )
         )[0]
         >= Level.HIGH
     ]
     strong = [
-        i
-        for i in np.argsort(-power, kind="stable")
-        if features[i] not in flagged and power[i] >= THRESHOLDS.match_power
+        i for i in by_power if features[i] not in flagged and power[i] >= THRESHOLDS.match_power
     ][: THRESHOLDS.strong_reference_fits]
     chosen = list(dict.fromkeys(suspects + strong))
     chosen = [i for i in chosen if power[i] >= THRESHOLDS.lift_power][: THRESHOLDS.lift_columns]
+    statistic = "1 - R2" if t.task == "numeric" else "1 - AUC"
+    left_out = {features[k] for k in suspects} | flagged
     for i in chosen:
         # no other suspect serves as the peer that explains this one away
         base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
-        without, with_ = fit(base), fit(np.r_[base, i])
         shares[features[i]]["unique_lift"] = {
-            **unique_lift(without, with_, smallest),
-            "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
-            "without": sorted(({features[k] for k in suspects} | flagged) - {features[i]}),
+            **unique_lift(fits(base), fits(np.r_[base, i]), smallest),
+            "statistic": statistic,
+            "without": sorted(left_out - {features[i]}),
         }
     if ids:
         base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
         ref["identifier_lift"] = {
             c: {
-                **unique_lift(fit(base), fit(np.r_[base, len(features) + j]), smallest),
-                "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
-                "without": sorted({features[k] for k in suspects} | flagged),
+                **unique_lift(fits(base), fits(np.r_[base, len(features) + j]), smallest),
+                "statistic": statistic,
+                "without": sorted(left_out),
             }
             for j, c in enumerate(ids)
         }
     for i in strong:  # what all the other columns reach together, for the match rule
-        shares[features[i]]["others_power"] = fit(keep[keep != i]).power
+        shares[features[i]]["others_power"] = fits(keep[keep != i]).power
     return shares, ref
+
+
+class _Fits:
+    """Reference fits on sets of the sample's columns, each set fitted once."""
+
+    def __init__(self, inp: PeerInput, t: Target, settings: Settings) -> None:
+        self.inp, self.t, self.settings = inp, t, settings
+        self.done: dict[tuple[int, ...], RefFit] = {}
+
+    def __call__(self, columns: np.ndarray) -> RefFit:
+        key = tuple(sorted(int(c) for c in columns))
+        if key not in self.done:
+            self.done[key] = reference_fit(
+                self.inp,
+                np.array(key, dtype=np.int64),
+                self.t.task,
+                self.t.n_classes,
+                self.settings.seed,
+                n_jobs=self.settings.n_jobs,
+            )
+        return self.done[key]
 
 
 def _target_basis(ns: np.ndarray) -> np.ndarray:
