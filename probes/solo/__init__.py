@@ -68,6 +68,7 @@ from featureaudit.probes.solo._detail import common_detail
 from featureaudit.probes.solo._order import (
     followed_feature,
     order_values,
+    stored_in_order,
     within_partition_order,
 )
 from featureaudit.probes.solo._peers import (
@@ -280,7 +281,8 @@ class Solo(Probe):
             "order",
         )
         row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
-        evidence.append(_position_capped(row, split_given=table.heldout is not None))
+        row = _position_capped(row, split_given=table.heldout is not None)
+        evidence.append(_position_carried(row, table, evidence))
         return evidence, skipped
 
 
@@ -368,6 +370,31 @@ def _position_capped(ev: Evidence, split_given: bool) -> Evidence:
     )
 
 
+def _position_carried(ev: Evidence, table: AuditTable, found: list[Evidence]) -> Evidence:
+    """The row position takes the level of an identifier found at high or above when the file
+    is stored in that identifier's order: the order then reaches a model through a column it
+    reads, and the two findings say the same thing (issue 24, class 8)."""
+    carriers = [
+        e
+        for e in found
+        if e.kind == "row_order_tells_target"
+        and e.column is not None
+        and Level.parse(e.level) >= Level.HIGH
+        and Level.parse(e.level) > Level.parse(ev.level)
+        and stored_in_order(table.frame[e.column])
+    ]
+    if not carriers:
+        return ev
+    top = max(carriers, key=lambda e: Level.parse(e.level))
+    return replace(
+        ev,
+        level=top.level,
+        detail={**ev.detail, "carried_by": top.column, "level_before_carried": ev.level},
+        summary=f"{ev.summary}; the file is stored in the order of {top.column}, a column found "
+        f"at {top.level}: the order reaches a model through it",
+    )
+
+
 def _encoded_in_peer_test(s, t: Target) -> bool:  # noqa: ANN001
     """Whether the peer test represents this column by its out-of-fold encoding."""
     values = numeric_view(s)
@@ -425,9 +452,14 @@ def _proxy_figures(
     small: bool,
     n_peers: int,
     lift: dict | None = None,
+    kind: str = "",
 ) -> ProxyFigures:
     """The figures ``decide_proxy`` reads, from the column's score and its peer test."""
     lift = lift if lift is not None else peer.get("unique_lift")
+    rest = None
+    if lift is not None:  # what the other columns reach without it, as a power
+        e = float(lift["error_without"])
+        rest = max(0.0, 1.0 - e if t.task == "numeric" else 1.0 - 2.0 * e)
     return ProxyFigures(
         score.power,
         score.determinism,
@@ -446,7 +478,25 @@ def _proxy_figures(
         lift_error_rows=None if lift is None else lift.get("error_rows"),
         presence=_presence_power(score, t),
         typical_beyond=peer.get("typical_beyond"),
+        r2_target=peer.get("r2_target") or 0.0,
+        rest_power=rest,
+        fellow=bool(peer.get("fellow_of")),
+        lookup=_lookup(score, kind, t),
     )
+
+
+def _lookup(score: CellScore, kind: str, t: Target) -> bool:
+    """Whether every value of a coded column belongs to one class and the column is finer
+    than the target (more values than classes): the target is then a function of it, as a
+    vehicle class is of a model name. Read on the labelled rows' bins, missing values a bin."""
+    if t.task == "numeric" or kind not in ("categories", "values"):
+        return False
+    rows = score.bin_rows > 0
+    if int(rows.sum()) <= t.n_classes:
+        return False
+    stat = np.nan_to_num(score.bin_stat[rows])
+    pure = (stat <= 0.0) | (stat >= 1.0) if t.n_classes == 2 else stat >= 1.0
+    return bool(pure.all())
 
 
 def _presence_power(score: CellScore, t: Target) -> float:
@@ -512,7 +562,7 @@ def _proxy_evidence(
     small: bool,
     n_peers: int,
 ) -> Evidence:
-    figures = _proxy_figures(score, t, peer, ref, small, n_peers)
+    figures = _proxy_figures(score, t, peer, ref, small, n_peers, kind=b.kind)
     x = facts(figures)
     rank, rule = decide(x)
     statistic, value, threshold = _shown(rule, rule.level, figures, score, t)
@@ -644,7 +694,14 @@ def _peer_input(
     return inp, with_ids
 
 
-_BIG_LIFT = {"value": 1.0, "low": 1.0, "high": 1.0, "folds": 0, "error_without": 1.0}
+# the lift that would raise a column most: large, with a rest that tells the target well
+_BIG_LIFT = {
+    "value": 1.0,
+    "low": 1.0,
+    "high": 1.0,
+    "folds": 0,
+    "error_without": THRESHOLDS.lift_error_floor,
+}
 
 
 def _peer_figures(
@@ -692,8 +749,18 @@ def _peer_figures(
         i
         for i in by_power
         if decide_proxy(
-            _proxy_figures(
-                scores[features[i]], t, shares[features[i]], ref, small, n_peers, _BIG_LIFT
+            replace(
+                _proxy_figures(
+                    scores[features[i]],
+                    t,
+                    shares[features[i]],
+                    ref,
+                    small,
+                    n_peers,
+                    _BIG_LIFT,
+                    bins[features[i]].kind,
+                ),
+                rest_power=None,
             )
         )[0]
         >= Level.HIGH
@@ -706,13 +773,21 @@ def _peer_figures(
     statistic = "1 - R2" if t.task == "numeric" else "1 - AUC"
     left_out = {features[k] for k in suspects} | flagged
     for i in chosen:
-        # no other suspect serves as the peer that explains this one away
+        # no other suspect, nor a near-perfect fellow of a suspect, serves as the peer that
+        # explains this one away
         base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
-        shares[features[i]]["unique_lift"] = {
+        fellows = _fellows(i, base, strong, suspects, power, fits) if i in suspects else []
+        base = np.array([k for k in base if k not in fellows], dtype=np.int64)
+        name = features[i]
+        shares[name]["unique_lift"] = {
             **unique_lift(fits(base), fits(np.r_[base, i]), smallest),
             "statistic": statistic,
-            "without": sorted(left_out - {features[i]}),
+            "without": sorted(left_out - {name} | {features[k] for k in fellows}),
         }
+        lifted = _proxy_figures(scores[name], t, shares[name], ref, small, n_peers)
+        if fellows and decide_proxy(replace(lifted, lookup=False))[0] >= Level.HIGH:
+            for k in fellows:
+                shares[features[k]]["fellow_of"] = name
     if ids:
         base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
         ref["identifier_lift"] = {
@@ -726,6 +801,29 @@ def _peer_figures(
     for i in strong:  # what all the other columns reach together, for the match rule
         shares[features[i]]["others_power"] = fits(keep[keep != i]).power
     return shares, ref
+
+
+def _fellows(
+    i: int,
+    base: np.ndarray,
+    strong: list[int],
+    suspects: list[int],
+    power: np.ndarray,
+    fits: _Fits,
+) -> list[int]:
+    """The strong columns that alone predict the target as well as the rest of the table
+    without them and without the suspect ``i``: near-perfect partners (an amount and its
+    share of income), which must not serve as the honest explanation of each other."""
+    th = THRESHOLDS
+    return [
+        k
+        for k in strong
+        if k != i
+        and k not in suspects
+        and k in base
+        and power[k] >= th.strong_alone
+        and power[k] >= fits(base[base != k]).power - th.match_margin
+    ]
 
 
 class _Fits:

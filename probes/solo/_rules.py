@@ -43,7 +43,8 @@ class Facts:
     near_function: Level  # CRITICAL or HIGH by Theil's U and power, else NONE
     strong: bool  # power worth a low even when explained
     present: bool  # one bin alone tells the two classes apart
-    lookup: bool = False  # every category belongs to one class (class 4 of issue 24)
+    lookup: bool = False  # every category belongs to one class, finer than the target
+    fellow: bool = False  # a near-perfect partner of a leak found at high
 
 
 def _share_level(f: ProxyFigures, th: SoloThresholds, enough: bool) -> Level:
@@ -73,7 +74,13 @@ def facts(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> Facts:
     # from a linear R² of 0.14), yet the table shows the test's power when its other columns
     # are typically explained by their peers well beyond the target: one near 0 stands out
     table_tells = f.typical_beyond is not None and f.typical_beyond >= th.table_beyond
-    told = effect_like and (tellable or lift == "large" or (table_tells and lift != "nil"))
+    # a large lift, or a table whose peers are explained well beyond the target, tells an
+    # effect from a cause only where the other columns tell the target: beside weak peers a
+    # strong cause adds as much and is as unexplained (issue 24, class 3)
+    rest_tells = f.rest_power is None or f.r2_target * f.rest_power >= th.peer_signal
+    told = effect_like and (
+        tellable or (rest_tells and (lift == "large" or (table_tells and lift != "nil")))
+    )
     z = f.share_z
     return Facts(
         f=f,
@@ -103,6 +110,8 @@ def facts(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> Facts:
         near_function=_near_function(f, th),
         strong=f.power >= th.strong_alone,
         present=f.presence >= th.presence_power,
+        lookup=f.lookup,
+        fellow=f.fellow,
     )
 
 
@@ -147,6 +156,10 @@ _SHARE = "the target explains {share:.0%} of what the other columns leave unexpl
 C, H, M, L, N = Level.CRITICAL, Level.HIGH, Level.MEDIUM, Level.LOW, Level.NONE
 
 RULES: tuple[Rule, ...] = (
+    Rule("target_function_of_column", M, lambda x: x.lookup,
+         "power", "every value of it belongs to one class ({txt}): the target is a function of "
+         "this column (a finer code of the same thing); nothing here says it was recorded "
+         "after the outcome", False),
     Rule("deterministic_explained", H, lambda x: x.deterministic and x.explained, "power",
          "alone predicts the target almost exactly ({txt}), though its peers explain it", False),
     Rule("deterministic", C, lambda x: x.deterministic, "power",
@@ -165,6 +178,9 @@ RULES: tuple[Rule, ...] = (
          "it adds", False),
     Rule("function_some_lift", M, _function_eligible, "power",
          _FUNCTION + ", but it adds little to the other columns (unique lift {lift})", False),
+    Rule("fellow_of_leak", H, lambda x: x.fellow and x.strong and x.lift == "large", "power",
+         "{txt}; its peers explain it only through a near-perfect column found to leak, and "
+         "without that column it adds much to the rest (unique lift {lift})"),
     Rule("no_lift", M, lambda x: x.lift == "nil" and (
         x.share_level >= H and x.stands_out and x.told or x.calibrated or x.matches),
          "power", "{txt}; it adds nothing to the other columns (unique lift {lift})"),

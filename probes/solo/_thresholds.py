@@ -152,6 +152,10 @@ class ProxyFigures:
     presence: float = 0.0
     lift_error_rows: float | None = None
     typical_beyond: float | None = None
+    r2_target: float = 0.0  # the column's linear R² on the target
+    rest_power: float | None = None  # what the other columns reach without it (lift fits)
+    fellow: bool = False  # a near-perfect partner of a leak found at high (``fellow_of``)
+    lookup: bool = False  # every category belongs to one class, finer than the target
 
 
 def measurable(error: float, error_rows: float | None, th: SoloThresholds) -> bool:
