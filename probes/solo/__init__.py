@@ -74,6 +74,7 @@ from featureaudit.probes.solo._order import (
 from featureaudit.probes.solo._peers import (
     PeerInput,
     RefFit,
+    beyond_target,
     dependence_shares,
     normal_scores,
     reference_fit,
@@ -776,11 +777,16 @@ def _peer_figures(
         # no other suspect, nor a near-perfect fellow of a suspect, serves as the peer that
         # explains this one away
         base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
-        fellows = _fellows(i, base, strong, suspects, power, fits) if i in suspects else []
-        base = np.array([k for k in base if k not in fellows], dtype=np.int64)
+        lift = unique_lift(fits(base), fits(np.r_[base, i]), smallest)
+        fellows: list[int] = []
+        if i in suspects and not (lift["value"] >= THRESHOLDS.lift_large and lift["low"] > 0):
+            # a suspect a strong column explains away: is that column a near-perfect fellow?
+            fellows = _fellows(i, base, strong, suspects, power, fits)
+            base = np.array([k for k in base if k not in fellows], dtype=np.int64)
+            lift = unique_lift(fits(base), fits(np.r_[base, i]), smallest)
         name = features[i]
         shares[name]["unique_lift"] = {
-            **unique_lift(fits(base), fits(np.r_[base, i]), smallest),
+            **lift,
             "statistic": statistic,
             "without": sorted(left_out - {name} | {features[k] for k in fellows}),
         }
@@ -823,7 +829,20 @@ def _fellows(
         and k in base
         and power[k] >= th.strong_alone
         and power[k] >= fits(base[base != k]).power - th.match_margin
+        and _partners(fits.inp, k, i, base)
     ]
+
+
+def _partners(inp: PeerInput, k: int, i: int, base: np.ndarray) -> bool:
+    """Whether column ``k`` explains the suspect ``i`` beyond the target at least as much as
+    all of ``i``'s other peers together, and clearly (partial R² × rows, an F statistic with
+    one degree of freedom, at least the square of the z the probe asks for high): the two
+    carry one thing besides the outcome (a spend and its share of income), not two views of
+    the outcome (a travel time and a noisy copy of the choice, independent given it)."""
+    alone = beyond_target(inp, i, np.array([k]))
+    others = beyond_target(inp, i, base[base != k])
+    z_high = THRESHOLDS.order(THRESHOLDS.order_z, Level.HIGH)
+    return alone >= others and alone * inp.z.shape[0] >= z_high**2
 
 
 class _Fits:

@@ -312,3 +312,17 @@ def _reference_fit(
     error = _errors(y, prob, task, n_classes)
     fold_errors = tuple(_errors(y[te], prob[te], task, n_classes) for _, te in split)
     return RefFit(max(0.0, 1.0 - 2 * error), error, fold_errors)
+
+
+def beyond_target(inp: PeerInput, j: int, peers: np.ndarray) -> float:
+    """What the ``peers`` explain of column ``j`` beyond the target: (R²(j | peers, target) −
+    R²(j | target)) / (1 − R²(j | target)), linear, on the sample's standardised columns."""
+    if peers.size == 0:
+        return 0.0
+    full = np.c_[inp.z[:, [j, *peers.tolist()]], inp.y_block]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = np.nan_to_num(np.corrcoef(full, rowvar=False))
+    ys = np.arange(1 + peers.size, full.shape[1])
+    b = _r2(corr, 0, ys)
+    c = max(_r2(corr, 0, np.r_[np.arange(1, 1 + peers.size), ys]), b)
+    return (c - b) / (1 - b) if b < 1 else 0.0

@@ -80,9 +80,12 @@ def test_sorted_by_target_with_sequential_id_raises_row_order(breast_cancer):
     position = [
         f for f in result.document["dataset_findings"] if f["kind"] == "row_order_tells_target"
     ]
-    # the position is no model input: at most medium, the uncapped verdict kept beside it
-    assert position and position[0]["level"] == "medium"
+    # the position is no model input: at most medium, the uncapped verdict kept beside it,
+    # but the file is stored in the order of record_id, an input: the two findings agree
+    assert position and position[0]["level"] == row["level"]
     assert position[0]["detail"]["level_before_cap"] in HIGH
+    assert position[0]["detail"]["level_before_carried"] == "medium"
+    assert position[0]["detail"]["carried_by"] == "record_id"
 
 
 def test_file_order_alone_is_low_once_a_split_is_given(breast_cancer):
