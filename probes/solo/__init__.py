@@ -41,6 +41,16 @@ seeded reference model (error = 1 − AUC, macro one-vs-rest for several classes
 same ratio per fold (``folds`` of them, the same folds in both fits), ``without`` the
 other suspects left out of both fits. Columns that were not examined carry ``None``.
 
+The level is read from a declared table of named rules (``_rules.RULES``: name, level,
+condition on the figures, the figure shown and the sentence), first match wins, then caps
+(a small sample, too few peers) lower it; ``detail["decided_by"]`` names the rule. Issue 24's
+classes are rules of their own: ``fellow_of_leak`` (two near-perfect leaks that explain each
+other: a strong column that a suspect found at high explains beyond the target more than
+its other peers do is that suspect's fellow, left out of its lift, and high itself with a
+large lift), ``share_untellable`` (a large lift beside peers that tell nothing of the target
+cannot tell cause from effect: medium), ``target_function_of_column`` (every value of a
+coded column belongs to one class and it is finer than the target: a lookup, medium).
+
 Identifiers and the row position are audited for ``row_order_tells_target``: they have no
 business predicting anything, so the level follows the effect size and a z-test against
 the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tests). An
@@ -48,14 +58,16 @@ identifier stays at high only when it adds to the features: at most medium when 
 follows a feature that predicts as well (ids numbered after a sort) or when the reference
 model gains nothing from it (unique lift under ``lift_nil``). The row position is no input
 of any model, so the order a file is stored in is at most medium, and low once a split is
-given (it can bias only splits or folds cut by position). On the clean-splits bench
+given (it can bias only splits or folds cut by position), unless the file is stored in the
+order of an identifier found at high: then the two findings agree (the order reaches a
+model through that column). On the clean-splits bench
 (``benchmarks/clean_splits.py``, 9 honest tables, 3 seeds) these caps took identifiers and
 row position at high from 7 and 13 of 22 runs to 0.
 """
 
 from __future__ import annotations
 
-from dataclasses import replace
+from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy.special import ndtri
@@ -168,8 +180,20 @@ class Solo(Probe):
             f"smallest class wholly misranked) it cannot be measured. One bin alone (missing "
             f"values or one pile) separating the classes by {th.presence_power:g} with a lift "
             f"of {th.lift_large:g} or more is high. "
+            f"A large lift, or a table whose peers are explained beyond the target, tells an "
+            f"effect of the outcome from a cause only where the other columns tell the "
+            f"target (the column's R² on the target times their power at least "
+            f"{th.peer_signal:g}); otherwise a strong share is medium. A column of power "
+            f"{th.strong_alone:g} that alone matches the rest (within {th.match_margin:g}) "
+            f"and explains a suspect found at high beyond the target more than its other "
+            f"peers do is that suspect's fellow, left out of its lift, and high with a lift "
+            f"of {th.lift_large:g}. A column whose every value belongs to one class and that "
+            f"has more values than the target has classes is medium: the target is a "
+            f"function of it. "
             f"Identifiers and the row position tell the target when the Mann–Whitney z "
-            f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
+            f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high); the "
+            f"row position takes the level of an identifier found at high when the file is "
+            f"stored in its order. "
             f"Under {settings.min_rows} labelled rows levels stop at medium."
         )
 
@@ -194,12 +218,6 @@ class Solo(Probe):
             settings.seed,
             row_keys,
         )
-        # quantile edges from the rows of smallest key: the same rows in any file order
-        edge_rows = (
-            np.sort(np.argpartition(row_keys, EDGE_ROWS - 1)[:EDGE_ROWS])
-            if table.n_rows > EDGE_ROWS
-            else None
-        )
         if len(t.rows) < 4 * settings.folds:
             return [], [
                 Skip(
@@ -208,46 +226,9 @@ class Solo(Probe):
                 )
             ]
         small = len(t.rows) < settings.min_rows
-        skipped: list[Skip] = []
-        scores: dict[str, CellScore] = {}
-        bins: dict[str, Bins] = {}
-
-        def one(name: str) -> tuple[str, Bins, CellScore | None]:
-            b = bin_codes(
-                table.frame[name],
-                settings.bins,
-                order=name in table.id_columns,
-                seed=settings.seed,
-                sample=EDGE_ROWS,
-                pool=edge_rows,
-            )
-            if not (b.codes[t.rows] > 0).any():
-                return name, b, None
-            score = score_bins(b.codes, b.n_bins, t)
-            if not _encoded_in_peer_test(table.frame[name], t):
-                b.codes = None  # type: ignore[assignment]  # only encoded columns keep codes
-            return name, b, score
-
-        # numpy releases the GIL in its sorting and searching loops: one thread per CPU
-        for name, b, score in column_map(one, table.id_columns + table.features, settings.n_jobs):
-            if score is None:
-                skipped.append(Skip(self.name, "no values in the labelled rows", name))
-            else:
-                bins[name], scores[name] = b, score
+        scores, bins, skipped = _score_columns(table, t, settings, row_keys, self.name)
         features = [c for c in table.features if c in scores]
-        ids = {
-            name: _order_evidence(name, scores[name], bins[name], t, small, "identifier")
-            for name in table.id_columns
-            if name in scores
-        }
-        for name, ev in list(ids.items()):
-            if Level.parse(ev.level) >= Level.HIGH:
-                ids[name] = _within_partitions(ev, table, name, t, small, settings)
-        strong_ids = {name: ev for name, ev in ids.items() if Level.parse(ev.level) >= Level.HIGH}
-        follows = {
-            name: followed_feature(table, t, name, scores, features, settings.seed)
-            for name in strong_ids
-        }
+        ids, follows = _identifiers(table, t, scores, bins, features, settings, small)
         lifted = [n for n, f in follows.items() if f is None]
         peers, ref = _peer_figures(table, t, features, scores, bins, settings, small, lifted)
         evidence = [
@@ -267,24 +248,90 @@ class Solo(Probe):
             )
             for name in features
         ]
-        position = (
-            np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows, settings.bins - 1)
-            + 1
-        )
-        pos_score = score_bins(position, settings.bins + 1, t)
-        pos_bins = Bins(
-            position,
-            ["(none)"]
-            + [
-                f"rows {i * 100 // settings.bins}–{(i + 1) * 100 // settings.bins}%"
-                for i in range(settings.bins)
-            ],
-            "order",
-        )
-        row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
-        row = _position_capped(row, split_given=table.heldout is not None)
+        row = _position_evidence(table, t, settings, small)
         evidence.append(_position_carried(row, table, evidence))
         return evidence, skipped
+
+
+def _score_columns(
+    table: AuditTable, t: Target, settings: Settings, row_keys: np.ndarray, probe: str
+) -> tuple[dict[str, CellScore], dict[str, Bins], list[Skip]]:
+    """Every identifier and feature binned and scored out of fold; quantile edges from the
+    rows of smallest key (the same rows in any file order)."""
+    edge_rows = (
+        np.sort(np.argpartition(row_keys, EDGE_ROWS - 1)[:EDGE_ROWS])
+        if table.n_rows > EDGE_ROWS
+        else None
+    )
+    skipped: list[Skip] = []
+    scores: dict[str, CellScore] = {}
+    bins: dict[str, Bins] = {}
+
+    def one(name: str) -> tuple[str, Bins, CellScore | None]:
+        b = bin_codes(
+            table.frame[name],
+            settings.bins,
+            order=name in table.id_columns,
+            seed=settings.seed,
+            sample=EDGE_ROWS,
+            pool=edge_rows,
+        )
+        if not (b.codes[t.rows] > 0).any():
+            return name, b, None
+        score = score_bins(b.codes, b.n_bins, t)
+        if not _encoded_in_peer_test(table.frame[name], t):
+            b.codes = None  # type: ignore[assignment]  # only encoded columns keep codes
+        return name, b, score
+
+    # numpy releases the GIL in its sorting and searching loops: one thread per CPU
+    for name, b, score in column_map(one, table.id_columns + table.features, settings.n_jobs):
+        if score is None:
+            skipped.append(Skip(probe, "no values in the labelled rows", name))
+        else:
+            bins[name], scores[name] = b, score
+    return scores, bins, skipped
+
+
+def _identifiers(
+    table: AuditTable,
+    t: Target,
+    scores: dict[str, CellScore],
+    bins: dict[str, Bins],
+    features: list[str],
+    settings: Settings,
+    small: bool,
+) -> tuple[dict[str, Evidence], dict[str, dict | None]]:
+    """The identifiers' order evidence (judged within partitions when high), and for those
+    still at high the feature whose order each follows (None: none)."""
+    ids = {
+        name: _order_evidence(name, scores[name], bins[name], t, small, "identifier")
+        for name in table.id_columns
+        if name in scores
+    }
+    for name, ev in list(ids.items()):
+        if Level.parse(ev.level) >= Level.HIGH:
+            ids[name] = _within_partitions(ev, table, name, t, small, settings)
+    follows = {
+        name: followed_feature(table, t, name, scores, features, settings.seed)
+        for name, ev in ids.items()
+        if Level.parse(ev.level) >= Level.HIGH
+    }
+    return ids, follows
+
+
+def _position_evidence(table: AuditTable, t: Target, settings: Settings, small: bool) -> Evidence:
+    """The row position in ``bins`` equal slices, audited as an identifier and capped."""
+    position = (
+        np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows, settings.bins - 1) + 1
+    )
+    pos_score = score_bins(position, settings.bins + 1, t)
+    labels = [
+        f"rows {i * 100 // settings.bins}–{(i + 1) * 100 // settings.bins}%"
+        for i in range(settings.bins)
+    ]
+    pos_bins = Bins(position, ["(none)", *labels], "order")
+    row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
+    return _position_capped(row, split_given=table.heldout is not None)
 
 
 def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidence:
@@ -705,6 +752,32 @@ _BIG_LIFT = {
 }
 
 
+@dataclass
+class _Peers:
+    """What the lifts of one audit share: the sample's fits, figures and columns."""
+
+    t: Target
+    features: list[str]
+    scores: dict[str, CellScore]
+    bins: dict[str, Bins]
+    shares: dict[str, dict]
+    ref: dict
+    small: bool
+    fits: _Fits
+    keep: np.ndarray  # the reference columns, strongest first
+    power: np.ndarray
+    smallest: int | None
+
+    def figures(self, i: int, lift: dict | None = None) -> ProxyFigures:
+        name = self.features[i]
+        n_peers = len(self.features) - 1
+        score, peer, kind = self.scores[name], self.shares[name], self.bins[name].kind
+        return _proxy_figures(score, self.t, peer, self.ref, self.small, n_peers, lift, kind)
+
+    def lift(self, base: np.ndarray, i: int) -> dict:
+        return unique_lift(self.fits(base), self.fits(np.r_[base, i]), self.smallest)
+
+
 def _peer_figures(
     table: AuditTable,
     t: Target,
@@ -721,18 +794,9 @@ def _peer_figures(
     if len(features) < 2:
         return {}, {}
     pick = _sample_rows(table, t, features, settings)
-    ids = ids or []
+    ids = list(ids or ())
     inp, fit_inp = _peer_input(table, t, features, scores, bins, pick, ids)
-    shares = dependence_shares(
-        inp,
-        flag_share=THRESHOLDS.share(Level.HIGH),
-        flag_power=THRESHOLDS.share_min_power(Level.HIGH),
-        min_power=0.0,
-        flag_beyond=THRESHOLDS.beyond_max,
-    )
-    flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
-    _share_z(shares)
-    _typical_beyond(shares)
+    shares, flagged = _shares(inp)
     power = inp.power
     keep = np.array(
         [i for i in np.argsort(-power) if features[i] not in flagged][: THRESHOLDS.max_reference],
@@ -743,70 +807,76 @@ def _peer_figures(
     ref = {"power": fits(keep).power, "rows": int(rows), "columns": int(keep.size)}
     counts = np.bincount(inp.y_codes.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
     smallest = int(counts[counts > 0].min()) if counts.size else None
-    n_peers = len(features) - 1
-    # suspects: the columns a large unique lift would raise to high, strongest first
-    by_power = np.argsort(-power, kind="stable")
-    suspects = [
-        i
-        for i in by_power
-        if decide_proxy(
-            replace(
-                _proxy_figures(
-                    scores[features[i]],
-                    t,
-                    shares[features[i]],
-                    ref,
-                    small,
-                    n_peers,
-                    _BIG_LIFT,
-                    bins[features[i]].kind,
-                ),
-                rest_power=None,
-            )
-        )[0]
-        >= Level.HIGH
-    ]
-    strong = [
-        i for i in by_power if features[i] not in flagged and power[i] >= THRESHOLDS.match_power
-    ][: THRESHOLDS.strong_reference_fits]
-    chosen = list(dict.fromkeys(suspects + strong))
-    chosen = [i for i in chosen if power[i] >= THRESHOLDS.lift_power][: THRESHOLDS.lift_columns]
-    statistic = "1 - R2" if t.task == "numeric" else "1 - AUC"
+    p = _Peers(t, features, scores, bins, shares, ref, small, fits, keep, power, smallest)
+    suspects, strong, chosen = _examined(p, flagged)
     left_out = {features[k] for k in suspects} | flagged
     for i in chosen:
-        # no other suspect, nor a near-perfect fellow of a suspect, serves as the peer that
-        # explains this one away
-        base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
-        lift = unique_lift(fits(base), fits(np.r_[base, i]), smallest)
-        fellows: list[int] = []
-        if i in suspects and not (lift["value"] >= THRESHOLDS.lift_large and lift["low"] > 0):
-            # a suspect a strong column explains away: is that column a near-perfect fellow?
-            fellows = _fellows(i, base, strong, suspects, power, fits)
-            base = np.array([k for k in base if k not in fellows], dtype=np.int64)
-            lift = unique_lift(fits(base), fits(np.r_[base, i]), smallest)
-        name = features[i]
-        shares[name]["unique_lift"] = {
-            **lift,
-            "statistic": statistic,
-            "without": sorted(left_out - {name} | {features[k] for k in fellows}),
-        }
-        lifted = _proxy_figures(scores[name], t, shares[name], ref, small, n_peers)
-        if fellows and decide_proxy(replace(lifted, lookup=False))[0] >= Level.HIGH:
-            for k in fellows:
-                shares[features[k]]["fellow_of"] = name
-    if ids:
+        _column_lift(p, i, suspects, strong, left_out)
+    if ids:  # identifiers sit after the features in the fits' input
         base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
+        lifts = [p.lift(base, len(features) + j) for j in range(len(ids))]
         ref["identifier_lift"] = {
-            c: {
-                **unique_lift(fits(base), fits(np.r_[base, len(features) + j]), smallest),
-                "statistic": statistic,
-                "without": sorted(left_out),
-            }
-            for j, c in enumerate(ids)
+            c: {**lift, **_lift_label(t, left_out)} for c, lift in zip(ids, lifts, strict=True)
         }
     for i in strong:  # what all the other columns reach together, for the match rule
         shares[features[i]]["others_power"] = fits(keep[keep != i]).power
     return shares, ref
+
+
+def _shares(inp: PeerInput) -> tuple[dict[str, dict], set[str]]:
+    """Each column's dependence share, its z among the table's and the table's typical
+    ``peers_beyond_target``; and the columns flagged as outcome-caused (left out of the
+    reference)."""
+    shares = dependence_shares(
+        inp,
+        flag_share=THRESHOLDS.share(Level.HIGH),
+        flag_power=THRESHOLDS.share_min_power(Level.HIGH),
+        min_power=0.0,
+        flag_beyond=THRESHOLDS.beyond_max,
+    )
+    _share_z(shares)
+    _typical_beyond(shares)
+    return shares, {c for c, v in shares.items() if v["flag_round"] is not None}
+
+
+def _examined(p: _Peers, flagged: set[str]) -> tuple[list[int], list[int], list[int]]:
+    """The suspects (the columns a large unique lift would raise to high), the strongest
+    unflagged columns (for the match rule), and the ones of either that get a lift, at most
+    ``lift_columns``, strongest first."""
+    th, power = THRESHOLDS, p.power
+    by_power = np.argsort(-power, kind="stable")
+    big = [decide_proxy(replace(p.figures(i, _BIG_LIFT), rest_power=None))[0] for i in by_power]
+    suspects = [i for i, lv in zip(by_power, big, strict=True) if lv >= Level.HIGH]
+    unflagged = [i for i in by_power if p.features[i] not in flagged]
+    strong = [i for i in unflagged if power[i] >= th.match_power][: th.strong_reference_fits]
+    chosen = [i for i in dict.fromkeys(suspects + strong) if power[i] >= th.lift_power]
+    return suspects, strong, chosen[: th.lift_columns]
+
+
+def _lift_label(t: Target, without: set[str]) -> dict:
+    return {"statistic": "1 - R2" if t.task == "numeric" else "1 - AUC", "without": sorted(without)}
+
+
+def _column_lift(
+    p: _Peers, i: int, suspects: list[int], strong: list[int], left_out: set[str]
+) -> None:
+    """The unique lift of column ``i``: no other suspect, nor a near-perfect fellow of a
+    suspect, serves as the peer that explains it away; its fellows are marked when it is
+    found at high."""
+    base = np.array([k for k in p.keep if k != i and k not in suspects], dtype=np.int64)
+    lift = p.lift(base, i)
+    fellows: list[int] = []
+    if i in suspects and not (lift["value"] >= THRESHOLDS.lift_large and lift["low"] > 0):
+        # a suspect a strong column explains away: is that column a near-perfect fellow?
+        fellows = _fellows(i, base, strong, suspects, p.power, p.fits)
+        base = np.array([k for k in base if k not in fellows], dtype=np.int64)
+        lift = p.lift(base, i)
+    name = p.features[i]
+    without = left_out - {name} | {p.features[k] for k in fellows}
+    p.shares[name]["unique_lift"] = {**lift, **_lift_label(p.t, without)}
+    if fellows and decide_proxy(p.figures(i))[0] >= Level.HIGH:
+        for k in fellows:
+            p.shares[p.features[k]]["fellow_of"] = name
 
 
 def _fellows(

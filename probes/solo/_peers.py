@@ -140,47 +140,68 @@ def dependence_shares(
     out: dict[str, dict] = {}
     for round_no in range(1, rounds + 1):
         for j in range(p):
-            if not usable[j]:
-                out[inp.names[j]] = {
-                    "share": None,
-                    "flag_round": None,
-                    "peers": 0,
-                    "typical_share": None,
-                }
-                continue
-            peers = np.array(
-                [
-                    k
-                    for k in order
-                    if k != j and usable[k] and k not in flagged and abs(corr[j, k]) < COPY_CORR
-                ][:MAX_PEERS],
-                dtype=np.int64,
-            )
-            figs = _figures(corr, j, peers, ys, main)
-            out[inp.names[j]] = {
-                **figs,
-                "flag_round": flagged.get(j),
-                "peers": int(peers.size),
-            }
-        new = []
-        for j, name in enumerate(inp.names):
-            typical = typical_share(out, power, name, min_power)
-            out[name]["typical_share"] = typical
-            share = out[name]["share"]
-            if (
-                j not in flagged
-                and share is not None
-                and inp.power[j] >= flag_power
-                and share >= typical + flag_share
-                and out[name]["peers_beyond_target"] <= flag_beyond
-            ):
-                new.append(j)
+            out[inp.names[j]] = _column_figures(corr, j, order, usable, flagged, ys, main)
+        new = _newly_flagged(
+            inp, out, flagged, power, min_power, flag_share, flag_power, flag_beyond
+        )
         if not new:
             break
         for j in new:
             flagged[j] = round_no
             out[inp.names[j]]["flag_round"] = round_no
     return out
+
+
+def _column_figures(
+    corr: np.ndarray,
+    j: int,
+    order: np.ndarray,
+    usable: np.ndarray,
+    flagged: dict[int, int],
+    ys: np.ndarray,
+    main: np.ndarray,
+) -> dict:
+    """Column ``j``'s figures against its peers: the strongest usable columns, not flagged,
+    not copies of it, at most ``MAX_PEERS``."""
+    if not usable[j]:
+        return {"share": None, "flag_round": None, "peers": 0, "typical_share": None}
+    peers = np.array(
+        [
+            k
+            for k in order
+            if k != j and usable[k] and k not in flagged and abs(corr[j, k]) < COPY_CORR
+        ][:MAX_PEERS],
+        dtype=np.int64,
+    )
+    figs = _figures(corr, j, peers, ys, main)
+    return {**figs, "flag_round": flagged.get(j), "peers": int(peers.size)}
+
+
+def _newly_flagged(
+    inp: PeerInput,
+    out: dict[str, dict],
+    flagged: dict[int, int],
+    power: dict[str, float],
+    min_power: float,
+    flag_share: float,
+    flag_power: float,
+    flag_beyond: float,
+) -> list[int]:
+    """The columns this round flags (and each column's typical share, set on ``out``)."""
+    new = []
+    for j, name in enumerate(inp.names):
+        typical = typical_share(out, power, name, min_power)
+        out[name]["typical_share"] = typical
+        share = out[name]["share"]
+        if (
+            j not in flagged
+            and share is not None
+            and inp.power[j] >= flag_power
+            and share >= typical + flag_share
+            and out[name]["peers_beyond_target"] <= flag_beyond
+        ):
+            new.append(j)
+    return new
 
 
 @dataclass(frozen=True)

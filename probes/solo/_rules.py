@@ -63,48 +63,68 @@ def _near_function(f: ProxyFigures, th: SoloThresholds) -> Level:
     return max(reached, default=Level.NONE)
 
 
+def _told(f: ProxyFigures, th: SoloThresholds, lift: str, effect_like: bool) -> bool:
+    """Whether an effect of the outcome can be told from a strong cause: the peers add
+    nothing beyond the target, and they (linearly), or the rest of the table with a large
+    lift, or the table's other columns (explained by theirs well beyond the target) show
+    the test had the power to see a cause. The peers' linear fit may miss what they tell of
+    the target (modechoice: an AUC of 0.98 from a linear R² of 0.14); a large lift or a
+    telling table counts only where the rest tells the target: beside weak peers a strong
+    cause adds as much and is as unexplained (issue 24, class 3)."""
+    if not effect_like:
+        return False
+    if f.expected_r2_if_effect >= th.peer_signal:
+        return True
+    if f.rest_power is not None and f.r2_target * f.rest_power < th.peer_signal:
+        return False
+    table_tells = f.typical_beyond is not None and f.typical_beyond >= th.table_beyond
+    return lift == "large" or (table_tells and lift != "nil")
+
+
+def _calibrated(f: ProxyFigures, th: SoloThresholds, enough: bool, told: bool) -> bool:
+    """A share that stands ``share_z_high`` above the table's, over the medium floor."""
+    z, share = f.share_z, f.share if f.share is not None else 0.0
+    return (
+        enough
+        and told
+        and z is not None
+        and z >= th.share_z_high
+        and share >= f.typical_share + th.share(Level.MEDIUM)
+        and f.power >= th.share_min_power(Level.HIGH)
+    )
+
+
+def _matches(f: ProxyFigures, th: SoloThresholds, enough: bool, effect_like: bool) -> bool:
+    """Alone as strong as all the other columns together, an effect the peers can tell."""
+    return (
+        enough
+        and effect_like
+        and f.expected_r2_if_effect >= th.peer_signal
+        and f.others_power is not None
+        and f.power >= max(th.match_power, f.others_power - th.match_margin)
+    )
+
+
 def facts(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> Facts:
     """The shared tests of the figures (a pure function)."""
     enough = f.n_peers >= th.min_peers and f.share is not None
     share = f.share if f.share is not None else 0.0
     effect_like = f.peers_beyond_target is not None and f.peers_beyond_target <= th.beyond_max
-    tellable = f.expected_r2_if_effect >= th.peer_signal
     lift = lift_class(f, th)
-    # the peers' linear fit may miss what they tell of the target (modechoice: an AUC of 0.98
-    # from a linear R² of 0.14), yet the table shows the test's power when its other columns
-    # are typically explained by their peers well beyond the target: one near 0 stands out
-    table_tells = f.typical_beyond is not None and f.typical_beyond >= th.table_beyond
-    # a large lift, or a table whose peers are explained well beyond the target, tells an
-    # effect from a cause only where the other columns tell the target: beside weak peers a
-    # strong cause adds as much and is as unexplained (issue 24, class 3)
-    rest_tells = f.rest_power is None or f.r2_target * f.rest_power >= th.peer_signal
-    told = effect_like and (
-        tellable or (rest_tells and (lift == "large" or (table_tells and lift != "nil")))
-    )
-    z = f.share_z
+    told = _told(f, th, lift, effect_like)
+    z_ok = f.share_z is None or f.share_z >= th.share_z_function
     return Facts(
         f=f,
         share_level=_share_level(f, th, enough),
         lift=lift,
         enough_peers=enough,
         effect_like=effect_like,
-        tellable=tellable,
+        tellable=f.expected_r2_if_effect >= th.peer_signal,
         told=told,
-        stands_out=z is None or z >= th.share_z_high,
-        beyond_apart=share >= f.typical_share + th.share(Level.LOW)
-        and (z is None or z >= th.share_z_function),
-        calibrated=enough
-        and z is not None
-        and z >= th.share_z_high
-        and share >= f.typical_share + th.share(Level.MEDIUM)
-        and f.power >= th.share_min_power(Level.HIGH)
-        and told,
-        matches=enough
-        and f.others_power is not None
-        and f.power >= th.match_power
-        and f.power >= f.others_power - th.match_margin
-        and effect_like
-        and tellable,
+        stands_out=f.share_z is None or f.share_z >= th.share_z_high,
+        beyond_apart=share >= f.typical_share + th.share(Level.LOW) and z_ok,
+        calibrated=_calibrated(f, th, enough, told),
+        matches=_matches(f, th, enough, effect_like),
         deterministic=f.power >= th.deterministic,
         explained=enough and not effect_like and share < f.typical_share + th.share(Level.LOW),
         near_function=_near_function(f, th),
