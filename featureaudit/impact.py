@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from featureaudit.levels import Level
+from featureaudit.models import lgbm_params
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas, model_threads
@@ -46,21 +47,7 @@ class _Scored:
 
 
 def _params(seed: int, rows: int, n_jobs: int) -> dict:
-    return dict(
-        n_estimators=40,
-        learning_rate=0.15,
-        num_leaves=15,
-        min_child_samples=10,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=max(1, n_jobs),  # narrowed per fit by _fit_predict
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
-        max_bin=31,
-    )
+    return lgbm_params(seed, max(1, n_jobs))  # narrowed per fit by _fit_predict
 
 
 def _fit_predict(

@@ -22,7 +22,6 @@ information.
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
-from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -30,6 +29,7 @@ import pandas as pd
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.levels import Ladder, Level
 from featureaudit.matrix import feature_matrix, order_free_codes
+from featureaudit.models import lgbm_params
 from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.splits import SIMULATED_HELDOUT_SHARE
@@ -167,19 +167,12 @@ def adversarial_auc(
 
     pred = np.zeros(len(side))
     gain = np.zeros(x.shape[1])
-    params: dict[str, Any] = dict(
+    params = lgbm_params(
+        seed,
+        model_threads(n_jobs, len(side)),
         n_estimators=50,
         learning_rate=0.12,
-        num_leaves=15,
         min_child_samples=20,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=model_threads(n_jobs, len(side)),
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
         max_bin=63,
         importance_type="gain",
     )
