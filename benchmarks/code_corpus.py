@@ -22,7 +22,7 @@ from pathlib import Path
 
 from featureaudit.code.audit import audit_file
 from featureaudit.code.rules import KINDS
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 CASES = Path(__file__).resolve().parents[1] / "tests" / "code_cases"
 CORPUS = Path(__file__).resolve().parent / "code_corpus"

@@ -43,7 +43,7 @@ import corpus_build as cb  # noqa: E402
 import corpus_sources as cs  # noqa: E402
 
 import featureaudit as fa  # noqa: E402
-from featureaudit.settings import Settings  # noqa: E402
+from featureaudit.load.settings import Settings  # noqa: E402
 
 ROOT = Path(__file__).resolve().parent.parent
 REVIEW = Path(__file__).resolve().parent / "corpus_review.csv"

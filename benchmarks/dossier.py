@@ -95,8 +95,8 @@ def main() -> None:
             }
             for i in range(args.cols)
         ]
-        from featureaudit.findings import Findings
-        from featureaudit.report import render_dossier
+        from featureaudit.judge.findings import Findings
+        from featureaudit.render.report import render_dossier
 
         worst = Path(tmp) / "worst.html"
         worst.write_text(render_dossier(Findings(doc)), encoding="utf-8")

@@ -39,7 +39,7 @@ from sklearn.preprocessing import (
 )
 
 import featureaudit as fa
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 HIGH = Level.HIGH
 MEDIUM = Level.MEDIUM

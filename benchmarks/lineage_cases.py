@@ -38,7 +38,7 @@ import statsmodels.api as sm
 from sklearn.datasets import load_breast_cancer
 
 import featureaudit as fa
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 LATER = "computed_from_later_rows"
 

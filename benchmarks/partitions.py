@@ -20,7 +20,7 @@ from sklearn.model_selection import KFold, train_test_split
 from sklearn.preprocessing import StandardScaler
 
 import featureaudit as fa
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 LOADERS = {"breast_cancer": load_breast_cancer, "wine": load_wine}
 

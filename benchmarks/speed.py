@@ -94,7 +94,7 @@ def warm(path: Path) -> None:
 CHILD_PROBES = """
 import sys
 import featureaudit as fa
-from featureaudit.settings import Settings
+from featureaudit.load.settings import Settings
 settings = Settings(n_jobs=int(sys.argv[5]), engine=sys.argv[3], sample_rows=int(sys.argv[4]))
 result = fa.audit(sys.argv[1], target="y", split_column="split", label_time="decided_at",
                   probes=sys.argv[2].split(","), settings=settings, progress=False)

@@ -10,17 +10,17 @@ from typing import Any
 
 import pandas as pd
 
-from featureaudit.dictionary import DataDictionary
-from featureaudit.doors import python_words
 from featureaudit.engines import resolve_engine
 from featureaudit.errors import SettingError
-from featureaudit.findings import Findings, droplist, refit_list
-from featureaudit.inputs import Inputs, shown
-from featureaudit.pipeline import run_audit
-from featureaudit.report import render_all
-from featureaudit.settings import Settings, check_level
-from featureaudit.table import build_table
-from featureaudit.writer import write_files
+from featureaudit.judge.findings import Findings, droplist, refit_list
+from featureaudit.judge.pipeline import run_audit
+from featureaudit.load.dictionary import DataDictionary
+from featureaudit.load.doors import python_words
+from featureaudit.load.inputs import Inputs, shown
+from featureaudit.load.settings import Settings, check_level
+from featureaudit.load.table import build_table
+from featureaudit.render.report import render_all
+from featureaudit.render.writer import write_files
 
 __all__ = ["audit", "AuditResult"]
 
@@ -326,7 +326,7 @@ def _check_probes(probes: object) -> None:
     if not all(isinstance(p, str) for p in probes):
         raise SettingError(f"probes must be a list of probe names; got {shown(probes)}.")
     if not probes:
-        from featureaudit.registry import registered
+        from featureaudit.kit.registry import registered
 
         raise SettingError(
             "probes=[] would run no probe and report nothing; pass None for every probe, or "
@@ -342,7 +342,7 @@ def _check_history(history: object) -> None:
         return
     raise SettingError(
         "history must be a list of earlier runs' Findings, oldest first (e.g. [run.findings "
-        "for run in featureaudit.history.load_runs(folder)]); got "
+        "for run in featureaudit.review.history.load_runs(folder)]); got "
         f"{shown(history)} ({type(history).__name__})."
     )
 
@@ -353,7 +353,7 @@ def _settings(settings: object, **given: object) -> Settings:
     the same field of ``settings`` is an error, never silently overruled."""
     if settings is not None and not isinstance(settings, Settings):
         raise SettingError(
-            f"settings must be a featureaudit.settings.Settings; got a "
+            f"settings must be a featureaudit.load.settings.Settings; got a "
             f"{type(settings).__name__} ({settings!r:.80}). Pass Settings(**values)."
         )
     over = {k: v for k, v in given.items() if v is not None}

@@ -28,7 +28,7 @@ def _exit_at_once(signum: int, frame: object) -> None:
     """Outside a command (while the modules load, or during interpreter exit after one) say
     which report stands and leave at once, without a traceback: the new one when this
     process swapped it in, else the earlier one."""
-    writer = sys.modules.get("featureaudit.writer")
+    writer = sys.modules.get("featureaudit.render.writer")
     replaced = bool(getattr(writer, "swapped", None))
     print(_interrupted_line(signum, sys.argv[1:], replaced), file=sys.stderr, flush=True)
     os._exit(128 + signum)
@@ -48,11 +48,11 @@ from typer.core import TyperGroup  # noqa: E402
 
 from featureaudit._version import __version__  # noqa: E402
 from featureaudit.errors import FeatureAuditError, Interrupted, SettingError  # noqa: E402
-from featureaudit.findings import diff_findings, droplist, load_findings  # noqa: E402
-from featureaudit.inputs import Inputs  # noqa: E402
-from featureaudit.levels import Level  # noqa: E402
+from featureaudit.judge.findings import diff_findings, droplist, load_findings  # noqa: E402
+from featureaudit.load.inputs import Inputs  # noqa: E402
+from featureaudit.load.settings import Settings, check_level, read_config  # noqa: E402
 from featureaudit.options import declared_options  # noqa: E402
-from featureaudit.settings import Settings, check_level, read_config  # noqa: E402
+from featureaudit.vocab.levels import Level  # noqa: E402
 
 __all__ = ["app", "main"]
 
@@ -90,7 +90,7 @@ class _OneLineErrors(TyperGroup):
             _refuse_repeated_options(self, argv)
             rv = super().main(*args, **kwargs)
         except Interrupted as exc:
-            from featureaudit.writer import swapped
+            from featureaudit.render.writer import swapped
 
             print(_interrupted_line(exc.signum, argv, bool(swapped)), file=sys.stderr)
             sys.exit(128 + exc.signum)
@@ -213,13 +213,13 @@ def scan(
     from featureaudit.api import audit
 
     inputs, settings = _inputs_and_settings(flags, config)
-    from featureaudit.accepted import apply_accepted, read_accepted
-    from featureaudit.history import check_folder, load_runs, store_run
+    from featureaudit.review.accepted import apply_accepted, read_accepted
+    from featureaudit.review.history import check_folder, load_runs, store_run
 
     reviewed = read_accepted(inputs.accepted) if inputs.accepted else None
     history_dir = check_folder(inputs.history) if inputs.history else None
     earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
-    from featureaudit.doors import command_line
+    from featureaudit.load.doors import command_line
 
     with command_line():
         result = audit(
@@ -235,7 +235,7 @@ def scan(
     if history_dir is not None:
         store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
-    from featureaudit.outcome import gate_reason
+    from featureaudit.render.outcome import gate_reason
 
     fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
     reason = gate_reason(result.document, fail, inputs.fail_at_impact)
@@ -259,7 +259,7 @@ def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inp
 
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
-    from featureaudit.outcome import outcome_lines
+    from featureaudit.render.outcome import outcome_lines
 
     print("\n".join(outcome_lines(doc, out_dir)))
     for warning in doc["warnings"]:
@@ -287,7 +287,7 @@ def droplist_cmd(
     if format == "json":
         print(json.dumps(names, ensure_ascii=False))
     else:
-        from featureaudit.names import quote_name
+        from featureaudit.vocab.names import quote_name
 
         for name in names:
             print(quote_name(name))
@@ -317,7 +317,7 @@ def diff(
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
     --fail-at high --format markdown
     """
-    from featureaudit.diff_format import FORMATS, diff_context, format_diff
+    from featureaudit.render.diff_format import FORMATS, diff_context, format_diff
 
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
     if format not in FORMATS:
@@ -342,7 +342,7 @@ def history_cmd(
 
     Example: featureaudit history audit-history --column reminders_sent
     """
-    from featureaudit.history import history_lines, load_runs, series
+    from featureaudit.review.history import history_lines, load_runs, series
 
     runs = load_runs(folder)
     if column is not None and runs and column not in series([r.findings for r in runs]):
@@ -369,8 +369,8 @@ def dictionary_cmd(
 
     Example: featureaudit dictionary invoices.csv --target late_over_30d > dictionary.csv
     """
-    from featureaudit.dictionary import draft_dictionary
-    from featureaudit.io import read_table
+    from featureaudit.load.dictionary import draft_dictionary
+    from featureaudit.load.io import read_table
 
     frame = read_table(table, encoding=encoding)
     if target is not None and target not in frame.columns:
@@ -380,7 +380,7 @@ def dictionary_cmd(
             f"--target column {target!r} is not in {table.name}; columns are: "
             f"{', '.join(frame.columns[:30])}. Pass --target with one of them."
         )
-    from featureaudit.dictionary import add_suggestions
+    from featureaudit.load.dictionary import add_suggestions
 
     sys.stdout.write(add_suggestions(draft_dictionary(frame, target=target), frame, target=target))
     return 0

@@ -1,4 +1,4 @@
-"""``scan``'s options, built from the declarations of :class:`~featureaudit.inputs.Inputs` and
+"""``scan``'s options, built from the declarations of :class:`~featureaudit.load.inputs.Inputs` and
 of the settings that take a flag, so that every flag can be followed from the command line to
 the field that checks it, and a new input is one declaration.
 
@@ -15,8 +15,8 @@ from typing import Annotated, Any
 
 import typer
 
-from featureaudit.inputs import InputSpec, input_specs
-from featureaudit.settings import Settings
+from featureaudit.load.inputs import InputSpec, input_specs
+from featureaudit.load.settings import Settings
 
 __all__ = ["declared_options", "flag_names"]
 

@@ -14,8 +14,8 @@ import pandas as pd
 from sklearn.base import BaseEstimator, TransformerMixin
 from sklearn.utils.validation import check_is_fitted, validate_data
 
-from featureaudit.findings import droplist, load_findings
-from featureaudit.settings import check_level
+from featureaudit.judge.findings import droplist, load_findings
+from featureaudit.load.settings import check_level
 
 __all__ = ["DropSuspects"]
 

@@ -26,14 +26,14 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.kinds import KINDS, PAIR_KINDS
-from featureaudit.levels import LEVEL_NAMES, Level
-from featureaudit.pipeline import capability_skip
-from featureaudit.registry import PAIRS, Capabilities, Probe, thresholds_dict
-from featureaudit.settings import Settings
-from featureaudit.splits import pair_views
-from featureaudit.table import AuditTable, build_table
+from featureaudit.judge.pipeline import capability_skip
+from featureaudit.kit.registry import PAIRS, Capabilities, Probe, thresholds_dict
+from featureaudit.kit.splits import pair_views
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable, build_table
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.kinds import KINDS, PAIR_KINDS
+from featureaudit.vocab.levels import LEVEL_NAMES, Level
 
 __all__ = ["Check", "awkward_frame", "noise_frame", "parametrize_with_checks", "yield_checks"]
 

@@ -26,16 +26,16 @@ from dataclasses import asdict, dataclass, field
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.levels import Ladder, Level
-from featureaudit.matrix import feature_matrix, order_free_codes
-from featureaudit.models import lgbm_params
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.settings import Settings
-from featureaudit.splits import SIMULATED_HELDOUT_SHARE
-from featureaudit.stats import hanley_mcneil_se, null_auc_se
-from featureaudit.table import AuditTable
-from featureaudit.threads import limited_blas, model_threads
+from featureaudit.kit.matrix import feature_matrix, order_free_codes
+from featureaudit.kit.models import lgbm_params
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.kit.splits import SIMULATED_HELDOUT_SHARE
+from featureaudit.kit.stats import hanley_mcneil_se, null_auc_se
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import limited_blas, model_threads
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.levels import Ladder, Level
 
 
 @dataclass(frozen=True)

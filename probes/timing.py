@@ -35,14 +35,14 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from featureaudit.durations import parse_duration
 from featureaudit.errors import SettingError
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.levels import Ladder, Level
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.settings import Settings
-from featureaudit.table import AuditTable
-from featureaudit.times import as_datetime
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.load.durations import parse_duration
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.load.times import as_datetime
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.levels import Ladder, Level
 
 QUANTILES = (0.0, 0.05, 0.25, 0.5, 0.75, 0.95, 1.0)
 _SECOND = 1e9

@@ -8,8 +8,8 @@ import pandas as pd
 import pytest
 from typer.testing import CliRunner
 
-from featureaudit.accepted import apply_accepted, read_accepted
 from featureaudit.cli import app
+from featureaudit.review.accepted import apply_accepted, read_accepted
 
 runner = CliRunner()
 HEADER = "column,kind,reason,reviewed_by,until\n"

@@ -11,7 +11,7 @@ ROOT = Path(__file__).resolve().parents[1]
 # where each import name lives in the source tree (probes/ is mapped into the package)
 TREES = {"featureaudit": ROOT / "featureaudit", "featureaudit.probes": ROOT / "probes"}
 # the one core module that may name the probes package: it imports it to register them
-DISCOVERY = {"featureaudit.registry"}
+DISCOVERY = {"featureaudit.kit.registry"}
 
 
 def _modules() -> dict[str, Path]:
@@ -119,7 +119,7 @@ def test_the_example_probe_of_developers_md_is_one_module_the_core_picks_up(monk
     import numpy as np
 
     import featureaudit as fa
-    from featureaudit import registry
+    from featureaudit.kit import registry
     from featureaudit.testing import noise_frame, yield_checks
 
     source = _example_probe_source()
@@ -150,3 +150,48 @@ def test_the_example_probe_of_developers_md_is_one_module_the_core_picks_up(monk
         if f["probe"] == "missingshift" and f["partitions"] == ["train", "test"]
     ]
     assert shifted and shifted[0]["level"] == "low" and "'x0'" in shifted[0]["summary"]
+
+
+# The rooms of the package, lowest first: a module may import its own room, the rooms below
+# it and the base modules, never a room above it (the data flow runs one way).
+BASE = {"featureaudit", "featureaudit.errors", "featureaudit._version", "featureaudit.progress"}
+ROOMS = ("vocab", "load", "kit", "code", "judge", "review", "render", "engines")
+TOP = {"api", "cli", "demo", "options", "sklearn", "testing", "__main__"}
+
+
+def _room(module: str) -> int | None:
+    """The rank of a module's room (len(ROOMS) for the top doors), None for a base module."""
+    if module in BASE or module.startswith("featureaudit.probes"):
+        return None
+    part = module.split(".")[1]
+    return len(ROOMS) if part in TOP else ROOMS.index(part)
+
+
+def test_every_module_lives_in_a_room():
+    for name in _modules():
+        if name in BASE or name.startswith("featureaudit.probes"):
+            continue
+        part = name.split(".")[1]
+        assert part in ROOMS or part in TOP, f"{name} is in no room; add it to one"
+
+
+def test_imports_run_down_the_rooms():
+    upward = []
+    modules = _modules()
+    for name, path in modules.items():
+        mine = _room(name)
+        if mine is None:
+            continue
+        for dep in _imports(name, path, False):
+            theirs = _room(dep) if dep in modules else None
+            if theirs is not None and theirs > mine:
+                upward.append(f"{name} -> {dep}")
+    assert not upward, f"imports that run back up the rooms: {upward}"
+
+
+def test_each_room_says_what_it_owns_and_may_import():
+    for room in ROOMS:
+        doc = ast.get_docstring(
+            ast.parse((ROOT / "featureaudit" / room / "__init__.py").read_text())
+        )
+        assert doc and "import" in doc, room

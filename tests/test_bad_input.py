@@ -173,14 +173,14 @@ def test_malformed_role_names_file_line_and_value(good_csv, tmp_path):
 
 
 def test_malformed_known_at(tmp_path):
-    from featureaudit.dictionary import parse_dictionary
+    from featureaudit.load.dictionary import parse_dictionary
 
     with pytest.raises(DictionaryError, match="line 2.*'-30 fortnights'"):
         parse_dictionary("column,known_at\na,-30 fortnights\n", source="d.csv")
 
 
 def test_dictionary_without_column_header_and_duplicate_rows():
-    from featureaudit.dictionary import parse_dictionary
+    from featureaudit.load.dictionary import parse_dictionary
 
     with pytest.raises(DictionaryError, match="'column' header"):
         parse_dictionary("name,role\na,feature\n")
@@ -315,7 +315,7 @@ def test_bad_config_values_stop_before_any_work(good_csv, tmp_path, line, fragme
     ],
 )
 def test_settings_reject_wrong_types_as_value_and_type_errors(kwargs, fragment):
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     with pytest.raises(SettingError, match=fragment) as info:
         Settings(**kwargs)
@@ -324,7 +324,7 @@ def test_settings_reject_wrong_types_as_value_and_type_errors(kwargs, fragment):
 
 @pytest.mark.parametrize("seed", [-1, 2**32, 2**64 + 5, np.int64(7)])
 def test_any_whole_seed_is_mapped_not_rejected(seed):
-    from featureaudit.settings import SEED_SPAN, Settings
+    from featureaudit.load.settings import SEED_SPAN, Settings
 
     mapped = Settings(seed=seed).seed
     assert type(mapped) is int and 0 <= mapped < SEED_SPAN
@@ -392,7 +392,7 @@ def _assert_earlier_and_no_leftovers(out):
 
 
 def test_write_replaces_the_whole_folder(tmp_path):
-    from featureaudit.writer import write_files
+    from featureaudit.render.writer import write_files
 
     out = tmp_path / "r"
     _earlier_report(out)
@@ -405,7 +405,7 @@ def test_full_disk_leaves_the_earlier_report(tmp_path, monkeypatch):
     import builtins
     import errno
 
-    from featureaudit import writer
+    from featureaudit.render import writer
 
     out = tmp_path / "r"
     _earlier_report(out)
@@ -426,7 +426,7 @@ def test_full_disk_leaves_the_earlier_report(tmp_path, monkeypatch):
 def test_a_folder_that_cannot_be_swapped_in_leaves_the_earlier_report(tmp_path, monkeypatch):
     import errno
 
-    from featureaudit import writer
+    from featureaudit.render import writer
 
     out = tmp_path / "r"
     _earlier_report(out)
@@ -446,7 +446,7 @@ def test_a_folder_that_cannot_be_swapped_in_leaves_the_earlier_report(tmp_path, 
 def test_a_folder_with_other_files_keeps_them_and_is_all_or_nothing(tmp_path, monkeypatch):
     import errno
 
-    from featureaudit import writer
+    from featureaudit.render import writer
 
     out = tmp_path / "r"
     _earlier_report(out)
@@ -471,7 +471,7 @@ def test_a_folder_with_other_files_keeps_them_and_is_all_or_nothing(tmp_path, mo
 
 
 def test_an_out_path_that_is_a_file_is_refused(tmp_path):
-    from featureaudit.writer import write_files
+    from featureaudit.render.writer import write_files
 
     (tmp_path / "f").write_text("x")
     with pytest.raises(InputFileError, match="is a file"):
@@ -855,7 +855,7 @@ def test_folds_beyond_the_rows_of_the_table(tmp_path):
     )
     assert_one_line_exit_2(result, "folds", "1000000000", "300")
     assert not (tmp_path / "r").exists()
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     with pytest.raises(SettingError, match="folds.*300"):
         fa.audit(_table300(), target="y", settings=Settings(folds=301, n_jobs=1))
@@ -866,7 +866,7 @@ def test_folds_beyond_the_rows_of_the_table(tmp_path):
                {"min_rows": 10**12}, {"folds": 10**12}]
 )  # fmt: skip
 def test_count_settings_have_an_upper_bound(kwargs):
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     name = next(iter(kwargs))
     with pytest.raises(SettingError, match=f"{name}.*at most"):
@@ -904,7 +904,7 @@ def test_known_at_naming_no_datetime_column_is_an_error(tmp_path, known_at, frag
 
 
 def test_two_target_rows_in_the_dictionary():
-    from featureaudit.dictionary import parse_dictionary
+    from featureaudit.load.dictionary import parse_dictionary
 
     with pytest.raises(DictionaryError, match="'d.csv' line 3.*target.*line 2"):
         parse_dictionary("column,role\ny,target\na,target\n", source="d.csv")
@@ -912,7 +912,7 @@ def test_two_target_rows_in_the_dictionary():
 
 @pytest.mark.parametrize("row", ["a,feature,,first,extra", "a"])
 def test_ragged_dictionary_row(row):
-    from featureaudit.dictionary import parse_dictionary
+    from featureaudit.load.dictionary import parse_dictionary
 
     text = f"column,role,known_at,description\ny,target,,\n{row}\n"
     with pytest.raises(DictionaryError, match="'d.csv' line 3.*cells.*header has 4"):
@@ -923,7 +923,7 @@ def test_ragged_dictionary_row(row):
     "row", ["a,target_proxy,ok,me,,surplus", "a,target_proxy,ok"]
 )  # fmt: skip
 def test_ragged_accepted_row(tmp_path, row):
-    from featureaudit.accepted import read_accepted
+    from featureaudit.review.accepted import read_accepted
 
     f = tmp_path / "acc.csv"
     f.write_text(f"column,kind,reason,reviewed_by,until\n{row}\n")
@@ -983,7 +983,7 @@ def test_history_folder_with_a_file_that_is_not_a_run(tmp_path, name, text):
 def test_history_folder_that_cannot_be_written(tmp_path, monkeypatch):
     import errno
 
-    from featureaudit import history as history_module
+    from featureaudit.review import history as history_module
 
     def refuse(*args, **kwargs):
         raise PermissionError(errno.EACCES, "Permission denied")
@@ -1125,7 +1125,7 @@ def test_write_with_a_history_that_is_not_runs(tmp_path):
 
 # --- the report folder --------------------------------------------------------------------
 def test_symlinked_out_is_followed_and_leaves_nothing_behind(tmp_path):
-    from featureaudit.writer import write_files
+    from featureaudit.render.writer import write_files
 
     real = tmp_path / "real"
     _earlier_report(real)

@@ -138,8 +138,8 @@ def test_demo_prints_in_few_pages_with_a_first_page_that_stands_alone(demo_repor
 def test_a_200_column_audit_prints_in_at_most_8_pages(demo_report, tmp_path):
     """Demo evidence spread over 200 columns: 12 at medium or above, 60 at low, the rest clean
     (the shape of a wide table with a few suspects)."""
-    from featureaudit.findings import Findings
-    from featureaudit.report import render_dossier
+    from featureaudit.judge.findings import Findings
+    from featureaudit.render.report import render_dossier
 
     doc = json.loads((demo_report / "findings.json").read_text())
     suspects = [c for c in doc["columns"] if c["level"] in ("medium", "high", "critical")]

@@ -9,7 +9,7 @@ import pytest
 from typer.testing import CliRunner
 
 from featureaudit.cli import app
-from featureaudit.findings import SCHEMA
+from featureaudit.judge.findings import SCHEMA
 
 runner = CliRunner()
 
@@ -243,7 +243,7 @@ def test_a_probe_that_fails_fails_the_run_with_exit_3_and_keeps_the_report(leaky
     # A probe that raises is a bug: the contract's exit 3, one line, the earlier report kept.
     from dataclasses import dataclass
 
-    from featureaudit.registry import Probe, register, unregister
+    from featureaudit.kit.registry import Probe, register, unregister
 
     @dataclass(frozen=True)
     class NoNumbers:
@@ -384,13 +384,13 @@ def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
 
 # --- the inputs, declared once (issue 9 item 3) ------------------------------------------
 def test_inputs_are_declared_once_and_every_door_takes_the_same():
-    """audit(), scan and the config keys name exactly the fields of featureaudit.inputs."""
+    """audit(), scan and the config keys name exactly the fields of featureaudit.load.inputs."""
     import inspect
 
     from featureaudit.api import audit
     from featureaudit.cli import scan
-    from featureaudit.inputs import input_specs
-    from featureaudit.settings import Settings, config_keys
+    from featureaudit.load.inputs import input_specs
+    from featureaudit.load.settings import Settings, config_keys
 
     specs = input_specs()
     table_inputs = {s.name for s in specs if not s.scan_only}

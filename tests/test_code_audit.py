@@ -14,7 +14,7 @@ from featureaudit.cli import app
 from featureaudit.code import audit_code
 from featureaudit.code.audit import audit_file
 from featureaudit.code.output import sarif
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES = ROOT / "tests" / "code_cases"
@@ -324,7 +324,7 @@ def test_corpus_check_half_meets_the_bar() -> None:
     # medium or above, and the fits on all rows that reach the model found at high
     from code_corpus import findings_of, labels, table
 
-    from featureaudit.levels import Level
+    from featureaudit.vocab.levels import Level
 
     rows = labels()
     assert len({r["file"] for r in rows}) >= 150

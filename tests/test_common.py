@@ -8,8 +8,8 @@ import importlib.metadata
 
 import pytest
 
-from featureaudit import registry
-from featureaudit.registry import Probe, register, registered, unregister
+from featureaudit.kit import registry
+from featureaudit.kit.registry import Probe, register, registered, unregister
 from featureaudit.testing import awkward_frame, parametrize_with_checks
 
 PROBES = sorted(registered())

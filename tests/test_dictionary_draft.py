@@ -4,7 +4,7 @@ names that read like a record made after the outcome marked, and the draft reads
 import numpy as np
 import pandas as pd
 
-from featureaudit.dictionary import (
+from featureaudit.load.dictionary import (
     add_suggestions,
     draft_dictionary,
     draft_suggestions,

@@ -8,8 +8,8 @@ import json
 from typer.testing import CliRunner
 
 from featureaudit.cli import app
-from featureaudit.diff_format import diff_context, format_diff
-from featureaudit.findings import Findings, diff_findings
+from featureaudit.judge.findings import Findings, diff_findings
+from featureaudit.render.diff_format import diff_context, format_diff
 
 runner = CliRunner()
 
@@ -105,7 +105,7 @@ def test_context_carries_tables_score_change_and_dictionary_coverage():
 
 
 def test_diff_and_history_commands_show_them(tmp_path):
-    from featureaudit.history import history_lines, store_run
+    from featureaudit.review.history import history_lines, store_run
 
     (tmp_path / "old.json").write_text(json.dumps(OLD))
     (tmp_path / "new.json").write_text(json.dumps(NEW))
@@ -129,7 +129,7 @@ def test_diff_and_history_commands_show_them(tmp_path):
     runs.mkdir()
     for i, doc in enumerate((OLD, NEW)):
         store_run(runs, Findings({**doc, "created": f"2026-12-0{i + 1}T00:00:00Z"}))
-    from featureaudit.history import load_runs
+    from featureaudit.review.history import load_runs
 
     text = "\n".join(history_lines(load_runs(runs)))
     assert "drop1.csv  100 rows" in text and "drop2.csv  100 rows" in text

@@ -4,8 +4,8 @@ import re
 from pathlib import Path
 
 from featureaudit.cli import app
-from featureaudit.kinds import KIND_TABLE, KINDS
-from featureaudit.report import CAUTION
+from featureaudit.render.report import CAUTION
+from featureaudit.vocab.kinds import KIND_TABLE, KINDS
 
 README = (Path(__file__).resolve().parents[1] / "README.md").read_text()
 DEVELOPERS = (Path(__file__).resolve().parents[1] / "DEVELOPERS.md").read_text()

@@ -10,10 +10,10 @@ import pytest
 from markupsafe import escape
 
 import featureaudit as fa
-from featureaudit.findings import Findings
-from featureaudit.kinds import KINDS
-from featureaudit.levels import LEVEL_NAMES
-from featureaudit.report import CAUTION, render_all, render_dossier, render_summary
+from featureaudit.judge.findings import Findings
+from featureaudit.render.report import CAUTION, render_all, render_dossier, render_summary
+from featureaudit.vocab.kinds import KINDS
+from featureaudit.vocab.levels import LEVEL_NAMES
 
 LEVELS = list(LEVEL_NAMES)
 
@@ -131,7 +131,7 @@ def test_hostile_names_values_and_descriptions_are_escaped():
             ["note", "feature", "</td></tr><script>x()</script>"],
         ]
     )
-    from featureaudit.dictionary import parse_dictionary
+    from featureaudit.load.dictionary import parse_dictionary
 
     result = fa.audit(
         frame, target="y", dictionary=parse_dictionary(buf.getvalue()), source="<t>&.csv"
@@ -199,8 +199,8 @@ def test_summary_markdown_lists_suspects_and_droplist(tmp_path):
 def test_methods_and_thresholds_come_from_the_probes_and_the_settings_in_force():
     # The methods section is each probe's describe() of the run's own settings, and
     # findings.json records the thresholds in force (issue 9: a 3-day tolerance was misdescribed).
-    from featureaudit.registry import registered
-    from featureaudit.settings import Settings
+    from featureaudit.kit.registry import registered
+    from featureaudit.load.settings import Settings
 
     rng = np.random.default_rng(0)
     n = 300
@@ -237,7 +237,7 @@ def test_headline_counts_only_high_and_above_in_its_parentheses():
         "skipped": [],
         "warnings": [],
     }
-    from featureaudit.report import verdict_line
+    from featureaudit.render.report import verdict_line
 
     line = verdict_line(Findings(doc))
     assert line.startswith(
@@ -286,7 +286,7 @@ def test_first_page_holds_verdict_suspects_splits_lists_and_caution():
 
 
 def test_headline_counts_add_up_and_accepted_ones_apart():
-    from featureaudit.report import verdict_line
+    from featureaudit.render.report import verdict_line
 
     doc = _reviewer_doc().document
     doc["columns"][1]["accepted"] = {"reason": "r", "reviewed_by": "me", "until": None}
@@ -306,8 +306,8 @@ class _Table:
 
 
 def test_also_names_only_other_kinds_at_medium_or_above():
-    from featureaudit.evidence import Evidence
-    from featureaudit.ranker import rank
+    from featureaudit.judge.ranker import rank
+    from featureaudit.vocab.evidence import Evidence
 
     def ev(kind, level, summary):
         return Evidence("p", kind, "s", 0.5, 0.4, level, column="c", summary=summary)
@@ -336,7 +336,7 @@ def test_timing_not_documented_is_listed(small_binary, tmp_path):
 
 
 def test_impact_words_keep_the_sign_of_value_and_interval_together():
-    from featureaudit.report import impact_words
+    from featureaudit.render.report import impact_words
 
     # removing the column lowers the score by 0.426 (its lift), interval lowered alike
     assert impact_words({"change": 0.426, "ci95": [0.36, 0.48]}) == "-0.426 (-0.480 to -0.360)"

@@ -3,8 +3,8 @@
 import pandas as pd
 import pytest
 
-from featureaudit.durations import parse_duration
 from featureaudit.errors import DurationError
+from featureaudit.load.durations import parse_duration
 
 
 @pytest.mark.parametrize(

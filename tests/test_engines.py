@@ -12,8 +12,8 @@ import featureaudit as fa
 from featureaudit import engines
 from featureaudit.cli import app
 from featureaudit.engines.partials import CopyPartial, CountPartial, Layout, exact_statistics
+from featureaudit.kit.sample import SampleSketch, allocate, content_keys
 from featureaudit.progress import row_progress
-from featureaudit.sample import SampleSketch, allocate, content_keys
 
 runner = CliRunner()
 PLANTED = 150  # held-out rows made exact copies of training rows
@@ -241,7 +241,7 @@ def test_parts_rewritten_between_passes_exit_2(tmp_path):
     another row count in between is named as a changed input, not silently misread."""
     from featureaudit.engines.stream import parquet_dataset, stream_partials
     from featureaudit.errors import InputFileError
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     frame = _table(reps=2)
     folder = _write_parts(frame, tmp_path / "parts", 3)
@@ -534,7 +534,7 @@ def test_a_numeric_target_keeps_side_only_strata_per_batch(diabetes):
     import pyarrow as pa
 
     from featureaudit.engines.stream import FirstPass
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     frame = diabetes.assign(split=np.where(np.arange(len(diabetes)) % 4 == 0, "test", "train"))
     batch = pa.Table.from_pandas(frame, preserve_index=False)

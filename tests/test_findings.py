@@ -7,10 +7,10 @@ import pandas as pd
 import pytest
 
 import featureaudit as fa
-from featureaudit.evidence import Evidence
-from featureaudit.findings import Findings, diff_findings, droplist
-from featureaudit.ranker import rank
-from featureaudit.table import build_table
+from featureaudit.judge.findings import Findings, diff_findings, droplist
+from featureaudit.judge.ranker import rank
+from featureaudit.load.table import build_table
+from featureaudit.vocab.evidence import Evidence
 
 
 @pytest.fixture()
@@ -185,6 +185,6 @@ def test_schema_1_files_are_still_read(tmp_path):
     }
     path = tmp_path / "old.json"
     path.write_text(json.dumps(old))
-    from featureaudit.findings import load_findings
+    from featureaudit.judge.findings import load_findings
 
     assert droplist(load_findings(path), "high") == ["leak"]

@@ -10,8 +10,8 @@ import pytest
 from typer.testing import CliRunner
 
 from featureaudit.cli import app
-from featureaudit.findings import Findings, diff_findings
-from featureaudit.history import load_runs, marks, store_run, trend_svg
+from featureaudit.judge.findings import Findings, diff_findings
+from featureaudit.review.history import load_runs, marks, store_run, trend_svg
 
 runner = CliRunner()
 

@@ -12,10 +12,10 @@ from sklearn.metrics import roc_auc_score
 from sklearn.model_selection import KFold
 
 import featureaudit as fa
-from featureaudit.findings import droplist
-from featureaudit.impact import _params
-from featureaudit.kinds import REMEDIES
-from featureaudit.remedy import column_remedy, dataset_remedy
+from featureaudit.judge.findings import droplist
+from featureaudit.judge.impact import _params
+from featureaudit.judge.remedy import column_remedy, dataset_remedy
+from featureaudit.vocab.kinds import REMEDIES
 
 
 def _split(frame, seed=0, share=0.3):
@@ -78,7 +78,7 @@ def _oof_auc(x: np.ndarray, y: np.ndarray) -> float:
 
 
 def test_two_leaks_with_one_signal_are_not_called_negligible(breast_cancer, noisy_copy):
-    from featureaudit.report import impact_words
+    from featureaudit.render.report import impact_words
 
     weak = ["mean fractal dimension", "texture error", "smoothness error", "symmetry error"]
     frame = breast_cancer[[*weak, "malignant"]].copy()  # honest columns with a modest AUC
@@ -193,9 +193,9 @@ def _column(lift=None):
 def test_a_unique_lift_in_the_evidence_is_reused_not_refitted(
     breast_cancer, noisy_copy, monkeypatch
 ):
-    from featureaudit import impact
-    from featureaudit.settings import Settings
-    from featureaudit.table import build_table
+    from featureaudit.judge import impact
+    from featureaudit.load.settings import Settings
+    from featureaudit.load.table import build_table
 
     # solo's field: the relative reduction of 1 − AUC, its per-fold range and both errors
     lift = {
@@ -251,9 +251,9 @@ def _shifted(n=3000, seed=0):
 def test_shift_weights_follow_the_density_ratio_of_the_two_sides():
     from scipy.stats import spearmanr
 
-    from featureaudit.impact import _Bench, shift_weights
-    from featureaudit.settings import Settings
-    from featureaudit.table import build_table
+    from featureaudit.judge.impact import _Bench, shift_weights
+    from featureaudit.load.settings import Settings
+    from featureaudit.load.table import build_table
 
     table = build_table(_shifted(), target="y", split_column="split")
     bench = _Bench(table, Settings(seed=0, n_jobs=1), ["x", "z"])
@@ -267,9 +267,9 @@ def test_shift_weights_follow_the_density_ratio_of_the_two_sides():
 
 
 def test_split_shift_finding_gets_a_reweighted_correction():
-    from featureaudit.impact import measure_impact
-    from featureaudit.settings import Settings
-    from featureaudit.table import build_table
+    from featureaudit.judge.impact import measure_impact
+    from featureaudit.load.settings import Settings
+    from featureaudit.load.table import build_table
 
     table = build_table(_shifted(), target="y", split_column="split")
     finding = {"kind": "split_shift", "level": "high"}
@@ -289,9 +289,9 @@ def test_split_shift_finding_gets_a_reweighted_correction():
 def test_grouped_and_time_corrections_match_direct_scores_within_their_intervals(breast_cancer):
     from sklearn.model_selection import GroupKFold
 
-    from featureaudit.impact import measure_impact
-    from featureaudit.settings import Settings
-    from featureaudit.table import build_table
+    from featureaudit.judge.impact import measure_impact
+    from featureaudit.load.settings import Settings
+    from featureaudit.load.table import build_table
 
     frame = breast_cancer.copy()
     rng = np.random.default_rng(3)

@@ -6,9 +6,9 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
 
-from featureaudit.dictionary import draft_dictionary, parse_dictionary
-from featureaudit.io import read_table
-from featureaudit.table import build_table, infer_task
+from featureaudit.load.dictionary import draft_dictionary, parse_dictionary
+from featureaudit.load.io import read_table
+from featureaudit.load.table import build_table, infer_task
 
 
 @pytest.fixture()
@@ -111,7 +111,7 @@ def test_draft_dictionary_guesses_roles(frame):
 
 
 def read_table_like(frame):
-    from featureaudit.io import normalise_frame
+    from featureaudit.load.io import normalise_frame
 
     return normalise_frame(frame.copy(), source="t")
 
@@ -124,7 +124,7 @@ def test_horizon_sets_the_cutoff(frame):
 
 
 def test_named_index_levels_become_columns_unnamed_ones_do_not():
-    from featureaudit.io import as_frame
+    from featureaudit.load.io import as_frame
 
     keyed = pd.DataFrame({"a": [1, 2, 3], "k": ["x", "y", "z"], "j": [4, 5, 6]})
     assert as_frame(pa.Table.from_pandas(keyed.set_index("k"))).columns.tolist() == ["k", "a", "j"]
@@ -136,7 +136,7 @@ def test_named_index_levels_become_columns_unnamed_ones_do_not():
 
 
 def test_a_few_bad_dates_keep_the_column_a_date_column():
-    from featureaudit.io import UNPARSED_DATES, normalise_frame
+    from featureaudit.load.io import UNPARSED_DATES, normalise_frame
 
     days = pd.Series([f"2025-01-{1 + i % 28:02d}" for i in range(300)])
     few, many = days.copy(), days.copy()
@@ -151,8 +151,8 @@ def test_a_few_bad_dates_keep_the_column_a_date_column():
 
 
 def test_times_outside_the_nanosecond_range_convert():
-    from featureaudit.io import numeric_view
-    from featureaudit.times import as_datetime
+    from featureaudit.load.io import numeric_view
+    from featureaudit.load.times import as_datetime
 
     times = as_datetime(pd.Series(["1600-03-01", "2300-03-01", None]), column="t")
     assert [t.year for t in times.dropna()] == [1600, 2300]
@@ -166,7 +166,7 @@ def test_times_outside_the_nanosecond_range_convert():
 
 @pytest.mark.parametrize("name", ["", " leak ", "a\nb", '"x"', "tab\there", "plain", "a,b"])
 def test_quoted_names_read_back(name):
-    from featureaudit.names import quote_name, unquote_name
+    from featureaudit.vocab.names import quote_name, unquote_name
 
     written = quote_name(name)
     assert "\n" not in written and unquote_name(written) == name

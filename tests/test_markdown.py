@@ -5,9 +5,9 @@ from __future__ import annotations
 
 import pytest
 
-from featureaudit.findings import Findings
-from featureaudit.markdown import md_code, md_text
-from featureaudit.report import render_summary
+from featureaudit.judge.findings import Findings
+from featureaudit.render.markdown import md_code, md_text
+from featureaudit.render.report import render_summary
 
 markdown_it = pytest.importorskip("markdown_it")
 
@@ -86,7 +86,7 @@ def _doc() -> Findings:
 
 def _shown(name: str) -> str:
     """A name as its code span shows it: as droplist.txt writes it (names.quote_name)."""
-    from featureaudit.names import quote_name
+    from featureaudit.vocab.names import quote_name
 
     return quote_name(name)
 

@@ -10,7 +10,7 @@ from typer.testing import CliRunner
 
 from featureaudit.cli import app
 from featureaudit.errors import SettingError
-from featureaudit.table import build_table
+from featureaudit.load.table import build_table
 
 runner = CliRunner()
 

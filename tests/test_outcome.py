@@ -124,7 +124,7 @@ def test_code_findings_are_counted_printed_and_gate(table, tmp_path):
 
 
 def test_gate_reason_is_none_below_the_gate():
-    from featureaudit.outcome import gate_reason
+    from featureaudit.render.outcome import gate_reason
 
     doc = {"columns": [{"column": "a", "level": "medium"}], "dataset_findings": []}
     assert gate_reason(doc, "high", None) is None

@@ -29,7 +29,7 @@ def test_wheel_has_one_top_level_package(wheel):
         "featureaudit/probes/solo/__init__.py",
         "featureaudit/probes/solo/_peers.py",
         "featureaudit/probes/twins/_nearcopy.py",
-        "featureaudit/hashing.py",
+        "featureaudit/kit/hashing.py",
         "featureaudit/reports/templates/dossier.html.j2",
         "featureaudit/sample_data/invoices.csv",
         "featureaudit/sample_data/dictionary.csv",

@@ -12,7 +12,7 @@ from sklearn.preprocessing import StandardScaler
 
 import featureaudit as fa
 from featureaudit.errors import ColumnNotFound, SettingError
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 SIDE_PROBES = ["twins", "timing", "separability", "fitscope"]
 
@@ -162,7 +162,7 @@ def test_fold_column_errors(breast_cancer):
 
 
 def test_dossier_groups_split_findings_by_pair(wine, tmp_path):
-    from featureaudit.report import render_dossier
+    from featureaudit.render.report import render_dossier
 
     frame = _three_way(wine, 4)
     # copies planted across every pair, so that each pair has a split finding to show
@@ -179,7 +179,7 @@ def test_dossier_groups_split_findings_by_pair(wine, tmp_path):
 
 
 def test_one_heldout_partition_has_no_pair_headings(wine):
-    from featureaudit.report import render_dossier
+    from featureaudit.render.report import render_dossier
 
     frame = wine.assign(split=np.where(np.arange(len(wine)) % 4 == 0, "test", "train"))
     result = fa.audit(frame, target="cultivar", split_column="split", probes=["twins"])

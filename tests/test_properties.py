@@ -23,10 +23,10 @@ from typer.testing import CliRunner
 
 import featureaudit as fa
 from featureaudit.cli import app
-from featureaudit.dictionary import parse_dictionary
 from featureaudit.errors import FeatureAuditError
-from featureaudit.names import quote_name
-from featureaudit.settings import Settings
+from featureaudit.load.dictionary import parse_dictionary
+from featureaudit.load.settings import Settings
+from featureaudit.vocab.names import quote_name
 
 REPORT = {"dossier.html", "findings.json", "droplist.txt", "summary.md"}
 NAMES = st.sampled_from(
@@ -172,7 +172,7 @@ JSON = st.recursive(
 @PROFILE
 @given(st.lists(ANY_NAME, min_size=1, max_size=6, unique=True))
 def test_droplist_lines_read_back_with_the_documented_rule(names):
-    from featureaudit.names import unquote_name
+    from featureaudit.vocab.names import unquote_name
 
     text = "".join(f"{quote_name(n)}\n" for n in names)  # what render_all writes
     assert text.split("\n")[:-1] == [quote_name(n) for n in names]  # one name per line
@@ -193,8 +193,8 @@ def _column_entry(name, score, level):
     )
 )
 def test_a_stored_run_reads_back_as_written(tmp_path_factory, entries):
-    from featureaudit.findings import Findings, load_findings
-    from featureaudit.history import load_runs, store_run
+    from featureaudit.judge.findings import Findings, load_findings
+    from featureaudit.review.history import load_runs, store_run
 
     doc = {
         "schema": "featureaudit.findings/2",
@@ -212,7 +212,7 @@ def test_a_stored_run_reads_back_as_written(tmp_path_factory, entries):
 @PROFILE
 @given(JSON)
 def test_any_json_as_findings_fails_only_clearly(tmp_path_factory, value):
-    from featureaudit.findings import load_findings
+    from featureaudit.judge.findings import load_findings
 
     path = tmp_path_factory.mktemp("findings") / "f.json"
     doc = value
@@ -232,7 +232,7 @@ def test_any_json_as_findings_fails_only_clearly(tmp_path_factory, value):
 @PROFILE
 @given(st.lists(st.lists(st.text(max_size=8), max_size=7), max_size=5))
 def test_any_csv_as_accepted_fails_only_clearly(tmp_path_factory, rows):
-    from featureaudit.accepted import read_accepted
+    from featureaudit.review.accepted import read_accepted
 
     buf = io.StringIO()
     writer = csv.writer(buf, lineterminator="\n")
@@ -251,7 +251,7 @@ def test_any_csv_as_accepted_fails_only_clearly(tmp_path_factory, rows):
 @PROFILE
 @given(st.text(max_size=200))
 def test_any_text_in_a_history_folder_fails_only_clearly(tmp_path_factory, text):
-    from featureaudit.history import load_runs
+    from featureaudit.review.history import load_runs
 
     folder = tmp_path_factory.mktemp("history")
     (folder / "20261201T000000Z-0123456789ab.json").write_text(text, encoding="utf-8")

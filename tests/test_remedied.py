@@ -62,8 +62,8 @@ def test_remedied_score_matches_a_direct_lightgbm_that_drops_only_the_drop_list(
 def test_a_median_fill_is_re_imputed_with_the_training_median_not_rescaled(breast_cancer):
     from sklearn.impute import SimpleImputer
 
-    from featureaudit.remedied import refit_column
-    from featureaudit.table import build_table
+    from featureaudit.judge.remedied import refit_column
+    from featureaudit.load.table import build_table
 
     frame = breast_cancer.copy()
     rng = np.random.default_rng(2)
@@ -117,8 +117,8 @@ def test_remedied_groups_folds_by_entity_on_a_panel_as_group_kfold_does():
 
 
 def test_refit_column_inverts_each_affine_scaling_exactly(breast_cancer):
-    from featureaudit.remedied import refit_column
-    from featureaudit.table import build_table
+    from featureaudit.judge.remedied import refit_column
+    from featureaudit.load.table import build_table
 
     frame = breast_cancer.copy()
     rng = np.random.default_rng(1)

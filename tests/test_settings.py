@@ -4,7 +4,7 @@ import pytest
 
 import featureaudit as fa
 from featureaudit.errors import SettingError
-from featureaudit.settings import Settings
+from featureaudit.load.settings import Settings
 from featureaudit.testing import noise_frame
 
 

@@ -5,8 +5,8 @@ import pytest
 from scipy.stats import spearmanr
 from sklearn.metrics import mutual_info_score, r2_score, roc_auc_score
 
-from featureaudit.oof import make_target, score_bins
-from featureaudit.stats import (
+from featureaudit.kit.oof import make_target, score_bins
+from featureaudit.kit.stats import (
     auc_from_cells,
     bin_codes,
     edges_at_or_below,

@@ -11,7 +11,7 @@ from typing import Any
 from featureaudit.code.audit import CodeAudit, audit_code
 from featureaudit.code.rules import Finding
 from featureaudit.errors import InputFileError
-from featureaudit.evidence import Evidence
+from featureaudit.vocab.evidence import Evidence
 
 __all__ = ["COLUMN_KINDS", "read_code", "code_evidence", "code_entries"]
 

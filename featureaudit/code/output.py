@@ -14,7 +14,7 @@ from featureaudit._version import __version__
 from featureaudit.code.audit import CodeAudit
 from featureaudit.code.rules import KINDS, REMEDY
 from featureaudit.errors import SettingError
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 __all__ = ["SCHEMA", "check_out", "document", "sarif", "text_lines", "write_outputs"]
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 __all__ = ["Finding", "KINDS", "family_of", "LEVELS", "REMEDY", "UNUSED_LEVEL"]
 

@@ -3,6 +3,9 @@
 ``memory`` reads the whole table; ``stream`` reads Parquet batch by batch in bounded
 memory; ``dask`` runs the same maps and merges on a Dask cluster (the optional extra).
 ``auto`` streams when the table would not fit comfortably in the memory available.
+
+May import: every room below it (up to ``render``) and this room; only ``api`` and the
+doors above import it.
 """
 
 from __future__ import annotations

@@ -28,10 +28,10 @@ from featureaudit.engines.stream import (
     whole_row_keys,
 )
 from featureaudit.errors import SettingError
-from featureaudit.findings import Findings
-from featureaudit.io import normalise_frame
-from featureaudit.sample import SampleRows
-from featureaudit.settings import Settings
+from featureaudit.judge.findings import Findings
+from featureaudit.kit.sample import SampleRows
+from featureaudit.load.io import normalise_frame
+from featureaudit.load.settings import Settings
 
 __all__ = ["dask_audit"]
 
@@ -78,8 +78,8 @@ def dask_audit(
     import dask.dataframe as dd
     from distributed import Client, LocalCluster
 
-    from featureaudit.pipeline import run_audit
-    from featureaudit.table import build_table
+    from featureaudit.judge.pipeline import run_audit
+    from featureaudit.load.table import build_table
 
     if build.get("test") is not None:
         raise SettingError(

@@ -16,8 +16,8 @@ from typing import Any, Protocol, TypeVar
 import numpy as np
 import pandas as pd
 
-from featureaudit.hashing import row_hashes
-from featureaudit.times import as_datetime
+from featureaudit.kit.hashing import row_hashes
+from featureaudit.load.times import as_datetime
 
 __all__ = [
     "Layout",

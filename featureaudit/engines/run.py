@@ -5,9 +5,9 @@ from __future__ import annotations
 from typing import Any
 
 from featureaudit.engines.stream import parquet_dataset, stream_audit
-from featureaudit.findings import Findings
+from featureaudit.judge.findings import Findings
+from featureaudit.load.settings import Settings
 from featureaudit.progress import row_progress, showing
-from featureaudit.settings import Settings
 
 __all__ = ["run_stream"]
 

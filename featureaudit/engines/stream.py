@@ -43,10 +43,10 @@ from featureaudit.engines.partials import (
 )
 from featureaudit.engines.spill import HashSpill, KeySpill, spill_folder
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.findings import Findings
-from featureaudit.io import normalise_frame
-from featureaudit.sample import MAX_CLASSES, SampleRows, SampleSketch, content_keys
-from featureaudit.settings import Settings
+from featureaudit.judge.findings import Findings
+from featureaudit.kit.sample import MAX_CLASSES, SampleRows, SampleSketch, content_keys
+from featureaudit.load.io import normalise_frame
+from featureaudit.load.settings import Settings
 
 __all__ = [
     "parquet_dataset",
@@ -78,7 +78,7 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
     if not files:
         raise InputFileError(f"folder {str(p)!r} holds no .parquet files; pass a Parquet folder.")
     if len(files) > 1:  # each part readable, with the first part's columns and types
-        from featureaudit.io import check_parquet_parts
+        from featureaudit.load.io import check_parquet_parts
 
         schemas = check_parquet_parts(files, p)
     else:
@@ -370,8 +370,8 @@ def stream_layout(schema: pa.Schema, build: dict[str, Any]) -> Layout:
     copy against 6.4 % counted over every row). Whole-number and text columns named like an
     identifier are left out too: the audit takes them for identifiers when nearly every
     value is distinct, which only the whole table can tell."""
-    from featureaudit.dictionary import id_like_name
-    from featureaudit.table import NON_FEATURE_ROLES, _dictionary
+    from featureaudit.load.dictionary import id_like_name
+    from featureaudit.load.table import NON_FEATURE_ROLES, _dictionary
 
     layout = Layout(
         split_column=build.get("split_column"),
@@ -421,8 +421,8 @@ def stream_audit(
 ) -> Findings:
     """Audit a Parquet file or folder in bounded memory: exact counts and copies in two
     passes, the probes on the seeded sample."""
-    from featureaudit.pipeline import run_audit
-    from featureaudit.table import build_table
+    from featureaudit.judge.pipeline import run_audit
+    from featureaudit.load.table import build_table
 
     if build.get("test") is not None:
         raise SettingError(

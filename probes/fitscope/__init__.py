@@ -24,8 +24,11 @@ import pandas as pd
 from scipy.special import ndtr
 from scipy.stats import rankdata
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.io import numeric_view
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.load.io import numeric_view
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import column_map
 from featureaudit.probes.fitscope._bins import code_count, quantile_binned
 from featureaudit.probes.fitscope._capgrid import grid_capped as _grid_capped
 from featureaudit.probes.fitscope._decorrelated import decorrelated
@@ -39,10 +42,7 @@ from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
 from featureaudit.probes.fitscope._robust import looks_robust, robust_scaled
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.settings import Settings
-from featureaudit.table import AuditTable
-from featureaudit.threads import column_map
+from featureaudit.vocab.evidence import Evidence, Skip
 
 MIN_SIDE = THRESHOLDS.min_side  # fewer held-out or training rows than this: cannot tell
 __all__ = ["Fitscope", "FitscopeThresholds"]

@@ -24,8 +24,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence
-from featureaudit.io import numeric_view
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
 from featureaudit.probes.fitscope._precision import (
     largest_value_error,
@@ -33,7 +33,7 @@ from featureaudit.probes.fitscope._precision import (
     value_error,
 )
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS
-from featureaudit.table import AuditTable
+from featureaudit.vocab.evidence import Evidence
 
 __all__ = ["decorrelated"]
 

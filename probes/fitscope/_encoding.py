@@ -14,9 +14,9 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence
-from featureaudit.io import numeric_view
-from featureaudit.table import AuditTable
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
+from featureaudit.vocab.evidence import Evidence
 
 SMOOTHING = ("auto", 0.0, 1.0, 10.0, 20.0)
 MAX_LEVELS = 5000

@@ -6,9 +6,9 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import NamedTuple
 
-from featureaudit.evidence import Evidence
-from featureaudit.levels import Level
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
+from featureaudit.vocab.evidence import Evidence
+from featureaudit.vocab.levels import Level
 
 
 class FitFigures(NamedTuple):

@@ -22,10 +22,10 @@ import os
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence
-from featureaudit.io import numeric_view
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
 from featureaudit.probes.fitscope._fingerprint import verdict as _verdict
-from featureaudit.table import AuditTable
+from featureaudit.vocab.evidence import Evidence
 
 __all__ = ["onehot_groups", "onehot"]
 

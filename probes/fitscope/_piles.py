@@ -58,7 +58,7 @@ def piles(
     grid = _decimals(_spread_sample(uniq[counts < floor]))
     coarse = grid is not None and grid <= th.pile_grid_decimals
     for i in candidates[: 10 * th.max_piles]:
-        if coarse and np.round(uniq[i], grid) != uniq[i]:
+        if grid is not None and coarse and np.round(uniq[i], grid) != uniq[i]:
             # off the grid every other value sits on: no natural tie holds it (a mean filled
             # into whole numbers), so every row of it is a pile
             out.append((float(uniq[i]), int(counts[i]), 1.0))

@@ -23,9 +23,11 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.io import numeric_view
-from featureaudit.levels import Level
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.kit.sample import content_keys
+from featureaudit.load.io import numeric_view
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
 from featureaudit.probes.lineage._groups import group_figures, grouping_codes
 from featureaudit.probes.lineage._rules import (
     GROUP_RULES,
@@ -47,10 +49,8 @@ from featureaudit.probes.lineage._words import (
     text_sentence,
     window_sentence,
 )
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.sample import content_keys
-from featureaudit.settings import Settings
-from featureaudit.table import AuditTable
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.levels import Level
 
 __all__ = ["Lineage", "LineageThresholds"]
 

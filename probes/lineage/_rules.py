@@ -11,8 +11,8 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
-from featureaudit.levels import Level
 from featureaudit.probes.lineage._thresholds import LineageThresholds
+from featureaudit.vocab.levels import Level
 
 __all__ = ["Rule", "decide", "WINDOW_RULES", "SCALE_RULES", "GROUP_RULES", "TEXT_RULES"]
 

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from featureaudit.table import AuditTable
+from featureaudit.load.table import AuditTable
 
 __all__ = ["Sequence", "sequence", "order_source"]
 

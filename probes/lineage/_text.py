@@ -21,7 +21,7 @@ from sklearn.feature_extraction.text import CountVectorizer
 from sklearn.linear_model import LogisticRegression, Ridge
 from sklearn.metrics import r2_score, roc_auc_score
 
-from featureaudit.io import numeric_view
+from featureaudit.load.io import numeric_view
 from featureaudit.probes.lineage._thresholds import LineageThresholds
 
 __all__ = ["TextFigures", "text_figures", "is_free_text"]
@@ -48,8 +48,8 @@ class TextFigures:
 
 
 def is_free_text(s: pd.Series, th: LineageThresholds) -> bool:
-    """Prose (``featureaudit.prose``) whose values are at least half distinct."""
-    from featureaudit.prose import looks_like_prose
+    """Prose (``featureaudit.load.prose``) whose values are at least half distinct."""
+    from featureaudit.load.prose import looks_like_prose
 
     present = s.dropna()
     return (

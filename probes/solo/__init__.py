@@ -68,14 +68,19 @@ row position at high from 7 and 13 of 22 runs to 0.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from typing import Any
 
 import numpy as np
 from scipy.special import ndtri
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.io import numeric_view
-from featureaudit.levels import Level
-from featureaudit.oof import CellScore, Target, make_target, score_bins
+from featureaudit.kit.oof import CellScore, Target, make_target, score_bins
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.kit.sample import content_keys, order_keys
+from featureaudit.kit.stats import Bins, bin_codes
+from featureaudit.load.io import numeric_view
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import column_map
 from featureaudit.probes.solo._detail import common_detail
 from featureaudit.probes.solo._order import (
     followed_feature,
@@ -100,12 +105,8 @@ from featureaudit.probes.solo._thresholds import (
     SoloThresholds,
     measurable,
 )
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.sample import content_keys, order_keys
-from featureaudit.settings import Settings
-from featureaudit.stats import Bins, bin_codes
-from featureaudit.table import AuditTable
-from featureaudit.threads import column_map
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.levels import Level
 
 
 def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Level, str]:
@@ -797,7 +798,7 @@ def _peer_figures(
     )  # the reference
     fits = _Fits(fit_inp, t, settings)
     rows = min(len(t.rows), settings.reference_rows)
-    ref = {"power": fits(keep).power, "rows": int(rows), "columns": int(keep.size)}
+    ref: dict[str, Any] = {"power": fits(keep).power, "rows": int(rows), "columns": int(keep.size)}
     counts = np.bincount(inp.y_codes.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
     smallest = int(counts[counts > 0].min()) if counts.size else None
     p = _Peers(t, features, scores, bins, shares, ref, small, fits, keep, power, smallest)

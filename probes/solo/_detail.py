@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from featureaudit.oof import CellScore, Target
-from featureaudit.stats import Bins, auc_from_cells
+from featureaudit.kit.oof import CellScore, Target
+from featureaudit.kit.stats import Bins, auc_from_cells
 
 
 def _bin_detail(score: CellScore, b: Bins, t: Target) -> dict:

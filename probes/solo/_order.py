@@ -14,10 +14,10 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.io import numeric_view
-from featureaudit.oof import CellScore, Target
-from featureaudit.sample import content_keys
-from featureaudit.table import AuditTable
+from featureaudit.kit.oof import CellScore, Target
+from featureaudit.kit.sample import content_keys
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
 
 FOLLOW_RHO = 0.9  # common practice, no source: rank correlation of a near-monotone relation
 POWER_MARGIN = 0.05  # the feature explains the id's power when it has this much of it or more

@@ -15,8 +15,8 @@ from typing import Any
 import numpy as np
 from scipy.special import ndtri
 
-from featureaudit.models import lgbm_params
-from featureaudit.threads import limited_blas, model_threads
+from featureaudit.kit.models import lgbm_params
+from featureaudit.load.threads import limited_blas, model_threads
 
 __all__ = [
     "PeerInput",

@@ -12,13 +12,13 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass
 
-from featureaudit.levels import Level
 from featureaudit.probes.solo._thresholds import (
     THRESHOLDS,
     ProxyFigures,
     SoloThresholds,
     lift_class,
 )
+from featureaudit.vocab.levels import Level
 
 __all__ = ["CAPS", "RULES", "Cap", "Facts", "Rule", "decide", "facts"]
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 
 @dataclass(frozen=True)

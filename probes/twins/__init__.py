@@ -26,17 +26,17 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.hashing import column_codes, member, row_hashes
-from featureaudit.levels import Ladder, Level
+from featureaudit.kit.hashing import column_codes, member, row_hashes
+from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
+from featureaudit.kit.splits import SIMULATED_HELDOUT_SHARE
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
 from featureaudit.probes.twins._interpolated import interpolated_rows
 from featureaudit.probes.twins._nearcopy import near_copies, row_labels
 from featureaudit.probes.twins._rules import CopyFigures, decide_copies
 from featureaudit.probes.twins._unexplained import expected_partners, one_column_apart
-from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
-from featureaudit.settings import Settings
-from featureaudit.splits import SIMULATED_HELDOUT_SHARE
-from featureaudit.table import AuditTable
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.levels import Ladder, Level
 
 
 @dataclass(frozen=True)

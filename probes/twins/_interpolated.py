@@ -24,11 +24,11 @@ from typing import Any
 import numpy as np
 from sklearn.neighbors import NearestNeighbors
 
-from featureaudit.hashing import robust_params
-from featureaudit.io import numeric_view
+from featureaudit.kit.hashing import robust_params
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import openmp_threads
 from featureaudit.probes.twins._nearcopy import row_labels
-from featureaudit.table import AuditTable
-from featureaudit.threads import openmp_threads
 
 # A natural row lies within 0.1 % of a segment's length off it, in 3 or more continuous
 # dimensions, essentially never (chance ~ 0.001^(d-1) per pair); rounding of stored values

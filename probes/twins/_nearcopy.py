@@ -10,9 +10,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from featureaudit.hashing import column_codes, robust_params
-from featureaudit.io import numeric_view
-from featureaudit.table import AuditTable
+from featureaudit.kit.hashing import column_codes, robust_params
+from featureaudit.load.io import numeric_view
+from featureaudit.load.table import AuditTable
 
 NEAR_FRACTION = 0.1  # a near copy lies closer than 10 % of the median train-train NN distance
 BANDS, BAND_DIMS, CELL = 6, 6, 0.5

@@ -11,7 +11,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, NamedTuple
 
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 if TYPE_CHECKING:
     from featureaudit.probes.twins import TwinsThresholds

@@ -20,7 +20,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.hashing import column_codes
+from featureaudit.kit.hashing import column_codes
 
 __all__ = ["expected_partners"]
 

@@ -338,8 +338,8 @@ def test_a_column_too_short_to_judge_says_so():
 
 
 def test_fit_level_decisions():
-    from featureaudit.levels import Level
     from featureaudit.probes.fitscope._fingerprint import fit_level
+    from featureaudit.vocab.levels import Level
 
     assert fit_level(False, False, True, True) is None
     assert fit_level(True, False, True, True) == (Level.HIGH, "all rows")
@@ -362,8 +362,8 @@ def test_pile_excess_against_a_hand_computed_poisson_tail():
 
 
 def test_describe_quotes_the_thresholds():
+    from featureaudit.load.settings import Settings
     from featureaudit.probes.fitscope import Fitscope
-    from featureaudit.settings import Settings
 
     text = Fitscope.describe(Settings())
     assert "0.5%" in text and "Poisson" in text and "high" in text and "critical" in text
@@ -792,8 +792,8 @@ def test_storage_error_of_float32_spellings_and_of_columns_with_gaps():
 
 
 def test_each_fit_rule_alone():
-    from featureaudit.levels import Level
     from featureaudit.probes.fitscope._fingerprint import FIT_RULES, FitFigures
+    from featureaudit.vocab.levels import Level
 
     cases = {
         "no split": FitFigures(True, False, True, False),

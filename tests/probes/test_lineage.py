@@ -13,8 +13,8 @@ from sklearn.datasets import load_breast_cancer
 from sklearn.preprocessing import TargetEncoder
 
 import featureaudit as fa
-from featureaudit.findings import droplist
-from featureaudit.levels import Level
+from featureaudit.judge.findings import droplist
+from featureaudit.judge.remedy import column_remedy
 from featureaudit.probes.lineage._rules import (
     GROUP_RULES,
     SCALE_RULES,
@@ -23,7 +23,7 @@ from featureaudit.probes.lineage._rules import (
     decide,
 )
 from featureaudit.probes.lineage._thresholds import THRESHOLDS
-from featureaudit.remedy import column_remedy
+from featureaudit.vocab.levels import Level
 
 LATER = "computed_from_later_rows"
 
@@ -250,7 +250,7 @@ def test_free_text_written_from_the_outcome_names_its_phrases():
 
 
 def test_free_text_is_not_guessed_an_identifier():
-    from featureaudit.dictionary import guess_role
+    from featureaudit.load.dictionary import guess_role
 
     d = _notes()
     assert guess_role(d["note"], "note") == "feature"

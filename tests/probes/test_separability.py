@@ -72,7 +72,7 @@ def test_without_a_split_the_random_and_time_splits_are_simulated(breast_cancer)
 
 @pytest.mark.parametrize("seed", [0, 1])
 def test_sample_size_setting_is_honoured_and_reported(breast_cancer, seed):
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     rng = np.random.default_rng(seed)
     frame = breast_cancer.assign(
@@ -118,8 +118,8 @@ def test_verdict_does_not_depend_on_row_order_or_on_test_files(breast_cancer):
 
 
 def test_level_functions_are_pure():
-    from featureaudit.levels import Level
     from featureaudit.probes.separability import identifier_level, simulated_level, split_level
+    from featureaudit.vocab.levels import Level
 
     # floors: common practice, no source (declared in SeparabilityThresholds)
     assert split_level(0.90, 10.0) == Level.CRITICAL

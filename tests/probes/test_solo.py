@@ -216,7 +216,7 @@ def test_evidence_carries_what_a_reviewer_needs(breast_cancer):
 
 
 # Pure decision functions: each case below is the rule in the probe's docstring applied by hand.
-from featureaudit.levels import Level  # noqa: E402
+from featureaudit.load.settings import Settings  # noqa: E402
 from featureaudit.probes.solo import (  # noqa: E402
     THRESHOLDS,
     ProxyFigures,
@@ -224,7 +224,7 @@ from featureaudit.probes.solo import (  # noqa: E402
     decide_order,
     decide_proxy,
 )
-from featureaudit.settings import Settings  # noqa: E402
+from featureaudit.vocab.levels import Level  # noqa: E402
 
 
 def test_decide_proxy_share_rule_needs_an_effect_the_peers_can_tell():
@@ -454,7 +454,7 @@ def test_decide_proxy_share_is_judged_against_the_table():
 def test_the_reference_sample_is_chosen_by_content_not_file_order(breast_cancer):
     # scikit-learn's breast-cancer data with a reference sample of 200 of its 569 rows: the
     # same rows in another file order give the very same peer figures and levels
-    from featureaudit.settings import Settings
+    from featureaudit.load.settings import Settings
 
     settings = Settings(reference_rows=200)
     shuffled = breast_cancer.sample(frac=1, random_state=3).reset_index(drop=True)

@@ -3,9 +3,9 @@ the first that holds, with the level and name the table must give."""
 
 import pytest
 
-from featureaudit.levels import Level
 from featureaudit.probes.solo import ProxyFigures, decide_proxy
 from featureaudit.probes.solo._rules import CAPS, RULES, decide, facts
+from featureaudit.vocab.levels import Level
 
 # a weak column its peers explain beyond the target: no rule but the last holds
 BASE = dict(

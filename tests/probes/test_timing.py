@@ -7,10 +7,10 @@ import statsmodels.api as sm
 
 import featureaudit as fa
 from featureaudit.demo import demo_paths
-from featureaudit.dictionary import parse_dictionary
+from featureaudit.load.dictionary import parse_dictionary
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import build_table
 from featureaudit.probes.timing import Timing
-from featureaudit.settings import Settings
-from featureaudit.table import build_table
 
 HIGH = ("high", "critical")
 
@@ -330,8 +330,8 @@ def test_levels_do_not_depend_on_row_order(macrodata):
 
 # --- the pure decisions ----------------------------------------------------------------------
 def test_share_and_column_levels():
-    from featureaudit.levels import Level
     from featureaudit.probes.timing import column_level, share_level
+    from featureaudit.vocab.levels import Level
 
     assert share_level(0.005, 0.01) == Level.NONE and share_level(0.015, 0.01) == Level.LOW
     assert share_level(0.02, 0.01) == Level.MEDIUM and share_level(0.10, 0.01) == Level.HIGH

@@ -7,7 +7,7 @@ from sklearn.datasets import load_digits, load_iris
 
 import featureaudit as fa
 from featureaudit.demo import demo_paths
-from featureaudit.hashing import row_hashes
+from featureaudit.kit.hashing import row_hashes
 
 HIGH = ("high", "critical")
 
@@ -199,8 +199,8 @@ def test_natural_copies_of_a_group_split_stay_below_medium_and_planted_copies_ar
 
 
 def test_copy_excess_matches_a_hand_count_and_levels_are_pure():
-    from featureaudit.levels import Level
     from featureaudit.probes.twins import THRESHOLDS, copy_excess, copy_level, entity_level
+    from featureaudit.vocab.levels import Level
 
     # 100 training rows, all distinct; 20 held-out rows of which 10 copy a training row:
     # random parts of the training rows never find a copy, so the excess is 10/20 exactly
@@ -560,9 +560,9 @@ def test_readings_that_repeat_naturally_stay_below_high(name, split):
 
 
 def test_each_copy_rule_alone():
-    from featureaudit.levels import Level
     from featureaudit.probes.twins import THRESHOLDS as T
     from featureaudit.probes.twins._rules import COPY_RULES, CopyFigures, decide_copies
+    from featureaudit.vocab.levels import Level
 
     # one figure set per rule, in the table's order: each is decided by its own rule
     cases = {

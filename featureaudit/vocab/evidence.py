@@ -12,8 +12,8 @@ from typing import Any
 
 import numpy as np
 
-from featureaudit.kinds import KINDS
-from featureaudit.levels import LEVEL_NAMES, Level
+from featureaudit.vocab.kinds import KINDS
+from featureaudit.vocab.levels import LEVEL_NAMES, Level
 
 __all__ = ["Evidence", "ColumnVerdict", "Skip", "clean_json"]
 

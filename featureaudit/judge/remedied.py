@@ -16,11 +16,11 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from featureaudit.levels import Level
+from featureaudit.vocab.levels import Level
 
 if TYPE_CHECKING:
-    from featureaudit.impact import _Bench
-    from featureaudit.table import AuditTable
+    from featureaudit.judge.impact import _Bench
+    from featureaudit.load.table import AuditTable
 
 __all__ = ["refit_column", "measure_remedied", "SPLIT_FLOOR"]
 
@@ -31,7 +31,7 @@ _EARLY = 0.8  # ordered by time: fitted on the earliest 80 % of the sample, scor
 def _training_values(table: AuditTable, column: str) -> np.ndarray:
     """The column's finite values over every training row of the table (not the sample), so
     that an affine refit is the one a user would get."""
-    from featureaudit.matrix import order_free_codes
+    from featureaudit.kit.matrix import order_free_codes
 
     v = order_free_codes(table.frame[column])
     train = np.ones(len(v), bool) if table.heldout is None else ~table.heldout
@@ -151,7 +151,7 @@ def _entity_codes(table: AuditTable, rows: np.ndarray) -> np.ndarray:
 
 
 def _predict(bench: _Bench, x: np.ndarray, fit: np.ndarray, scored: np.ndarray) -> np.ndarray:
-    from featureaudit.impact import _fit_predict
+    from featureaudit.judge.impact import _fit_predict
 
     if x.shape[1] == 0:  # every column dropped: the training rows' prior
         if bench.task == "numeric":
@@ -200,7 +200,7 @@ def _twins(table: AuditTable, bench: _Bench, scored: np.ndarray) -> np.ndarray:
     """Scored rows with an exact copy (over the audited columns) among the other sample rows."""
     import pandas as pd
 
-    from featureaudit.hashing import member, row_hashes
+    from featureaudit.kit.hashing import member, row_hashes
 
     h = row_hashes(table.frame.iloc[bench.rows], bench.columns)
     others = np.setdiff1d(np.arange(len(bench.rows)), scored)
@@ -214,7 +214,7 @@ def measure_remedied(
 ) -> dict[str, Any] | None:
     """``impact.remedied``: the score with every remedy applied, its 95 % interval, and in
     words what was changed; ``None`` when too few rows are left to score."""
-    from featureaudit.impact import BOOTSTRAP, MIN_SCORED, _metric, _quantiles, _r, _Scored
+    from featureaudit.judge.impact import BOOTSTRAP, MIN_SCORED, _metric, _quantiles, _r, _Scored
 
     plan, x = _plan(table, bench, columns, found)
     scored, pred, scheme = _scheme(table, bench, x, plan)

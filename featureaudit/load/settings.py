@@ -12,8 +12,8 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.inputs import TASKS, shown
-from featureaudit.levels import LEVEL_NAMES, Level
+from featureaudit.load.inputs import TASKS, shown
+from featureaudit.vocab.levels import LEVEL_NAMES, Level
 
 __all__ = ["Settings", "read_config", "config_keys", "check_counts", "shown", "TASKS"]
 
@@ -30,13 +30,13 @@ MAX_JOBS = 1024
 
 def config_keys() -> tuple[str, ...]:
     """Keys of the config file: every scan input, with '-' written as '_', then the settings."""
-    from featureaudit.inputs import input_specs
+    from featureaudit.load.inputs import input_specs
 
     return tuple(s.config_key for s in input_specs()) + Settings.names()
 
 
 def _default_jobs() -> int:
-    from featureaudit.threads import available_cpus
+    from featureaudit.load.threads import available_cpus
 
     return available_cpus()
 
@@ -69,7 +69,7 @@ def _tolerance(value: Any) -> str | None:
         return None
     if value == "auto":
         return value
-    from featureaudit.durations import parse_duration
+    from featureaudit.load.durations import parse_duration
 
     return value if parse_duration(value, what="time_tolerance") >= pd.Timedelta(0) else None
 

@@ -9,8 +9,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.io import numeric_view
-from featureaudit.sample import NAN_BITS, number_bits
+from featureaudit.kit.sample import NAN_BITS, number_bits
+from featureaudit.load.io import numeric_view
 
 __all__ = ["row_hashes", "column_codes", "robust_params", "member"]
 
@@ -47,7 +47,7 @@ def _mix(h: np.ndarray, c: np.ndarray) -> np.ndarray:
 
 def row_hashes(frame: pd.DataFrame, columns: list[str], n_jobs: int = 1) -> np.ndarray:
     """One uint64 per row over ``columns``; rows equal in every column get equal hashes."""
-    from featureaudit.threads import column_imap
+    from featureaudit.load.threads import column_imap
 
     h = np.full(len(frame), np.uint64(0xCBF29CE484222325), dtype=np.uint64)
     with np.errstate(over="ignore"):

@@ -14,8 +14,8 @@ from pathlib import Path
 from typing import Any
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.kinds import KINDS
-from featureaudit.levels import Level
+from featureaudit.vocab.kinds import KINDS
+from featureaudit.vocab.levels import Level
 
 __all__ = ["Acceptance", "SPLIT", "read_accepted", "apply_accepted", "is_accepted"]
 

@@ -11,13 +11,13 @@ import numpy as np
 
 from featureaudit._version import __version__
 from featureaudit.errors import FeatureAuditError, ProbeFailed, TooFewRows
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.findings import Findings, build_document
-from featureaudit.ranker import rank
-from featureaudit.registry import Probe, registered, thresholds_dict
-from featureaudit.settings import Settings, check_counts
-from featureaudit.table import AuditTable
-from featureaudit.threads import limited_blas
+from featureaudit.judge.findings import Findings, build_document
+from featureaudit.judge.ranker import rank
+from featureaudit.kit.registry import Probe, registered, thresholds_dict
+from featureaudit.load.settings import Settings, check_counts
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import limited_blas
+from featureaudit.vocab.evidence import Evidence, Skip
 
 if TYPE_CHECKING:
     from featureaudit.code.audit import CodeAudit
@@ -56,7 +56,7 @@ def run_audit(
     evidence: list[Evidence] = []
     skipped: list[Skip] = []
     warnings = list(table.warnings)
-    from featureaudit.timing_gaps import timing_gap_warning
+    from featureaudit.judge.timing_gaps import timing_gap_warning
 
     warnings.extend(timing_gap_warning(table))
     timings: dict[str, float] = {}
@@ -149,9 +149,9 @@ def _audit_pairs(
     tag what they found with the pair; nothing when the table is a single pair."""
     from dataclasses import replace
 
-    from featureaudit.kinds import PAIR_KINDS
-    from featureaudit.registry import PAIRS
-    from featureaudit.splits import pair_views
+    from featureaudit.kit.registry import PAIRS
+    from featureaudit.kit.splits import pair_views
+    from featureaudit.vocab.kinds import PAIR_KINDS
 
     # What a pair's view contributes: the kinds the kinds table judges per pair (the findings
     # about the two sides, and fits on all rows). Everything else (a column's own power, its
@@ -245,9 +245,9 @@ def _after_rank(
     warnings: list[str],
 ) -> tuple[dict | None, float]:
     """Set each finding's ``remedy`` and each column's ``impact``; return the impact block."""
-    from featureaudit.evidence import clean_json
-    from featureaudit.impact import measure_impact
-    from featureaudit.remedy import column_remedy, dataset_remedy
+    from featureaudit.judge.impact import measure_impact
+    from featureaudit.judge.remedy import column_remedy, dataset_remedy
+    from featureaudit.vocab.evidence import clean_json
 
     start = time.perf_counter()
     for c in columns:

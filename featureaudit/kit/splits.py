@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from featureaudit.table import AuditTable
+from featureaudit.load.table import AuditTable
 
 __all__ = ["SIMULATED_HELDOUT_SHARE", "PairView", "heldout_order", "pair_views", "restrict"]
 

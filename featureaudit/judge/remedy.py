@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from typing import Any
 
-from featureaudit.kinds import KEEP_REMEDIES, REMEDIES, REMEDY_WORDS, kind
-from featureaudit.levels import Level
+from featureaudit.vocab.kinds import KEEP_REMEDIES, REMEDIES, REMEDY_WORDS, kind
+from featureaudit.vocab.levels import Level
 
 __all__ = ["REMEDIES", "column_remedy", "dataset_remedy", "evidence_remedy", "remedy_words"]
 
@@ -46,7 +46,7 @@ def column_remedy(column: dict[str, Any]) -> str | None:
 def evidence_remedy(e: dict[str, Any]) -> str:
     """The remedy one piece of evidence calls for: its probe's declared remedy for the kind,
     else the kinds table's."""
-    from featureaudit.registry import registered
+    from featureaudit.kit.registry import registered
 
     probe = registered().get(str(e.get("probe")))
     declared = probe.capabilities.remedies.get(e.get("kind", "")) if probe else None

@@ -16,7 +16,7 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 
-from featureaudit.io import numeric_view
+from featureaudit.load.io import numeric_view
 
 __all__ = [
     "SampleSketch",

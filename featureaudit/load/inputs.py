@@ -56,7 +56,7 @@ def _table(value: Any) -> bool:
 def _dictionary(value: Any) -> bool:
     import pandas as pd
 
-    from featureaudit.dictionary import DataDictionary
+    from featureaudit.load.dictionary import DataDictionary
 
     return isinstance(value, DataDictionary | pd.DataFrame) or _path(value)
 
@@ -66,7 +66,7 @@ def _task(value: Any) -> bool:
 
 
 def _level(value: Any) -> bool:
-    from featureaudit.levels import LEVEL_NAMES
+    from featureaudit.vocab.levels import LEVEL_NAMES
 
     return isinstance(value, str) and value.strip().lower() in LEVEL_NAMES
 

@@ -5,8 +5,8 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from featureaudit.levels import Level
-from featureaudit.names import quote_name
+from featureaudit.vocab.levels import Level
+from featureaudit.vocab.names import quote_name
 
 __all__ = ["outcome_lines", "gate_reason", "reached"]
 
@@ -21,8 +21,8 @@ def outcome_lines(doc: dict[str, Any], out_dir: Path) -> list[str]:
     """The lines `scan` prints on stdout: the table, the headline score as given and with the
     remedies applied, the verdict, the suspects (columns, split, code), what could not be
     judged, the drop and refit lists and where the report is."""
-    from featureaudit.findings import Findings, droplist, refit_list
-    from featureaudit.report import impact_line, undecided, verdict_line
+    from featureaudit.judge.findings import Findings, droplist, refit_list
+    from featureaudit.render.report import impact_line, undecided, verdict_line
 
     d = doc["dataset"]
     target = (
@@ -93,7 +93,7 @@ def gate_reason(
                 f"{'s' * (len(hits) != 1)}: {shown}"
             )
     if fail_at_impact is not None:
-        from featureaudit.impact import largest_lift
+        from featureaudit.judge.impact import largest_lift
 
         found = largest_lift(doc)
         if found is not None and found[0] > float(fail_at_impact):

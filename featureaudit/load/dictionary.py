@@ -16,10 +16,10 @@ from pathlib import Path
 
 import pandas as pd
 
-from featureaudit.durations import parse_duration
 from featureaudit.errors import DictionaryError, DurationError, InputFileError
-from featureaudit.names import quote_name, unquote_name
-from featureaudit.prose import looks_like_prose
+from featureaudit.load.durations import parse_duration
+from featureaudit.load.prose import looks_like_prose
+from featureaudit.vocab.names import quote_name, unquote_name
 
 __all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
 
@@ -75,7 +75,7 @@ def read_dictionary(path: str | Path, *, encoding: str | None = None) -> DataDic
     The text is read as its byte-order mark says (UTF-8, UTF-16), else as UTF-8, else as
     ``encoding`` (the ``--encoding`` flag).
     """
-    from featureaudit.io import check_encoding, decode_text
+    from featureaudit.load.io import check_encoding, decode_text
 
     p = Path(path)
     if p.is_dir():

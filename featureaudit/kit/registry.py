@@ -8,10 +8,10 @@ from enum import IntEnum
 from types import MappingProxyType
 from typing import Any, ClassVar
 
-from featureaudit.evidence import Evidence, Skip
-from featureaudit.kinds import KINDS, REMEDIES
-from featureaudit.settings import Settings
-from featureaudit.table import AuditTable
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.vocab.evidence import Evidence, Skip
+from featureaudit.vocab.kinds import KINDS, REMEDIES
 
 __all__ = [
     "PAIRS",
@@ -164,7 +164,7 @@ def _load_plugins() -> None:
 
 def thresholds_dict(thresholds: Any) -> dict[str, Any]:
     """A probe's thresholds as plain JSON values; a ladder as ``{level: floor}``."""
-    from featureaudit.levels import Ladder
+    from featureaudit.vocab.levels import Ladder
 
     out: dict[str, Any] = {}
     for f in fields(thresholds):

@@ -37,7 +37,7 @@ def md_code(value: Any, *, cell: bool = True) -> str:
     one backtick longer than the longest run inside, padded when the text starts or ends with
     a backtick or a space; ``|`` escaped when the span sits in a table cell (GFM removes that
     backslash before the span is read)."""
-    from featureaudit.names import quote_name
+    from featureaudit.vocab.names import quote_name
 
     text = one_line(quote_name("" if value is None else str(value)))
     runs = [len(r) for r in re.findall(r"`+", text)]

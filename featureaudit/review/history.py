@@ -16,8 +16,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from featureaudit.errors import InputFileError
-from featureaudit.findings import Findings, load_findings
-from featureaudit.levels import Level
+from featureaudit.judge.findings import Findings, load_findings
+from featureaudit.vocab.levels import Level
 
 __all__ = [
     "Run",
@@ -235,7 +235,7 @@ def _radius(i: int, n: int) -> float:
 def _undecided(runs: list[Run]) -> set[tuple[int, str]]:
     """(run index, column) where the column is at none because the probe that raised it in
     the run before could not judge it: shown as "cannot tell", not as a level."""
-    from featureaudit.findings import cannot_tell_probes, raised_by
+    from featureaudit.judge.findings import cannot_tell_probes, raised_by
 
     out = set()
     for i in range(1, len(runs)):

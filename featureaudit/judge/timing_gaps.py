@@ -6,7 +6,7 @@ omission than a choice; the dossier lists them as "timing not documented".
 
 from __future__ import annotations
 
-from featureaudit.table import AuditTable
+from featureaudit.load.table import AuditTable
 
 __all__ = ["timing_gap_warning"]
 

@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from featureaudit.evidence import ColumnVerdict, Evidence
-from featureaudit.levels import Level
-from featureaudit.table import AuditTable
+from featureaudit.load.table import AuditTable
+from featureaudit.vocab.evidence import ColumnVerdict, Evidence
+from featureaudit.vocab.levels import Level
 
 __all__ = ["rank"]
 

@@ -16,11 +16,11 @@ from typing import Any
 
 import numpy as np
 
-from featureaudit.levels import Level
-from featureaudit.models import lgbm_params
-from featureaudit.settings import Settings
-from featureaudit.table import AuditTable
-from featureaudit.threads import limited_blas, model_threads
+from featureaudit.kit.models import lgbm_params
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.load.threads import limited_blas, model_threads
+from featureaudit.vocab.levels import Level
 
 __all__ = [
     "measure_impact",
@@ -55,7 +55,7 @@ def _fit_predict(
 ) -> np.ndarray:  # noqa: ANN001
     import lightgbm as lgb
 
-    # threads by the rows this fit sees, not the sample's size (see featureaudit.threads)
+    # threads by the rows this fit sees, not the sample's size (see featureaudit.load.threads)
     params = {**params, "n_jobs": model_threads(params["n_jobs"], len(x_tr))}
     if task == "numeric":
         model = lgb.LGBMRegressor(**params).fit(x_tr, y_tr, sample_weight=weight)
@@ -86,7 +86,7 @@ class _Bench:
     """The sample, its split into fitted and scored rows, and the reference model."""
 
     def __init__(self, table: AuditTable, settings: Settings, columns: list[str]) -> None:
-        from featureaudit.matrix import feature_matrix
+        from featureaudit.kit.matrix import feature_matrix
 
         self.table = table
         self.task = table.task or "binary"
@@ -231,12 +231,12 @@ def column_change(
     bench: _Bench, base: _Scored, column: str, how: str, verdict: dict | None = None
 ) -> tuple[_Scored, dict]:
     """One column corrected (removed, or refitted on the training rows as
-    :func:`featureaudit.remedied.refit_column` does): the corrected predictions and the
+    :func:`featureaudit.judge.remedied.refit_column` does): the corrected predictions and the
     column's ``impact`` entry. Kept in one function so that a measurement made elsewhere can
     replace it."""
     j = bench.columns.index(column)
     if how == "refit":
-        from featureaudit.remedied import refit_column
+        from featureaudit.judge.remedied import refit_column
 
         x = bench.x.copy()
         new, text = refit_column(bench.table, x[:, j], verdict or {"column": column})
@@ -381,7 +381,7 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         "by_finding": by,
         "negligible_below": NEGLIGIBLE,
     }
-    from featureaudit.remedied import measure_remedied
+    from featureaudit.judge.remedied import measure_remedied
 
     block["remedied"] = measure_remedied(table, bench, columns, dataset_findings)
     return block, per_column
@@ -433,7 +433,7 @@ def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN
 def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict):  # noqa: ANN202
     kind = f["kind"]
     if kind == "duplicate_rows_across_split":
-        from featureaudit.hashing import member, row_hashes
+        from featureaudit.kit.hashing import member, row_hashes
 
         h = row_hashes(table.frame.iloc[bench.rows], bench.columns)
         if bench.heldout_mode:

@@ -9,8 +9,8 @@ from pathlib import Path
 from typing import Any
 
 from featureaudit.errors import InputFileError
-from featureaudit.evidence import clean_json
-from featureaudit.levels import Level
+from featureaudit.vocab.evidence import clean_json
+from featureaudit.vocab.levels import Level
 
 __all__ = [
     "SCHEMA",
@@ -132,7 +132,7 @@ def load_findings(path: str | Path) -> Findings:
 
 def _entry_problem(entry: object, required: str) -> str | None:
     """What is wrong with one column or dataset finding read from a file, or None."""
-    from featureaudit.levels import LEVEL_NAMES
+    from featureaudit.vocab.levels import LEVEL_NAMES
 
     if not isinstance(entry, dict):
         return f"is a {type(entry).__name__}, not an object"

@@ -14,8 +14,6 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from featureaudit.dictionary import DataDictionary, guess_role, parse_dictionary, read_dictionary
-from featureaudit.durations import parse_duration
 from featureaudit.errors import (
     ColumnNotFound,
     DictionaryError,
@@ -23,10 +21,17 @@ from featureaudit.errors import (
     SettingError,
     TargetError,
 )
-from featureaudit.inputs import Inputs
-from featureaudit.io import UNPARSED_DATES, as_frame, normalise_frame
-from featureaudit.ordering import order_ranks
-from featureaudit.times import as_datetime
+from featureaudit.load.dictionary import (
+    DataDictionary,
+    guess_role,
+    parse_dictionary,
+    read_dictionary,
+)
+from featureaudit.load.durations import parse_duration
+from featureaudit.load.inputs import Inputs
+from featureaudit.load.io import UNPARSED_DATES, as_frame, normalise_frame
+from featureaudit.load.ordering import order_ranks
+from featureaudit.load.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
 

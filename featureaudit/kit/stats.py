@@ -8,7 +8,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from featureaudit.io import numeric_view
+from featureaudit.load.io import numeric_view
 
 __all__ = [
     "bin_codes",

@@ -6,8 +6,8 @@ from __future__ import annotations
 import json
 from typing import Any
 
-from featureaudit.findings import DiffLine, Findings
-from featureaudit.markdown import md_code, md_text
+from featureaudit.judge.findings import DiffLine, Findings
+from featureaudit.render.markdown import md_code, md_text
 
 __all__ = ["FORMATS", "format_diff", "diff_context"]
 

@@ -9,10 +9,10 @@ from typing import Any
 import jinja2
 from markupsafe import Markup, escape
 
-from featureaudit.findings import Findings, droplist, refit_list
-from featureaudit.levels import Level
-from featureaudit.markdown import md_code, md_text
-from featureaudit.names import quote_name
+from featureaudit.judge.findings import Findings, droplist, refit_list
+from featureaudit.render.markdown import md_code, md_text
+from featureaudit.vocab.levels import Level
+from featureaudit.vocab.names import quote_name
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
 
@@ -59,12 +59,12 @@ def _env() -> jinja2.Environment:
     env.filters["name"] = breakable
     env.globals["code"] = md_code
     env.filters["words"] = statistic_words
-    from featureaudit import charts
+    from featureaudit.render import charts
 
     for name in charts.__all__:
         env.globals[name] = getattr(charts, name)
     env.globals["rank"] = {lv.label: int(lv) for lv in Level}
-    from featureaudit.remedy import remedy_words
+    from featureaudit.judge.remedy import remedy_words
 
     env.globals.update(
         impact_line=impact_line, impact_words=impact_words, remedy_words=remedy_words
@@ -228,11 +228,11 @@ def undocumented_timing(doc: dict[str, Any]) -> list[str]:
     return []
 
 
-TIMING_NOTE = "timing not documented: "  # the prefix featureaudit.timing_gaps writes
+TIMING_NOTE = "timing not documented: "  # the prefix featureaudit.judge.timing_gaps writes
 
 
 def render_dossier(findings: Findings, *, history: list[Findings] | None = None) -> str:
-    from featureaudit.history import marks, series, trend_svg
+    from featureaudit.review.history import marks, series, trend_svg
 
     doc = findings.document
     runs = [*(history or []), findings]

@@ -15,7 +15,7 @@ import numpy as np
 from scipy.special import ndtri
 from scipy.stats import rankdata
 
-from featureaudit.stats import (
+from featureaudit.kit.stats import (
     auc_from_cells,
     hanley_mcneil_se,
     null_auc_se,
