@@ -28,7 +28,7 @@ from featureaudit.errors import FeatureAuditError
 from featureaudit.names import quote_name
 from featureaudit.settings import Settings
 
-REPORT = {"dossier.html", "findings.json", "droplist.txt", "summary.md"}
+REPORT = {"dossier.html", "findings.json", "droplist.txt", "summary.md", "findings.sarif"}
 NAMES = st.sampled_from(
     ["a", "b", "1", "", " leak ", "two\nlines", "café", "x,y", 'q"t', "id", "when", "split"]
 )
