@@ -303,7 +303,7 @@ def impact_bars(block: dict | None) -> Markup | str:
             f'<circle cx="{x(value):.1f}" cy="{y}" r="4.5" fill="{INK}"><title>{_t(how)}'
             f"</title></circle>"
         )
-    metric = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(block.get("metric"), "")
+    metric = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(str(block.get("metric")), "")
     body.append(
         f'<text x="0" y="{h - 2}" font-size="10" fill="{MUTED}">validation {metric} '
         f"corrected (dot) with its 95 % interval (line); dashed: as given {_num(given)}</text>"

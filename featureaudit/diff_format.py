@@ -46,7 +46,7 @@ def diff_context(old: Findings, new: Findings) -> dict[str, Any]:
             "change": None if x is None or y is None else round(y - x, 4),
         }
     cov_old, cov_new = _coverage(a), _coverage(b)
-    dictionary = {"old": cov_old, "new": cov_new, "newly_not_covered": []}
+    dictionary: dict[str, Any] = {"old": cov_old, "new": cov_new, "newly_not_covered": []}
     if cov_new is not None:
         was = set(cov_old["not_covered"]) if cov_old else set()
         dictionary["newly_not_covered"] = [c for c in cov_new["not_covered"] if c not in was]
