@@ -104,7 +104,7 @@ def impact_line(doc: dict[str, Any]) -> str:
         return head + ("" if rem else "; no suspect at high or above")
     without = f"{block['without_suspects']:.2f}{_ci(block.get('ci95'))}"
     if rem:
-        return f"{head} ({without} with every suspect removed, refit columns too)"
+        return f"{head}; {without} with every suspect removed (refit columns too)"
     return f"{head}; {without} without the suspects"
 
 
