@@ -28,8 +28,9 @@ __all__ = ["audit", "AuditResult"]
 class AuditResult:
     """The findings of one audit, as a table, a list of suspects, and files on demand."""
 
-    def __init__(self, findings: Findings) -> None:
+    def __init__(self, findings: Findings, table_path: str | None = None) -> None:
         self.findings = findings
+        self.table_path = table_path  # where findings.sarif locates table-level results
 
     @property
     def document(self) -> dict[str, Any]:
@@ -100,10 +101,13 @@ class AuditResult:
         *,
         history: list[Findings] | None = None,
     ) -> list[Path]:
-        """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``;
-        ``history`` (earlier runs, oldest first) adds each suspect's trend to the dossier."""
+        """Write dossier.html, findings.json, droplist.txt, summary.md and findings.sarif into
+        ``out``; ``history`` (earlier runs, oldest first) adds each suspect's trend to the
+        dossier."""
         _check_history(history)
-        return write_files(out, render_all(self.findings, history=history))
+        return write_files(
+            out, render_all(self.findings, history=history, table_uri=self.table_path)
+        )
 
     def __repr__(self) -> str:
         d = self.document["dataset"]
@@ -280,10 +284,17 @@ def _audit(
             if v is not None and k not in ("code", "scheduler")
         }
         return AuditResult(
-            run_stream(data, build, chosen, probes, progress, engine_name, inputs.scheduler)
+            run_stream(data, build, chosen, probes, progress, engine_name, inputs.scheduler),
+            _path_of(data),
         )
     table = build_table(data, inputs)
-    return AuditResult(run_audit(table, chosen, probes=probes, progress=progress, code=code_result))
+    found = run_audit(table, chosen, probes=probes, progress=progress, code=code_result)
+    return AuditResult(found, _path_of(data))
+
+
+def _path_of(data: object) -> str | None:
+    """The table's path as given, when it was given as one."""
+    return os.fspath(data) if isinstance(data, str | os.PathLike) else None
 
 
 _COLUMN_ARGUMENTS = ("target", "split_column", "label_time", "cutoff_time", "entity", "fold_column")

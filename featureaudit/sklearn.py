@@ -1,4 +1,5 @@
-"""``DropSuspects``: a scikit-learn transformer that drops an audit's suspect columns.
+"""``DropSuspects``: a scikit-learn transformer that drops an audit's suspect columns;
+``FindingsSplit`` (from :mod:`featureaudit.cv`): folds that follow the audit's split findings.
 
 It reads the drop list from a findings.json at ``fit`` time (so a fitted, pickled pipeline no
 longer needs the file) and drops those of the listed columns that the input has.
@@ -14,10 +15,11 @@ import pandas as pd
 from sklearn.base import BaseEstimator, TransformerMixin
 from sklearn.utils.validation import check_is_fitted, validate_data
 
+from featureaudit.cv import FindingsSplit
 from featureaudit.judge.findings import droplist, load_findings
 from featureaudit.load.settings import check_level
 
-__all__ = ["DropSuspects"]
+__all__ = ["DropSuspects", "FindingsSplit"]
 
 
 class DropSuspects(TransformerMixin, BaseEstimator):
@@ -26,7 +28,7 @@ class DropSuspects(TransformerMixin, BaseEstimator):
     Parameters
     ----------
     findings : str or path-like
-        The ``findings.json`` written by ``featureaudit scan`` (schema 1 or 2).
+        The ``findings.json`` written by ``featureaudit scan`` (schema 1, 2 or 3).
     at_least : {"critical", "high", "medium", "low"}, default "high"
         The lowest level to drop. Columns a reviewer accepted (``--accepted``) and columns
         to refit rather than drop are kept, as in ``droplist.txt``.

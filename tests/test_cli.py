@@ -40,11 +40,12 @@ def report(leaky_csv, tmp_path_factory):
     return out
 
 
-def test_scan_writes_the_four_files(report):
+def test_scan_writes_the_five_files(report):
     assert sorted(p.name for p in report.iterdir()) == [
         "dossier.html",
         "droplist.txt",
         "findings.json",
+        "findings.sarif",
         "summary.md",
     ]
     doc = json.loads((report / "findings.json").read_text())
@@ -362,13 +363,25 @@ def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
         files = {p.name: p.read_text() for p in out.iterdir()}
         assert [p.name for p in tmp_path.iterdir()] == ["r"], (delay, list(tmp_path.iterdir()))
         if proc.returncode == 0:  # finished before the signal: the new report, whole
-            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            assert sorted(files) == [
+                "dossier.html",
+                "droplist.txt",
+                "findings.json",
+                "findings.sarif",
+                "summary.md",
+            ]
             json.loads(files["findings.json"])
             continue
         if proc.returncode == -sig:  # before Python ran any of ours, or while it shut down
             # after a finished run (the interpreter restores the default handlers at exit):
             # killed silently, with the earlier report or the new one, each whole
-            whole = sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            whole = sorted(files) == [
+                "dossier.html",
+                "droplist.txt",
+                "findings.json",
+                "findings.sarif",
+                "summary.md",
+            ]
             assert err == "" and (files == earlier or whole), (delay, err)
             continue
         assert proc.returncode == 128 + sig, (delay, proc.returncode, err)
@@ -378,7 +391,13 @@ def test_signals_at_any_moment_leave_one_whole_report(leaky_csv, tmp_path):
             assert files == earlier, delay
             assert f"the earlier report in {out} is unchanged" in err
         else:
-            assert sorted(files) == ["dossier.html", "droplist.txt", "findings.json", "summary.md"]
+            assert sorted(files) == [
+                "dossier.html",
+                "droplist.txt",
+                "findings.json",
+                "findings.sarif",
+                "summary.md",
+            ]
     assert handled >= 3, "too few runs were interrupted inside featureaudit to test anything"
 
 

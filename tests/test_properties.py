@@ -28,7 +28,7 @@ from featureaudit.load.dictionary import parse_dictionary
 from featureaudit.load.settings import Settings
 from featureaudit.vocab.names import quote_name
 
-REPORT = {"dossier.html", "findings.json", "droplist.txt", "summary.md"}
+REPORT = {"dossier.html", "findings.json", "droplist.txt", "summary.md", "findings.sarif"}
 NAMES = st.sampled_from(
     ["a", "b", "1", "", " leak ", "two\nlines", "café", "x,y", 'q"t', "id", "when", "split"]
 )

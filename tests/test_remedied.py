@@ -106,7 +106,7 @@ def test_remedied_groups_folds_by_entity_on_a_panel_as_group_kfold_does():
     rem = result.impact["remedied"]
     assert "grouped by the entity" in rem["how"] and rem["dropped"] == ["booked"]
     # reference: sklearn.model_selection.GroupKFold by traveller, LightGBM without the drop list
-    x = df.drop(columns=["choice", "split", *result.droplist()]).to_numpy()
+    x = df.drop(columns=["choice", "split", "individual", *result.droplist()]).to_numpy()
     pred = np.zeros(len(y))
     for tr, te in GroupKFold(3).split(x, y, groups=df.individual):
         model = lgb.LGBMClassifier(**_direct_params()).fit(x[tr], y[tr])

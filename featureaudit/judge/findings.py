@@ -314,10 +314,10 @@ def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
                 what = "new" if scope == "split" or level != "none" else "added"
                 lines.append(DiffLine(what, scope, shown(key), None, level, summary, accepted))
                 continue
-            change = _change(scope, before[key], item)
-            if change is not None:
+            moved = _change(scope, before[key], item)
+            if moved is not None:
                 was = before[key].get("level", "none")
-                lines.append(DiffLine(change, scope, shown(key), was, level, summary, accepted))
+                lines.append(DiffLine(moved, scope, shown(key), was, level, summary, accepted))
         for key, item in before.items():
             if key not in after:
                 lines.append(DiffLine("gone", scope, shown(key), item.get("level", "none"), None))

@@ -383,7 +383,11 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
     }
     from featureaudit.judge.remedied import measure_remedied
 
-    block["remedied"] = measure_remedied(table, bench, columns, dataset_findings)
+    try:
+        block["remedied"] = measure_remedied(table, bench, columns, dataset_findings)
+    except Exception as exc:  # noqa: BLE001 — the other figures stand without it
+        block["remedied"] = None
+        block["remedied_not_measured"] = f"{type(exc).__name__}: {exc}"
     return block, per_column
 
 

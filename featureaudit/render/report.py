@@ -104,7 +104,7 @@ def impact_line(doc: dict[str, Any]) -> str:
         return head + ("" if rem else "; no suspect at high or above")
     without = f"{block['without_suspects']:.2f}{_ci(block.get('ci95'))}"
     if rem:
-        return f"{head} ({without} with every suspect removed, refit columns too)"
+        return f"{head}; {without} with every suspect removed (refit columns too)"
     return f"{head}; {without} without the suspects"
 
 
@@ -320,13 +320,26 @@ def _code_ids(doc: dict[str, Any]) -> dict[str, int]:
     }
 
 
-def render_all(findings: Findings, *, history: list[Findings] | None = None) -> dict[str, str]:
+def render_all(
+    findings: Findings,
+    *,
+    history: list[Findings] | None = None,
+    table_uri: str | None = None,
+    dictionary_uri: str | None = None,
+) -> dict[str, str]:
     """Every file of a report, rendered in memory so they can be written together;
-    ``history`` holds the earlier runs, oldest first, for the dossier's trends."""
+    ``history`` holds the earlier runs, oldest first, for the dossier's trends;
+    ``table_uri`` and ``dictionary_uri`` locate findings.sarif's results."""
+    import json
+
+    from featureaudit.render.sarif import sarif_document
+
     drops = droplist(findings, "high")
+    sarif = sarif_document(findings.document, table_uri=table_uri, dictionary_uri=dictionary_uri)
     return {
         "findings.json": findings.to_json(),
         "droplist.txt": "".join(f"{quote_name(c)}\n" for c in drops),
         "summary.md": render_summary(findings),
         "dossier.html": render_dossier(findings, history=history),
+        "findings.sarif": json.dumps(sarif, indent=2, ensure_ascii=False) + "\n",
     }
