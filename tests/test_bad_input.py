@@ -1055,6 +1055,9 @@ def test_parquet_binary_columns_are_read(tmp_path):
     assert {"code", "blob"} <= {c["column"] for c in columns}
     frame = fa.io.read_table(tmp_path / "b.parquet")
     assert frame["code"].astype(str).iloc[1] == "k1" and frame["blob"].astype(str).iloc[1] == "ff01"
+    streamed = cli("scan", tmp_path / "b.parquet", "--target", "y", "--engine", "stream",
+                   "--out", tmp_path / "s")  # fmt: skip
+    assert_one_line_exit_2(streamed, "'code'", "binary", "--engine memory")
 
 
 @pytest.mark.parametrize("change", ["lacks", "types"])
