@@ -1083,6 +1083,28 @@ def test_dask_engine_on_parts_that_disagree(tmp_path, change):
     assert run.stderr.count("\n") == 1 and "part-1.parquet" in run.stderr, run.stderr
 
 
+def test_dask_engine_input_error_found_on_the_cluster_is_one_line(tmp_path):
+    # the target is also the split column: found on the sample, after the cluster started;
+    # Dask's own log lines (a cancelled task, a nanny killing a worker) stay off stderr
+    pytest.importorskip("distributed")
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    frame = _table300().assign(s=np.where(np.arange(300) % 4 == 0, "test", "train"))
+    folder = tmp_path / "parts"
+    folder.mkdir()
+    frame.iloc[:150].to_parquet(folder / "part-0.parquet")
+    frame.iloc[150:].to_parquet(folder / "part-1.parquet")
+    run = subprocess.run(
+        [str(Path(sys.executable).parent / "featureaudit"), "scan", str(folder), "--target", "y",
+         "--split-column", "y", "--engine", "dask", "--out", str(tmp_path / "r")],
+        capture_output=True, text=True, timeout=300,
+    )  # fmt: skip
+    assert run.returncode == 2, (run.returncode, run.stderr)
+    assert run.stderr.count("\n") == 1 and "'y' is the target" in run.stderr, run.stderr
+
+
 # --- the Python door speaks its own words -------------------------------------------------
 def test_audit_with_no_probes_is_refused():
     with pytest.raises(SettingError, match="probes"):
