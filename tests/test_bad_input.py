@@ -931,6 +931,15 @@ def test_ragged_accepted_row(tmp_path, row):
     assert_one_line_exit_2(cli("scan", path, "--accepted", f), "acc.csv", "line 2")
 
 
+def test_accepted_reason_with_a_quoted_line_break_reads_whole(tmp_path):
+    from featureaudit.accepted import read_accepted
+
+    f = tmp_path / "acc.csv"
+    f.write_text('column,kind,reason,reviewed_by,until\na,target_proxy,"two\nlines",me,\n')
+    (row,) = read_accepted(f)
+    assert row.reason == "two\nlines" and row.reviewed_by == "me"
+
+
 # --- findings and history files read back ----------------------------------------------------
 def _findings_doc(score=0.5):
     return {
