@@ -320,8 +320,8 @@ def _text_column_names(data: object, given: dict[str, Any]) -> tuple[object, dic
     listed = ", ".join(repr(c) for c in odd[:5]) + (", …" if len(odd) > 5 else "")
     kind = "whole numbers" if whole else "not text"
     warnings.warn(
-        f"the DataFrame's column names {listed} are {kind}; they are read as text "
-        f"({', '.join(repr(str(c)) for c in odd[:3])}…) and reported that way.",
+        f"the DataFrame's column names that are {kind} ({listed}) are read as text (e.g. "
+        f"{str(odd[0])!r}) and reported that way; name them as text to silence this.",
         UserWarning,
         stacklevel=3,
     )

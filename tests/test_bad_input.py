@@ -6,6 +6,10 @@ import pytest
 from typer.testing import CliRunner
 
 import featureaudit as fa
+import featureaudit.judge.findings
+import featureaudit.load.dictionary
+import featureaudit.load.io
+import featureaudit.load.table
 from featureaudit.cli import app
 from featureaudit.errors import (
     ColumnNotFound,
@@ -566,26 +570,26 @@ def test_non_finite_target_rows_are_unlabelled_and_counted():
     frame.loc[:4, "y"] = np.inf
     frame.loc[5, "y"] = -np.inf
     for task in (None, "numeric"):
-        t = fa.table.build_table(frame, target="y", task=task)
+        t = fa.load.table.build_table(frame, target="y", task=task)
         assert t.labelled.sum() == len(frame) - 6  # inf no longer a third class
         assert any("6 rows without a finite value" in w for w in t.warnings), t.warnings
-    assert fa.table.build_table(frame, target="y").classes == ["0.0", "1.0"]
+    assert fa.load.table.build_table(frame, target="y").classes == ["0.0", "1.0"]
 
 
 def test_label_variants_warn_and_merge_only_when_told():
     frame = _frame()
     labels = np.array(["yes", " yes", "YES ", "no", "no", "No"])
     frame["y"] = labels[np.arange(len(frame)) % 6]
-    kept = fa.table.build_table(frame, target="y")
+    kept = fa.load.table.build_table(frame, target="y")
     assert len(kept.classes) == 5 and any("--normalise-labels" in w for w in kept.warnings)
     with pytest.raises(TargetError, match="--normalise-labels"):
-        fa.table.build_table(frame, target="y", task="binary")
-    merged = fa.table.build_table(frame, target="y", task="binary", normalise_labels=True)
+        fa.load.table.build_table(frame, target="y", task="binary")
+    merged = fa.load.table.build_table(frame, target="y", task="binary", normalise_labels=True)
     # the most frequent spelling names the class (ties: sorted order, trimmed); counts, not
     # row order, decide
     assert merged.classes == ["no", "yes"] and np.bincount(merged.y).tolist() == [150, 150]
     shuffled = frame.sample(frac=1, random_state=1)
-    again = fa.table.build_table(shuffled, target="y", task="binary", normalise_labels=True)
+    again = fa.load.table.build_table(shuffled, target="y", task="binary", normalise_labels=True)
     assert again.classes == merged.classes
 
 
@@ -607,7 +611,7 @@ def test_heldout_target_coded_differently(tmp_path):
     assert_one_line_exit_2(result, "coded differently", "(0, 1)", "(neg, pos)")
     # a numeric target with continuous values is not a coding: no false alarm
     train, held = _frame().assign(y=lambda f: f["a"] * 2), _frame(50, 1).assign(y=0.5)
-    assert fa.table.build_table(train, test=held, target="y").heldout_rows == 50
+    assert fa.load.table.build_table(train, test=held, target="y").heldout_rows == 50
 
 
 def test_one_bad_date_among_thousands_is_counted_not_dropped(tmp_path):
@@ -644,7 +648,7 @@ def test_years_outside_the_nanosecond_range(tmp_path, year):
             "--out", tmp_path / label,
         )  # fmt: skip
         assert result.exit_code == 0, result.stderr
-    doc = fa.findings.load_findings(tmp_path / "decided" / "findings.json").document
+    doc = fa.judge.findings.load_findings(tmp_path / "decided" / "findings.json").document
     when = next(c for c in doc["columns"] if c["column"] == "when")
     expected = "critical" if year == 2300 else "none"  # 2300 is long after every label time
     assert when["level"] == expected, when
@@ -653,10 +657,10 @@ def test_years_outside_the_nanosecond_range(tmp_path, year):
 def test_label_time_in_several_formats():
     frame = _frame().assign(decided=["2025-01-05", "05/01/2025", "Jan 5 2025"] * 100)
     with pytest.raises(SettingError, match="several date formats"):
-        fa.table.build_table(frame, target="y", label_time="decided")
+        fa.load.table.build_table(frame, target="y", label_time="decided")
     zoned = _frame().assign(decided=["2025-01-05", "2025-01-05T10:00:00+01:00", "05/01/2025"] * 100)
     with pytest.raises(SettingError, match="several date formats"):
-        fa.table.build_table(zoned, target="y", label_time="decided")
+        fa.load.table.build_table(zoned, target="y", label_time="decided")
 
 
 def test_horizon_longer_than_a_timedelta(good_csv, tmp_path):
@@ -667,7 +671,7 @@ def test_horizon_longer_than_a_timedelta(good_csv, tmp_path):
         )  # fmt: skip
         assert_one_line_exit_2(result, "--horizon", horizon)
     # 290 years still fits: the cutoff lands in 1735, which microsecond times hold
-    t = fa.table.build_table(good_csv, target="y", label_time="when", horizon="106000d")
+    t = fa.load.table.build_table(good_csv, target="y", label_time="when", horizon="106000d")
     assert t.cutoff_time.min().year == 1734
 
 
@@ -706,9 +710,9 @@ def test_drafted_dictionary_reads_back_unchanged(tmp_path):
     drafted = cli("dictionary", tmp_path / "t.parquet", "--target", "y")
     assert drafted.exit_code == 0, drafted.stderr
     (tmp_path / "d.csv").write_text(drafted.stdout)
-    back = fa.dictionary.read_dictionary(tmp_path / "d.csv")
+    back = fa.load.dictionary.read_dictionary(tmp_path / "d.csv")
     assert list(back.entries) == names and back.entries["y"].role == "target"
-    table = fa.table.build_table(tmp_path / "t.parquet", dictionary=tmp_path / "d.csv")
+    table = fa.load.table.build_table(tmp_path / "t.parquet", dictionary=tmp_path / "d.csv")
     assert table.target == "y" and not table.warnings
 
 
@@ -721,13 +725,13 @@ def test_text_with_a_bom_or_in_utf8_is_read(tmp_path, encoding):
     text = ACCENTED.to_csv(index=False)
     bom = "\ufeff" if encoding == "utf-16-be" else ""  # utf-16 writes its own BOM
     path.write_bytes((bom + text).encode(encoding))
-    got = fa.io.read_table(path)
+    got = fa.load.io.read_table(path)
     assert list(got.columns) == ["café", "y"] and got["café"].astype(str).iloc[1] == "Genève"
     drafted = cli("dictionary", path)
     assert drafted.exit_code == 0 and drafted.stdout.splitlines()[1].startswith("café,")
     d = tmp_path / "d.csv"
     d.write_bytes((bom + "column,role\ny,target\n").encode(encoding))
-    assert fa.dictionary.read_dictionary(d).entries["y"].role == "target"
+    assert fa.load.dictionary.read_dictionary(d).entries["y"].role == "target"
 
 
 def test_latin1_needs_the_encoding_flag(tmp_path):
@@ -738,7 +742,7 @@ def test_latin1_needs_the_encoding_flag(tmp_path):
         ok = cli(*args, "--encoding", "latin-1")
         assert ok.exit_code == 0, ok.stderr
     assert ok.stdout.splitlines()[1].startswith("café,")  # the drafted dictionary
-    columns = fa.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
+    columns = fa.judge.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
     assert "café" in [c["column"] for c in columns]
     assert_one_line_exit_2(cli("dictionary", path, "--encoding", "klingon"), "--encoding")
     d = tmp_path / "d.csv"
@@ -746,7 +750,7 @@ def test_latin1_needs_the_encoding_flag(tmp_path):
     ACCENTED.to_csv(tmp_path / "u.csv", index=False)  # UTF-8 table, Latin-1 dictionary
     bad = cli("scan", tmp_path / "u.csv", "--dictionary", d, "--out", tmp_path / "q")
     assert_one_line_exit_2(bad, "d.csv", "not UTF-8", "--encoding")
-    good = fa.table.build_table(path, dictionary=d, encoding="latin-1")
+    good = fa.load.table.build_table(path, dictionary=d, encoding="latin-1")
     assert good.target == "y" and good.roles["café"] == "feature"
 
 
@@ -774,7 +778,7 @@ def test_heldout_target_of_few_whole_numbers_points_to_task_numeric(tmp_path):
     args = ["scan", tmp_path / "train.csv", "--test", tmp_path / "test.csv", "--target", "weight"]
     result = cli(*args, "--out", tmp_path / "r")
     assert_one_line_exit_2(result, "coded differently", "--task numeric")
-    table = fa.table.build_table(train, test=held, target="weight", task="numeric")
+    table = fa.load.table.build_table(train, test=held, target="weight", task="numeric")
     assert table.heldout_rows == 8 and table.task == "numeric"
 
 
@@ -895,12 +899,12 @@ def test_known_at_naming_no_datetime_column_is_an_error(tmp_path, known_at, frag
     d.write_text(f"column,role,known_at\na,feature,\ny,target,\nb,feature,{known_at}\n")
     path = _csv300(tmp_path)
     with pytest.raises(DictionaryError, match=f"d.csv.*line 4.*'{known_at}'.*{fragment}"):
-        fa.table.build_table(path, dictionary=d)
+        fa.load.table.build_table(path, dictionary=d)
     result = cli("scan", path, "--dictionary", d, "--out", tmp_path / "r")
     assert_one_line_exit_2(result, "d.csv", "line 4", f"'{known_at}'")
     ok = tmp_path / "ok.csv"
     ok.write_text("column,role,known_at\ny,target,\nb,feature,when\n")
-    assert fa.table.build_table(path, dictionary=ok).dictionary.entries["b"].known_at == "when"
+    assert fa.load.table.build_table(path, dictionary=ok).dictionary.entries["b"].known_at == "when"
 
 
 def test_two_target_rows_in_the_dictionary():
@@ -931,6 +935,15 @@ def test_ragged_accepted_row(tmp_path, row):
         read_accepted(f)
     path = _csv300(tmp_path)
     assert_one_line_exit_2(cli("scan", path, "--accepted", f), "acc.csv", "line 2")
+
+
+def test_accepted_reason_with_a_quoted_line_break_reads_whole(tmp_path):
+    from featureaudit.review.accepted import read_accepted
+
+    f = tmp_path / "acc.csv"
+    f.write_text('column,kind,reason,reviewed_by,until\na,target_proxy,"two\nlines",me,\n')
+    (row,) = read_accepted(f)
+    assert row.reason == "two\nlines" and row.reviewed_by == "me"
 
 
 # --- findings and history files read back ----------------------------------------------------
@@ -1053,10 +1066,13 @@ def test_parquet_binary_columns_are_read(tmp_path):
     pq.write_table(table, tmp_path / "b.parquet")
     result = cli("scan", tmp_path / "b.parquet", "--target", "y", "--out", tmp_path / "r")
     assert result.exit_code == 0, result.stderr
-    columns = fa.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
+    columns = fa.judge.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
     assert {"code", "blob"} <= {c["column"] for c in columns}
-    frame = fa.io.read_table(tmp_path / "b.parquet")
+    frame = fa.load.io.read_table(tmp_path / "b.parquet")
     assert frame["code"].astype(str).iloc[1] == "k1" and frame["blob"].astype(str).iloc[1] == "ff01"
+    streamed = cli("scan", tmp_path / "b.parquet", "--target", "y", "--engine", "stream",
+                   "--out", tmp_path / "s")  # fmt: skip
+    assert_one_line_exit_2(streamed, "'code'", "binary", "--engine memory")
 
 
 @pytest.mark.parametrize("change", ["lacks", "types"])
@@ -1080,6 +1096,28 @@ def test_dask_engine_on_parts_that_disagree(tmp_path, change):
     )  # fmt: skip
     assert run.returncode == 2, (run.returncode, run.stderr)
     assert run.stderr.count("\n") == 1 and "part-1.parquet" in run.stderr, run.stderr
+
+
+def test_dask_engine_input_error_found_on_the_cluster_is_one_line(tmp_path):
+    # the target is also the split column: found on the sample, after the cluster started;
+    # Dask's own log lines (a cancelled task, a nanny killing a worker) stay off stderr
+    pytest.importorskip("distributed")
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    frame = _table300().assign(s=np.where(np.arange(300) % 4 == 0, "test", "train"))
+    folder = tmp_path / "parts"
+    folder.mkdir()
+    frame.iloc[:150].to_parquet(folder / "part-0.parquet")
+    frame.iloc[150:].to_parquet(folder / "part-1.parquet")
+    run = subprocess.run(
+        [str(Path(sys.executable).parent / "featureaudit"), "scan", str(folder), "--target", "y",
+         "--split-column", "y", "--engine", "dask", "--out", str(tmp_path / "r")],
+        capture_output=True, text=True, timeout=300,
+    )  # fmt: skip
+    assert run.returncode == 2, (run.returncode, run.stderr)
+    assert run.stderr.count("\n") == 1 and "'y' is the target" in run.stderr, run.stderr
 
 
 # --- the Python door speaks its own words -------------------------------------------------

@@ -9,8 +9,10 @@ its copy pass.
 
 from __future__ import annotations
 
+import logging
 import os
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Any, TypeVar
 
@@ -36,6 +38,27 @@ from featureaudit.load.settings import Settings
 __all__ = ["dask_audit"]
 
 T = TypeVar("T")
+# the level of Dask's own loggers in worker processes, read from the environment when they
+# start (dask's config: distributed.logging.distributed)
+_WORKER_LOGS = "DASK_DISTRIBUTED__LOGGING__DISTRIBUTED"
+
+
+@contextmanager
+def _quiet_cluster() -> Iterator[None]:
+    """Keep Dask's log lines (a task cancelled, a nanny killing a worker on close) off
+    stderr, which carries the run's one line; levels are put back afterwards."""
+    logger = logging.getLogger("distributed")
+    level, before = logger.level, os.environ.get(_WORKER_LOGS)
+    logger.setLevel(logging.CRITICAL)
+    os.environ[_WORKER_LOGS] = "critical"
+    try:
+        yield
+    finally:
+        logger.setLevel(level)
+        if before is None:
+            os.environ.pop(_WORKER_LOGS, None)
+        else:
+            os.environ[_WORKER_LOGS] = before
 
 
 def _first(frame: pd.DataFrame, layout: Layout, settings: Settings) -> FirstPass:
@@ -89,48 +112,53 @@ def dask_audit(
     schema = arrow.names
     layout = stream_layout(arrow, build)
     require_columns(schema, build, data)
-    cluster = None
-    if scheduler is None:
-        cluster = LocalCluster(
-            n_workers=settings.n_jobs, threads_per_worker=1, dashboard_address=None
-        )
-    try:
-        with dask.config.set({"dataframe.convert-string": False}):
-            client = Client(scheduler or cluster)
-            try:
-                parts = dd.read_parquet(str(data)).to_delayed()
-                first = _tree(
-                    client,
-                    client.compute([dask.delayed(_first)(p, layout, settings) for p in parts]),
-                )
-                rows = sum(first.counts.partitions.values())
-                if tick:
-                    tick("pass 1 of 3", rows)
-                cut = first.sketch.cutoffs(settings.sample_rows)
-                picked = _tree(
-                    client,
-                    client.compute([dask.delayed(_rows)(p, layout, settings, cut) for p in parts]),
-                )
-                if tick:
-                    tick("pass 2 of 3", rows)
-                sample = picked.draw(whole_row_keys(layout, settings)).to_pandas()
-                source = build.get("source") or Path(data).name
-                table = build_table(sample, **{**build, "source": source})
-                table.population_rows = int(sum(first.counts.partitions.values()))
-                layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
-                train_max = first.counts.times.get("train", [None, None])[1]
-                copies = _tree(  # only the counts come back, not the hash sets
-                    client,
-                    client.compute([dask.delayed(_copies)(p, layout, train_max) for p in parts]),
-                    copy_counts,
-                )
-                if tick:
-                    tick("pass 3 of 3", rows)
-            finally:
-                client.close()
-    finally:
-        if cluster is not None:
-            cluster.close()
+    with _quiet_cluster():  # stderr carries one line, whatever the cluster logs
+        cluster = None
+        if scheduler is None:
+            cluster = LocalCluster(
+                n_workers=settings.n_jobs, threads_per_worker=1, dashboard_address=None
+            )
+        try:
+            with dask.config.set({"dataframe.convert-string": False}):
+                client = Client(scheduler or cluster)
+                try:
+                    parts = dd.read_parquet(str(data)).to_delayed()
+                    first = _tree(
+                        client,
+                        client.compute([dask.delayed(_first)(p, layout, settings) for p in parts]),
+                    )
+                    rows = sum(first.counts.partitions.values())
+                    if tick:
+                        tick("pass 1 of 3", rows)
+                    cut = first.sketch.cutoffs(settings.sample_rows)
+                    picked = _tree(
+                        client,
+                        client.compute(
+                            [dask.delayed(_rows)(p, layout, settings, cut) for p in parts]
+                        ),
+                    )
+                    if tick:
+                        tick("pass 2 of 3", rows)
+                    sample = picked.draw(whole_row_keys(layout, settings)).to_pandas()
+                    source = build.get("source") or Path(data).name
+                    table = build_table(sample, **{**build, "source": source})
+                    table.population_rows = int(sum(first.counts.partitions.values()))
+                    layout = Layout(**{**layout.__dict__, "features": tuple(table.features)})
+                    train_max = first.counts.times.get("train", [None, None])[1]
+                    copies = _tree(  # only the counts come back, not the hash sets
+                        client,
+                        client.compute(
+                            [dask.delayed(_copies)(p, layout, train_max) for p in parts]
+                        ),
+                        copy_counts,
+                    )
+                    if tick:
+                        tick("pass 3 of 3", rows)
+                finally:
+                    client.close()
+        finally:
+            if cluster is not None:
+                cluster.close()
     findings = run_audit(table, settings, probes=probes, progress=False)
     exact = exact_statistics(first.counts, copies)
     _report_engine(findings.document, exact, table.n_rows, layout, "dask", "three passes")

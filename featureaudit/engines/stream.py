@@ -86,7 +86,20 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
             schemas = [pq.read_schema(f) for f in files]
         except (pa.ArrowInvalid, OSError) as exc:
             raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
-    return ds.dataset([str(f) for f in files], format="parquet", schema=_unified(schemas, p))
+    schema = _unified(schemas, p)
+    binary = [
+        f.name
+        for f in schema
+        if pa.types.is_binary(f.type)
+        or pa.types.is_large_binary(f.type)
+        or pa.types.is_fixed_size_binary(f.type)
+    ]
+    if binary:  # the memory engine reads them as text or hex; batches could not agree on which
+        raise SettingError(
+            f"column {binary[0]!r} of {str(p)!r} is stored as Parquet binary, which --engine "
+            "stream and dask do not read; write it as text, or pass --engine memory."
+        )
+    return ds.dataset([str(f) for f in files], format="parquet", schema=schema)
 
 
 def _unified(schemas: list[pa.Schema], path: Path) -> pa.Schema:

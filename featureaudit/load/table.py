@@ -168,7 +168,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "order": "--order",
     }
     chosen = _choose_roles(frame, roles, flags, flag_names, ddict, src)
-    _one_role_each(chosen, flags, flag_names, fold_column, ddict)
+    _one_role_each(chosen, flags, flag_names, ddict)
     if test is not None and chosen["split"] is not None:
         warnings.append(
             f"--test names the held-out rows, so split column {chosen['split']!r} "
@@ -243,23 +243,21 @@ def _one_role_each(
     chosen: dict[str, str | None],
     flags: dict[str, str | None],
     flag_names: dict[str, str],
-    fold_column: str | None,
     ddict: DataDictionary | None,
 ) -> None:
-    """The target cannot also be the split column, the entity or the fold column: a column
-    that is the outcome cannot mark the split or group the rows."""
+    """The target cannot also be the split column or the entity: a column that is the
+    outcome cannot mark the split or group the rows (the fold column: ``_set_folds``)."""
     target = chosen.get("target")
     if target is None:
         return
     others = {r: c for r, c in chosen.items() if r in ("split", "entity")}
-    others["fold"] = fold_column
-    names = {**flag_names, "fold": "--fold-column"}
+    names = flag_names
     for role, column in others.items():
         if column != target:
             continue
 
         def said(r: str) -> str:
-            if flags.get(r) is not None or r == "fold":
+            if flags.get(r) is not None:
                 return names[r]
             return f"role {r} in dictionary {ddict.source if ddict else ''!r}"
 

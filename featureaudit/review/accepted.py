@@ -8,6 +8,7 @@ An expired or unmatched row becomes a warning, so a stale file is noticed.
 from __future__ import annotations
 
 import csv
+import io
 from dataclasses import dataclass
 from datetime import UTC, date, datetime
 from pathlib import Path
@@ -62,7 +63,7 @@ def read_accepted(path: str | Path) -> list[Acceptance]:
             f"--accepted file {str(p)!r} cannot be read as UTF-8 text ({exc}); save it as a "
             "UTF-8 CSV."
         ) from exc
-    reader = csv.DictReader(text.splitlines())
+    reader = csv.DictReader(io.StringIO(text, newline=""))  # a quoted line break stays in its cell
     header = [h.strip() for h in (reader.fieldnames or [])]
     missing = [h for h in HEADERS if h not in header]
     if missing:

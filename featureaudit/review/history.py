@@ -108,8 +108,10 @@ def _not_stored(folder: Path, exc: OSError) -> InputFileError:
 
 
 def load_runs(folder: str | Path) -> list[Run]:
-    """Every stored run, oldest first (by creation time, then when it was stored); other
-    files are ignored."""
+    """Every stored run, oldest first (by creation time, then when it was stored). Hidden
+    files and files that are not ``.json`` are left alone; any other ``.json`` file (corrupt,
+    empty, another program's) is an error naming it: a history that skipped a run silently
+    would draw a wrong trend."""
     p = Path(folder)
     if not p.is_dir():
         raise InputFileError(
@@ -140,11 +142,10 @@ def _stored_run(folder: Path, path: Path) -> Findings:
     try:
         return load_findings(path)
     except InputFileError as exc:
-        reason = str(exc).split(": ", 1)[-1] if ": " in str(exc) else str(exc)
+        reason = str(exc).replace(f"findings file {str(path)!r} ", "").split("; ")[0]
         raise InputFileError(
             f"history folder {str(folder)!r} holds {path.name!r}, which is not a readable run "
-            f"({reason.split(';')[0]}); move it out of the folder, or pass --history with "
-            "another folder."
+            f"(it {reason}); move it out of the folder, or pass --history with another folder."
         ) from exc
 
 
