@@ -19,6 +19,10 @@ Results are cached per case, keyed by a hash of featureaudit's code and of the c
 so reruns are cheap.
 
     python benchmarks/corpus.py [--fast] [--only PACKAGE] [--workers 1] [--calibrate quantile]
+
+``--fast`` takes the first 10 tables (3 packages) and ``--only`` one package's tables; the
+case families go in rotation over the tables built, so both give those tables other families
+than the whole corpus does (their cases are cached apart).
 """
 
 from __future__ import annotations
