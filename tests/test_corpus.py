@@ -119,3 +119,34 @@ def test_two_planted_kinds_are_found_on_a_real_table(
 def test_folds_are_by_package() -> None:
     assert bench.fold_of("MASS") == bench.fold_of("MASS")
     assert len({bench.fold_of(p) for p in ("MASS", "nlme", "boot", "HistData", "vcd", "lme4")}) > 1
+
+
+def _record(values: dict[str, float]) -> dict:
+    """A stored result whose columns each carry one solo AUC at high (threshold 0.9)."""
+    columns = {
+        c: ["high", ["target_proxy"], v, [["solo", "target_proxy", "oof_auc", v, 0.9, "high"]], ""]
+        for c, v in values.items()
+    }
+    return {"id": "x", "columns": columns, "dataset": [], "seconds": 0.0}
+
+
+def test_quantile_calibration_withdraws_high_below_the_honest_cut() -> None:
+    """Fitted on 1,000 honest columns (budget 1): the second-largest honest AUC becomes the
+    cut; a held-out column at or below it loses high, one above keeps it."""
+    case = {"package": "p", "table": "t", "honest": [f"h{i}" for i in range(1000)],
+            "planted": {}, "status": "planted", "split_kind": None}  # fmt: skip
+    train = _record({f"h{i}": 0.9 + i * 1e-4 for i in range(1000)})
+    adjust = bench.quantile([(case, train)])
+    held = adjust(_record({"a": 0.9997, "b": 0.99985, "c": 0.95}))
+    assert [held["columns"][c][0] for c in "abc"] == ["medium", "high", "medium"]
+    assert bench.identity([(case, train)])(train) is train
+
+
+def test_figures_count_planted_honest_and_ranking() -> None:
+    case = {"package": "p", "table": "t", "honest": ["h"], "planted": {"leak": "target_proxy"},
+            "status": "planted", "split_kind": None, "min_level": "high", "kind": "target_proxy",
+            "klass": 3, "spec": "s"}  # fmt: skip
+    record = _record({"leak": 0.99, "h": 0.95})
+    record["columns"]["h"][0] = "low"
+    f = bench.figures([(case, record)], leaks=set())
+    assert f["high|all"] == [1, 1] and f["honest_cols"] == [0, 1] and f["ranking"] == [1, 1]
