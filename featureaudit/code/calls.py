@@ -551,12 +551,12 @@ def _drop(c: Call, rows: Val) -> Val | None:
             side = other.prov[-1][:-1] + "b" if other.prov else "drop"
             role = TEST if other.role == TRAIN else TRAIN
             return c.flow.part(rows, role, side, c.line, "df.drop(part.index)")
-    taint = frozenset().union(*(a.taint for a in rows_or_stats(c)))
+    taint = frozenset().union(*(a.taint for a in _stats_of(c)))
     c.flow.applied |= taint
     return rows.tainted(taint)
 
 
-def rows_or_stats(c: Call) -> list[Val]:
+def _stats_of(c: Call) -> list[Val]:
     return [a for a in [*c.args, *c.kw.values()] if a is not None and a.kind == "stat"]
 
 

@@ -43,10 +43,8 @@ def dotted(node: ast.AST) -> str:
     while isinstance(node, ast.Attribute):
         parts.append(node.attr)
         node = node.value
-    if isinstance(node, ast.Call):
-        parts.append(dotted(node.func) + "()") if not isinstance(
-            node.func, ast.Call
-        ) else parts.append("?")
+    if isinstance(node, ast.Call) and not isinstance(node.func, ast.Call):
+        parts.append(dotted(node.func) + "()")
     else:
         parts.append(node.id if isinstance(node, ast.Name) else "?")
     return ".".join(reversed(parts))
