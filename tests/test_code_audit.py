@@ -138,6 +138,14 @@ def test_sarif_has_the_fields_the_standard_requires() -> None:
         assert run["tool"]["driver"]["rules"][r["ruleIndex"]]["id"] == r["ruleId"]
 
 
+def test_sarif_of_the_development_corpus_has_the_required_fields() -> None:
+    jsonschema = pytest.importorskip("jsonschema")
+    doc = sarif(audit_code([ROOT / "benchmarks" / "code_corpus"]))
+    jsonschema.validate(doc, SARIF_REQUIRED)
+    levels = {r["level"] for r in doc["runs"][0]["results"]}
+    assert {"error", "warning"} <= levels
+
+
 def test_cli_writes_json_and_sarif_and_fails_at(tmp_path: Path) -> None:
     res = CliRunner().invoke(
         app,
