@@ -559,3 +559,23 @@ def test_frames_of_two_sources_joined_then_sliced_apart_are_one_table(tmp_path: 
     assert [(f.kind, f.line, f.level) for f in audit_file(script)[0]] == [
         ("fit_before_split", 6, Level.HIGH)
     ]
+
+
+def test_a_lone_time_mask_filters_and_two_split_with_sides_read_from_use(tmp_path: Path) -> None:
+    # df[df.year > 2000] alone keeps recent rows (no held-out part); with its complement it
+    # is a split by time, and the side the model is fitted on is the training side
+    head = "import pandas as pd\ndf = pd.read_csv('sales.csv')\n"
+    lone = tmp_path / "lone.py"
+    lone.write_text(
+        head + "recent = df[df.year > 2000]\nsc = StandardScaler().fit(recent[['x']])\n"
+        "m = Ridge().fit(sc.transform(recent[['x']]), recent['y'])\n"
+    )
+    assert audit_file(lone)[0] == []
+    two = "old = df[df.year <= 2000]\nrecent = df[df.year > 2000]\n"
+    for model_on, refit_on in (("old", "recent"), ("recent", "old")):
+        path = tmp_path / f"{model_on}.py"
+        path.write_text(
+            head + two + f"m = Ridge().fit({model_on}[['x']], {model_on}['y'])\n"
+            f"z = StandardScaler().fit_transform({refit_on}[['x']])\n"
+        )
+        assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 6)]

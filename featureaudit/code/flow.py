@@ -95,7 +95,11 @@ def rows_of(vals: list[Val | None]) -> list[Val]:
 class Flow:
     """Walk the units of one file and collect events and splits (see the module docstring)."""
 
-    def __init__(self, fitted_sides: frozenset[str] = frozenset()) -> None:
+    def __init__(
+        self,
+        fitted_sides: frozenset[str] = frozenset(),
+        mask_roles: dict[str, set[str]] | None = None,
+    ) -> None:
         self.env: dict[str, Val] = {}
         self.assigned: set[str] = set()
         self.consts: dict[str, Any] = {}
@@ -109,6 +113,8 @@ class Flow:
         self.targets: set[str] = set()  # columns models were trained to predict
         self.model_sides: set[str] = set()  # positional sides a model was fitted on
         self.known_sides = fitted_sides  # ... as found by the first walk
+        self.mask_roles: dict[str, set[str]] = {}  # parts each masked table was cut into
+        self.known_masks = mask_roles  # ... as found by the first walk (None: this is it)
         self.loops: list[int] = []
         self.loop_selects: set[int] = set()
         self.unit: Unit | None = None
@@ -440,13 +446,27 @@ class Flow:
         )
 
     def _by_mask(self, base: Val, sel: Val, e: ast.Subscript) -> Val:
-        role = sel.role or TRAIN
-        if base.role == TRAIN and role == TEST:
-            role = VALID
+        """Rows chosen by a mask or fold indices. A mask naming its part (``== "train"``) or
+        a fold splits; a mask on time alone filters (``df[df.year > 2000]``), and with its
+        complement splits, the side a model is fitted on being the training side."""
         if base.role in HELDOUT:
             return base
         assert self.unit is not None
-        side = sel.prov[0] if sel.prov else f"M@{self.unit.cell or 0}:{e.lineno}:{role}"
+        role = sel.role or TRAIN
+        if sel.cls == "time":
+            key = f"M[{root_name(e.value) or '?'}]"
+            self.mask_roles.setdefault(key, set()).add(role)
+            if self.known_masks is not None and len(self.known_masks.get(key, ())) < 2:
+                return base
+            side = f"{key}@{self.unit.cell or 0}:{e.lineno}:{e.col_offset}"
+            if side in self.known_sides:
+                role = TRAIN
+            elif any(s.startswith(key) for s in self.known_sides):
+                role = TEST
+        else:
+            side = sel.prov[0] if sel.prov else f"M@{self.unit.cell or 0}:{e.lineno}:{role}"
+        if base.role == TRAIN and role == TEST:
+            role = VALID
         cv = sel.kind == "index"
         how = "fold indices" if cv else "a mask"
         self.splits.append(Split(self.unit, e.lineno, how, base.prov, cv=cv))
@@ -543,7 +563,7 @@ class Flow:
             self.targets.update(y.columns)
         if rows is not None:
             self.model_provs.add(rows.prov)
-            self.model_sides.update(s for s in rows.prov if s.startswith("P["))
+            self.model_sides.update(s for s in rows.prov if s.startswith(("P[", "M[")))
 
     def call_function(
         self, fn: ast.FunctionDef, args: list[Val | None], kw: dict[str, Val | None]
@@ -587,20 +607,21 @@ def _mask(e: ast.Compare) -> Val | None:
                     return Val("mask", TEST)
     if re.search(r"date|time|year|month|day|period", column):
         if isinstance(op, ast.Lt | ast.LtE):
-            return Val("mask", TRAIN)
+            return Val("mask", TRAIN, cls="time")
         if isinstance(op, ast.Gt | ast.GtE):
-            return Val("mask", TEST)
+            return Val("mask", TEST, cls="time")
     if "fold" in column:
         return Val("mask", VALID if isinstance(op, ast.Eq) else TRAIN)
     return None
 
 
 def analyse(units: list[Unit]) -> Flow:
-    """Walk the file twice: the first walk finds which positional sides models are fitted on,
-    the second reads every other side as held out."""
+    """Walk the file twice: the first walk finds which positional sides models are fitted on
+    and which masked tables are cut into two parts; the second reads every other positional
+    side as held out and a lone mask as a filter."""
     first = Flow()
     first.run(units)
-    flow = Flow(frozenset(first.model_sides))
+    flow = Flow(frozenset(first.model_sides), first.mask_roles)
     flow.run(units)
     return flow
 
