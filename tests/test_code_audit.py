@@ -503,12 +503,13 @@ def test_notebook_percent_continuation_question_mark_and_number_cells_are_audite
             ["print('rows: %d'\n", "      % len(X))\n", "q = '''is it high?\n", "no'''\n"],
             3,
             None,
-            ["X = StandardScaler().fit_transform(X)\n", FIT],
+            ["%%bash\n", "ls -la | head\n"],
+            ["%%time\n", "X = StandardScaler().fit_transform(X)\n", FIT],
         ],
     )
     found, units = audit_file(nb)
-    assert units == 5
-    assert [(f.cell, f.line, f.kind) for f in found] == [(5, 1, "fit_before_split")]
+    assert units == 6
+    assert [(f.cell, f.line, f.kind) for f in found] == [(6, 2, "fit_before_split")]
 
 
 @pytest.mark.parametrize(
