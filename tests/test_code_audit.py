@@ -580,3 +580,14 @@ def test_a_lone_time_mask_filters_and_two_split_with_sides_read_from_use(tmp_pat
             f"z = StandardScaler().fit_transform({refit_on}[['x']])\n"
         )
         assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 6)]
+
+
+def test_a_loop_over_frames_visits_each_frame(tmp_path: Path) -> None:
+    # the fit on the test frame happens on the loop's last pass, with or without names
+    for head in (
+        "for frame in [X_train, X_test]:\n",
+        "for name, frame in [('a', X_train), ('b', X_test)]:\n",
+    ):
+        path = tmp_path / "frames.py"
+        path.write_text(LOAD + FIT + head + "    frame = StandardScaler().fit_transform(frame)\n")
+        assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 10)]

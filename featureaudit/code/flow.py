@@ -175,7 +175,7 @@ class Flow:
             self.loop_selects.add(id(s))
         frames = [x for x in it.items if x is not None] if it and it.kind == "tuple" else []
         ret = None
-        if frames and len(frames) <= MAX_FRAMES and all(x.kind == "rows" for x in frames):
+        if frames and len(frames) <= MAX_FRAMES and all(rows_of([x]) for x in frames):
             for frame in frames:  # one pass per frame: a fit on each of train, valid, test
                 self.bind(s.target, frame, s.lineno, None)
                 ret = self.block(s.body) or ret
