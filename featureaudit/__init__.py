@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__version__ = "0.2.0"
+from featureaudit._version import __version__
 
 __all__ = ["audit", "AuditResult", "FeatureAuditError", "__version__"]
 

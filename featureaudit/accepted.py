@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from featureaudit.errors import InputFileError, SettingError
-from featureaudit.evidence import KINDS
+from featureaudit.kinds import KINDS
 from featureaudit.levels import Level
 
 __all__ = ["Acceptance", "SPLIT", "read_accepted", "apply_accepted", "is_accepted"]
@@ -72,10 +72,11 @@ def read_accepted(path: str | Path) -> list[Acceptance]:
         )
     rows: list[Acceptance] = []
     for number, raw in enumerate(reader, start=2):
+        where = f"--accepted file {str(p)!r}, line {number}"
+        _whole_row(raw, len(header), where)
         row = {(k or "").strip(): (v or "").strip() for k, v in raw.items() if k is not None}
         if not any(row.values()):
             continue
-        where = f"--accepted file {str(p)!r}, line {number}"
         if not row["column"]:
             raise SettingError(f"{where}: `column` is blank; name a column or write {SPLIT}.")
         if row["kind"] not in KINDS:
@@ -93,6 +94,22 @@ def read_accepted(path: str | Path) -> list[Acceptance]:
             )
         )
     return rows
+
+
+def _whole_row(raw: dict[str | None, Any], width: int, where: str) -> None:
+    """A line with more or fewer cells than the header (a ragged row) is an error: a cell
+    would be read under the wrong header or lost."""
+    extra = raw.get(None) or []
+    missing = sum(1 for k, v in raw.items() if k is not None and v is None)
+    if not extra and not missing:
+        return
+    cells = width + len(extra) - missing
+    if not any((v or "").strip() for k, v in raw.items() if k is not None) and not extra:
+        return  # a blank line
+    raise SettingError(
+        f"{where} has {cells} cells but the header has {width}; give every line one cell "
+        "per header (quote a cell that holds a comma)."
+    )
 
 
 def _date(text: str, where: str) -> date | None:

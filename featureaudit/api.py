@@ -11,10 +11,11 @@ from typing import Any
 import pandas as pd
 
 from featureaudit.dictionary import DataDictionary
+from featureaudit.doors import python_words
 from featureaudit.engines import resolve_engine
 from featureaudit.errors import SettingError
-from featureaudit.findings import Findings, droplist
-from featureaudit.inputs import Inputs
+from featureaudit.findings import Findings, droplist, refit_list
+from featureaudit.inputs import Inputs, shown
 from featureaudit.pipeline import run_audit
 from featureaudit.report import render_all
 from featureaudit.settings import Settings, check_level
@@ -70,9 +71,28 @@ class AuditResult:
         )
 
     def suspects(self, at_least: str = "high") -> list[str]:
-        """Column names at level ``at_least`` or above, most suspect first."""
+        """Every column at level ``at_least`` or above, most suspect first, whatever its
+        remedy: columns to drop *and* columns to refit, accepted ones included. For what to
+        do with them, see :meth:`droplist` and :meth:`refit_list`."""
         level = check_level(at_least, flag="at_least")
         return droplist(self.findings, level, refit=True, accepted=True)
+
+    def droplist(self, at_least: str = "high") -> list[str]:
+        """Columns whose remedy is ``drop``, at ``at_least`` or above and not accepted after
+        review, most suspect first: the lines of ``droplist.txt``."""
+        level = check_level(at_least, flag="at_least")
+        return droplist(self.findings, level)
+
+    def refit_list(self) -> list[str]:
+        """Columns to keep but refit on the training rows (remedy ``refit_on_training_rows``),
+        most suspect first; accepted ones are left out."""
+        return refit_list(self.findings)
+
+    @property
+    def impact(self) -> dict[str, Any] | None:
+        """The ``impact`` block: the validation score as given, with the remedies applied
+        (``remedied``), without the suspects, and per finding; ``None`` when not measured."""
+        return self.document.get("impact")
 
     def write(
         self,
@@ -82,6 +102,7 @@ class AuditResult:
     ) -> list[Path]:
         """Write dossier.html, findings.json, droplist.txt and summary.md into ``out``;
         ``history`` (earlier runs, oldest first) adds each suspect's trend to the dossier."""
+        _check_history(history)
         return write_files(out, render_all(self.findings, history=history))
 
     def __repr__(self) -> str:
@@ -132,8 +153,9 @@ def audit(
     cutoff_time: str | None = None,
     horizon: str | None = None,
     entity: str | None = None,
+    order: str | None = None,
     fold_column: str | None = None,
-    seed: int = 0,
+    seed: int | None = None,
     probes: list[str] | None = None,
     settings: Settings | None = None,
     source: str | None = None,
@@ -164,14 +186,20 @@ def audit(
         ``known_at``, descriptions).
     label_time, cutoff_time, horizon, entity : str, optional
         As the scan flags of the same names.
+    order : str, optional
+        A sortable column (period number, date, sequence) that orders each entity's rows when
+        no label or cutoff time does (dictionary role ``order``).
     fold_column : str, optional
         The cross-validation fold of each training row; each fold is audited against the
         other training rows.
-    seed : int, default 0
-        Seeds every sample and fold, so the same inputs give the same findings. Any whole
-        number; one outside [0, 2**31 - 1) is mapped into it.
+    seed : int, optional
+        Seeds every sample and fold, so the same inputs give the same findings (default
+        ``settings.seed``, else 0). Any whole number; one outside [0, 2**31 - 1) is mapped
+        into it.
     settings : Settings, optional
-        Probe settings (folds, bins, ...); ``seed``, when not 0, wins over its seed.
+        Probe settings (folds, bins, ...). ``seed``, ``engine`` and ``sample_rows`` are
+        settings too: given both here and in ``settings`` with other values, they are an
+        error rather than one silently winning.
     code : list of paths, optional
         Training scripts or notebooks, audited as by ``featureaudit code``; their findings
         go into ``code_findings`` and, on named columns, into those columns' evidence.
@@ -205,41 +233,52 @@ def audit(
     >>> result = fa.audit("invoices.csv", target="late_over_30d")   # doctest: +SKIP
     >>> result.suspects("high")                                     # doctest: +SKIP
     """
+    data, columns = _text_column_names(data, locals())
+    with python_words():
+        return _audit(data, columns, seed, probes, settings, engine, sample_rows, progress)
+
+
+def _audit(
+    data: object,
+    given: dict[str, Any],
+    seed: object,
+    probes: list[str] | None,
+    settings: Settings | None,
+    engine: str | None,
+    sample_rows: int | None,
+    progress: bool | None,
+) -> AuditResult:
+    """The body of :func:`audit`: check every argument, then run the engine that fits."""
+    names = ("test", "split_column", "train_value", "target", "task", "dictionary",
+             "label_time", "cutoff_time", "horizon", "entity", "order", "source", "encoding",
+             "fold_column", "scheduler")  # fmt: skip
     inputs = Inputs(
-        test=test,
-        split_column=split_column,
-        train_value=train_value,
-        target=target,
-        task=task,
-        dictionary=dictionary,
-        label_time=label_time,
-        cutoff_time=cutoff_time,
-        horizon=horizon,
-        entity=entity,
-        source=source,
-        code=code or None,
-        encoding=encoding,
-        normalise_labels=normalise_labels or None,
-        fold_column=fold_column,
-        scheduler=scheduler,
+        **{k: given[k] for k in names},
+        code=given["code"] or None,
+        normalise_labels=given["normalise_labels"] or None,
     )
-    chosen = _engine_settings(_settings(settings, seed), engine, sample_rows)
-    if probes is not None and (
-        isinstance(probes, str) or not all(isinstance(p, str) for p in probes)
-    ):
-        raise SettingError(f"probes must be a list of probe names; got {probes!r}.")
+    chosen = _settings(settings, seed=seed, engine=engine, sample_rows=sample_rows)
+    _check_probes(probes)
+    if inputs.scheduler is not None and chosen.engine != "dask":
+        raise SettingError(
+            f"--scheduler {inputs.scheduler!r} names a Dask cluster, which only --engine dask "
+            f"uses (the engine is {chosen.engine!r}); pass --engine dask too, or drop --scheduler."
+        )
     code_result = None
     if inputs.code:  # read first: an unreadable file stops the audit before any table work
         from featureaudit.code.join import read_code
 
-        given = inputs.code
-        code_result = read_code([given] if isinstance(given, str | os.PathLike) else list(given))
+        paths = inputs.code
+        code_result = read_code([paths] if isinstance(paths, str | os.PathLike) else list(paths))
     engine_name = resolve_engine(chosen.engine, data, inputs.test)
     if engine_name in ("stream", "dask"):
         from featureaudit.engines.run import run_stream
 
-        given = inputs.table_inputs().items()
-        build = {k: v for k, v in given if v is not None and k not in ("code", "scheduler")}
+        build = {
+            k: v
+            for k, v in inputs.table_inputs().items()
+            if v is not None and k not in ("code", "scheduler")
+        }
         return AuditResult(
             run_stream(data, build, chosen, probes, progress, engine_name, inputs.scheduler)
         )
@@ -247,21 +286,84 @@ def audit(
     return AuditResult(run_audit(table, chosen, probes=probes, progress=progress, code=code_result))
 
 
-def _settings(settings: object, seed: object) -> Settings:
-    """The settings to run with: ``settings`` (or the defaults), an explicit seed winning."""
+_COLUMN_ARGUMENTS = ("target", "split_column", "label_time", "cutoff_time", "entity", "fold_column")
+
+
+def _text_column_names(data: object, given: dict[str, Any]) -> tuple[object, dict[str, Any]]:
+    """A DataFrame whose column names are not text (whole numbers from a NumPy array) is read
+    with its names as text, and said so in a warning; column arguments given as such a name
+    (``target=3``) are taken as its text (``"3"``)."""
+    import numbers
+    import warnings
+
+    given = dict(given)
+    if not isinstance(data, pd.DataFrame) or all(isinstance(c, str) for c in data.columns):
+        return data, given
+    odd = [c for c in data.columns if not isinstance(c, str)]
+    whole = all(isinstance(c, numbers.Integral) and not isinstance(c, bool) for c in odd)
+    names = set(odd)
+    for key in _COLUMN_ARGUMENTS:
+        value = given.get(key)
+        if not isinstance(value, str | bool) and value in names:
+            given[key] = str(value)
+    listed = ", ".join(repr(c) for c in odd[:5]) + (", …" if len(odd) > 5 else "")
+    kind = "whole numbers" if whole else "not text"
+    warnings.warn(
+        f"the DataFrame's column names {listed} are {kind}; they are read as text "
+        f"({', '.join(repr(str(c)) for c in odd[:3])}…) and reported that way.",
+        UserWarning,
+        stacklevel=3,
+    )
+    return data, given
+
+
+def _check_probes(probes: object) -> None:
+    """``probes``: None (every registered probe) or a non-empty list of probe names."""
+    if probes is None:
+        return
+    if isinstance(probes, str) or not isinstance(probes, list | tuple):
+        raise SettingError(f"probes must be a list of probe names; got {shown(probes)}.")
+    if not all(isinstance(p, str) for p in probes):
+        raise SettingError(f"probes must be a list of probe names; got {shown(probes)}.")
+    if not probes:
+        from featureaudit.registry import registered
+
+        raise SettingError(
+            "probes=[] would run no probe and report nothing; pass None for every probe, or "
+            f"name some of {sorted(registered())}."
+        )
+
+
+def _check_history(history: object) -> None:
+    """``write(history=...)``: None or a list of earlier runs' Findings, oldest first."""
+    if history is None:
+        return
+    if isinstance(history, list | tuple) and all(isinstance(h, Findings) for h in history):
+        return
+    raise SettingError(
+        "history must be a list of earlier runs' Findings, oldest first (e.g. [run.findings "
+        "for run in featureaudit.history.load_runs(folder)]); got "
+        f"{shown(history)} ({type(history).__name__})."
+    )
+
+
+def _settings(settings: object, **given: object) -> Settings:
+    """The settings to run with: ``settings`` (or the defaults) with the settings given as
+    keywords (``seed``, ``engine``, ``sample_rows``) put in; a keyword that disagrees with
+    the same field of ``settings`` is an error, never silently overruled."""
     if settings is not None and not isinstance(settings, Settings):
         raise SettingError(
             f"settings must be a featureaudit.settings.Settings; got a "
             f"{type(settings).__name__} ({settings!r:.80}). Pass Settings(**values)."
         )
+    over = {k: v for k, v in given.items() if v is not None}
     if settings is None:
-        return Settings(seed=seed)  # type: ignore[arg-type]  # checked by Settings
-    if seed != 0 and seed != settings.seed:  # an explicit seed wins over the settings'
-        return Settings(**{**settings.to_dict(), "seed": seed})
+        return Settings(**over)  # type: ignore[arg-type]  # checked by Settings
+    asked = Settings(**over)  # type: ignore[arg-type]  # checked (and seeds mapped) here
+    clash = {k: v for k, v in over.items() if getattr(asked, k) != getattr(settings, k)}
+    if clash:
+        said = ", ".join(
+            f"{k}={v!r} and settings.{k}={getattr(settings, k)!r}" for k, v in clash.items()
+        )
+        raise SettingError(f"audit() got {said}; they disagree. Pass each once.")
     return settings
-
-
-def _engine_settings(settings: Settings, engine: str | None, rows: int | None) -> Settings:
-    """The settings with ``engine`` and ``sample_rows`` given as arguments put in."""
-    over = {k: v for k, v in (("engine", engine), ("sample_rows", rows)) if v is not None}
-    return Settings(**{**settings.to_dict(), **over}) if over else settings

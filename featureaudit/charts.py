@@ -217,41 +217,95 @@ def stat_pairs(all_rows: dict | None, training_rows: dict | None) -> Markup | st
     )
 
 
+def _impact_rows(block: dict) -> list[tuple[str, float, list | None, str]]:
+    """(label, score, its 95 % interval or None, how) for each corrected score, the score
+    with the remedies applied first."""
+    given = float(block["as_given"])
+    rows = []
+    rem = block.get("remedied")
+    if rem and rem.get("value") is not None:
+        rows.append(("with the remedies applied", float(rem["value"]), rem.get("ci95"), rem["how"]))
+    if block.get("suspects_removed"):
+        rows.append(
+            ("without every suspect", float(block["without_suspects"]), block.get("ci95"), "")
+        )
+    for e in block.get("by_finding", []):
+        if e.get("corrected") is None:
+            continue
+        ci = e.get("corrected_ci95")
+        change = e.get("ci95") or [None, None]
+        if not ci and None not in change[:2]:
+            ci = [given - change[1], given - change[0]]
+        name = e.get("column") or str(e.get("kind", "")).replace("_", " ")
+        rows.append((str(name), float(e["corrected"]), ci, str(e.get("how") or "")))
+    return rows[:14]
+
+
+def _short(label: str, n: int = 30) -> str:
+    return label if len(label) <= n else label[: n - 1] + "…"
+
+
+def _ticks(lo: float, hi: float) -> list[float]:
+    for step in (0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1.0):
+        if (hi - lo) / step <= 6:
+            break
+    first = math.ceil(lo / step) * step
+    return [round(first + i * step, 6) for i in range(int((hi - first) / step + 1e-9) + 1)]
+
+
 def impact_bars(block: dict | None) -> Markup | str:
-    """The corrected score per finding against the as-given score, largest effect first."""
+    """Each corrected validation score as a dot with its 95 % interval, on an axis that spans
+    the scores themselves (not 0 or 0.5 up), so differences of a few hundredths show; the
+    dashed line is the score as given."""
     if not block:
         return ""
-    rows = [e for e in block.get("by_finding", []) if e.get("corrected") is not None][:12]
+    rows = _impact_rows(block)
     if not rows:
         return ""
-    values = [float(block["as_given"])] + [float(e["corrected"]) for e in rows]
-    lo, hi = min(values + [0.5 if block.get("metric") != "r2" else 0.0]), max(values)
-    span = (hi - lo) or 1.0
-    left, right = 210, W - 50
+    given = float(block["as_given"])
+    points = [given] + [v for _, v, _, _ in rows]
+    points += [c for _, _, ci, _ in rows if ci for c in ci[:2] if c is not None]
+    lo, hi = min(points), max(points)
+    pad = max((hi - lo) * 0.08, 0.005)
+    lo, hi = lo - pad, hi + pad
+    left, right = 200, W - 20
 
     def x(v: float) -> float:
-        return left + (v - lo) / span * (right - left)
+        return left + (v - lo) / (hi - lo) * (right - left)
 
-    h = 22 * len(rows) + 30
-    given = x(float(block["as_given"]))
-    body = [
-        f'<line x1="{given:.1f}" y1="2" x2="{given:.1f}" y2="{h - 20}" stroke="{MUTED}" '
-        f'stroke-dasharray="4 3"/>'
-    ]
-    for i, e in enumerate(rows):
-        y = 6 + i * 22
-        name = e.get("column") or str(e.get("kind", "")).replace("_", " ")
-        width = max(1.0, x(e["corrected"]) - left)
+    top = 8
+    h = top + 22 * len(rows) + 34
+    axis = h - 26
+    body = []
+    for t in _ticks(lo, hi):
         body.append(
-            f'<text x="0" y="{y + 12}" font-size="11" fill="{INK}">{_t(str(name)[:30])}'
-            f'</text><rect x="{left}" y="{y + 2}" width="{width:.1f}" '
-            f'height="13" fill="{INK}"><title>{_t(e.get("how"))}</title></rect>'
-            f'<text x="{x(e["corrected"]) + 4:.1f}" y="{y + 12}" font-size="10" '
-            f'fill="{MUTED}">{_num(e["corrected"])}</text>'
+            f'<line x1="{x(t):.1f}" y1="{top}" x2="{x(t):.1f}" y2="{axis}" stroke="{GRID}"/>'
+            f'<text x="{x(t):.1f}" y="{axis + 12}" font-size="9" text-anchor="middle" '
+            f'fill="{MUTED}">{_num(t)}</text>'
         )
     body.append(
-        f'<text x="{left}" y="{h - 6}" font-size="10" fill="{MUTED}">corrected '
-        f"{_t(block.get('metric'))} per finding; dashed: as given "
-        f"{_num(block['as_given'])}</text>"
+        f'<line x1="{x(given):.1f}" y1="{top - 4}" x2="{x(given):.1f}" y2="{axis}" '
+        f'stroke="{INK}" stroke-dasharray="4 3"/>'
     )
-    return _svg(h, "".join(body), "corrected validation score per finding")
+    for i, (label, value, ci, how) in enumerate(rows):
+        y = top + 22 * i + 10
+        weight = ' font-weight="700"' if i == 0 and label.startswith("with the remedies") else ""
+        body.append(
+            f'<text x="0" y="{y + 4}" font-size="11" fill="{INK}"{weight}>'
+            f"{_t(_short(label))}</text>"
+        )
+        if ci and None not in ci[:2]:
+            body.append(
+                f'<line x1="{x(ci[0]):.1f}" y1="{y}" x2="{x(ci[1]):.1f}" y2="{y}" '
+                f'stroke="{INK}" stroke-width="2"/>'
+            )
+        body.append(
+            f'<circle cx="{x(value):.1f}" cy="{y}" r="4.5" fill="{INK}"><title>{_t(how)}'
+            f"</title></circle>"
+        )
+    metric = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(str(block.get("metric")), "")
+    body.append(
+        f'<text x="0" y="{h - 2}" font-size="10" fill="{MUTED}">validation {metric} '
+        f"corrected (dot) with its 95 % interval (line); dashed: as given {_num(given)}</text>"
+    )
+    return _svg(h, "".join(body), "validation score as given and corrected")

@@ -25,8 +25,12 @@ def _interrupted_line(signum: int, argv: list[str], replaced: bool) -> str:
 
 
 def _exit_at_once(signum: int, frame: object) -> None:
-    """While the modules load nothing is written yet: say so and leave, without a traceback."""
-    print(_interrupted_line(signum, sys.argv[1:], False), file=sys.stderr, flush=True)
+    """Outside a command (while the modules load, or during interpreter exit after one) say
+    which report stands and leave at once, without a traceback: the new one when this
+    process swapped it in, else the earlier one."""
+    writer = sys.modules.get("featureaudit.writer")
+    replaced = bool(getattr(writer, "swapped", None))
+    print(_interrupted_line(signum, sys.argv[1:], replaced), file=sys.stderr, flush=True)
     os._exit(128 + signum)
 
 
@@ -42,11 +46,12 @@ from typing import Annotated, Any  # noqa: E402
 import typer  # noqa: E402
 from typer.core import TyperGroup  # noqa: E402
 
-from featureaudit import __version__  # noqa: E402
+from featureaudit._version import __version__  # noqa: E402
 from featureaudit.errors import FeatureAuditError, Interrupted, SettingError  # noqa: E402
 from featureaudit.findings import diff_findings, droplist, load_findings  # noqa: E402
 from featureaudit.inputs import Inputs  # noqa: E402
 from featureaudit.levels import Level  # noqa: E402
+from featureaudit.options import declared_options  # noqa: E402
 from featureaudit.settings import Settings, check_level, read_config  # noqa: E402
 
 __all__ = ["app", "main"]
@@ -82,6 +87,7 @@ class _OneLineErrors(TyperGroup):
             sys.exit(2)
         previous = _raise_on_signals()
         try:
+            _refuse_repeated_options(self, argv)
             rv = super().main(*args, **kwargs)
         except Interrupted as exc:
             from featureaudit.writer import swapped
@@ -108,6 +114,30 @@ class _OneLineErrors(TyperGroup):
             for sig, handler in previous.items():
                 signal.signal(sig, handler)
         sys.exit(rv if isinstance(rv, int) else 0)
+
+
+def _refuse_repeated_options(group: TyperGroup, argv: list[str]) -> None:
+    """An option that takes one value, given twice (``--target y --target a``), is an error
+    rather than the last one silently winning."""
+    command = group.commands.get(argv[0]) if argv else None
+    if command is None:
+        return
+    single = {
+        opt
+        for param in command.params
+        if getattr(param, "param_type_name", "") == "option" and not getattr(param, "multiple", 0)
+        for opt in param.opts
+    }
+    seen: set[str] = set()
+    for token in argv[1:]:
+        if token == "--":
+            break
+        name = token.split("=", 1)[0]
+        if name in single and name in seen:
+            raise SettingError(
+                f"{name} was given more than once; pass it once (with the value you mean)."
+            )
+        seen.add(name)
 
 
 def _raise_on_signals() -> dict[int, Any]:
@@ -161,22 +191,8 @@ def _fail(exc: BaseException) -> None:
     sys.exit(2)
 
 
-def _reached(doc: dict[str, Any], level: str) -> list[str]:
-    floor = Level.parse(level)
-    hits = [
-        c["column"]
-        for c in doc["columns"]
-        if Level.parse(c["level"]) >= floor and not c.get("accepted")
-    ]
-    hits += [
-        f"{f['kind']} (split)"
-        for f in doc["dataset_findings"]
-        if Level.parse(f["level"]) >= floor and not f.get("accepted")
-    ]
-    return hits
-
-
 @app.command()
+@declared_options
 def scan(
     table: Annotated[
         Path,
@@ -185,70 +201,9 @@ def scan(
             help="CSV, TSV, Parquet, Feather/Arrow file or a folder of Parquet files.",
         ),
     ],
-    test: Annotated[str | None, typer.Option(help="Held-out table with the same columns.")] = None,
-    split_column: Annotated[str | None, typer.Option(help="Column that marks the split.")] = None,
-    train_value: Annotated[
-        str | None,
-        typer.Option(help="Value of --split-column that marks training rows [default: train]."),
-    ] = None,
-    target: Annotated[str | None, typer.Option(help="The outcome column.")] = None,
-    task: Annotated[str | None, typer.Option(help="binary, multiclass or numeric.")] = None,
-    dictionary: Annotated[str | None, typer.Option(help="Data dictionary CSV.")] = None,
-    label_time: Annotated[str | None, typer.Option(help="When each outcome became known.")] = None,
-    cutoff_time: Annotated[str | None, typer.Option(help="When each prediction is made.")] = None,
-    horizon: Annotated[
-        str | None, typer.Option(help="Cutoff = label time minus this, e.g. 30d.")
-    ] = None,
-    entity: Annotated[str | None, typer.Option(help="Customer, patient… a row belongs to.")] = None,
-    fold_column: Annotated[
-        str | None, typer.Option(help="The cross-validation fold of each training row.")
-    ] = None,
-    out: Annotated[
-        str | None, typer.Option(help="Report folder [default: featureaudit-report].")
-    ] = None,
-    fail_at: Annotated[
-        str | None,
-        typer.Option(help="Exit 1 when a finding reaches this level: critical, high, medium, low."),
-    ] = None,
-    seed: Annotated[
-        int | None, typer.Option(help="Seed of folds and samples [default: 0].")
-    ] = None,
-    fail_at_impact: Annotated[
-        float | None,
-        typer.Option(
-            help="Exit 1 when the as-given validation score exceeds a corrected one by more than "
-            "this, e.g. 0.02."
-        ),
-    ] = None,
-    accepted: Annotated[
-        str | None, typer.Option(help="CSV of reviewed suspects: column,kind,reason,...")
-    ] = None,
-    history: Annotated[
-        str | None, typer.Option(help="Folder that keeps every run's findings.")
-    ] = None,
     config: Annotated[str | None, typer.Option(help="TOML file with any of these flags.")] = None,
-    code: Annotated[
-        list[str] | None, typer.Option(help="Training script or notebook to audit (repeatable).")
-    ] = None,
-    encoding: Annotated[
-        str | None,
-        typer.Option(help="Encoding of CSV files that are not UTF-8 (e.g. latin-1, cp1252)."),
-    ] = None,
-    normalise_labels: Annotated[
-        bool,
-        typer.Option(
-            "--normalise-labels", help="Merge target labels differing only in case or spaces."
-        ),
-    ] = False,
-    # engine block: where the table is read (featureaudit/engines)
-    engine: Annotated[
-        str | None, typer.Option(help="auto, memory, stream or dask [default: auto].")
-    ] = None,
-    scheduler: Annotated[str | None, typer.Option(help="Dask scheduler address.")] = None,
-    sample_rows: Annotated[
-        int | None, typer.Option(help="Seeded sample for the model-based parts [default: 200000].")
-    ] = None,
-    quiet: Annotated[bool, typer.Option("--quiet", help="No progress on stderr.")] = False,
+    *,
+    flags: dict[str, Any],
 ) -> int:
     """Audit TABLE and write dossier.html, findings.json, droplist.txt and summary.md.
 
@@ -257,10 +212,6 @@ def scan(
     """
     from featureaudit.api import audit
 
-    flags = {k: v for k, v in locals().items() if k not in ("table", "config", "audit")}
-    flags["code"] = flags.get("code") or None
-    flags["normalise_labels"] = flags.get("normalise_labels") or None
-    flags["quiet"] = flags.get("quiet") or None
     inputs, settings = _inputs_and_settings(flags, config)
     from featureaudit.accepted import apply_accepted, read_accepted
     from featureaudit.history import check_folder, load_runs, store_run
@@ -268,12 +219,15 @@ def scan(
     reviewed = read_accepted(inputs.accepted) if inputs.accepted else None
     history_dir = check_folder(inputs.history) if inputs.history else None
     earlier = [r.findings for r in load_runs(history_dir)] if history_dir else None
-    result = audit(
-        str(table),
-        **inputs.table_inputs(),
-        settings=settings,
-        progress=False if inputs.quiet else None,
-    )
+    from featureaudit.doors import command_line
+
+    with command_line():
+        result = audit(
+            str(table),
+            **inputs.table_inputs(),
+            settings=settings,
+            progress=False if inputs.quiet else None,
+        )
     if reviewed is not None:
         apply_accepted(result.document, reviewed)
     out_dir = Path(inputs.out or "featureaudit-report")
@@ -281,56 +235,35 @@ def scan(
     if history_dir is not None:
         store_run(history_dir, result.findings)
     _print_outcome(result.document, out_dir)
-    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
-    if fail and _reached(result.document, fail):
-        return 1
-    if inputs.fail_at_impact is not None:
-        from featureaudit.impact import largest_lift
+    from featureaudit.outcome import gate_reason
 
-        lift = largest_lift(result.document)
-        if lift is not None and lift > float(inputs.fail_at_impact):
-            return 1
+    fail = check_level(inputs.fail_at, flag="--fail-at") if inputs.fail_at else None
+    reason = gate_reason(result.document, fail, inputs.fail_at_impact)
+    if reason:
+        print(f"featureaudit: {reason}", file=sys.stderr)
+        return 1
     return 0
 
 
 def _inputs_and_settings(flags: dict[str, Any], config: str | None) -> tuple[Inputs, Settings]:
     """The config file's values under the flags given (flags win), checked once, here."""
     values = dict(read_config(config)) if config else {}
-    values.update({k: v for k, v in flags.items() if v is not None})
     names = set(Settings.names())
+    if values:  # each config value is checked, also one that a flag overrides
+        Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="config")
+        Settings(**{k: v for k, v in values.items() if k in names})
+    values.update({k: v for k, v in flags.items() if v is not None})
     inputs = Inputs.from_mapping({k: v for k, v in values.items() if k not in names}, where="scan")
     settings = Settings(**{k: v for k, v in values.items() if k in names})
     return inputs, settings
 
 
 def _print_outcome(doc: dict[str, Any], out_dir: Path) -> None:
-    from featureaudit.findings import Findings
-    from featureaudit.names import quote_name
-    from featureaudit.report import verdict_line
+    from featureaudit.outcome import outcome_lines
 
-    d = doc["dataset"]
-    target = (
-        f"target {d['target']} ({d['task']})"
-        if d["target"] is not None
-        else "no target (probes that need one are skipped; pass --target)"
-    )
-    print(
-        f"audited {d['source']}: {d['rows']} rows ({d['train_rows']} training, "
-        f"{d['heldout_rows']} held out), {target}"
-    )
-    print(verdict_line(Findings(doc)))
-    top = [c for c in doc["columns"] if Level.parse(c["level"]) >= Level.MEDIUM][:8]
-    for c in top:
-        note = "  [accepted after review]" if c.get("accepted") else ""
-        name = quote_name(c["column"])
-        print(f"  {c['level']:<8} {c['score']:.2f}  {name}: {c['summary']}{note}")
-    for f in doc["dataset_findings"]:
-        if Level.parse(f["level"]) >= Level.MEDIUM:
-            note = "  [accepted after review]" if f.get("accepted") else ""
-            print(f"  {f['level']:<8} split  {f['kind']}: {f['summary']}{note}")
+    print("\n".join(outcome_lines(doc, out_dir)))
     for warning in doc["warnings"]:
         print(f"featureaudit: warning: {warning}", file=sys.stderr)
-    print(f"dossier: {out_dir / 'dossier.html'}")
 
 
 @app.command("droplist")
@@ -338,8 +271,10 @@ def droplist_cmd(
     findings: Annotated[
         Path, typer.Argument(metavar="FINDINGS", help="findings.json written by scan.")
     ],
-    at_least: Annotated[str, typer.Option(help="Lowest level to drop.")] = "high",
-    format: Annotated[str, typer.Option(help="text or json.")] = "text",
+    at_least: Annotated[
+        str, typer.Option(metavar="[critical|high|medium|low]", help="Lowest level to drop.")
+    ] = "high",
+    format: Annotated[str, typer.Option(metavar="[text|json]", help="Output format.")] = "text",
 ) -> int:
     """Print the columns to drop from a findings file, most suspect first.
 
@@ -364,23 +299,32 @@ def diff(
     old: Annotated[Path, typer.Argument(metavar="OLD", help="findings.json of the earlier run.")],
     new: Annotated[Path, typer.Argument(metavar="NEW", help="findings.json of the later run.")],
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a new or raised finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]",
+            help="Exit 1 when a new or raised finding reaches this level.",
+        ),
     ] = None,
-    format: Annotated[str, typer.Option(help="text, json or markdown.")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|markdown]", help="Output format.")
+    ] = "text",
 ) -> int:
     """Print columns and split findings that are new, gone or changed level between two runs,
-    highest level first; accepted ones are marked and never fail.
+    highest level first ("cannot tell" where a check could not judge the new run), after the
+    tables compared, the change of the headline score and the dictionary's coverage; accepted
+    ones are marked and never fail.
 
     Example: featureaudit diff last-month/findings.json featureaudit-report/findings.json
     --fail-at high --format markdown
     """
-    from featureaudit.diff_format import FORMATS, format_diff
+    from featureaudit.diff_format import FORMATS, diff_context, format_diff
 
     level = check_level(fail_at, flag="--fail-at") if fail_at else None
     if format not in FORMATS:
         raise SettingError(f"--format {format!r} is not one of {', '.join(FORMATS)}.")
-    lines = diff_findings(load_findings(old), load_findings(new))
-    print(format_diff(lines, format))
+    before, after = load_findings(old), load_findings(new)
+    lines = diff_findings(before, after)
+    print(format_diff(lines, format, diff_context(before, after)))
     if level and any(d.counts_at(level) for d in lines):
         return 1
     return 0
@@ -474,9 +418,14 @@ def code_cmd(
         ),
     ],
     out: Annotated[str, typer.Option(help="Folder for code-findings.json (and .sarif).")] = ".",
-    format: Annotated[str, typer.Option(help="text, json or sarif (stdout).")] = "text",
+    format: Annotated[
+        str, typer.Option(metavar="[text|json|sarif]", help="Output on stdout.")
+    ] = "text",
     fail_at: Annotated[
-        str | None, typer.Option(help="Exit 1 when a finding reaches this level.")
+        str | None,
+        typer.Option(
+            metavar="[critical|high|medium|low]", help="Exit 1 when a finding reaches this level."
+        ),
     ] = None,
 ) -> int:
     """Audit training code statically (nothing is run) for leakage the table cannot show.

@@ -19,6 +19,7 @@ import pandas as pd
 from featureaudit.durations import parse_duration
 from featureaudit.errors import DictionaryError, DurationError, InputFileError
 from featureaudit.names import quote_name, unquote_name
+from featureaudit.prose import looks_like_prose
 
 __all__ = ["ROLES", "DictionaryEntry", "DataDictionary", "read_dictionary", "draft_dictionary"]
 
@@ -29,11 +30,13 @@ ROLES = (
     "entity",
     "label_time",
     "cutoff_time",
+    "order",
     "split",
     "weight",
     "ignore",
 )
 STANDARD = ("column", "role", "known_at", "description")
+SINGLE_ROLES = ("target", "label_time", "cutoff_time", "split", "entity")  # one column each
 
 
 @dataclass(frozen=True)
@@ -96,8 +99,14 @@ def read_dictionary(path: str | Path, *, encoding: str | None = None) -> DataDic
 
 def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary:
     """Parse dictionary CSV text (see :func:`read_dictionary`)."""
-    reader = csv.reader(io.StringIO(text))
-    rows = list(reader)
+    reader = csv.reader(io.StringIO(text, newline=""))  # quoted line breaks stay in a cell
+    try:
+        rows = list(reader)
+    except csv.Error as exc:
+        raise DictionaryError(
+            f"dictionary {source!r} line {reader.line_num} is not valid CSV ({exc}); quote "
+            "cells that hold line breaks or quotes."
+        ) from exc
     if not rows:
         raise DictionaryError(
             f"dictionary {source!r} is empty; it needs a header row with at "
@@ -116,6 +125,12 @@ def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary
     for line_no, row in enumerate(rows[1:], start=2):
         if not any(cell.strip() for cell in row):
             continue
+        if len(row) != len(header):
+            raise DictionaryError(
+                f"dictionary {source!r} line {line_no} has {len(row)} cells but the header has "
+                f"{len(header)}; give every line one cell per header (quote a cell that holds "
+                "a comma)."
+            )
 
         def cell(name: str, row: list[str] = row) -> str:
             i = index.get(name)
@@ -139,6 +154,7 @@ def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary
                 f"dictionary {source!r} line {line_no}: column {column!r} is "
                 f"already described on line {entries[column].line}; keep one."
             )
+        _one_column_per_role(entries, role, column, source, line_no)
         known_at = cell("known_at")
         offset, known_col = _parse_known_at(known_at, source=source, line=line_no, column=column)
         extra = {
@@ -157,6 +173,21 @@ def parse_dictionary(text: str, *, source: str = "dictionary") -> DataDictionary
             extra=extra,
         )
     return DataDictionary(entries=entries, source=source, extra_headers=extra_headers)
+
+
+def _one_column_per_role(
+    entries: dict[str, DictionaryEntry], role: str, column: str, source: str, line: int
+) -> None:
+    """A role that names one column (target, label_time, ...) given on two lines is an error."""
+    if role not in SINGLE_ROLES:
+        return
+    for other in entries.values():
+        if other.role == role:
+            raise DictionaryError(
+                f"dictionary {source!r} line {line} gives role {role!r} to column {column!r}, "
+                f"but line {other.line} gives it to {other.column!r}; one column holds it. "
+                "Keep one of the two lines."
+            )
 
 
 def _parse_known_at(
@@ -214,6 +245,8 @@ def guess_role(s: pd.Series, name: str, *, target: str | None = None) -> str:
     )
     if not is_integer_or_text:
         return "feature"  # floats, booleans: never identifiers
+    if looks_like_prose(s):
+        return "feature"  # free text: every note may differ, yet it is read as words
     n = int(s.notna().sum())
     unique_share = s.nunique(dropna=True) / n if n else 0.0
     id_name = id_like_name(name)

@@ -12,20 +12,10 @@ from typing import Any
 
 import numpy as np
 
+from featureaudit.kinds import KINDS
 from featureaudit.levels import LEVEL_NAMES, Level
 
-__all__ = ["KINDS", "Evidence", "ColumnVerdict", "Skip", "clean_json"]
-
-KINDS = (
-    "target_proxy",
-    "recorded_after_cutoff",
-    "fit_on_all_rows",
-    "row_order_tells_target",
-    "duplicate_rows_across_split",
-    "shared_entities_across_split",
-    "time_overlap_across_split",
-    "split_shift",
-)
+__all__ = ["Evidence", "ColumnVerdict", "Skip", "clean_json"]
 
 
 def clean_json(value: Any) -> Any:

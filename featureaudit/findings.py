@@ -1,4 +1,4 @@
-"""findings.json (schema ``featureaudit.findings/2``; reads 1 and 2): build, read, drop, diff."""
+"""findings.json (schema ``featureaudit.findings/3``; reads 1, 2 and 3): build, read, drop, diff."""
 
 from __future__ import annotations
 
@@ -12,10 +12,19 @@ from featureaudit.errors import InputFileError
 from featureaudit.evidence import clean_json
 from featureaudit.levels import Level
 
-__all__ = ["SCHEMA", "Findings", "load_findings", "droplist", "diff_findings", "DiffLine"]
+__all__ = [
+    "SCHEMA",
+    "Findings",
+    "load_findings",
+    "droplist",
+    "refit_list",
+    "diff_findings",
+    "DiffLine",
+]
 
-SCHEMA = "featureaudit.findings/2"
-READABLE = ("featureaudit.findings/1", SCHEMA)  # schema 2 keeps every field of 1
+SCHEMA = "featureaudit.findings/3"
+# each schema keeps every field of the one before (3 adds the kind computed_from_later_rows)
+READABLE = ("featureaudit.findings/1", "featureaudit.findings/2", SCHEMA)
 
 
 @dataclass(frozen=True)
@@ -87,11 +96,21 @@ def load_findings(path: str | Path) -> Findings:
             f"findings file {str(p)!r} is not valid JSON ({exc}); pass the "
             "findings.json that `featureaudit scan` wrote."
         ) from exc
+    except RecursionError:
+        raise InputFileError(
+            f"findings file {str(p)!r} is nested too deeply to be a findings file; pass the "
+            "findings.json that `featureaudit scan` wrote."
+        ) from None
+    except OSError as exc:
+        raise InputFileError(
+            f"cannot read findings file {str(p)!r}: {exc.strerror or exc}; pass a findings.json "
+            "you can read."
+        ) from exc
     if not isinstance(doc, dict) or doc.get("schema") not in READABLE:
         got = doc.get("schema") if isinstance(doc, dict) else type(doc).__name__
         raise InputFileError(
             f"findings file {str(p)!r} has schema {got!r}; this version reads "
-            f"{' and '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
+            f"{', '.join(map(repr, READABLE))}. Re-run `featureaudit scan` "
             "to produce it."
         )
     for key in ("columns", "dataset_findings"):
@@ -127,6 +146,8 @@ def _entry_problem(entry: object, required: str) -> str | None:
         isinstance(score, bool) or not isinstance(score, int | float) or score != score
     ):
         return f"has score {score!r}, not a number"
+    if score is not None and not 0 <= score <= 1:
+        return f"has score {score!r}, not a number from 0 to 1"
     return None
 
 
@@ -151,11 +172,22 @@ def droplist(
     return [c["column"] for c in cols]
 
 
+def refit_list(findings: Findings) -> list[str]:
+    """Columns to keep but refit on the training rows, most suspect first (not accepted)."""
+    cols = [
+        c
+        for c in findings.columns
+        if c.get("remedy") == "refit_on_training_rows" and not c.get("accepted")
+    ]
+    cols.sort(key=lambda c: -float(c.get("score") or 0.0))
+    return [c["column"] for c in cols]
+
+
 @dataclass(frozen=True)
 class DiffLine:
     """One change between two runs; ``accepted`` is the later run's review record, if any."""
 
-    change: str  # new, gone, raised, lowered
+    change: str  # new, gone, raised, lowered, cannot tell, added (a column new, no finding)
     scope: str  # column or split (the words `scan` uses)
     name: str
     old_level: str | None
@@ -165,10 +197,12 @@ class DiffLine:
 
     @property
     def levels(self) -> str:
-        if self.change == "new":
+        if self.change in ("new", "added"):
             return self.new_level or ""
         if self.change == "gone":
             return self.old_level or ""
+        if self.change == "cannot tell":
+            return f"{self.old_level} -> cannot tell"
         return f"{self.old_level} -> {self.new_level}"
 
     def counts_at(self, level: str) -> bool:
@@ -187,7 +221,7 @@ class DiffLine:
             else ""
         )
         return (
-            f"{self.change:<8} {self.scope:<7} {self.name}  {self.levels}"
+            f"{self.change:<11} {self.scope:<7} {self.name}  {self.levels}"
             + (f"  ({self.detail})" if self.detail else "")
             + note
         )
@@ -219,9 +253,44 @@ def _split_names(findings: list[dict[str, Any]]) -> dict[str, str]:
     }
 
 
+def cannot_tell_probes(column: dict[str, Any]) -> set[str]:
+    """Probes that ran on a column but could not judge it (``fitted_on: cannot tell``, or a
+    check with too few values): their silence is not a level."""
+    out = set()
+    for e in column.get("evidence", []):
+        d = e.get("detail") or {}
+        if d.get("fitted_on") == "cannot tell" or str(e.get("summary", "")).startswith(
+            "could not judge"
+        ):
+            out.add(str(e.get("probe")))
+    return out
+
+
+def raised_by(column: dict[str, Any]) -> set[str]:
+    """Probes whose evidence set the column's level."""
+    level = Level.parse(column.get("level", "none"))
+    return {
+        str(e.get("probe"))
+        for e in column.get("evidence", [])
+        if Level.parse(e.get("level", "none")) >= level > Level.NONE
+    }
+
+
+def _change(scope: str, was_item: dict, item: dict) -> str | None:
+    was, level = was_item.get("level", "none"), item.get("level", "none")
+    if was == level:
+        return None
+    lowered = scope == "column" and Level.parse(level) < Level.parse(was)
+    if lowered and cannot_tell_probes(item) & raised_by(was_item):
+        return "cannot tell"
+    return "raised" if Level.parse(level) > Level.parse(was) else "lowered"
+
+
 def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
     """Columns and split findings that are new, gone, or changed level between two runs,
-    highest level first."""
+    highest level first. A lower level where the probe that raised it could not judge the
+    new run is ``cannot tell``, never ``lowered``; a column new to the table with no finding
+    is ``added``."""
     lines: list[DiffLine] = []
     names = {**_split_names(old.dataset_findings), **_split_names(new.dataset_findings)}
     pairs = [
@@ -239,22 +308,25 @@ def diff_findings(old: Findings, new: Findings) -> list[DiffLine]:
 
         for key, item in after.items():
             level = item.get("level", "none")
-            summary, accepted = item.get("summary", ""), item.get("accepted") or None
+            summary: str = item.get("summary") or ""
+            accepted = item.get("accepted") or None
             if key not in before:
-                if scope == "split" or level != "none":
-                    lines.append(DiffLine("new", scope, shown(key), None, level, summary, accepted))
+                what = "new" if scope == "split" or level != "none" else "added"
+                lines.append(DiffLine(what, scope, shown(key), None, level, summary, accepted))
                 continue
-            was = before[key].get("level", "none")
-            if was != level:
-                change = "raised" if Level.parse(level) > Level.parse(was) else "lowered"
+            change = _change(scope, before[key], item)
+            if change is not None:
+                was = before[key].get("level", "none")
                 lines.append(DiffLine(change, scope, shown(key), was, level, summary, accepted))
         for key, item in before.items():
             if key not in after:
                 lines.append(DiffLine("gone", scope, shown(key), item.get("level", "none"), None))
-    order = {"new": 0, "raised": 1, "lowered": 2, "gone": 3}
+    order = {"new": 0, "raised": 1, "cannot tell": 2, "lowered": 3, "gone": 4, "added": 5}
     lines.sort(
         key=lambda d: (
-            -Level.parse(d.new_level or d.old_level or "none"),
+            -Level.parse(
+                (d.old_level if d.change == "cannot tell" else d.new_level) or d.old_level or "none"
+            ),
             order[d.change],
             d.scope,
             d.name,

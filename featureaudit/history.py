@@ -55,6 +55,15 @@ def check_folder(folder: str | Path, *, flag: str = "--history") -> Path:
             f"cannot create the {flag} folder {str(p)!r}: {exc.strerror}; pass a folder you "
             "can write to."
         ) from exc
+    try:  # a folder this run cannot write to is said now, before any work
+        fd, probe = tempfile.mkstemp(prefix=".probe.", suffix=".tmp", dir=p)
+        os.close(fd)
+        os.unlink(probe)
+    except OSError as exc:
+        raise InputFileError(
+            f"cannot write into the {flag} folder {str(p)!r}: {exc.strerror or exc}; pass a "
+            "folder you can write to."
+        ) from exc
     return p
 
 
@@ -74,16 +83,28 @@ def store_run(folder: str | Path, findings: Findings) -> Path:
     final = out / run_name(findings)
     if final.exists():
         return final
-    fd, tmp = tempfile.mkstemp(prefix=".run.", suffix=".tmp", dir=out)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".run.", suffix=".tmp", dir=out)
+    except OSError as exc:
+        raise _not_stored(out, exc) from exc
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(findings.to_json())
         os.chmod(tmp, 0o644)
         with contextlib.suppress(FileExistsError):  # fails rather than overwrite
             os.link(tmp, final)
+    except OSError as exc:
+        raise _not_stored(out, exc) from exc
     finally:
         Path(tmp).unlink(missing_ok=True)
     return final
+
+
+def _not_stored(folder: Path, exc: OSError) -> InputFileError:
+    return InputFileError(
+        f"cannot store this run in the --history folder {str(folder)!r}: "
+        f"{exc.strerror or exc}; the report itself is written. Pass a folder you can write to."
+    )
 
 
 def load_runs(folder: str | Path) -> list[Run]:
@@ -97,13 +118,34 @@ def load_runs(folder: str | Path) -> list[Run]:
         )
     found = []
     for path in p.iterdir():
+        if path.name.startswith(".") or path.suffix.lower() != ".json":
+            continue  # this tool's own temporary files, and notes kept beside the runs
         if _NAME.match(path.name):
-            findings = load_findings(path)
+            findings = _stored_run(p, path)
             created = str(findings.document.get("created", ""))
             # runs within one second share a stamp: the order they were stored breaks the tie
             found.append((created, path.stat().st_mtime_ns, Run(path.name, created, findings)))
+        else:
+            raise InputFileError(
+                f"history folder {str(p)!r} holds {path.name!r}, which is not a run featureaudit "
+                "stored (runs are named like 20261201T120000Z-0123456789ab.json); move it out "
+                "of the folder, or pass --history with another folder."
+            )
     found.sort(key=lambda t: (t[0], t[1], t[2].name))
     return [run for _, _, run in found]
+
+
+def _stored_run(folder: Path, path: Path) -> Findings:
+    """One stored run; a corrupt or foreign file is an error that names it."""
+    try:
+        return load_findings(path)
+    except InputFileError as exc:
+        reason = str(exc).split(": ", 1)[-1] if ": " in str(exc) else str(exc)
+        raise InputFileError(
+            f"history folder {str(folder)!r} holds {path.name!r}, which is not a readable run "
+            f"({reason.split(';')[0]}); move it out of the folder, or pass --history with "
+            "another folder."
+        ) from exc
 
 
 def _levels(findings: Findings) -> dict[str, tuple[str, float]]:
@@ -190,13 +232,34 @@ def _radius(i: int, n: int) -> float:
     return 2.6 if i == n - 1 else 1.6
 
 
+def _undecided(runs: list[Run]) -> set[tuple[int, str]]:
+    """(run index, column) where the column is at none because the probe that raised it in
+    the run before could not judge it: shown as "cannot tell", not as a level."""
+    from featureaudit.findings import cannot_tell_probes, raised_by
+
+    out = set()
+    for i in range(1, len(runs)):
+        before = {c["column"]: c for c in runs[i - 1].findings.columns}
+        for c in runs[i].findings.columns:
+            was = before.get(c["column"])
+            if was and c.get("level", "none") == "none" and cannot_tell_probes(c) & raised_by(was):
+                out.add((i, c["column"]))
+    return out
+
+
 def history_lines(runs: list[Run], column: str | None = None) -> list[str]:
-    """The `featureaudit history` table: per column, level and score in each run, oldest
-    first, and the runs (by number) that raised it."""
+    """The `featureaudit history` table: each run's table and size, then per column, level
+    and score in each run, oldest first ("cannot tell" where a check could not judge it),
+    and the runs (by number) that raised it."""
     if not runs:
         return ["no runs stored yet"]
-    out = ["runs, oldest first:"]
-    out += [f"  {i:>3}  {r.created}  {r.name}" for i, r in enumerate(runs, start=1)]
+    out = ["runs, oldest first (run, created, table, rows, stored as):"]
+    for i, r in enumerate(runs, start=1):
+        d = r.findings.document.get("dataset") or {}
+        out.append(
+            f"  {i:>3}  {r.created}  {d.get('source', '?')}  {d.get('rows', '?')} rows  {r.name}"
+        )
+    undecided = _undecided(runs)
     table = series([r.findings for r in runs])
     splits: dict[str, list[tuple[str, float] | None]] = {}
     for i, r in enumerate(runs):
@@ -220,6 +283,8 @@ def history_lines(runs: list[Run], column: str | None = None) -> list[str]:
             cells.append(
                 f"{'-':<13}"
                 if p is None
+                else f"{'cannot tell':<13}"
+                if (i, name) in undecided
                 else (f"{p[0]:<13}" if name.endswith(" (split)") else f"{p[0]:<8} {p[1]:.2f}")
             )
             prev = points[i - 1] if i else None

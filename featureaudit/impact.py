@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from featureaudit.levels import Level
+from featureaudit.models import lgbm_params
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas, model_threads
@@ -46,21 +47,7 @@ class _Scored:
 
 
 def _params(seed: int, rows: int, n_jobs: int) -> dict:
-    return dict(
-        n_estimators=40,
-        learning_rate=0.15,
-        num_leaves=15,
-        min_child_samples=10,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=max(1, n_jobs),  # narrowed per fit by _fit_predict
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
-        max_bin=31,
-    )
+    return lgbm_params(seed, max(1, n_jobs))  # narrowed per fit by _fit_predict
 
 
 def _fit_predict(
@@ -99,8 +86,9 @@ class _Bench:
     """The sample, its split into fitted and scored rows, and the reference model."""
 
     def __init__(self, table: AuditTable, settings: Settings, columns: list[str]) -> None:
-        from featureaudit.probes.separability import _matrix
+        from featureaudit.matrix import feature_matrix
 
+        self.table = table
         self.task = table.task or "binary"
         self.k = max(len(table.classes), 2)
         self.seed = settings.seed
@@ -114,7 +102,7 @@ class _Bench:
             else np.maximum(table.y, 0).astype(np.int64)
         )
         self.rows = _stratified(np.flatnonzero(lab), strata, settings.reference_rows, rng)
-        self.x = _matrix(table, columns, self.rows)
+        self.x = feature_matrix(table.frame, columns, self.rows)
         self.columns = columns
         self.y = table.y[self.rows] if self.task == "numeric" else table.y[self.rows].astype(int)
         h = held[self.rows]
@@ -239,18 +227,22 @@ def _stratified(rows: np.ndarray, strata: np.ndarray, size: int, rng) -> np.ndar
     return np.sort(np.concatenate(parts))
 
 
-def column_change(bench: _Bench, base: _Scored, column: str, how: str) -> tuple[_Scored, dict]:
-    """One column corrected (removed, or refitted on the training rows): the corrected
-    predictions and the column's ``impact`` entry. Kept in one function so that a
-    measurement made elsewhere can replace it."""
+def column_change(
+    bench: _Bench, base: _Scored, column: str, how: str, verdict: dict | None = None
+) -> tuple[_Scored, dict]:
+    """One column corrected (removed, or refitted on the training rows as
+    :func:`featureaudit.remedied.refit_column` does): the corrected predictions and the
+    column's ``impact`` entry. Kept in one function so that a measurement made elsewhere can
+    replace it."""
     j = bench.columns.index(column)
     if how == "refit":
+        from featureaudit.remedied import refit_column
+
         x = bench.x.copy()
-        v = x[bench.fit_rows, j]
-        v = v[np.isfinite(v)]
-        sd = float(np.std(v)) or 1.0
-        x[:, j] = (x[:, j] - float(np.mean(v)) if v.size else x[:, j]) / sd
-        text = "the column re-standardised on the training rows (a refit of its scaling)"
+        new, text = refit_column(bench.table, x[:, j], verdict or {"column": column})
+        text = text.removeprefix(f"{column}: ")
+        if new is not None:
+            x[:, j] = new
         s = _Scored(bench.score(x), base.keep)
     else:
         text = "the column removed"
@@ -345,7 +337,7 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         if entry is not None:
             corrected = as_given - entry["change"]
         else:
-            s, entry = column_change(bench, base, c["column"], how)
+            s, entry = column_change(bench, base, c["column"], how, c)
             corrected = bench.value(s)
         shared = (
             _beyond_other_suspects(bench, without, suspects, c["column"], entry)
@@ -389,6 +381,9 @@ def _measure(table, settings, columns, dataset_findings, feats):  # noqa: ANN001
         "by_finding": by,
         "negligible_below": NEGLIGIBLE,
     }
+    from featureaudit.remedied import measure_remedied
+
+    block["remedied"] = measure_remedied(table, bench, columns, dataset_findings)
     return block, per_column
 
 
@@ -438,7 +433,7 @@ def _entry(column, kind, as_given, corrected, how, change) -> dict:  # noqa: ANN
 def _dataset_correction(table: AuditTable, bench: _Bench, base: _Scored, f: dict):  # noqa: ANN202
     kind = f["kind"]
     if kind == "duplicate_rows_across_split":
-        from featureaudit.probes.twins.hashing import member, row_hashes
+        from featureaudit.hashing import member, row_hashes
 
         h = row_hashes(table.frame.iloc[bench.rows], bench.columns)
         if bench.heldout_mode:
@@ -566,16 +561,27 @@ def shift_weights(bench: _Bench) -> np.ndarray:
     return out
 
 
-def largest_lift(doc: dict[str, Any]) -> float | None:
-    """How far the as-given score exceeds the lowest corrected one (``--fail-at-impact``)."""
+def largest_lift(doc: dict[str, Any]) -> tuple[float, str] | None:
+    """How far the as-given score exceeds a corrected one (``--fail-at-impact``), and which:
+    the score with the remedies applied, or a single finding's correction; without the
+    remedied score (a schema 2 file), the score without the suspects counts too."""
     block = doc.get("impact")
     if not block:
         return None
-    scores = [block.get("without_suspects")] + [
-        e.get("corrected") for e in block.get("by_finding", [])
+    rem = block.get("remedied") or {}
+    named: list[tuple[float | None, str]] = [
+        (rem.get("value"), "the score with the remedies applied")
     ]
-    scores = [s for s in scores if s is not None]
-    return max(0.0, block["as_given"] - min(scores)) if scores else None
+    if not rem:
+        named.append((block.get("without_suspects"), "the score without the suspects"))
+    for e in block.get("by_finding", []):
+        what = f"column {e['column']!r}" if e.get("column") else f"split finding {e.get('kind')}"
+        named.append((e.get("corrected"), f"{what} corrected ({e.get('how')})"))
+    found = [(float(block["as_given"]) - v, w) for v, w in named if v is not None]
+    if not found:
+        return None
+    lift, which = max(found, key=lambda t: t[0])
+    return max(0.0, lift), which
 
 
 def check_fail_at_impact(value: object) -> float:

@@ -14,7 +14,7 @@ from typing import Any
 
 from featureaudit.errors import SettingError
 
-__all__ = ["Inputs", "InputSpec", "input_specs", "TASKS"]
+__all__ = ["Inputs", "InputSpec", "input_specs", "shown", "TASKS"]
 
 TASKS = ("binary", "multiclass", "numeric")
 
@@ -28,6 +28,9 @@ class InputSpec:
     allowed: str  # in words, for the error message
     accepts: Callable[[Any], bool]
     scan_only: bool = False  # a scan flag (report folder, exit rules), not a table input
+    help: str = ""  # the flag's line in `scan --help`
+    metavar: str | None = None  # how --help shows its value, e.g. [binary|multiclass|numeric]
+    kind: str = "text"  # its command-line type: text, number, switch or repeated
 
     @property
     def config_key(self) -> str:
@@ -99,7 +102,8 @@ def _value(value: Any) -> bool:
 
 
 def _declare(flag: str, allowed: str, accepts: Callable[[Any], bool], **kw: Any) -> Any:
-    """A field of :class:`Inputs`: default ``None`` and its spec in the field's metadata."""
+    """A field of :class:`Inputs`: default ``None`` and its spec in the field's metadata
+    (``kw``: ``scan_only``, ``help``, ``metavar``, ``kind``; see :class:`InputSpec`)."""
     return field(default=None, metadata={"spec": (flag, allowed, accepts, kw)})
 
 
@@ -114,49 +118,133 @@ class Inputs:
     :class:`SettingError` naming the flag (and config key), the value and what is allowed.
     """
 
-    test: Any = _declare("--test", "a table path, DataFrame or pyarrow.Table", _table)
-    split_column: str | None = _declare("--split-column", _COLUMN, _text)
-    train_value: str | None = _declare("--train-value", "a value (text or number)", _value)
-    target: str | None = _declare("--target", _COLUMN, _text)
-    task: str | None = _declare("--task", "one of binary, multiclass, numeric", _task)
-    dictionary: Any = _declare(
-        "--dictionary", "a CSV path, a DataFrame or a DataDictionary", _dictionary
+    test: Any = _declare(
+        "--test",
+        "a table path, DataFrame or pyarrow.Table",
+        _table,
+        help="Held-out table with the same columns.",
     )
-    label_time: str | None = _declare("--label-time", _COLUMN, _text)
-    cutoff_time: str | None = _declare("--cutoff-time", _COLUMN, _text)
-    horizon: str | None = _declare("--horizon", "a duration such as 30d or P30D", _text)
-    entity: str | None = _declare("--entity", _COLUMN, _text)
-    fold_column: str | None = _declare("--fold-column", _COLUMN, _text)
+    split_column: str | None = _declare(
+        "--split-column", _COLUMN, _text, help="Column that marks the split."
+    )
+    train_value: str | None = _declare(
+        "--train-value",
+        "a value (text or number)",
+        _value,
+        help="Value of --split-column that marks training rows [default: train].",
+    )
+    target: str | None = _declare("--target", _COLUMN, _text, help="The outcome column.")
+    task: str | None = _declare(
+        "--task",
+        "one of binary, multiclass, numeric",
+        _task,
+        help="Overrides the inferred task.",
+        metavar="[" + "|".join(TASKS) + "]",
+    )
+    dictionary: Any = _declare(
+        "--dictionary",
+        "a CSV path, a DataFrame or a DataDictionary",
+        _dictionary,
+        help="Data dictionary CSV.",
+    )
+    label_time: str | None = _declare(
+        "--label-time", _COLUMN, _text, help="When each outcome became known."
+    )
+    cutoff_time: str | None = _declare(
+        "--cutoff-time", _COLUMN, _text, help="When each prediction is made."
+    )
+    horizon: str | None = _declare(
+        "--horizon",
+        "a duration such as 30d or P30D",
+        _text,
+        help="Cutoff = label time minus this, e.g. 30d.",
+    )
+    entity: str | None = _declare(
+        "--entity", _COLUMN, _text, help="Customer, patient… a row belongs to."
+    )
+    fold_column: str | None = _declare(
+        "--fold-column", _COLUMN, _text, help="The cross-validation fold of each training row."
+    )
+    order: str | None = _declare(
+        "--order",
+        _COLUMN,
+        _text,
+        help="Sortable column (period, date) ordering each entity's rows.",
+    )
     source: str | None = _declare("source", "a name for the table (text)", _text)
-    out: str | None = _declare("--out", "a folder path (not empty)", _path, scan_only=True)
+    out: str | None = _declare(
+        "--out",
+        "a folder path (not empty)",
+        _path,
+        scan_only=True,
+        help="Report folder [default: featureaudit-report].",
+    )
     fail_at: str | None = _declare(
-        "--fail-at", "a level: critical, high, medium or low", _level, scan_only=True
+        "--fail-at",
+        "a level: critical, high, medium or low",
+        _level,
+        scan_only=True,
+        help="Exit 1 when a finding reaches this level.",
+        metavar="[critical|high|medium|low]",
     )
     fail_at_impact: float | None = _declare(
         "--fail-at-impact",
         "a score difference of 0 or more, such as 0.02",
         _difference,
         scan_only=True,
+        help="Exit 1 when the as-given validation score exceeds a corrected one by more "
+        "than this, e.g. 0.02.",
+        kind="number",
     )
     encoding: str | None = _declare(
-        "--encoding", "a text encoding Python knows, e.g. latin-1", _encoding
+        "--encoding",
+        "a text encoding Python knows, e.g. latin-1",
+        _encoding,
+        help="Encoding of CSV files that are not UTF-8 (e.g. latin-1, cp1252).",
     )
     normalise_labels: bool | None = _declare(
-        "--normalise-labels", "true or false", lambda v: isinstance(v, bool)
+        "--normalise-labels",
+        "true or false",
+        lambda v: isinstance(v, bool),
+        help="Merge target labels differing only in case or spaces.",
+        kind="switch",
     )
     accepted: str | None = _declare(
-        "--accepted", "a CSV path of reviewed suspects", _path, scan_only=True
+        "--accepted",
+        "a CSV path of reviewed suspects",
+        _path,
+        scan_only=True,
+        help="CSV of reviewed suspects: column,kind,reason,...",
     )
     history: str | None = _declare(
-        "--history", "a folder path for the run history", _path, scan_only=True
+        "--history",
+        "a folder path for the run history",
+        _path,
+        scan_only=True,
+        help="Folder that keeps every run's findings.",
     )
     scheduler: str | None = _declare(
-        "--scheduler", "a Dask scheduler address such as tcp://host:8786", _text
+        "--scheduler",
+        "a Dask scheduler address such as tcp://host:8786",
+        _text,
+        help="Dask scheduler address.",
     )
     quiet: bool | None = _declare(
-        "--quiet", "true or false", lambda v: isinstance(v, bool), scan_only=True
+        "--quiet",
+        "true or false",
+        lambda v: isinstance(v, bool),
+        scan_only=True,
+        help="No progress on stderr.",
+        kind="switch",
     )
-    code: Any = _declare("--code", "a script or notebook path, or a list of them", _paths)
+    code: Any = _declare(
+        "--code",
+        "a script or notebook path, or a list of them",
+        _paths,
+        help="Training script or notebook to audit (repeatable).",
+        metavar="PATH",
+        kind="repeated",
+    )
 
     def __post_init__(self) -> None:
         for spec in input_specs():
@@ -208,10 +296,22 @@ def _as_text(value: Any) -> str:
     return str(value)
 
 
+SHOWN = 60  # characters of a value shown in an error; the rest is counted, not echoed
+
+
+def shown(value: Any) -> str:
+    """``repr(value)``, cut to its first SHOWN characters when longer (a 10 MB config value
+    is not echoed whole on the one error line)."""
+    text = repr(value)
+    if len(text) <= SHOWN:
+        return text
+    return f"{text[:SHOWN]}… ({len(text):,} characters)"
+
+
 def _message(spec: InputSpec, value: Any) -> str:
-    shown = repr(value) if not hasattr(value, "shape") else f"a {type(value).__name__}"
+    given = shown(value) if not hasattr(value, "shape") else f"a {type(value).__name__}"
     where = spec.flag if spec.flag == spec.name else f"{spec.flag} (config key {spec.name})"
-    return f"{where} must be {spec.allowed}; got {shown} ({type(value).__name__})."
+    return f"{where} must be {spec.allowed}; got {given} ({type(value).__name__})."
 
 
 def input_specs() -> tuple[InputSpec, ...]:

@@ -119,11 +119,7 @@ def read_table(path: str | os.PathLike[str], *, encoding: str | None = None) -> 
                     f"folder {str(p)!r} holds no .parquet files; pass a folder "
                     "of Parquet files or a single table file."
                 )
-            import pyarrow.parquet as pq
-
-            table = pa.concat_tables(
-                [pq.read_table(f, pre_buffer=False) for f in files], promote_options="default"
-            )
+            table = _read_parts(files, p)
         else:
             table = _read_file(p, encoding)
     except (InputFileError, SettingError):
@@ -141,6 +137,95 @@ def read_table(path: str | os.PathLike[str], *, encoding: str | None = None) -> 
     return normalise_frame(frame, source=p.name)
 
 
+def check_parquet_parts(files: list[Path], folder: Path) -> list[pa.Schema]:
+    """The schemas of a folder's Parquet parts, once every part is known to be readable, to
+    hold unique column names, the same columns as the first part, and types that can meet
+    them; otherwise an error that names the part and the column."""
+    import pyarrow.parquet as pq
+
+    schemas = []
+    for f in files:
+        try:
+            schema = pq.read_schema(f)
+        except (pa.ArrowException, OSError) as exc:
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+            raise InputFileError(
+                f"cannot read Parquet part {str(f)!r} of {str(folder)!r}: {first}. Replace or "
+                "remove that part."
+            ) from exc
+        dupes = [n for n, c in Counter(schema.names).items() if c > 1]
+        if dupes:
+            raise InputFileError(
+                f"Parquet part {str(f)!r} has duplicate column names {dupes}; rename them so "
+                "every column name is unique."
+            )
+        schemas.append(schema)
+    lead, base = files[0], schemas[0]
+    for f, schema in zip(files[1:], schemas[1:], strict=True):
+        lacks = [n for n in base.names if n not in schema.names]
+        extra = [n for n in schema.names if n not in base.names]
+        if lacks or extra:
+            what = f"lacks column {lacks[0]!r}" if lacks else f"has column {extra[0]!r}"
+            raise InputFileError(
+                f"Parquet part {str(f)!r} {what} that {lead.name!r} "
+                f"{'has' if lacks else 'lacks'}; give every part of {str(folder)!r} the same "
+                "columns."
+            )
+        for field in schema:
+            if not _types_meet(base.field(field.name).type, field.type):
+                raise InputFileError(
+                    f"Parquet part {str(f)!r} stores column {field.name!r} as {field.type}, "
+                    f"but {lead.name!r} stores it as {base.field(field.name).type}; write "
+                    "every part with the same types."
+                )
+    return schemas
+
+
+def _types_meet(a: pa.DataType, b: pa.DataType) -> bool:
+    """Can two parts' types of one column be read as one (permissive promotion, categories
+    read as their values)?"""
+    plain = [t.value_type if pa.types.is_dictionary(t) else t for t in (a, b)]
+    for pair in ((a, b), tuple(plain)):
+        try:
+            pa.unify_schemas(
+                [pa.schema([("c", pair[0])]), pa.schema([("c", pair[1])])],
+                promote_options="permissive",
+            )
+            return True
+        except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
+            continue
+    return False
+
+
+def _read_parts(files: list[Path], folder: Path) -> pa.Table:
+    """A folder of Parquet parts read as one table (the parts checked first)."""
+    import pyarrow.parquet as pq
+
+    check_parquet_parts(files, folder)
+    tables = []
+    for f in files:
+        try:
+            tables.append(pq.read_table(f, pre_buffer=False))
+        except (pa.ArrowException, OSError) as exc:
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+            raise InputFileError(
+                f"cannot read Parquet part {str(f)!r} of {str(folder)!r}: {first}. Replace or "
+                "remove that part."
+            ) from exc
+    columns = tables[0].column_names
+    tables = [_plain_categories(t).select(columns) for t in tables]
+    return pa.concat_tables(tables, promote_options="permissive")
+
+
+def _plain_categories(table: pa.Table) -> pa.Table:
+    """Dictionary-encoded columns (pandas categories) as their values, so parts that store a
+    column as categories in one and as text in another concatenate."""
+    for i, field in enumerate(table.schema):
+        if pa.types.is_dictionary(field.type):
+            table = table.set_column(i, field.name, table.column(i).cast(field.type.value_type))
+    return table
+
+
 def _read_file(p: Path, encoding: str | None = None) -> pa.Table:
     suffix = p.suffix.lower()
     if suffix in (".csv", ".tsv"):
@@ -150,6 +235,7 @@ def _read_file(p: Path, encoding: str | None = None) -> pa.Table:
             bom = detect_encoding(fh.read(4))
         if bom is not None:
             return _read_csv(p, suffix, bom)
+        _check_named_encoding(p, encoding)
         try:
             return _read_csv(p, suffix, "utf-8")
         except _NotUtf8 as exc:
@@ -177,6 +263,33 @@ def _read_file(p: Path, encoding: str | None = None) -> pa.Table:
         f"table {str(p)!r} has suffix {suffix!r}; accepted suffixes are "
         f"{', '.join(SUFFIXES)} or a folder of Parquet files."
     )
+
+
+ENCODING_HEAD = 1 << 16  # bytes of a CSV compared under UTF-8 and the encoding named
+
+
+def _check_named_encoding(p: Path, encoding: str | None) -> None:
+    """A UTF-8 table is read as UTF-8; when ``--encoding`` names an encoding that reads its
+    first bytes as other text (``utf-16`` for a UTF-8 file), the flag is wrong for this file
+    and is said so rather than ignored. An ASCII file reads alike in latin-1: no complaint."""
+    if encoding is None or encoding in ("utf-8", "utf-8-sig"):
+        return
+    with p.open("rb") as fh:
+        head = fh.read(ENCODING_HEAD)
+    try:
+        as_utf8 = codecs.getincrementaldecoder("utf-8")().decode(head, final=False)
+    except UnicodeDecodeError:
+        return  # not UTF-8: the encoding named is the one to use
+    try:
+        named = codecs.getincrementaldecoder(encoding)(errors="replace")
+        as_named: str | None = named.decode(head, final=False)
+    except UnicodeError:  # utf-16 without a byte-order mark, for one
+        as_named = None
+    if as_named != as_utf8:
+        raise InputFileError(
+            f"table {str(p)!r} is UTF-8 text, which --encoding {encoding} reads as other text; "
+            "drop --encoding (UTF-8 is read without it), or pass the encoding the file is in."
+        )
 
 
 class _NotUtf8(Exception):
@@ -235,9 +348,34 @@ def _to_pandas(table: pa.Table, *, source: str) -> pd.DataFrame:
             f"table {source!r} has duplicate column names {dupes}; rename them "
             "so every column name is unique."
         )
+    table = _binary_as_text(table)
     # split_blocks + self_destruct free each Arrow column as it is converted: peak memory
     # stays near one copy of the table instead of two.
     return table.to_pandas(split_blocks=True, self_destruct=True)
+
+
+def _binary_as_text(table: pa.Table) -> pa.Table:
+    """Binary columns (Parquet ``binary``) as text: UTF-8 text when every value is, else each
+    value's bytes in hexadecimal (an identifier or hash stays one, and can be audited)."""
+    for i, field in enumerate(table.schema):
+        kind = field.type
+        if not (
+            pa.types.is_binary(kind)
+            or pa.types.is_large_binary(kind)
+            or pa.types.is_fixed_size_binary(kind)
+        ):
+            continue
+        column = table.column(i)
+        try:
+            text = column.cast(pa.large_binary()).cast(pa.large_string())
+            text.validate(full=True)
+        except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+            values = column.to_pylist()
+            text = pa.chunked_array(
+                [pa.array([None if v is None else v.hex() for v in values], pa.large_string())]
+            )
+        table = table.set_column(i, field.name, text)
+    return table
 
 
 def as_frame(data: object, *, what: str = "table", encoding: str | None = None) -> pd.DataFrame:

@@ -7,13 +7,15 @@ import time
 from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
-from featureaudit import __version__
+import numpy as np
+
+from featureaudit._version import __version__
 from featureaudit.errors import FeatureAuditError, ProbeFailed, TooFewRows
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.findings import Findings, build_document
 from featureaudit.ranker import rank
-from featureaudit.registry import registered, thresholds_dict
-from featureaudit.settings import Settings
+from featureaudit.registry import Probe, registered, thresholds_dict
+from featureaudit.settings import Settings, check_counts
 from featureaudit.table import AuditTable
 from featureaudit.threads import limited_blas
 
@@ -44,6 +46,7 @@ def run_audit(
             f"table {table.source!r} has {table.n_rows} row{'s' * (table.n_rows != 1)}: too few "
             f"rows to audit (at least {MIN_ROWS} are needed); pass the whole table."
         )
+    check_counts(settings, rows=_labelled_training_rows(table), source=table.source)
     available = registered()
     names = list(available) if probes is None else list(probes)
     unknown = [n for n in names if n not in available]
@@ -61,6 +64,10 @@ def run_audit(
         if show:
             print(f"[{i}/{len(names)}] {name} …", file=sys.stderr, flush=True)
         start = time.perf_counter()
+        gate = capability_skip(available[name], table)
+        if gate is not None:
+            skipped.append(gate)
+            continue
         try:
             with limited_blas():  # per-column pools and model fits set their own threads
                 found, skips = available[name]().run(table, settings)
@@ -92,6 +99,7 @@ def run_audit(
         "audited_columns": len(verdicts),
         "partitions": table.partitions or {"all rows": table.n_rows},
         "folds": _fold_count(table),
+        "dictionary": _dictionary_coverage(table),
     }
     columns = [v.to_dict() for v in verdicts]
     pair = _compared_pair(table)
@@ -127,16 +135,6 @@ def run_audit(
     return findings
 
 
-# What a pair's view contributes: the findings about the two sides, and fits on all rows.
-# Everything else (a column's own power, its timing) is the same on every pair and comes
-# from the run over the whole table.
-_PAIR_KINDS = (
-    "duplicate_rows_across_split",
-    "shared_entities_across_split",
-    "time_overlap_across_split",
-    "split_shift",
-    "fit_on_all_rows",
-)
 _FOLD_NOTE = "; this biases the cross-validated score, not the test score"
 
 
@@ -151,12 +149,20 @@ def _audit_pairs(
     tag what they found with the pair; nothing when the table is a single pair."""
     from dataclasses import replace
 
+    from featureaudit.kinds import PAIR_KINDS
+    from featureaudit.registry import PAIRS
     from featureaudit.splits import pair_views
 
+    # What a pair's view contributes: the kinds the kinds table judges per pair (the findings
+    # about the two sides, and fits on all rows). Everything else (a column's own power, its
+    # timing) is the same on every pair and comes from the run over the whole table.
+    pairs = {
+        pair: tuple(n for n in names if pair in available[n].capabilities.pairs) for pair in PAIRS
+    }
     out: list[Evidence] = []
-    for view in pair_views(table):
+    for view in pair_views(table, pairs):
         for name in view.probes:
-            if name not in names:
+            if capability_skip(available[name], view.table) is not None:
                 continue
             start = time.perf_counter()
             try:
@@ -169,7 +175,7 @@ def _audit_pairs(
             timings[name] = round(timings.get(name, 0.0) + time.perf_counter() - start, 3)
             label = f" ({view.sides[0]} vs {view.sides[1]})"
             for e in found:
-                if e.kind not in _PAIR_KINDS or (e.column is not None and e.rank < 1):
+                if e.kind not in PAIR_KINDS or (e.column is not None and e.rank < 1):
                     continue
                 summary = (e.summary or e.statistic) + label + (_FOLD_NOTE if view.fold else "")
                 detail = {**e.detail, "partitions": list(view.sides)}
@@ -177,6 +183,35 @@ def _audit_pairs(
                     detail["biases"] = "cross-validated score"
                 out.append(replace(e, summary=summary, detail=detail))
     return out
+
+
+NO_TARGET = "no target given: pass --target or give a column the role target in the dictionary"
+
+
+def capability_skip(probe: type[Probe], table: AuditTable) -> Skip | None:
+    """Why a probe cannot run on this table by what it declares (it needs a target the audit
+    lacks, or every row of a table of which the audit holds a sample), else ``None``."""
+    caps = probe.capabilities
+    if caps.needs_target and (table.target is None or table.y is None):
+        return Skip(probe.name, NO_TARGET)
+    sampled = table.population_rows is not None and table.population_rows > table.n_rows
+    if caps.needs_every_row and sampled:
+        return Skip(probe.name, f"not run on a sample: {caps.needs_every_row}")
+    return None
+
+
+def _dictionary_coverage(table: AuditTable) -> dict | None:
+    """The dictionary's file, the line of each column it names (findings.sarif points there)
+    and the audited columns it does not name (``diff`` reports coverage)."""
+    d = table.dictionary
+    if d is None:
+        return None
+    audited = table.id_columns + table.features
+    return {
+        "source": d.source,
+        "lines": {c: e.line for c, e in d.entries.items() if c in table.frame.columns},
+        "audited_not_covered": [c for c in audited if c not in d.entries],
+    }
 
 
 def _fold_count(table: AuditTable) -> int | None:
@@ -227,3 +262,10 @@ def _after_rank(
     for c in columns:
         c["impact"] = clean_json(per_column.get(c["column"]))
     return clean_json(block), round(time.perf_counter() - start, 3)
+
+
+def _labelled_training_rows(table: AuditTable) -> int:
+    """The rows the out-of-fold scores split into folds: training rows with a target value
+    (every training row when there is no target)."""
+    train = np.ones(table.n_rows, dtype=bool) if table.heldout is None else ~table.heldout
+    return int((train & table.labelled).sum()) if table.y is not None else int(train.sum())

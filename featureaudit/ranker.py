@@ -7,6 +7,8 @@ level band (none 0–0.2, low 0.2–0.4, …, critical 0.8–1) by the strongest
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from featureaudit.evidence import ColumnVerdict, Evidence
 from featureaudit.levels import Level
 from featureaudit.table import AuditTable
@@ -33,8 +35,29 @@ def rank(table: AuditTable, evidence: list[Evidence]) -> tuple[list[ColumnVerdic
     return verdicts, dataset
 
 
+def _explained(items: list[Evidence]) -> list[Evidence]:
+    """Evidence that another probe explains honestly is capped at low, saying why.
+
+    An evidence's ``detail["explains"]`` names kinds it accounts for (the lineage probe's
+    proof that a column is the target's value over periods that end before the row: a lag
+    predicts the target, and is no leak); evidence of those kinds from other probes then
+    stays at low at most."""
+    cleared = {k: e for e in items for k in e.detail.get("explains", ())}
+    if not cleared:
+        return items
+    out = []
+    for e in items:
+        why = cleared.get(e.kind)
+        if why is None or why is e or e.probe == why.probe or e.rank <= Level.LOW:
+            out.append(e)
+            continue
+        note = f"{e.summary}; at most low: {why.summary}"
+        out.append(replace(e, level=Level.LOW, summary=note))
+    return out
+
+
 def _verdict(table: AuditTable, name: str, items: list[Evidence]) -> ColumnVerdict:
-    items = sorted(items, key=_strength, reverse=True)
+    items = sorted(_explained(items), key=_strength, reverse=True)
     entry = table.dictionary.entries.get(name) if table.dictionary else None
     role = table.roles.get(name, "feature")
     description = entry.description if entry else ""

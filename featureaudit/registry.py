@@ -2,18 +2,64 @@
 
 from __future__ import annotations
 
-from dataclasses import fields, is_dataclass
+from collections.abc import Mapping
+from dataclasses import dataclass, field, fields, is_dataclass
 from enum import IntEnum
+from types import MappingProxyType
 from typing import Any, ClassVar
 
-from featureaudit.evidence import KINDS, Evidence, Skip
+from featureaudit.evidence import Evidence, Skip
+from featureaudit.kinds import KINDS, REMEDIES
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 
-__all__ = ["Probe", "register", "registered", "ProbeOutput", "thresholds_dict"]
+__all__ = [
+    "PAIRS",
+    "Capabilities",
+    "Probe",
+    "ProbeOutput",
+    "register",
+    "registered",
+    "thresholds_dict",
+]
 
 ProbeOutput = tuple[list[Evidence], list[Skip]]
 _REGISTRY: dict[str, type[Probe]] = {}
+
+# The pairs of sides a probe that compares sides can be run on, beyond the whole table:
+# "partition": training against each held-out partition; "between_heldout": two held-out
+# partitions against each other; "growing_fit": training plus the earlier partitions against
+# a later one (what a fit refreshed before each partition saw); "fold": each CV fold against
+# the other training folds.
+PAIRS = ("partition", "between_heldout", "growing_fit", "fold")
+
+
+@dataclass(frozen=True)
+class Capabilities:
+    """What a probe needs and offers, read by the core instead of the probe's name.
+
+    ``needs_target``: skipped with one reason when the audit has no target.
+    ``needs_every_row``: ``None``, or why the probe cannot judge a sample of the table (an
+    engine then skips it there and says why).
+    ``pairs``: the pairs of sides it is run on again (see ``PAIRS``); it reports the kinds the
+    kinds table judges per pair.
+    ``remedies``: a kind whose remedy differs from the kinds table's when this probe reports
+    it (an in-sample target encoding is refitted, not dropped).
+    """
+
+    needs_target: bool = False
+    needs_every_row: str | None = None
+    pairs: frozenset[str] = frozenset()
+    remedies: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "pairs", frozenset(self.pairs))
+        object.__setattr__(self, "remedies", MappingProxyType(dict(self.remedies)))
+
+    @property
+    def compares_sides(self) -> bool:
+        """Whether the probe is run on pairs of partitions or folds."""
+        return bool(self.pairs)
 
 
 class Probe:
@@ -30,6 +76,7 @@ class Probe:
     # its level decisions use, each with its source in the class docstring. Recorded in
     # findings.json and quoted by ``describe``.
     thresholds: ClassVar[Any] = None
+    capabilities: ClassVar[Capabilities] = Capabilities()
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
@@ -57,6 +104,7 @@ def register(cls: type[Probe]) -> type[Probe]:
             f"probe {cls.name!r} needs a docstring saying what it detects and how "
             "its thresholds were chosen"
         )
+    _check_capabilities(cls)
     if cls.run is Probe.run:
         raise TypeError(f"probe {cls.name!r} does not implement run()")
     params = getattr(type(cls.thresholds), "__dataclass_params__", None)
@@ -69,6 +117,21 @@ def register(cls: type[Probe]) -> type[Probe]:
         raise TypeError(f"probe {cls.name!r} does not implement describe(settings)")
     _REGISTRY[cls.name] = cls
     return cls
+
+
+def _check_capabilities(cls: type[Probe]) -> None:
+    caps = cls.capabilities
+    if not isinstance(caps, Capabilities):
+        raise TypeError(f"probe {cls.name!r} needs capabilities: a Capabilities instance")
+    unknown = sorted(set(caps.pairs) - set(PAIRS))
+    if unknown:
+        raise TypeError(f"probe {cls.name!r} declares pairs {unknown}; each must be one of {PAIRS}")
+    for k, remedy in caps.remedies.items():
+        if k not in cls.kinds or remedy not in REMEDIES:
+            raise TypeError(
+                f"probe {cls.name!r} declares remedy {remedy!r} for kind {k!r}; the kind must "
+                f"be one of its kinds and the remedy one of {REMEDIES}"
+            )
 
 
 ENTRY_POINT_GROUP = "featureaudit.probes"

@@ -10,66 +10,61 @@ from __future__ import annotations
 
 from typing import Any
 
+from featureaudit.kinds import KEEP_REMEDIES, REMEDIES, REMEDY_WORDS, kind
 from featureaudit.levels import Level
 
-__all__ = ["REMEDIES", "column_remedy", "dataset_remedy", "remedy_words"]
-
-REMEDIES = (
-    "drop",
-    "refit_on_training_rows",
-    "regroup_split",
-    "split_by_time",
-    "deduplicate",
-    "review",
-)
-_SPLIT = {
-    "duplicate_rows_across_split": "deduplicate",
-    "shared_entities_across_split": "regroup_split",
-    "time_overlap_across_split": "split_by_time",
-    "split_shift": "review",
-    "row_order_tells_target": "review",
-}
-_WORDS = {
-    "drop": "drop the column from the model's inputs",
-    "refit_on_training_rows": "refit its preprocessing (scaler, imputer, cap or encoding) on "
-    "the training rows only and apply it to the held-out rows; keep "
-    "the column",
-    "regroup_split": "split by entity, so every entity's rows fall on one side (grouped folds)",
-    "split_by_time": "split by time: train on earlier rows, validate on later ones",
-    "deduplicate": "remove held-out rows that have a copy among the training rows",
-    "review": "review it: the evidence is not strong enough, or the fix depends on how the "
-    "data was made",
-}
+__all__ = ["REMEDIES", "column_remedy", "dataset_remedy", "evidence_remedy", "remedy_words"]
 
 
 def column_remedy(column: dict[str, Any]) -> str | None:
     """The remedy of one column verdict (``None`` for a column at level none).
 
-    A column whose evidence at its own level is only preprocessing fingerprints (fitscope's,
-    or the training code's fits on all rows) is refitted; otherwise it is dropped at high or
-    above and reviewed below.
+    When every piece of evidence at the column's own level takes one remedy that keeps the
+    column (a refit of preprocessing fitted on all rows, a recomputation from earlier rows),
+    that is the remedy. A feature built from later rows is recomputed (from medium up) when
+    that evidence is among the strongest, even beside the target power it lends: the feature's
+    idea may be sound, its window is not. Otherwise the column is dropped at high or above and
+    reviewed below.
     """
     level = Level.parse(column.get("level", "none"))
     if level == Level.NONE:
         return None
-    top = [e for e in column.get("evidence", []) if Level.parse(e.get("level", "none")) >= level]
-    if top and all(_refit_evidence(e) for e in top):
-        return "refit_on_training_rows"
+    evidence = column.get("evidence", [])
+    top = [e for e in evidence if Level.parse(e.get("level", "none")) >= level]
+    remedies = {evidence_remedy(e) for e in top}
+    if len(remedies) == 1 and (only := remedies.pop()) in KEEP_REMEDIES:
+        return only
+    peak = max((Level.parse(e.get("level", "none")) for e in evidence), default=Level.NONE)
+    strongest = [e for e in evidence if Level.parse(e.get("level", "none")) == peak]
+    if level >= Level.MEDIUM and any(
+        e.get("kind") == "computed_from_later_rows" for e in strongest
+    ):
+        return "recompute_before_cutoff"
     return "drop" if level >= Level.HIGH else "review"
 
 
-def _refit_evidence(e: dict[str, Any]) -> bool:
-    probe = e.get("probe")
-    return probe == "fitscope" or (probe == "code" and e.get("kind") == "fit_on_all_rows")
+def evidence_remedy(e: dict[str, Any]) -> str:
+    """The remedy one piece of evidence calls for: its probe's declared remedy for the kind,
+    else the kinds table's."""
+    from featureaudit.registry import registered
+
+    probe = registered().get(str(e.get("probe")))
+    declared = probe.capabilities.remedies.get(e.get("kind", "")) if probe else None
+    if declared:
+        return declared
+    try:
+        return kind(str(e.get("kind"))).remedy
+    except KeyError:
+        return "review"
 
 
 def dataset_remedy(finding: dict[str, Any]) -> str | None:
     """The remedy of one split finding (``None`` at level none)."""
     if Level.parse(finding.get("level", "none")) == Level.NONE:
         return None
-    return _SPLIT.get(finding.get("kind", ""), "review")
+    return evidence_remedy(finding)
 
 
 def remedy_words(remedy: str | None) -> str:
     """The remedy in a sentence for the dossier and the summary."""
-    return _WORDS.get(remedy or "", "nothing to change")
+    return REMEDY_WORDS.get(remedy or "", "nothing to change")

@@ -7,9 +7,11 @@ from functools import lru_cache
 from typing import Any
 
 import jinja2
+from markupsafe import Markup, escape
 
-from featureaudit.findings import Findings, droplist
+from featureaudit.findings import Findings, droplist, refit_list
 from featureaudit.levels import Level
+from featureaudit.markdown import md_code, md_text
 from featureaudit.names import quote_name
 
 __all__ = ["render_all", "render_dossier", "render_summary", "CAUTION", "verdict_line"]
@@ -21,6 +23,17 @@ CAUTION = (
     "apply to them."
 )
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
+
+
+_BREAK_AFTER = re.compile(r"([_./\\-]+)")
+
+
+def breakable(value: Any) -> Markup:
+    """A column or file name for HTML: escaped, control characters shown, and a line-break
+    opportunity (``<wbr>``) after each ``_ . / \\ -``, so a long name wraps between its
+    words, never inside one (on screen and in print)."""
+    text = str(escape(_visible(value)))
+    return Markup(_BREAK_AFTER.sub(r"\1<wbr>", text))
 
 
 def _visible(value: Any) -> str:
@@ -42,6 +55,9 @@ def _env() -> jinja2.Environment:
     env.filters["visible"] = _visible
     env.filters["fmt"] = _fmt
     env.filters["md"] = _md
+    env.filters["text"] = md_text
+    env.filters["name"] = breakable
+    env.globals["code"] = md_code
     env.filters["words"] = statistic_words
     from featureaudit import charts
 
@@ -70,20 +86,60 @@ def _fmt(value: Any) -> str:
     return _visible(value)
 
 
+METRIC_NAMES = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}
+
+
 def impact_line(doc: dict[str, Any]) -> str:
-    """ "validation AUC 0.97 as given; 0.84 (0.82–0.86) without the suspects", or ""."""
+    """The headline: "validation AUC 0.97 as given → 0.90 (0.88–0.92) with the remedies
+    applied; 0.84 without every suspect", or "" when impact was not measured."""
     block = doc.get("impact")
     if not block:
         return ""
-    name = {"auc": "AUC", "macro_auc": "macro AUC", "r2": "R²"}.get(block["metric"], "score")
-    lo, hi = (block.get("ci95") or [None, None])[:2]
-    ci = f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
+    name = METRIC_NAMES.get(block["metric"], "score")
+    rem = block.get("remedied")
+    head = f"validation {name} {block['as_given']:.2f} as given"
+    if rem:
+        head += f" → {rem['value']:.2f}{_ci(rem.get('ci95'))} with the remedies applied"
     if not block.get("suspects_removed"):
-        return f"validation {name} {block['as_given']:.2f} as given; no suspect at high or above"
-    return (
-        f"validation {name} {block['as_given']:.2f} as given; "
-        f"{block['without_suspects']:.2f}{ci} without the suspects"
-    )
+        return head + ("" if rem else "; no suspect at high or above")
+    without = f"{block['without_suspects']:.2f}{_ci(block.get('ci95'))}"
+    if rem:
+        return f"{head} ({without} with every suspect removed, refit columns too)"
+    return f"{head}; {without} without the suspects"
+
+
+def _ci(ci: Any) -> str:
+    lo, hi = (ci or [None, None])[:2]
+    return f" ({lo:.2f}–{hi:.2f})" if lo is not None and hi is not None else ""
+
+
+def undecided(doc: dict[str, Any]) -> list[dict[str, Any]]:
+    """Checks that ran on a column but could not judge it ("cannot tell"): too few values,
+    or both fits explain it. Shown apart from levels, never as "none"."""
+    out = []
+    for c in doc.get("columns", []):
+        for e in c.get("evidence", []):
+            d = e.get("detail") or {}
+            if d.get("fitted_on") == "cannot tell" and d.get("checked") != []:
+                out.append(
+                    {"column": c["column"], "probe": e.get("probe"), "summary": e.get("summary")}
+                )
+    return out
+
+
+def code_refs(doc: dict[str, Any]) -> dict[str, str]:
+    """Per column, its training-code findings in a few words (they are stated in full once,
+    in the training-code section)."""
+    refs: dict[str, list[str]] = {}
+    for c in doc.get("columns", []):
+        for e in c.get("evidence", []):
+            d = e.get("detail") or {}
+            if "code_kind" in d:
+                where = f"{d.get('file')} line {d.get('line')}"
+                refs.setdefault(c["column"], []).append(
+                    f"{str(d['code_kind']).replace('_', ' ')} at {where}"
+                )
+    return {k: "; ".join(dict.fromkeys(v)) for k, v in refs.items()}
 
 
 def impact_words(entry: dict[str, Any] | None, negligible: float = 0.01) -> str:
@@ -108,7 +164,8 @@ def verdict_line(findings: Findings) -> str:
     and reviewed (accepted) ones are counted apart."""
     counts: dict[str, int] = {}
     accepted = 0
-    for item in [*findings.columns, *findings.dataset_findings]:
+    code = findings.document.get("code_findings") or []
+    for item in [*findings.columns, *findings.dataset_findings, *code]:
         if item.get("accepted") and Level.parse(item["level"]) >= Level.MEDIUM:
             accepted += 1
             continue
@@ -126,6 +183,9 @@ def verdict_line(findings: Findings) -> str:
             f"and remember what the audit cannot see.{reviewed}"
         )
     parts = [f"{counts[k]} {k}" for k in ("critical", "high") if counts.get(k)]
+    in_code = sum(Level.parse(f.get("level", "none")) >= Level.HIGH for f in code)
+    if in_code:
+        parts.append(f"{in_code} of them in the training code")
     medium = f"; {counts['medium']} more at medium" if counts.get("medium") else ""
     return (
         f"{serious} finding{'s' if serious != 1 else ''} at level high or above "
@@ -194,13 +254,15 @@ def render_dossier(findings: Findings, *, history: list[Findings] | None = None)
             splits=[f for f in doc["dataset_findings"] if f["level"] != "none"],
             quiet_splits=[f for f in doc["dataset_findings"] if f["level"] == "none"],
             drops=droplist(findings, "high"),
-            refits=_refits(doc),
+            refits=refit_list(findings),
             split_groups=split_groups([f for f in doc["dataset_findings"] if f["level"] != "none"]),
             methods=list(doc.get("settings", {}).get("methods", {}).items()),
             trend={n: trend_svg(p) for n, p in trends.items()},
             runs=len(runs),
             marks=changed,
-            undocumented=undocumented_timing(doc),
+            undocumented=[n for n in undocumented_timing(doc) if n not in _timed(doc)],
+            code_refs=code_refs(doc),
+            code_ids=_code_ids(doc),
             warnings=[w for w in doc.get("warnings", []) if not str(w).startswith(TIMING_NOTE)],
         )
     )
@@ -219,7 +281,10 @@ def render_summary(findings: Findings) -> str:
                 :20
             ],
             drops=droplist(findings, "high"),
-            refits=_refits(doc),
+            refits=refit_list(findings),
+            split_findings=[f for f in doc["dataset_findings"] if f["level"] != "none"],
+            code_refs=code_refs(doc),
+            undecided=undecided(doc),
         )
     )
 
@@ -234,9 +299,25 @@ def split_groups(found: list[dict[str, Any]]) -> list[tuple[str, list[dict[str, 
     return list(groups.items())
 
 
-def _refits(doc: dict[str, Any]) -> list[str]:
-    """Columns to refit on the training rows rather than drop."""
-    return [c["column"] for c in doc["columns"] if c.get("remedy") == "refit_on_training_rows"]
+def _timed(doc: dict[str, Any]) -> set[str]:
+    """Columns the timing checks judged anyway (from their values or the cutoff): the
+    "timing not documented" note does not name them."""
+    return {
+        c["column"]
+        for c in doc["columns"]
+        if any(
+            e.get("kind") == "recorded_after_cutoff" and e.get("level") != "none"
+            for e in c.get("evidence", [])
+        )
+    }
+
+
+def _code_ids(doc: dict[str, Any]) -> dict[str, int]:
+    """``file:line:kind`` of each training-code finding -> its card's number (1-based)."""
+    return {
+        f"{f.get('file')}:{f.get('line')}:{f.get('kind')}": i
+        for i, f in enumerate(doc.get("code_findings") or [], start=1)
+    }
 
 
 def render_all(findings: Findings, *, history: list[Findings] | None = None) -> dict[str, str]:

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import dataclasses
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass
 
 import numpy as np
@@ -84,18 +85,13 @@ def _take(series, idx: np.ndarray):  # noqa: ANN001, ANN202 — a pandas Series 
     return None if series is None else series.iloc[idx].reset_index(drop=True)
 
 
-# Which probes compare which pairs. Twins and time order matter between any two partitions;
-# a fit's rows are read from training + earlier partitions; adversarial validation compares
-# training with each partition.
-PARTITION_PROBES = ("twins", "timing", "separability", "fitscope")
-BETWEEN_HELDOUT_PROBES = ("twins", "timing")
-GROWING_FIT_PROBES = ("fitscope",)
-FOLD_PROBES = ("twins", "timing", "fitscope")
-
-
-def pair_views(table: AuditTable) -> list[PairView]:
+def pair_views(table: AuditTable, pairs: Mapping[str, tuple[str, ...]]) -> list[PairView]:
     """Every pair beyond the one the whole table already is (empty for one held-out partition
-    and no folds, so that case runs exactly as before)."""
+    and no folds, so that case runs exactly as before).
+
+    ``pairs`` maps each kind of pair (``registry.PAIRS``) to the probes that declare it: each
+    view carries the probes to run on it.
+    """
     views: list[PairView] = []
     held = heldout_order(table)
     if len(held) >= 2 and table.partition_of is not None:
@@ -108,7 +104,7 @@ def pair_views(table: AuditTable) -> list[PairView]:
                 PairView(
                     (train, name),
                     restrict(table, is_train | mine, mine, (train, name)),
-                    PARTITION_PROBES,
+                    pairs.get("partition", ()),
                 )
             )
         for i, later in enumerate(held):
@@ -118,7 +114,7 @@ def pair_views(table: AuditTable) -> list[PairView]:
                     PairView(
                         (earlier, later),
                         restrict(table, a | b, b, (earlier, later)),
-                        BETWEEN_HELDOUT_PROBES,
+                        pairs.get("between_heldout", ()),
                     )
                 )
             if i >= 1:
@@ -129,7 +125,7 @@ def pair_views(table: AuditTable) -> list[PairView]:
                     PairView(
                         (side, later),
                         restrict(table, fitted | mine, mine, (side, later)),
-                        GROWING_FIT_PROBES,
+                        pairs.get("growing_fit", ()),
                     )
                 )
     if table.folds is not None:
@@ -139,7 +135,7 @@ def pair_views(table: AuditTable) -> list[PairView]:
             sides = (f"fold {fold}", "other folds")
             # side two of the pair is the fold; the view's training side is the other folds
             view = restrict(table, train_rows, mine, (sides[1], sides[0]))
-            views.append(PairView(sides, view, FOLD_PROBES, fold=True))
+            views.append(PairView(sides, view, pairs.get("fold", ()), fold=True))
     return views
 
 

@@ -16,15 +16,34 @@ import pandas as pd
 
 from featureaudit.dictionary import DataDictionary, guess_role, parse_dictionary, read_dictionary
 from featureaudit.durations import parse_duration
-from featureaudit.errors import ColumnNotFound, InputFileError, SettingError, TargetError
+from featureaudit.errors import (
+    ColumnNotFound,
+    DictionaryError,
+    InputFileError,
+    SettingError,
+    TargetError,
+)
 from featureaudit.inputs import Inputs
 from featureaudit.io import UNPARSED_DATES, as_frame, normalise_frame
+from featureaudit.ordering import order_ranks
 from featureaudit.times import as_datetime
 
 __all__ = ["AuditTable", "build_table", "infer_task"]
 
-NON_FEATURE_ROLES = ("target", "label_time", "cutoff_time", "split", "weight", "ignore", "entity")
+NON_FEATURE_ROLES = (
+    "target",
+    "label_time",
+    "cutoff_time",
+    "split",
+    "weight",
+    "ignore",
+    "entity",
+    "order",
+)
 FEW_CLASSES = 20  # common practice, no source: an integer target with at most 20 values is a label
+# common practice, no source: a target needs as many labelled rows as a table needs rows
+# (pipeline.MIN_ROWS); with fewer no fold holds a labelled row to score
+MIN_LABELLED = 3
 
 
 @dataclass
@@ -48,6 +67,9 @@ class AuditTable:
     cutoff_source: str | None = None  # "column:X", "horizon:30 days", "label time"
     horizon: pd.Timedelta | None = None  # --horizon, kept for durations compared without times
     entity: str | None = None
+    # --order (or role order): dense ranks of a sortable column, NaN where missing
+    order: np.ndarray | None = None
+    order_column: str | None = None
     dictionary: DataDictionary | None = None
     warnings: list[str] = field(default_factory=list)
     target_problem: str | None = None  # why target-based probes cannot run
@@ -93,6 +115,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
     train_value = spec.train_value if spec.train_value is not None else "train"
     dictionary, label_time, cutoff_time = spec.dictionary, spec.label_time, spec.cutoff_time
     horizon, entity, source = spec.horizon, spec.entity, spec.source
+    order = spec.order
     encoding, normalise_labels = spec.encoding, bool(spec.normalise_labels)
     fold_column = spec.fold_column
     src = source or (Path(data).name if isinstance(data, (str, os.PathLike)) else "DataFrame")
@@ -129,6 +152,7 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": label_time,
         "cutoff_time": cutoff_time,
         "entity": entity,
+        "order": order,
     }
     flag_names = {
         "target": "--target",
@@ -136,24 +160,10 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         "label_time": "--label-time",
         "cutoff_time": "--cutoff-time",
         "entity": "--entity",
+        "order": "--order",
     }
-    chosen: dict[str, str | None] = {}
-    for role, value in flags.items():
-        if value is not None:
-            _require(frame, value, flag_names[role], src)
-            chosen[role] = value
-        else:
-            named = [c for c, r in roles.items() if r == role]
-            if len(named) > 1:
-                raise SettingError(
-                    f"dictionary {ddict.source if ddict else ''!r} gives role "
-                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
-                    f"{flag_names[role]}."
-                )
-            chosen[role] = named[0] if named else None
-    for role, col in chosen.items():
-        if col is not None:
-            roles[col] = role
+    chosen = _choose_roles(frame, roles, flags, flag_names, ddict, src)
+    _one_role_each(chosen, flags, flag_names, fold_column, ddict)
     if test is not None and chosen["split"] is not None:
         warnings.append(
             f"--test names the held-out rows, so split column {chosen['split']!r} "
@@ -212,6 +222,9 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         _set_folds(table, fold_column, src)
     _set_target(table, chosen["target"], task, normalise_labels)
     _set_times(table, chosen["label_time"], chosen["cutoff_time"], horizon)
+    if chosen["order"] is not None:
+        table.order = order_ranks(frame[chosen["order"]], column=chosen["order"], source=src)
+        table.order_column = chosen["order"]
     for name in frame.columns:
         role = roles.get(name, "feature")
         if role == "id":
@@ -219,6 +232,67 @@ def build_table(data: object, inputs: Inputs | None = None, **given: Any) -> Aud
         elif role not in NON_FEATURE_ROLES:
             table.features.append(name)
     return table
+
+
+def _one_role_each(
+    chosen: dict[str, str | None],
+    flags: dict[str, str | None],
+    flag_names: dict[str, str],
+    fold_column: str | None,
+    ddict: DataDictionary | None,
+) -> None:
+    """The target cannot also be the split column, the entity or the fold column: a column
+    that is the outcome cannot mark the split or group the rows."""
+    target = chosen.get("target")
+    if target is None:
+        return
+    others = {r: c for r, c in chosen.items() if r in ("split", "entity")}
+    others["fold"] = fold_column
+    names = {**flag_names, "fold": "--fold-column"}
+    for role, column in others.items():
+        if column != target:
+            continue
+
+        def said(r: str) -> str:
+            if flags.get(r) is not None or r == "fold":
+                return names[r]
+            return f"role {r} in dictionary {ddict.source if ddict else ''!r}"
+
+        raise SettingError(
+            f"column {target!r} is the target ({said('target')}) and also the "
+            f"{'split column' if role == 'split' else role} ({said(role)}); a column holds one "
+            f"role. Pass {names[role]} with another column, or another --target."
+        )
+
+
+def _choose_roles(
+    frame: pd.DataFrame,
+    roles: dict[str, str],
+    flags: dict[str, str | None],
+    flag_names: dict[str, str],
+    ddict: DataDictionary | None,
+    src: str,
+) -> dict[str, str | None]:
+    """The column of each role: the flag's (checked to exist), else the dictionary's one
+    column with that role; ``roles`` is updated with the choices."""
+    chosen: dict[str, str | None] = {}
+    for role, value in flags.items():
+        if value is not None:
+            _require(frame, value, flag_names[role], src)
+            chosen[role] = value
+        else:
+            named = [c for c, r in roles.items() if r == role]
+            if len(named) > 1:
+                raise SettingError(
+                    f"dictionary {ddict.source if ddict else ''!r} gives role "
+                    f"{role!r} to {len(named)} columns {named}; keep one or pass "
+                    f"{flag_names[role]}."
+                )
+            chosen[role] = named[0] if named else None
+    for role, col in chosen.items():
+        if col is not None:
+            roles[col] = role
+    return chosen
 
 
 def _dictionary(given: object, encoding: str | None = None) -> DataDictionary | None:
@@ -355,16 +429,31 @@ def _resolve_roles(
                 )
                 continue
             roles[name] = entry.role
-            if entry.known_at_column and entry.known_at_column not in frame.columns:
-                warnings.append(
-                    f"dictionary {ddict.source!r} line {entry.line}: known_at of "
-                    f"{name!r} names column {entry.known_at_column!r}, which the table"
-                    " lacks; its timing is not checked."
-                )
+            if entry.known_at_column:
+                _check_known_at_column(frame, ddict, entry)
     for name in frame.columns:
         if name not in roles and guess_role(frame[name], name) == "id":
             roles[name] = "id"
     return roles
+
+
+def _check_known_at_column(frame: pd.DataFrame, ddict: DataDictionary, entry: Any) -> None:
+    """A ``known_at`` that is not a duration must name a datetime column of the table; else
+    an error naming the file, the line and the value (the contract's malformed known_at)."""
+    where = f"dictionary {ddict.source!r} line {entry.line}: known_at {entry.known_at!r} of column"
+    fix = "write a duration such as -30d, a datetime column's name, or leave it blank."
+    named = entry.known_at_column
+    if named not in frame.columns:
+        raise DictionaryError(
+            f"{where} {entry.column!r} is not a column of the table nor a duration; {fix}"
+        )
+    try:
+        as_datetime(frame[named], column=named, what="known_at column")
+    except SettingError as exc:
+        raise DictionaryError(
+            f"{where} {entry.column!r} names column {named!r}, which is not a datetime "
+            f"column ({str(exc).split(';')[0]}); {fix}"
+        ) from None
 
 
 def infer_task(values: pd.Series) -> str:
@@ -398,11 +487,14 @@ def _set_target(
             f"target column {target!r} of {table.source} has no values; pass "
             "--target with a column that holds the outcome."
         )
+    _enough_labelled(table, target, len(present))
     if not _is_number(s) and not pd.api.types.is_bool_dtype(s.dtype):
         s = _label_variants(table, s, target, normalise_labels)
         present = s.dropna()
     table.target = target
     table.task = task or infer_task(s)
+    if task == "multiclass":
+        _classes_not_quantities(present, target)
     if table.task == "numeric":
         if not pd.api.types.is_numeric_dtype(s.dtype) or pd.api.types.is_bool_dtype(s.dtype):
             raise TargetError(
@@ -435,6 +527,33 @@ def _set_target(
             f"target {target!r} has a single value ({shown!r}) in the labelled rows"
         )
         table.warnings.append(table.target_problem + "; probes that need the target are skipped.")
+
+
+def _enough_labelled(table: AuditTable, target: str, labelled: int) -> None:
+    """A target with values in fewer than MIN_LABELLED rows of a table that has that many
+    is its own error, not a single-value warning."""
+    rows = table.n_rows
+    if labelled < MIN_LABELLED <= rows:
+        raise TargetError(
+            f"target column {target!r} of {table.source} has values in {labelled} of {rows} "
+            f"rows: too few labelled rows to audit (at least {MIN_LABELLED} are needed); label "
+            "more rows, or leave --target out to audit the split alone."
+        )
+
+
+def _classes_not_quantities(present: pd.Series, target: str) -> None:
+    """--task multiclass on a target of non-whole numbers would make each value a class."""
+    if not _is_number(present) or pd.api.types.is_bool_dtype(present.dtype):
+        return
+    values = present.astype("float64").to_numpy()
+    fractional = ~np.isclose(values, np.round(values))
+    if fractional.any():
+        example = float(values[fractional][0])
+        raise TargetError(
+            f"target column {target!r} holds non-whole numbers (e.g. {example:g}), so --task "
+            f"multiclass would make {present.nunique()} classes of them; pass --task numeric, "
+            "or drop --task."
+        )
 
 
 def _finite_target(table: AuditTable, s: pd.Series, target: str) -> pd.Series:
@@ -511,6 +630,11 @@ def _set_times(
         table.cutoff_source = f"column:{cutoff}"
     elif horizon is not None:
         delta = parse_duration(horizon, what="--horizon")
+        if delta < pd.Timedelta(0):
+            raise SettingError(
+                f"--horizon {horizon!r} is negative: the cutoff (label time minus the horizon) "
+                "would come after the label time; pass a duration of 0d or more, e.g. 30d."
+            )
         table.horizon = delta
         if table.label_time is None and _has_relative_known_at(table):
             table.cutoff_source = f"horizon:{horizon}"  # durations are compared with -horizon

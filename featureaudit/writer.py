@@ -25,8 +25,13 @@ swapped: list[Path] = []  # report folders replaced by this process (the CLI's i
 
 
 def write_files(out_dir: str | os.PathLike[str], files: dict[str, str]) -> list[Path]:
-    """Write ``{name: text}`` as the report in ``out_dir``; a failure leaves it as it was."""
-    out = Path(out_dir)
+    """Write ``{name: text}`` as the report in ``out_dir``; a failure leaves it as it was.
+
+    A symbolic link is followed: the report is swapped in at the folder it points to, and
+    the link itself stays as it was.
+    """
+    given = Path(out_dir)
+    out = Path(os.path.realpath(given)) if given.is_symlink() else given
     if out.exists() and not out.is_dir():
         raise InputFileError(
             f"output folder {str(out)!r} is a file; pass --out with a folder (new or an "
@@ -57,7 +62,7 @@ def write_files(out_dir: str | os.PathLike[str], files: dict[str, str]) -> list[
         raise _cannot(out, exc) from exc
     finally:
         shutil.rmtree(stage, ignore_errors=True)
-    return [out / name for name in files]
+    return [given / name for name in files]
 
 
 def _swap_folder(stage: Path, out: Path) -> None:

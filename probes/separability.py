@@ -22,15 +22,15 @@ information.
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
-from typing import Any
 
 import numpy as np
 import pandas as pd
 
 from featureaudit.evidence import Evidence, Skip
-from featureaudit.io import numeric_view
 from featureaudit.levels import Ladder, Level
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.matrix import feature_matrix, order_free_codes
+from featureaudit.models import lgbm_params
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.splits import SIMULATED_HELDOUT_SHARE
 from featureaudit.stats import hanley_mcneil_se, null_auc_se
@@ -157,32 +157,6 @@ def identifier_level(auc: float, z: float, t: SeparabilityThresholds = THRESHOLD
     return min(split_level(auc, z, t), t.identifier_level)
 
 
-def _codes(s: pd.Series) -> np.ndarray:
-    """A column as floats that do not depend on row order: numbers and times as they are,
-    categories as codes of their sorted values (missing stays missing)."""
-    v = numeric_view(s)
-    if v is not None:
-        return v
-    if isinstance(s.dtype, pd.CategoricalDtype):  # the categories' texts ranked once
-        raw = s.cat.codes.to_numpy()
-        names = np.asarray(s.cat.categories.astype("string").astype(object), dtype=object)
-        used = np.zeros(len(names), dtype=bool)
-        used[raw[raw >= 0]] = True
-        _, rank = np.unique(names[used], return_inverse=True)  # Python's str order, NULs kept
-        ranks = np.full(len(names) + 1, np.nan)  # the last entry serves code -1 (missing)
-        ranks[np.flatnonzero(used)] = rank
-        return ranks[raw]
-    text = s.astype("string")
-    codes, _ = pd.factorize(text, sort=True, use_na_sentinel=True)
-    return np.where(codes < 0, np.nan, codes).astype(np.float64)
-
-
-def _matrix(table: AuditTable, columns: list[str], rows: np.ndarray) -> np.ndarray:
-    """The sampled rows as floats, coded independently of the order of rows."""
-    out = [_codes(table.frame[name])[rows] for name in columns]
-    return np.column_stack(out) if out else np.zeros((rows.size, 0))
-
-
 def adversarial_auc(
     x: np.ndarray, side: np.ndarray, seed: int, folds: int = 3, n_jobs: int = 1
 ) -> tuple[float, np.ndarray]:
@@ -193,19 +167,12 @@ def adversarial_auc(
 
     pred = np.zeros(len(side))
     gain = np.zeros(x.shape[1])
-    params: dict[str, Any] = dict(
+    params = lgbm_params(
+        seed,
+        model_threads(n_jobs, len(side)),
         n_estimators=50,
         learning_rate=0.12,
-        num_leaves=15,
         min_child_samples=20,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=model_threads(n_jobs, len(side)),
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
         max_bin=63,
         importance_type="gain",
     )
@@ -226,6 +193,7 @@ class Separability(Probe):
     scope = "table"
     kinds = ("split_shift",)
     thresholds = THRESHOLDS
+    capabilities = Capabilities(pairs=frozenset({"partition"}))
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
@@ -239,7 +207,14 @@ class Separability(Probe):
             f"{t.auc.describe()} in AUC, with {t.z_high:g} null standard errors above 0.5 for "
             f"high and critical and {t.z_medium:g} for medium, and low from {t.z_low:g}; an "
             "identifier whose values alone separate the sides is reported at "
-            f"{t.identifier_level.label}. Without a split, a random split holding out "
+            f"{t.identifier_level.label}. A split made by time ({t.later_share:.0%} of the "
+            "held-out rows later than every training row) or by entity (at most "
+            f"{t.shared_entity_share:.0%} of held-out rows with an entity seen in training, or "
+            f"an undeclared group key of at least {t.group_values} values of {t.group_rows:g} "
+            f"rows each, the sides changing in {t.group_interleave:.0%} of them) is shown "
+            f"at {t.design_cap.label} at most: such splits are made to show drift. The "
+            f"{t.top_left_out} strongest drivers are left out once to see how much of the AUC "
+            "they carry. Without a split, a random split holding out "
             f"{SIMULATED_HELDOUT_SHARE:.0%} of the rows and, when a time is known, the last "
             f"{SIMULATED_HELDOUT_SHARE:.0%} in time are simulated and reported as information."
         )
@@ -291,7 +266,7 @@ class Separability(Probe):
         null = null_auc_se(n1, n0)
         id_aucs = _identifier_aucs(table, ids, rows, side)
         if columns:
-            xs = _matrix(table, columns, rows)
+            xs = feature_matrix(table.frame, columns, rows)
             auc, gain = adversarial_auc(xs, side, settings.seed, n_jobs=settings.n_jobs)
         else:
             xs, auc, gain = np.zeros((rows.size, 0)), 0.5, np.zeros(0)
@@ -396,7 +371,7 @@ def _identifier_aucs(
 
     out: dict[str, float] = {}
     for name in ids:
-        v = _codes(table.frame[name])[rows]
+        v = order_free_codes(table.frame[name])[rows]
         ok = ~np.isnan(v)
         if ok.sum() < 20 or len(np.unique(side[ok])) < 2:
             continue

@@ -11,18 +11,26 @@ split, the share of held-out rows earlier than the end of the training period, o
 within each entity.
 
 Tolerances: ``time_tolerance`` absorbs clock skew and the rounding of times. Left at ``auto``
-it follows the resolution of the data: the coarser of the cutoff's and the value's finest
-non-zero unit (a cutoff stored as a date sits at midnight, so a value recorded later that
-day looks up to 24 h "late"; a cutoff with minutes does not), never below one minute of clock
-skew; durations from the dictionary are exact and compared with no tolerance. A duration the
-user sets (e.g. ``3d``) is used everywhere instead. ``share_tolerance`` (default 1 %) is the
-share of rows below which nothing is flagged. All numbers are in :class:`TimingThresholds`.
+it follows the resolution of the cutoff and the horizon: a cutoff written to a unit (a date,
+a whole hour) stands for that whole unit, so a value is late from the start of the next unit
+(a lag of at least one unit of the cutoff's resolution), never below one minute of clock skew
+and never beyond the horizon. A value recorded later on the cutoff's own day passes; one on
+the outcome's day under ``--horizon 1d`` is late (the whole horizon), and so is a value
+written as a date hours after a cutoff written to the minute (the value's own coarser unit
+no longer widens the tolerance: a date is known from that midnight on). Durations from the
+dictionary are exact and compared with no tolerance. The split keeps the coarsest resolution
+of its times. A duration the user sets (e.g. ``3d``) is used everywhere instead, lags beyond
+it late. The tolerance, its reason and the comparison are in every column's evidence.
+``share_tolerance`` (default 1 %) is the share of rows below which nothing is flagged. All
+numbers are in :class:`TimingThresholds`; the column level is the table :data:`COLUMN_RULES`.
 """
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -31,7 +39,7 @@ from featureaudit.durations import parse_duration
 from featureaudit.errors import SettingError
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.levels import Ladder, Level
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.times import as_datetime
@@ -73,12 +81,58 @@ class TimingThresholds:
 THRESHOLDS = TimingThresholds()
 
 
+class LateFigures(NamedTuple):
+    """What a column's level reads: the share of rows known after the cutoff, the share
+    known after the label time (None without one), and the share below which nothing is
+    flagged (``share_tolerance``)."""
+
+    after_cutoff: float
+    after_label: float | None
+    share_tolerance: float
+
+
+class Rule(NamedTuple):
+    """One row of a decision table: its name, the level it sets, when it holds, and why."""
+
+    name: str
+    level: Level
+    holds: Callable[[LateFigures, TimingThresholds], bool]
+    sentence: str
+
+
+def _on(level: Level) -> Callable[[LateFigures, TimingThresholds], bool]:
+    return lambda f, th: th.share.level(f.after_cutoff) == level
+
+
+COLUMN_RULES: tuple[Rule, ...] = (
+    Rule(
+        "known after the outcome",
+        Level.CRITICAL,
+        lambda f, th: f.after_label is not None and f.after_label >= th.after_label_critical,
+        "known after the outcome itself for enough rows",
+    ),
+    Rule("most rows late", Level.CRITICAL, _on(Level.CRITICAL), "late for half the rows"),
+    Rule("a tenth late", Level.HIGH, _on(Level.HIGH), "late for a tenth of the rows or more"),
+    Rule("a few late", Level.MEDIUM, _on(Level.MEDIUM), "late for a few per cent of rows"),
+    Rule(
+        "a trace late",
+        Level.LOW,
+        lambda f, th: _on(Level.LOW)(f, th) and f.after_cutoff >= max(f.share_tolerance, 1e-12),
+        "late for a share of rows past the share tolerance",
+    ),
+    Rule("in time", Level.NONE, lambda f, th: True, "known by the moment of prediction"),
+)
+
+
+def decide_column(f: LateFigures, th: TimingThresholds = THRESHOLDS) -> tuple[Level, Rule]:
+    """The first rule of :data:`COLUMN_RULES` that holds, and its level."""
+    rule = next(r for r in COLUMN_RULES if r.holds(f, th))
+    return rule.level, rule
+
+
 def share_level(share: float, share_tolerance: float, th: TimingThresholds = THRESHOLDS) -> Level:
     """The level of a share of late rows; below ``share_tolerance`` it is nothing."""
-    level = th.share.level(share)
-    if level == Level.LOW and share < max(share_tolerance, 1e-12):
-        return Level.NONE
-    return level
+    return decide_column(LateFigures(share, None, share_tolerance), th)[0]
 
 
 def column_level(
@@ -87,12 +141,8 @@ def column_level(
     share_tolerance: float,
     th: TimingThresholds = THRESHOLDS,
 ) -> Level:
-    """A column's level: the cutoff share's level, critical when enough rows are known only
-    after the outcome itself."""
-    level = share_level(share_after_cutoff, share_tolerance, th)
-    if share_after_label is not None and share_after_label >= th.after_label_critical:
-        return Level.CRITICAL
-    return level
+    """A column's level: the first rule of :data:`COLUMN_RULES` that holds."""
+    return decide_column(LateFigures(share_after_cutoff, share_after_label, share_tolerance), th)[0]
 
 
 def resolution(ns: np.ndarray) -> tuple[str, float]:
@@ -112,10 +162,24 @@ def resolution(ns: np.ndarray) -> tuple[str, float]:
 
 @dataclass(frozen=True)
 class Tolerance:
-    """The time tolerance in force for one comparison, and why."""
+    """The time tolerance in force for one comparison, and why. ``inclusive``: a lag of
+    exactly ``ns`` is late (the cutoff's own resolution unit: a value in the next unit is
+    after it); otherwise only lags beyond ``ns`` are."""
 
     ns: float
     reason: str
+    inclusive: bool = False
+
+    def late(self, lag: np.ndarray) -> np.ndarray:
+        """Which lags (NaN: not compared) are past the tolerance."""
+        with np.errstate(invalid="ignore"):
+            return lag >= self.ns if self.inclusive else lag > self.ns
+
+    @property
+    def rule(self) -> str:
+        """The comparison in words, for the evidence."""
+        amount = _amount(self.ns / self.unit[1], self.unit[0])
+        return f"late when {'at least' if self.inclusive else 'more than'} {amount} after"
 
     @property
     def unit(self) -> tuple[str, float]:
@@ -145,6 +209,45 @@ def tolerance(
         f"automatic: the coarsest resolution of the times compared is one {name}"
         + (f" (clock-skew floor {th.clock_skew_floor})" if ns > unit else ""),
     )
+
+
+def column_tolerance(
+    settings: Settings,
+    cutoff: np.ndarray,
+    horizon: pd.Timedelta | None = None,
+    exact: bool = False,
+    th: TimingThresholds = THRESHOLDS,
+) -> Tolerance:
+    """The tolerance of a column's comparison with its cutoff (or label) times.
+
+    A cutoff written to a unit (a date, a whole hour) stands for that whole unit, so a value
+    is late from the start of the next unit: the lag must reach one unit of the cutoff's
+    resolution (never below the clock-skew floor, never beyond the horizon). The value's own
+    resolution plays no part: a value written as a date became known at or after that
+    midnight, so a date later than the cutoff is late however fine the cutoff is. Times from
+    a dictionary duration (``exact``) are compared exactly; a tolerance the user sets wins.
+    """
+    if settings.time_tolerance != "auto":
+        return tolerance(settings, th=th)
+    if exact:
+        return Tolerance(0.0, "automatic: durations from the dictionary are exact")
+    name, unit = resolution(cutoff)
+    floor = float(parse_duration(th.clock_skew_floor).value)
+    ns = max(unit, floor)
+    reason = (
+        f"automatic: the cutoff is written to the {name}, so a value is late from the next {name}"
+    )
+    if ns > unit:
+        reason = (
+            f"automatic: clock-skew floor {th.clock_skew_floor} "
+            f"(the cutoff is written to the {name})"
+        )
+    if horizon is not None and 0 < float(horizon.value) < ns:
+        ns, reason = (
+            float(horizon.value),
+            f"automatic: the horizon {horizon}, shorter than the cutoff's {name}",
+        )
+    return Tolerance(ns, reason, inclusive=True)
 
 
 def _display_unit(lag_ns: np.ndarray) -> tuple[str, float]:
@@ -203,16 +306,18 @@ class Timing(Probe):
     scope = "column"
     kinds = ("recorded_after_cutoff", "time_overlap_across_split")
     thresholds = THRESHOLDS
+    capabilities = Capabilities(pairs=frozenset({"partition", "between_heldout", "fold"}))
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
         th = cls.thresholds
         if settings.time_tolerance == "auto":
             tol = (
-                "a tolerance that follows the resolution of the times (the coarser of the "
-                "cutoff's and the value's finest unit: one day for dates, one hour or one "
-                f"minute for times of day, never below {th.clock_skew_floor} of clock skew; "
-                "durations from the dictionary are compared exactly)"
+                "a tolerance that follows the cutoff's resolution and the horizon (a value "
+                "is late from the cutoff's next unit: one day for dates, one hour or one "
+                f"minute for times of day, never below {th.clock_skew_floor} of clock skew "
+                "nor beyond the horizon; durations from the dictionary are compared exactly; "
+                "the split compares at the coarsest resolution of its times)"
             )
         else:
             tol = f"a tolerance of {settings.time_tolerance} (set by time_tolerance)"
@@ -387,11 +492,11 @@ class Timing(Probe):
         if not ok.any():
             skipped.append(Skip(self.name, "no row has both a known time and a cutoff", name))
             return None
-        tol = tolerance(
-            settings, cutoff[ok], *(() if from_duration else (times[ok],)), th=self.thresholds
+        tol = column_tolerance(
+            settings, cutoff[ok], table.horizon, from_duration, th=self.thresholds
         )
         lag = np.where(ok, times - cutoff, np.nan)
-        after = ok & (lag > tol.ns)
+        after = ok & tol.late(lag)
         unit_name, unit = _display_unit(lag[after] if after.any() else lag[ok])
         share = float(after.sum() / ok.sum())
         detail: dict = {
@@ -409,11 +514,13 @@ class Timing(Probe):
             "tolerance": settings.time_tolerance,
             "tolerance_used": _amount(tol.ns / tol.unit[1], tol.unit[0]),
             "tolerance_reason": tol.reason,
+            "tolerance_rule": tol.rule + " the cutoff",
         }
         share_l = None
         if label is not None:
             ok_l = np.isfinite(times) & np.isfinite(label)
-            after_l = ok_l & (times - label > tol.ns)
+            tol_l = column_tolerance(settings, label[ok_l], None, from_duration, self.thresholds)
+            after_l = ok_l & tol_l.late(np.where(ok_l, times - label, np.nan))
             share_l = float(after_l.sum() / ok_l.sum()) if ok_l.any() else 0.0
             detail.update(
                 share_after_label=share_l,

@@ -94,7 +94,9 @@ def test_unknown_target_lists_the_columns(good_csv):
     )
 
 
-@pytest.mark.parametrize("flag", ["--split-column", "--label-time", "--entity", "--cutoff-time"])
+@pytest.mark.parametrize(
+    "flag", ["--split-column", "--label-time", "--entity", "--cutoff-time", "--order"]
+)
 def test_unknown_column_flags(good_csv, flag):
     assert_one_line_exit_2(cli("scan", good_csv, "--target", "y", flag, "nope"), flag, "'nope'")
 
@@ -339,11 +341,11 @@ def test_cli_seeds_outside_32_bits_run(good_csv, tmp_path):
 @pytest.mark.parametrize(
     "kwargs, fragment",
     [
-        ({"target": ["t"]}, "--target"),
-        ({"split_column": ["split"]}, "--split-column"),
+        ({"target": ["t"]}, "target"),
+        ({"split_column": ["split"]}, "split_column"),
         ({"settings": {"folds": 3}}, "Settings"),
-        ({"task": "regression"}, "--task"),
-        ({"dictionary": 3}, "--dictionary"),
+        ({"task": "regression"}, "task"),
+        ({"dictionary": 3}, "dictionary"),
         ({"probes": "solo"}, "probes"),
         ({"seed": 1.5}, "seed"),
     ],
@@ -774,3 +776,428 @@ def test_heldout_target_of_few_whole_numbers_points_to_task_numeric(tmp_path):
     assert_one_line_exit_2(result, "coded differently", "--task numeric")
     table = fa.table.build_table(train, test=held, target="weight", task="numeric")
     assert table.heldout_rows == 8 and table.task == "numeric"
+
+
+# === round three (issue 28): every door, every file read back ==============================
+def _table300(n=300, seed=5):
+    rng = np.random.default_rng(seed)
+    return pd.DataFrame(
+        {
+            "a": rng.normal(size=n),
+            "b": rng.integers(0, 5, n),
+            "when": pd.date_range("2025-01-01", periods=n, freq="D"),
+            "y": rng.integers(0, 2, n),
+        }
+    )
+
+
+def _csv300(tmp_path, frame=None):
+    path = tmp_path / "t300.csv"
+    (_table300() if frame is None else frame).to_csv(path, index=False)
+    return path
+
+
+# --- one column in two roles, flags that contradict each other ------------------------------
+def test_target_that_is_also_the_split_column_or_the_entity(tmp_path):
+    path = _csv300(tmp_path)
+    out = tmp_path / "r"
+    result = cli("scan", path, "--target", "y", "--split-column", "y", "--out", out)
+    assert_one_line_exit_2(result, "'y'", "--target", "--split-column")
+    result = cli("scan", path, "--target", "y", "--entity", "y", "--out", out)
+    assert_one_line_exit_2(result, "'y'", "--target", "--entity")
+    assert not out.exists()
+    with pytest.raises(SettingError, match="target.*entity"):
+        fa.audit(_table300(), target="y", entity="y")
+    d = tmp_path / "d.csv"
+    d.write_text("column,role\ny,split\n")
+    assert_one_line_exit_2(cli("scan", path, "--target", "y", "--dictionary", d), "'y'", "split")
+
+
+def test_scheduler_without_the_dask_engine(tmp_path):
+    path = _csv300(tmp_path)
+    result = cli("scan", path, "--target", "y", "--scheduler", "tcp://127.0.0.1:1")
+    assert_one_line_exit_2(result, "--scheduler", "--engine dask")
+    with pytest.raises(SettingError, match="scheduler.*engine='dask'") as info:
+        fa.audit(_table300(), target="y", scheduler="tcp://127.0.0.1:1")
+    assert "--" not in str(info.value)
+
+
+@pytest.mark.parametrize("flag, values", [("--target", ["y", "a"]), ("--seed", ["1", "2"])])
+def test_a_flag_given_twice(tmp_path, flag, values):
+    path = _csv300(tmp_path)
+    result = cli("scan", path, flag, values[0], "--target", "y", f"{flag}={values[1]}")
+    assert_one_line_exit_2(result, flag, "more than once")
+
+
+def test_negative_horizon(tmp_path):
+    path = _csv300(tmp_path)
+    result = cli("scan", path, "--target", "y", "--label-time", "when", "--horizon", "-5d")
+    assert_one_line_exit_2(result, "--horizon", "'-5d'", "negative")
+    with pytest.raises(SettingError, match="horizon"):
+        fa.audit(_table300(), target="y", label_time="when", horizon="-P5D")
+
+
+def test_multiclass_asked_of_a_continuous_target(tmp_path):
+    frame = _table300().assign(y=lambda f: f["a"] * 3.7 + 0.01)
+    with pytest.raises(TargetError, match="--task numeric|task='numeric'"):
+        fa.audit(frame, target="y", task="multiclass")
+    path = _csv300(tmp_path, frame)
+    result = cli("scan", path, "--target", "y", "--task", "multiclass", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "'y'", "--task numeric")
+
+
+# --- counts beyond what the table holds (every count setting has an upper bound) --------------
+def test_folds_beyond_the_rows_of_the_table(tmp_path):
+    cfg = tmp_path / "c.toml"
+    cfg.write_text("folds = 1000000000\n")
+    result = cli(
+        "scan", _csv300(tmp_path), "--target", "y", "--config", cfg, "--out", tmp_path / "r"
+    )
+    assert_one_line_exit_2(result, "folds", "1000000000", "300")
+    assert not (tmp_path / "r").exists()
+    from featureaudit.settings import Settings
+
+    with pytest.raises(SettingError, match="folds.*300"):
+        fa.audit(_table300(), target="y", settings=Settings(folds=301, n_jobs=1))
+
+
+@pytest.mark.parametrize(
+    "kwargs", [{"n_jobs": 10**6}, {"sample_rows": 10**12}, {"reference_rows": 10**12},
+               {"min_rows": 10**12}, {"folds": 10**12}]
+)  # fmt: skip
+def test_count_settings_have_an_upper_bound(kwargs):
+    from featureaudit.settings import Settings
+
+    name = next(iter(kwargs))
+    with pytest.raises(SettingError, match=f"{name}.*at most"):
+        Settings(**kwargs)
+
+
+# --- too few labelled rows -----------------------------------------------------------------
+@pytest.mark.parametrize("labels", [[1, 1], [0, 1]])
+def test_too_few_labelled_rows_is_its_own_message(tmp_path, labels):
+    frame = _table300().astype({"y": float})
+    frame["y"] = np.nan
+    frame.loc[[10, 200], "y"] = labels
+    with pytest.raises(TargetError, match="too few labelled rows"):
+        fa.audit(frame, target="y")
+    result = cli("scan", _csv300(tmp_path, frame), "--target", "y", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "'y'", "2 of 300 rows", "too few labelled rows")
+
+
+# --- the dictionary and --accepted, read strictly ---------------------------------------------
+@pytest.mark.parametrize(
+    "known_at, fragment",
+    [("b", "not a datetime"), ("soon", "not a column"), ("nan", "not a column")],
+)
+def test_known_at_naming_no_datetime_column_is_an_error(tmp_path, known_at, fragment):
+    d = tmp_path / "d.csv"
+    d.write_text(f"column,role,known_at\na,feature,\ny,target,\nb,feature,{known_at}\n")
+    path = _csv300(tmp_path)
+    with pytest.raises(DictionaryError, match=f"d.csv.*line 4.*'{known_at}'.*{fragment}"):
+        fa.table.build_table(path, dictionary=d)
+    result = cli("scan", path, "--dictionary", d, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "d.csv", "line 4", f"'{known_at}'")
+    ok = tmp_path / "ok.csv"
+    ok.write_text("column,role,known_at\ny,target,\nb,feature,when\n")
+    assert fa.table.build_table(path, dictionary=ok).dictionary.entries["b"].known_at == "when"
+
+
+def test_two_target_rows_in_the_dictionary():
+    from featureaudit.dictionary import parse_dictionary
+
+    with pytest.raises(DictionaryError, match="'d.csv' line 3.*target.*line 2"):
+        parse_dictionary("column,role\ny,target\na,target\n", source="d.csv")
+
+
+@pytest.mark.parametrize("row", ["a,feature,,first,extra", "a"])
+def test_ragged_dictionary_row(row):
+    from featureaudit.dictionary import parse_dictionary
+
+    text = f"column,role,known_at,description\ny,target,,\n{row}\n"
+    with pytest.raises(DictionaryError, match="'d.csv' line 3.*cells.*header has 4"):
+        parse_dictionary(text, source="d.csv")
+
+
+@pytest.mark.parametrize(
+    "row", ["a,target_proxy,ok,me,,surplus", "a,target_proxy,ok"]
+)  # fmt: skip
+def test_ragged_accepted_row(tmp_path, row):
+    from featureaudit.accepted import read_accepted
+
+    f = tmp_path / "acc.csv"
+    f.write_text(f"column,kind,reason,reviewed_by,until\n{row}\n")
+    with pytest.raises(SettingError, match="acc.csv.*line 2.*cells.*header has 5"):
+        read_accepted(f)
+    path = _csv300(tmp_path)
+    assert_one_line_exit_2(cli("scan", path, "--accepted", f), "acc.csv", "line 2")
+
+
+# --- findings and history files read back ----------------------------------------------------
+def _findings_doc(score=0.5):
+    return {
+        "schema": "featureaudit.findings/2",
+        "columns": [{"column": "a", "score": score, "level": "high", "kinds": ["target_proxy"]}],
+        "dataset_findings": [],
+    }
+
+
+@pytest.mark.parametrize("score", [7, -0.5, 1.0000001])
+def test_findings_score_outside_zero_one(tmp_path, score):
+    import json
+
+    (tmp_path / "f.json").write_text(json.dumps(_findings_doc(score)))
+    (tmp_path / "g.json").write_text(json.dumps(_findings_doc()))
+    assert_one_line_exit_2(cli("droplist", tmp_path / "f.json"), "columns[0]", "from 0 to 1")
+    assert_one_line_exit_2(cli("diff", tmp_path / "g.json", tmp_path / "f.json"), "columns[0]")
+
+
+def test_findings_nested_too_deep(tmp_path):
+    deep = tmp_path / "deep.json"
+    deep.write_text(
+        '{"schema": "featureaudit.findings/2", "x": ' + "[" * 100_000 + "]" * 100_000 + "}"
+    )
+    assert_one_line_exit_2(cli("droplist", deep), "deep.json", "nested")
+    assert_one_line_exit_2(cli("diff", deep, deep), "deep.json", "nested")
+
+
+@pytest.mark.parametrize(
+    "name, text",
+    [
+        ("20261201T000000Z-0123456789ab.json", "{corrupt"),
+        ("notes.json", ""),
+        ("other.json", '{"a": 1}'),
+    ],
+)
+def test_history_folder_with_a_file_that_is_not_a_run(tmp_path, name, text):
+    history = tmp_path / "h"
+    history.mkdir()
+    (history / name).write_text(text)
+    assert_one_line_exit_2(cli("history", history), name)
+    out = tmp_path / "r"
+    result = cli("scan", _csv300(tmp_path), "--target", "y", "--history", history, "--out", out)
+    assert_one_line_exit_2(result, name, "--history")
+    assert not out.exists()
+
+
+def test_history_folder_that_cannot_be_written(tmp_path, monkeypatch):
+    import errno
+
+    from featureaudit import history as history_module
+
+    def refuse(*args, **kwargs):
+        raise PermissionError(errno.EACCES, "Permission denied")
+
+    monkeypatch.setattr(history_module.tempfile, "mkstemp", refuse)
+    out = tmp_path / "r"
+    result = cli("scan", _csv300(tmp_path), "--target", "y", "--history", tmp_path / "h",
+                 "--out", out)  # fmt: skip
+    assert_one_line_exit_2(result, "--history", "Permission denied")
+    assert not out.exists()
+
+
+# --- tables whose parts or columns come apart -------------------------------------------------
+def _parts(tmp_path, second):
+    folder = tmp_path / "parts"
+    folder.mkdir()
+    _table300().iloc[:150].to_parquet(folder / "part-0.parquet")
+    second.to_parquet(folder / "part-1.parquet")
+    return folder
+
+
+@pytest.mark.parametrize("engine", ["memory", "stream"])
+@pytest.mark.parametrize("change, fragment", [("lacks", "'b'"), ("extra", "'c'")])
+def test_parquet_parts_with_other_columns(tmp_path, engine, change, fragment):
+    rest = _table300().iloc[150:]
+    rest = rest.drop(columns="b") if change == "lacks" else rest.assign(c=1.0)
+    folder = _parts(tmp_path, rest)
+    result = cli("scan", folder, "--target", "y", "--engine", engine, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "part-1.parquet", fragment)
+
+
+@pytest.mark.parametrize("engine", ["memory", "stream"])
+def test_parquet_parts_with_other_types_name_the_part_and_column(tmp_path, engine):
+    rest = _table300().iloc[150:].assign(b=lambda f: "x" + f["b"].astype(str))
+    folder = _parts(tmp_path, rest)
+    result = cli("scan", folder, "--target", "y", "--engine", engine, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "part-1.parquet", "'b'")
+
+
+def test_corrupt_parquet_part_is_named(tmp_path):
+    folder = _parts(tmp_path, _table300().iloc[150:])
+    (folder / "part-1.parquet").write_bytes(b"PAR1 not really")
+    result = cli("scan", folder, "--target", "y", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "part-1.parquet", "cannot read")
+
+
+def test_duplicate_column_names_in_a_part_are_named(tmp_path):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    folder = _parts(tmp_path, _table300().iloc[150:])
+    table = pa.table([[1, 2], [3, 4]], names=["a", "a"])
+    pq.write_table(table, folder / "part-1.parquet")
+    result = cli("scan", folder, "--target", "y", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "part-1.parquet", "'a'")
+
+
+def test_parquet_binary_columns_are_read(tmp_path):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    frame = _table300()
+    table = pa.Table.from_pandas(frame, preserve_index=False)
+    text = pa.array([f"k{i % 7}".encode() for i in range(300)], type=pa.binary())
+    raw = pa.array([bytes([255, i % 5]) for i in range(300)], type=pa.binary())
+    table = table.append_column("code", text).append_column("blob", raw)
+    pq.write_table(table, tmp_path / "b.parquet")
+    result = cli("scan", tmp_path / "b.parquet", "--target", "y", "--out", tmp_path / "r")
+    assert result.exit_code == 0, result.stderr
+    columns = fa.findings.load_findings(tmp_path / "r" / "findings.json").document["columns"]
+    assert {"code", "blob"} <= {c["column"] for c in columns}
+    frame = fa.io.read_table(tmp_path / "b.parquet")
+    assert frame["code"].astype(str).iloc[1] == "k1" and frame["blob"].astype(str).iloc[1] == "ff01"
+
+
+@pytest.mark.parametrize("change", ["lacks", "types"])
+def test_dask_engine_on_parts_that_disagree(tmp_path, change):
+    pytest.importorskip("distributed")
+    rest = _table300().iloc[150:]
+    rest = (
+        rest.drop(columns="b")
+        if change == "lacks"
+        else rest.assign(b=lambda f: "x" + f["b"].astype(str))
+    )
+    folder = _parts(tmp_path, rest)
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    run = subprocess.run(
+        [str(Path(sys.executable).parent / "featureaudit"), "scan", str(folder), "--target", "y",
+         "--engine", "dask", "--out", str(tmp_path / "r")],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert run.returncode == 2, (run.returncode, run.stderr)
+    assert run.stderr.count("\n") == 1 and "part-1.parquet" in run.stderr, run.stderr
+
+
+# --- the Python door speaks its own words -------------------------------------------------
+def test_audit_with_no_probes_is_refused():
+    with pytest.raises(SettingError, match="probes"):
+        fa.audit(_table300(), target="y", probes=[])
+
+
+def test_whole_number_column_names_are_read_as_text():
+    frame = pd.DataFrame(np.random.default_rng(0).normal(size=(200, 3)))
+    frame[3] = np.arange(200) % 2
+    with pytest.warns(UserWarning, match="whole numbers.*text"):
+        result = fa.audit(frame, target=3)
+    assert result.document["dataset"]["target"] == "3"
+    assert set(result.columns["column"]) == {"0", "1", "2"}
+
+
+@pytest.mark.parametrize(
+    "kwargs, word",
+    [
+        ({"target": ["t"]}, "target"),
+        ({"split_column": 3.5}, "split_column"),
+        ({"task": "regression"}, "task"),
+        ({"target": "nope"}, "target"),
+        ({"target": "y", "label_time": "when", "horizon": "soon"}, "horizon"),
+        ({"seed": 1.5}, "seed"),
+        ({"engine": "spark"}, "engine"),
+    ],
+)
+def test_api_errors_speak_keyword_names_not_flags(kwargs, word):
+    with pytest.raises(FeatureAuditError) as info:
+        fa.audit(_table300(), **kwargs)
+    message = str(info.value)
+    assert word in message and "--" not in message, message
+
+
+def test_write_with_a_history_that_is_not_runs(tmp_path):
+    result = fa.audit(_table300(), target="y", probes=["solo"])
+    with pytest.raises(SettingError, match="history.*list of earlier"):
+        result.write(tmp_path / "r", history="nope")
+    assert not (tmp_path / "r").exists()
+
+
+# --- the report folder --------------------------------------------------------------------
+def test_symlinked_out_is_followed_and_leaves_nothing_behind(tmp_path):
+    from featureaudit.writer import write_files
+
+    real = tmp_path / "real"
+    _earlier_report(real)
+    link = tmp_path / "link"
+    link.symlink_to(real, target_is_directory=True)
+    write_files(link, REPORT)
+    assert link.is_symlink() and link.resolve() == real.resolve()
+    assert {p.name: p.read_text() for p in real.iterdir()} == REPORT
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["link", "real"]
+
+
+# --- what a message shows ------------------------------------------------------------------
+def test_a_huge_config_value_is_shortened_in_the_error(good_csv, tmp_path):
+    cfg = tmp_path / "c.toml"
+    cfg.write_text('seed = "' + "x" * 10_000_000 + '"\n')
+    result = cli("scan", good_csv, "--config", cfg)
+    assert_one_line_exit_2(result, "config key seed", "characters")
+    assert len(result.stderr) < 500
+
+
+@pytest.mark.parametrize("line", ["out = 5", 'quiet = "yes"', 'quiet = "no"'])
+def test_config_values_of_the_wrong_type(good_csv, tmp_path, line):
+    cfg = tmp_path / "c.toml"
+    cfg.write_text(line + "\n")
+    key = line.split(" ")[0]
+    result = cli("scan", good_csv, "--target", "y", "--config", cfg, "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, f"config key {key}")
+    assert not (tmp_path / "5").exists() and not (tmp_path / "r").exists()
+
+
+def test_encoding_flag_that_does_not_match_a_utf8_file(tmp_path):
+    path = tmp_path / "t.csv"
+    ACCENTED.to_csv(path, index=False)  # UTF-8
+    result = cli("scan", path, "--target", "y", "--encoding", "utf-16", "--out", tmp_path / "r")
+    assert_one_line_exit_2(result, "t.csv", "UTF-8", "--encoding")
+    plain = tmp_path / "ascii.csv"
+    _table300().to_csv(plain, index=False)  # ASCII reads the same in latin-1: no complaint
+    ok = cli("scan", plain, "--target", "y", "--encoding", "latin-1", "--out", tmp_path / "q")
+    assert ok.exit_code == 0, ok.stderr
+
+
+def test_sigterm_during_interpreter_exit_after_a_new_report(tmp_path):
+    import os
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    path = _csv300(tmp_path)
+    out = tmp_path / "r"
+    code = (
+        "import atexit, sys, time\n"
+        "from featureaudit.cli import main\n"
+        "atexit.register(time.sleep, 30)\n"
+        "atexit.register(lambda: print('EXITING', file=sys.stderr, flush=True))\n"
+        "main()\n"
+    )
+    proc = subprocess.Popen(
+        [sys.executable, "-c", code, "scan", str(path), "--target", "y", "--out", str(out)],
+        stderr=subprocess.PIPE, stdout=subprocess.DEVNULL, text=True,
+    )  # fmt: skip
+    lines = []
+    deadline = time.monotonic() + 240
+    while time.monotonic() < deadline:
+        line = proc.stderr.readline()
+        if not line:
+            break
+        lines.append(line)
+        if "EXITING" in line:
+            os.kill(proc.pid, signal.SIGTERM)
+            break
+    rest = proc.communicate(timeout=60)[1]
+    assert proc.returncode == 143, (proc.returncode, lines, rest)
+    assert "the new report in" in rest and "is complete" in rest, rest
+    assert (out / "findings.json").exists()

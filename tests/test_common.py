@@ -1,26 +1,18 @@
-"""Every registered probe through the named common checks of ``tests/probe_checks.py``
+"""Every registered probe through the common checks of ``featureaudit.testing``
 (valid evidence, the same result for the same seed, its input untouched, skips with a reason
 without a target, a split or enough rows, and no level it cannot support on clean,
 awkward, one-class, numeric or multiclass data), plus the registry's own rules."""
 
 import dataclasses
 import importlib.metadata
-import sys
 
 import pytest
 
 from featureaudit import registry
 from featureaudit.registry import Probe, register, registered, unregister
-
-sys.path.insert(0, str(__import__("pathlib").Path(__file__).parent))
-from probe_checks import awkward_frame, yield_checks  # noqa: E402
+from featureaudit.testing import awkward_frame, parametrize_with_checks
 
 PROBES = sorted(registered())
-CASES = [
-    pytest.param(name, check, id=f"{name}-{check_name}")
-    for name in PROBES
-    for check_name, check in yield_checks(registered()[name])
-]
 
 
 @dataclasses.dataclass(frozen=True)
@@ -35,9 +27,9 @@ def fresh_registry(monkeypatch):
     return registry._REGISTRY
 
 
-@pytest.mark.parametrize(("name", "check"), CASES)
-def test_common_check(name, check, fresh_registry):
-    check(fresh_registry[name])
+@parametrize_with_checks([registered()[name] for name in PROBES])
+def test_common_check(probe, check, fresh_registry):
+    check(probe)
 
 
 def test_every_probe_module_in_the_package_is_registered():

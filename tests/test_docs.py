@@ -4,7 +4,7 @@ import re
 from pathlib import Path
 
 from featureaudit.cli import app
-from featureaudit.evidence import KINDS
+from featureaudit.kinds import KIND_TABLE, KINDS
 from featureaudit.report import CAUTION
 
 README = (Path(__file__).resolve().parents[1] / "README.md").read_text()
@@ -33,3 +33,11 @@ def test_every_kind_and_the_caution_are_documented():
     flat = " ".join(DEVELOPERS.replace("> ", "").split())
     assert " ".join(CAUTION.split()) in flat
     assert " ".join(CAUTION.split()) in " ".join(README.split())
+
+
+def test_the_readme_kinds_table_is_the_kinds_table():
+    rows = re.findall(r"^\| `([a-z_]+)` \| (.+?) \|$", README, re.M)
+    table = {name: meaning for name, meaning in rows if name in KINDS}
+    assert table == {k.name: k.meaning for k in KIND_TABLE}
+    order = [name for name, _ in rows if name in KINDS]
+    assert order == list(KINDS)

@@ -191,7 +191,7 @@ def test_stream_rejects_csv_and_dataframes(tmp_path):
     _table(reps=2).to_csv(path, index=False)
     out = runner.invoke(app, ["scan", str(path), "--target", "target", "--engine", "stream"])
     assert out.exit_code == 2 and "Parquet" in out.output
-    with pytest.raises(ValueError, match="--engine memory"):
+    with pytest.raises(ValueError, match="engine='memory'"):  # the API's words
         fa.audit(_table(reps=2), target="target", engine="stream")
 
 

@@ -134,6 +134,7 @@ def test_diff_new_gone_raised_lowered():
         ("gone", "gone"),
         ("new", "fresh"),
         ("gone", "duplicate_rows_across_split"),
+        ("added", "quiet"),  # new to the table, no finding
     }
 
 
@@ -160,7 +161,7 @@ def test_schema_2_fields_are_written(tmp_path):
     )
     frame.loc[frame.index[:40], "x2"] = 1.0
     doc = fa.audit(frame, target="y", split_column="split").document
-    assert doc["schema"] == "featureaudit.findings/2"
+    assert doc["schema"] == "featureaudit.findings/3"
     parts = doc["dataset"]["partitions"]
     assert parts["train"] == int((frame["split"] == "train").sum())
     assert parts["valid"] + parts["test"] == doc["dataset"]["heldout_rows"]

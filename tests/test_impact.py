@@ -14,7 +14,8 @@ from sklearn.model_selection import KFold
 import featureaudit as fa
 from featureaudit.findings import droplist
 from featureaudit.impact import _params
-from featureaudit.remedy import REMEDIES, column_remedy, dataset_remedy
+from featureaudit.kinds import REMEDIES
+from featureaudit.remedy import column_remedy, dataset_remedy
 
 
 def _split(frame, seed=0, share=0.3):
@@ -128,14 +129,22 @@ def test_dataset_remedy_per_kind(kind, remedy):
 
 
 def test_column_remedy_per_kind():
-    def col(level, *probes):
-        return {"level": level, "evidence": [{"probe": p, "level": level} for p in probes]}
+    def col(level, *found):
+        evidence = [{"probe": p, "kind": k, "level": level} for p, k in found]
+        return {"level": level, "evidence": evidence}
 
-    assert column_remedy(col("high", "fitscope")) == "refit_on_training_rows"
-    assert column_remedy(col("critical", "solo")) == "drop"
-    assert column_remedy(col("high", "timing", "fitscope")) == "drop"
-    assert column_remedy(col("medium", "solo")) == "review"
-    assert column_remedy(col("none", "solo")) is None
+    fit = ("fitscope", "fit_on_all_rows")
+    assert column_remedy(col("high", fit)) == "refit_on_training_rows"
+    # fitscope declares that its in-sample target encodings are refitted, not dropped
+    assert column_remedy(col("critical", ("fitscope", "target_proxy"))) == "refit_on_training_rows"
+    assert column_remedy(col("high", ("code", "fit_on_all_rows"), fit)) == "refit_on_training_rows"
+    assert column_remedy(col("critical", ("solo", "target_proxy"))) == "drop"
+    assert column_remedy(col("high", ("timing", "recorded_after_cutoff"), fit)) == "drop"
+    assert column_remedy(col("medium", ("solo", "target_proxy"))) == "review"
+    assert column_remedy(col("none", ("solo", "target_proxy"))) is None
+    # the kinds table's remedy for a feature built from later rows keeps the column
+    later = ("lineage", "computed_from_later_rows")
+    assert column_remedy(col("high", later)) == "recompute_before_cutoff"
     assert set(REMEDIES) >= {"drop", "refit_on_training_rows", "review"}
 
 

@@ -28,7 +28,8 @@ def test_wheel_has_one_top_level_package(wheel):
     for needed in (
         "featureaudit/probes/solo/__init__.py",
         "featureaudit/probes/solo/_peers.py",
-        "featureaudit/probes/twins/hashing.py",
+        "featureaudit/probes/twins/_nearcopy.py",
+        "featureaudit/hashing.py",
         "featureaudit/reports/templates/dossier.html.j2",
         "featureaudit/sample_data/invoices.csv",
         "featureaudit/sample_data/dictionary.csv",
@@ -51,3 +52,17 @@ def test_wheel_holds_every_module_of_the_source_tree(wheel):
     }
     missing = sorted(n for n in expected if "__pycache__" not in n and n not in names)
     assert not missing, missing
+
+
+def test_the_gates_are_pinned_once():
+    """ruff and mypy are pinned in .ci/tools.txt; pre-commit pins ruff at the same version."""
+    root = Path(__file__).resolve().parents[1]
+    pins = dict(
+        line.split("==")
+        for line in (root / ".ci" / "tools.txt").read_text().splitlines()
+        if line and not line.startswith("#")
+    )
+    assert set(pins) == {"ruff", "mypy"}
+    config = (root / ".pre-commit-config.yaml").read_text()
+    assert config.count(f'"ruff=={pins["ruff"]}"') == 2
+    assert "-r .ci/tools.txt" in (root / ".ci" / "run").read_text()

@@ -148,7 +148,7 @@ def test_unscaled_folds_are_clean(breast_cancer):
 
 def test_fold_column_errors(breast_cancer):
     frame = _with_folds(breast_cancer, 2)
-    with pytest.raises(ColumnNotFound, match="--fold-column column 'nope' is not in"):
+    with pytest.raises(ColumnNotFound, match="fold_column column 'nope' is not in"):
         fa.audit(frame, target="malignant", split_column="split", fold_column="nope")
     blank = frame.copy()
     blank.loc[blank.index[blank.split == "train"][:3], "fold"] = np.nan

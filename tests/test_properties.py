@@ -156,3 +156,124 @@ def test_a_target_whose_classes_have_one_row_each():
     frame = pd.DataFrame({"x": np.arange(20.0), "y": [f"row{i}" for i in range(20)]})
     result = _audit(frame, {"target": "y"})
     assert result.document["dataset"]["task"] == "multiclass"
+
+
+# --- report files and the files the tool reads back (issue 28) ------------------------------
+ANY_NAME = st.text(max_size=30)
+JSON = st.recursive(
+    st.none() | st.booleans() | st.integers() | st.floats() | st.text(max_size=10),
+    lambda inner: (
+        st.lists(inner, max_size=4) | st.dictionaries(st.text(max_size=10), inner, max_size=4)
+    ),
+    max_leaves=20,
+)
+
+
+@PROFILE
+@given(st.lists(ANY_NAME, min_size=1, max_size=6, unique=True))
+def test_droplist_lines_read_back_with_the_documented_rule(names):
+    from featureaudit.names import unquote_name
+
+    text = "".join(f"{quote_name(n)}\n" for n in names)  # what render_all writes
+    assert text.split("\n")[:-1] == [quote_name(n) for n in names]  # one name per line
+    assert [unquote_name(line) for line in text.split("\n")[:-1]] == names
+
+
+def _column_entry(name, score, level):
+    return {"column": name, "score": score, "level": level, "kinds": ["target_proxy"],
+            "summary": "s", "evidence": []}  # fmt: skip
+
+
+@PROFILE
+@given(
+    st.lists(
+        st.tuples(ANY_NAME, st.floats(0, 1), st.sampled_from(["critical", "high", "low", "none"])),
+        max_size=5,
+        unique_by=lambda t: t[0],
+    )
+)
+def test_a_stored_run_reads_back_as_written(tmp_path_factory, entries):
+    from featureaudit.findings import Findings, load_findings
+    from featureaudit.history import load_runs, store_run
+
+    doc = {
+        "schema": "featureaudit.findings/2",
+        "created": "2026-12-01T12:00:00Z",
+        "columns": [_column_entry(*e) for e in entries],
+        "dataset_findings": [],
+    }
+    folder = tmp_path_factory.mktemp("history")
+    path = store_run(folder, Findings(doc))
+    assert load_findings(path).document == doc
+    runs = load_runs(folder)
+    assert len(runs) == 1 and runs[0].findings.document == doc
+
+
+@PROFILE
+@given(JSON)
+def test_any_json_as_findings_fails_only_clearly(tmp_path_factory, value):
+    from featureaudit.findings import load_findings
+
+    path = tmp_path_factory.mktemp("findings") / "f.json"
+    doc = value
+    if isinstance(value, dict) and value:  # most junk also claims to be ours
+        doc = {**value, "schema": "featureaudit.findings/2"}
+    path.write_text(json.dumps(doc), encoding="utf-8")
+    try:
+        loaded = load_findings(path)
+    except FeatureAuditError as exc:
+        assert "\n" not in str(exc) and "f.json" in str(exc)
+        return
+    for c in loaded.columns:  # what it accepts is usable
+        assert isinstance(c["column"], str)
+        assert c.get("score") is None or 0 <= c["score"] <= 1
+
+
+@PROFILE
+@given(st.lists(st.lists(st.text(max_size=8), max_size=7), max_size=5))
+def test_any_csv_as_accepted_fails_only_clearly(tmp_path_factory, rows):
+    from featureaudit.accepted import read_accepted
+
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(["column", "kind", "reason", "reviewed_by", "until"])
+    writer.writerows(rows)
+    path = tmp_path_factory.mktemp("accepted") / "acc.csv"
+    path.write_text(buf.getvalue(), encoding="utf-8")
+    try:
+        read = read_accepted(path)
+    except FeatureAuditError as exc:
+        assert "\n" not in str(exc) and "acc.csv" in str(exc)
+        return
+    assert all(a.column for a in read)
+
+
+@PROFILE
+@given(st.text(max_size=200))
+def test_any_text_in_a_history_folder_fails_only_clearly(tmp_path_factory, text):
+    from featureaudit.history import load_runs
+
+    folder = tmp_path_factory.mktemp("history")
+    (folder / "20261201T000000Z-0123456789ab.json").write_text(text, encoding="utf-8")
+    try:
+        runs = load_runs(folder)
+    except FeatureAuditError as exc:
+        assert "\n" not in str(exc) and "0123456789ab.json" in str(exc)
+        return
+    assert len(runs) == 1
+
+
+@PROFILE
+@given(st.lists(st.lists(st.text(max_size=8), max_size=5), max_size=5))
+def test_any_csv_as_a_dictionary_fails_only_clearly(rows):
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(["column", "role", "known_at", "description"])
+    writer.writerows(rows)
+    try:
+        read = parse_dictionary(buf.getvalue(), source="d.csv")
+    except FeatureAuditError as exc:
+        assert "\n" not in str(exc) and "d.csv" in str(exc)
+        return
+    for entry in read.entries.values():  # what it accepts is whole
+        assert entry.line >= 2 and entry.role

@@ -10,7 +10,7 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
-from featureaudit import __version__
+from featureaudit._version import __version__
 from featureaudit.code.audit import CodeAudit
 from featureaudit.code.rules import KINDS, REMEDY
 from featureaudit.errors import SettingError

@@ -16,7 +16,7 @@ from typing import Any, Protocol, TypeVar
 import numpy as np
 import pandas as pd
 
-from featureaudit.probes.twins.hashing import row_hashes
+from featureaudit.hashing import row_hashes
 from featureaudit.times import as_datetime
 
 __all__ = [

@@ -77,10 +77,15 @@ def parquet_dataset(path: str | os.PathLike[str]) -> ds.Dataset:
     )
     if not files:
         raise InputFileError(f"folder {str(p)!r} holds no .parquet files; pass a Parquet folder.")
-    try:
-        schemas = [pq.read_schema(f) for f in files]
-    except (pa.ArrowInvalid, OSError) as exc:
-        raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
+    if len(files) > 1:  # each part readable, with the first part's columns and types
+        from featureaudit.io import check_parquet_parts
+
+        schemas = check_parquet_parts(files, p)
+    else:
+        try:
+            schemas = [pq.read_schema(f) for f in files]
+        except (pa.ArrowInvalid, OSError) as exc:
+            raise InputFileError(f"cannot read {str(p)!r} as Parquet: {exc}.") from exc
     return ds.dataset([str(f) for f in files], format="parquet", schema=_unified(schemas, p))
 
 
@@ -376,7 +381,7 @@ def stream_layout(schema: pa.Schema, build: dict[str, Any]) -> Layout:
         entity=build.get("entity"),
     )
     declared = {build.get(k) for k in ("split_column", "target", "label_time", "cutoff_time")}
-    declared |= {build.get("entity"), build.get("fold_column")}
+    declared |= {build.get("entity"), build.get("fold_column"), build.get("order")}
     given = build.get("dictionary")
     ddict = _dictionary(given, build.get("encoding")) if given is not None else None
     if ddict is not None:
@@ -395,6 +400,7 @@ _FLAGS = {
     "cutoff_time": "--cutoff-time",
     "entity": "--entity",
     "fold_column": "--fold-column",
+    "order": "--order",
 }
 
 

@@ -39,13 +39,23 @@ from featureaudit.probes.fitscope._piles import imputed as _imputed
 from featureaudit.probes.fitscope._precision import mean_tolerance, sd_tolerance, value_error
 from featureaudit.probes.fitscope._robust import looks_robust, robust_scaled
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.settings import Settings
 from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
 MIN_SIDE = THRESHOLDS.min_side  # fewer held-out or training rows than this: cannot tell
 __all__ = ["Fitscope", "FitscopeThresholds"]
+
+
+# a fit's fingerprint is exact over the rows it was fitted on; a sample's statistics match
+# neither fit but by chance (randhie's capped deductible matched the sample's all-rows cap:
+# a clean column at high), so on a sample of the table the probe does not judge
+SAMPLED = (
+    "a fitted step's fingerprint (exact mean, quantile or category rate) holds over every "
+    "row it was fitted on, not over a sample of them; audit the table with --engine memory "
+    "to check fitted steps"
+)
 
 
 @register
@@ -60,6 +70,12 @@ class Fitscope(Probe):
     scope = "column"
     kinds = ("fit_on_all_rows", "target_proxy")
     thresholds = THRESHOLDS
+    # an in-sample target encoding is refitted out of fold on the training rows, not dropped
+    capabilities = Capabilities(
+        needs_every_row=SAMPLED,
+        pairs=frozenset({"partition", "growing_fit", "fold"}),
+        remedies={"target_proxy": "refit_on_training_rows"},
+    )
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
@@ -89,12 +105,12 @@ class Fitscope(Probe):
             f"{th.ordinal_alpha:g}, Bonferroni over the codes), as categories taken from all "
             "rows. With fewer than "
             f"{th.min_side} rows on a side, or where both fits would look alike, it says it "
-            "cannot tell; every numeric column examined carries what was checked."
+            "cannot tell; every numeric column examined carries what was checked. At most "
+            f"{th.max_piles} piles a column are examined; bins are read in columns of up to "
+            f"{th.max_bins} distinct values, ordinal codes in columns of up to {th.max_codes}."
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
-        if table.population_rows is not None and table.population_rows > table.n_rows:
-            return [], [Skip(self.name, SAMPLED)]
         skipped: list[Skip] = []
         split = table.heldout is not None and table.heldout_rows >= 1
         if not split:
@@ -125,16 +141,6 @@ class Fitscope(Probe):
         if split and table.y is not None and table.target_problem is None:
             evidence.extend(_encodings(table, train))
         return evidence, skipped
-
-
-# a fit's fingerprint is exact over the rows it was fitted on; a sample's statistics match
-# neither fit but by chance (randhie's capped deductible matched the sample's all-rows cap:
-# a clean column at high), so on a sample of the table the probe does not judge
-SAMPLED = (
-    "not run on a sample: a fitted step's fingerprint (exact mean, quantile or category "
-    "rate) holds over every row it was fitted on, not over a sample of them; audit the "
-    "table with --engine memory to check fitted steps"
-)
 
 
 def _check_column(

@@ -3,9 +3,41 @@ leak, over the training rows only is clean, and both or an unclear case is said 
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from typing import NamedTuple
+
 from featureaudit.evidence import Evidence
 from featureaudit.levels import Level
 from featureaudit.probes.fitscope._thresholds import THRESHOLDS, FitscopeThresholds
+
+
+class FitFigures(NamedTuple):
+    """What a fingerprint's level reads: is the statistic exact over all rows, over the
+    training rows, can the two fits be told apart here, and is there a split at all."""
+
+    all_exact: bool
+    train_exact: bool
+    distinguishable: bool
+    split: bool
+
+
+class Rule(NamedTuple):
+    """One row of a decision table: its name, the level it sets (None: the leak level of
+    the thresholds), which rows the fit used, and when it holds."""
+
+    name: str
+    level: Level | None
+    fitted_on: str
+    holds: Callable[[FitFigures], bool]
+
+
+FIT_RULES: tuple[Rule, ...] = (
+    Rule("no split", Level.NONE, "no split", lambda f: not f.split),
+    Rule("training rows only", Level.NONE, "training rows", lambda f: not f.all_exact),
+    Rule("both fits exact", Level.NONE, "cannot tell", lambda f: f.train_exact),
+    Rule("fits look alike here", Level.NONE, "cannot tell", lambda f: not f.distinguishable),
+    Rule("all rows only", None, "all rows", lambda f: True),
+)
 
 
 def fit_level(
@@ -16,16 +48,13 @@ def fit_level(
     th: FitscopeThresholds = THRESHOLDS,
 ) -> tuple[Level, str] | None:
     """The level of a fingerprint and which rows the fit used (``all rows``, ``training
-    rows``, ``cannot tell``, or ``no split``); None when neither fit is exact."""
+    rows``, ``cannot tell``, or ``no split``): the first rule of :data:`FIT_RULES` that
+    holds; None when neither fit is exact (no fingerprint at all)."""
     if not all_exact and not train_exact:
         return None
-    if not split:
-        return Level.NONE, "no split"
-    if train_exact and not all_exact:
-        return Level.NONE, "training rows"
-    if train_exact or not distinguishable:
-        return Level.NONE, "cannot tell"
-    return th.leak, "all rows"
+    f = FitFigures(all_exact, train_exact, distinguishable, split)
+    rule = next(r for r in FIT_RULES if r.holds(f))
+    return (th.leak if rule.level is None else rule.level), rule.fitted_on
 
 
 def evidence(

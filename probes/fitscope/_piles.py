@@ -55,7 +55,16 @@ def piles(
     k = th.neighbours
     out = []
     top_two = np.sort(counts)[-2:]
+    grid = _decimals(_spread_sample(uniq[counts < floor]))
+    coarse = grid is not None and grid <= th.pile_grid_decimals
     for i in candidates[: 10 * th.max_piles]:
+        if coarse and np.round(uniq[i], grid) != uniq[i]:
+            # off the grid every other value sits on: no natural tie holds it (a mean filled
+            # into whole numbers), so every row of it is a pile
+            out.append((float(uniq[i]), int(counts[i]), 1.0))
+            if len(out) == th.max_piles:
+                break
+            continue
         near = np.r_[counts[max(0, i - k) : i], counts[i + 1 : i + 1 + k]]
         p, expected = pile_excess_p(int(counts[i]), near)
         # ... and, where the column ties naturally, beyond its largest other tie: a mode
@@ -69,6 +78,11 @@ def piles(
         if len(out) == th.max_piles:
             break
     return out
+
+
+def _spread_sample(x: np.ndarray, size: int = 2000) -> np.ndarray:
+    """Up to ``size`` values spread over ``x`` (sorted distinct values: no row order)."""
+    return x[:: max(1, x.size // size)]
 
 
 def _tie_allowance(expected: float) -> int:

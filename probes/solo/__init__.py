@@ -41,6 +41,16 @@ seeded reference model (error = 1 − AUC, macro one-vs-rest for several classes
 same ratio per fold (``folds`` of them, the same folds in both fits), ``without`` the
 other suspects left out of both fits. Columns that were not examined carry ``None``.
 
+The level is read from a declared table of named rules (``_rules.RULES``: name, level,
+condition on the figures, the figure shown and the sentence), first match wins, then caps
+(a small sample, too few peers) lower it; ``detail["decided_by"]`` names the rule. Issue 24's
+classes are rules of their own: ``fellow_of_leak`` (two near-perfect leaks that explain each
+other: a strong column that a suspect found at high explains beyond the target more than
+its other peers do is that suspect's fellow, left out of its lift, and high itself with a
+large lift), ``share_untellable`` (a large lift beside peers that tell nothing of the target
+cannot tell cause from effect: medium), ``target_function_of_column`` (every value of a
+coded column belongs to one class and it is finer than the target: a lookup, medium).
+
 Identifiers and the row position are audited for ``row_order_tells_target``: they have no
 business predicting anything, so the level follows the effect size and a z-test against
 the Mann–Whitney null (z ≥ 4 for high; common practice for many parallel tests). An
@@ -48,7 +58,9 @@ identifier stays at high only when it adds to the features: at most medium when 
 follows a feature that predicts as well (ids numbered after a sort) or when the reference
 model gains nothing from it (unique lift under ``lift_nil``). The row position is no input
 of any model, so the order a file is stored in is at most medium, and low once a split is
-given (it can bias only splits or folds cut by position). On the clean-splits bench
+given (it can bias only splits or folds cut by position), unless the file is stored in the
+order of an identifier found at high: then the two findings agree (the order reaches a
+model through that column). On the clean-splits bench
 (``benchmarks/clean_splits.py``, 9 honest tables, 3 seeds) these caps took identifiers and
 row position at high from 7 and 13 of 22 runs to 0.
 """
@@ -68,17 +80,27 @@ from featureaudit.probes.solo._detail import common_detail
 from featureaudit.probes.solo._order import (
     followed_feature,
     order_values,
+    stored_in_order,
     within_partition_order,
 )
 from featureaudit.probes.solo._peers import (
     PeerInput,
     RefFit,
+    beyond_target,
     dependence_shares,
     normal_scores,
     reference_fit,
     unique_lift,
 )
-from featureaudit.registry import Probe, ProbeOutput, register
+from featureaudit.probes.solo._rules import Rule, decide, facts
+from featureaudit.probes.solo._thresholds import (
+    EDGE_ROWS,
+    THRESHOLDS,
+    ProxyFigures,
+    SoloThresholds,
+    measurable,
+)
+from featureaudit.registry import Capabilities, Probe, ProbeOutput, register
 from featureaudit.sample import content_keys, order_keys
 from featureaudit.settings import Settings
 from featureaudit.stats import Bins, bin_codes
@@ -86,258 +108,11 @@ from featureaudit.table import AuditTable
 from featureaudit.threads import column_map
 
 
-@dataclass(frozen=True)
-class SoloThresholds:
-    """The numbers the ``solo`` levels use, with their sources.
-
-    - ``share_floors`` / ``share_power``: target share beyond peers (above the table's typical
-      share) and power per level. Breast cancer: a 5 %-flipped copy of the target reaches
-      0.49, no honest column more than 0.05 (measured, ``tests/probes/test_solo.py``); the
-      floors sit between, checked on wine, diabetes and the demo scenario. On the detection
-      bench (3 seeds, 7 datasets) no clean column reached high (0 false positives).
-    - ``deterministic``: power alone that is critical; ``function_of_target``: (Theil's U,
-      power) per level; ``strong_alone``: power worth a ``low`` even when explained; common
-      practice, no source.
-    - ``match_margin`` / ``match_power``: alone within this of all other columns together,
-      with at least this power; common practice, no source.
-    - ``min_peers``: fewer other columns cannot tell a leak from a strong feature; common
-      practice, no source.
-    - ``beyond_max`` / ``peer_signal``: an effect of the outcome leaves the peers at most
-      ``beyond_max`` beyond the target, and the peers must then explain ``peer_signal`` of
-      the column; set on breast cancer and wine (measured), no other source.
-    - ``missing_as_encoding``: numeric columns missing this often enter the peer test encoded;
-      common practice, no source.
-    - ``max_reference`` / ``strong_reference_fits``: columns in the reference model of a wide
-      table, and how many strong columns get their own leave-one-out reference fit (cost).
-    - ``order_power`` / ``order_z``: identifiers and row position; z against the Mann–Whitney
-      null (z >= 4 for high is common practice for many parallel tests, no source).
-    - ``lift_columns`` / ``lift_power``: how many suspects or strong columns get a unique
-      lift (two reference fits each; cost), and the power a column needs to get one.
-    - ``lift_nil`` / ``lift_large``: a relative error reduction under 0.1 (pooled and in
-      every fold: one fold above leaves the lift unsettled, star98's count) is nil, from 0.3
-      (with every fold positive) large. On the bench's new cases planted leaks add 0.4–1.0
-      (measured, 3 seeds); the two cut-offs themselves are common practice, no source.
-    - ``lift_error_floor``: when the rest of the table already predicts the target with
-      1 − AUC (or 1 − R²) under 0.005 the lift cannot be measured (palmerpenguins: the
-      measurements tell the species at 1 − AUC ≈ 0.002, measured); determinism then needs
-      a share beyond the typical one to reach high. ``lift_error_rows``: the same when that
-      error amounts to less than one row of the smallest class wholly misranked (penguins'
-      0.011 is under one Chinstrap row, so its fold lifts swing from 0 to 1); common
-      practice, no source.
-    - ``share_z_high``: the share's robust z (median, 1.4826·MAD, scale at least
-      ``share_scale_floor``) among the table's other columns on the −log(1 − share) scale,
-      needed for high by a share: breast cancer's 5 %-flipped, jittered copy stands at
-      z ≈ 7 (share 0.6 against a typical 0.02); honest columns that stand out as far (z up
-      to 8 there) are explained by their peers beyond the target and stay below high;
-      digits' honest pixels stand at z ≈ 2 (measured, 3 was chosen between).
-    - ``share_z_function``: the z a near-function of the target needs when its lift cannot
-      be measured: wine's 5 %-flipped copy of the cultivar stands at z ≈ 2.6, palmerpenguins'
-      honest island at 0.2 (measured); 2 was chosen between and checked on the bench's
-      clean columns (see the figures below).
-    - ``table_beyond``: where the peers' linear fit explains too little of the target to
-      expect them to explain an outcome-caused column (``peer_signal``), the table itself can
-      still show the test's power: its other columns' median ``peers_beyond_target`` at 0.3
-      or more (statsmodels' modechoice: 0.68 for the honest columns, 0.006 for a jittered
-      near copy of the choice, whose peers reach AUC 0.98 only nonlinearly; measured). On
-      the bench no clean column is outcome-caused-looking without that power (0 of 2991
-      re-decided, 3 seeds), so the value is common practice (3x ``beyond_max``), no source.
-    - ``presence_power``: |TPR − FPR| of one bin's indicator; filled-only-when-positive
-      columns reach 0.9 or more, breast cancer's honest columns about 0.14 (measured).
-    False positives at high on the bench (3 seeds, 2026-12-03): 0 of 996 clean columns in
-    the new cases and 0 of 60 clean cases, 0 of 1710 clean columns in the original planted
-    cases, 0 of 21 clean controls; planted leaks at high: 63 of 63 new, 118 of 126 original.
-    """
-
-    share_floors: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.35),
-        (Level.HIGH, 0.20),
-        (Level.MEDIUM, 0.10),
-        (Level.LOW, 0.05),
-    )
-    share_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.5),
-        (Level.HIGH, 0.3),
-        (Level.MEDIUM, 0.2),
-        (Level.LOW, 0.1),
-    )
-    deterministic: float = 0.98
-    function_of_target: tuple[tuple[Level, float, float], ...] = (
-        (Level.CRITICAL, 0.7, 0.8),
-        (Level.HIGH, 0.5, 0.5),
-    )
-    strong_alone: float = 0.8
-    match_margin: float = 0.02
-    match_power: float = 0.6
-    min_peers: int = 3
-    beyond_max: float = 0.10
-    peer_signal: float = 0.08
-    missing_as_encoding: float = 0.01
-    max_reference: int = 200
-    strong_reference_fits: int = 2
-    lift_columns: int = 3
-    lift_power: float = 0.3
-    lift_nil: float = 0.1
-    lift_error_floor: float = 0.005
-    lift_error_rows: float = 1.0
-    lift_large: float = 0.3
-    share_z_high: float = 3.0
-    share_z_function: float = 2.0
-    table_beyond: float = 0.3
-    share_scale_floor: float = 0.01
-    presence_power: float = 0.8
-    order_power: tuple[tuple[Level, float], ...] = (
-        (Level.CRITICAL, 0.6),
-        (Level.HIGH, 0.2),
-        (Level.MEDIUM, 0.1),
-    )
-    order_z: tuple[tuple[Level, float], ...] = (
-        (Level.HIGH, 4.0),
-        (Level.MEDIUM, 3.0),
-        (Level.LOW, 2.0),
-    )
-
-    def share(self, level: Level) -> float:
-        return dict(self.share_floors)[level]
-
-    def share_min_power(self, level: Level) -> float:
-        return dict(self.share_power)[level]
-
-    def order(self, table: tuple[tuple[Level, float], ...], level: Level) -> float:
-        return dict(table)[level]
-
-
-THRESHOLDS = SoloThresholds()
-EDGE_ROWS = 50_000  # rows the quantile edges come from in larger tables (cost, no source)
-
-
-@dataclass(frozen=True)
-class ProxyFigures:
-    """What the level of a ``target_proxy`` follows from: the column's figures only."""
-
-    power: float
-    determinism: float
-    share: float | None = None
-    typical_share: float = 0.0
-    others_power: float | None = None
-    peers_beyond_target: float | None = None
-    expected_r2_if_effect: float = 0.0
-    n_peers: int = 0
-    small: bool = False
-    share_z: float | None = None
-    lift: float | None = None
-    lift_low: float = 0.0
-    lift_high: float | None = None
-    lift_error: float = 1.0
-    presence: float = 0.0
-    lift_error_rows: float | None = None
-    typical_beyond: float | None = None
-
-
-def _measurable(error: float, error_rows: float | None, th: SoloThresholds) -> bool:
-    """Whether the rest of the table leaves enough error for a column to reduce: 1 − AUC (or
-    1 − R²) of at least ``lift_error_floor`` and, for classes, at least ``lift_error_rows``
-    rows of the smallest class wholly misranked."""
-    return error >= th.lift_error_floor and (error_rows is None or error_rows >= th.lift_error_rows)
-
-
-def _lift_class(f: ProxyFigures, th: SoloThresholds) -> str:
-    """What the column adds to the rest of the table: ``unknown`` (not measured),
-    ``unmeasurable`` (the rest already predicts the target almost without error), ``nil``,
-    ``some`` or ``large``."""
-    if f.lift is None:
-        return "unknown"
-    if not _measurable(f.lift_error, f.lift_error_rows, th):
-        return "unmeasurable"
-    if f.lift < th.lift_nil and (f.lift_high is None or f.lift_high < th.lift_nil):
-        return "nil"  # every fold agrees: nothing added
-    return "large" if f.lift >= th.lift_large and f.lift_low > 0 else "some"
-
-
 def decide_proxy(f: ProxyFigures, th: SoloThresholds = THRESHOLDS) -> tuple[Level, str]:
-    """The level of a ``target_proxy`` and the rule that set it (a pure function)."""
-    power, share, typical = f.power, f.share, f.typical_share
-    enough_peers = f.n_peers >= th.min_peers and share is not None
-    effect_like = f.peers_beyond_target is not None and f.peers_beyond_target <= th.beyond_max
-    tellable = f.expected_r2_if_effect >= th.peer_signal
-    # the peers' linear fit may miss what they tell of the target (modechoice: an AUC of 0.98
-    # from a linear R² of 0.14), yet the table shows the test's power when its other columns
-    # are typically explained by their peers well beyond the target: one near 0 stands out
-    table_tells = f.typical_beyond is not None and f.typical_beyond >= th.table_beyond
-    level, why = Level.NONE, "explained"
-    for lv in (Level.LOW, Level.MEDIUM, Level.HIGH, Level.CRITICAL):
-        if (
-            enough_peers
-            and share is not None
-            and share >= typical + th.share(lv)
-            and power >= th.share_min_power(lv)
-        ):
-            level, why = lv, "share"
-    lift = _lift_class(f, th)
-    told = effect_like and (tellable or lift == "large" or (table_tells and lift != "nil"))
-    stands_out = f.share_z is None or f.share_z >= th.share_z_high
-    if why == "share" and level >= Level.HIGH and not stands_out:
-        level, why = Level.MEDIUM, "share_typical"
-    if why == "share" and level >= Level.HIGH and not told:
-        level, why = Level.MEDIUM, "share_untold"
-    if (
-        enough_peers
-        and share is not None
-        and f.share_z is not None
-        and f.share_z >= th.share_z_high
-        and share >= typical + th.share(Level.MEDIUM)
-        and power >= th.share_min_power(Level.HIGH)
-        and told
-        and level < Level.HIGH
-    ):
-        level, why = Level.HIGH, "share_calibrated"
-    if power >= th.strong_alone and level < Level.LOW:
-        level, why = Level.LOW, "strong"
-    if (
-        enough_peers
-        and f.others_power is not None
-        and power >= th.match_power
-        and power >= f.others_power - th.match_margin
-        and effect_like
-        and tellable
-        and level < Level.HIGH
-    ):
-        level, why = Level.HIGH, "match"
-    if f.presence >= th.presence_power and lift == "large" and level < Level.HIGH:
-        level, why = Level.HIGH, "presence"
-    for lv, u_min, p_min in sorted(th.function_of_target):
-        if f.determinism >= u_min and power >= p_min and level <= lv:
-            level, why = lv, "function"
-    beyond_typical = share is not None and share >= typical + th.share(Level.LOW)
-    if why == "function" and level >= Level.HIGH:
-        # a code the class nearly determines is a leak only through what it adds to the rest:
-        # a large lift, or a share beyond peers that stands out among the table's columns.
-        # Where nothing can be measured, near-identity with the target (the critical rule's
-        # figures) still holds at high; a looser tie does not (palmerpenguins' island: U 0.51,
-        # z 0.2-0.4, lifts from nil to 0.8 on an error of under one row, measured)
-        stands_apart = f.share_z is None or f.share_z >= th.share_z_function
-        if lift == "nil":
-            level, why = Level.LOW, "no_lift"
-        elif lift in ("large", "unknown") or (beyond_typical and stands_apart):
-            pass
-        elif lift == "unmeasurable" and level >= Level.CRITICAL:
-            level = Level.HIGH
-        else:  # an unmeasurable lift is no evidence: low; some lift: medium
-            level, why = (Level.LOW if lift == "unmeasurable" else Level.MEDIUM), "no_lift"
-    elif lift == "nil" and level >= Level.HIGH:
-        level, why = Level.MEDIUM, "no_lift"
-    if power >= th.deterministic:
-        explained = (
-            enough_peers
-            and share is not None
-            and not effect_like
-            and share < typical + th.share(Level.LOW)
-        )
-        level, why = (Level.HIGH if explained else Level.CRITICAL), "deterministic"
-    if f.small and level >= Level.HIGH:
-        level = Level.MEDIUM
-    if not enough_peers and level >= Level.HIGH and why not in ("deterministic", "function"):
-        level = Level.MEDIUM
-    return level, why
+    """The level of a ``target_proxy`` and the name of the rule that set it (a pure function:
+    the first rule of ``RULES`` whose condition holds, lowered by ``CAPS``)."""
+    level, rule = decide(facts(f, th))
+    return level, rule.name
 
 
 def decide_order(z: float, power: float, small: bool, th: SoloThresholds = THRESHOLDS) -> Level:
@@ -364,6 +139,7 @@ class Solo(Probe):
     scope = "column"
     kinds = ("target_proxy", "row_order_tells_target")
     thresholds = THRESHOLDS
+    capabilities = Capabilities(needs_target=True)
 
     @classmethod
     def describe(cls, settings: Settings) -> str:
@@ -405,22 +181,26 @@ class Solo(Probe):
             f"smallest class wholly misranked) it cannot be measured. One bin alone (missing "
             f"values or one pile) separating the classes by {th.presence_power:g} with a lift "
             f"of {th.lift_large:g} or more is high. "
+            f"A large lift, or a table whose peers are explained beyond the target, tells an "
+            f"effect of the outcome from a cause only where the other columns tell the "
+            f"target (the column's R² on the target times their power at least "
+            f"{th.peer_signal:g}); otherwise a strong share is medium. A column of power "
+            f"{th.strong_alone:g} that alone matches the rest (within {th.match_margin:g}) "
+            f"and explains a suspect found at high beyond the target more than its other "
+            f"peers do is that suspect's fellow, left out of its lift, and high with a lift "
+            f"of {th.lift_large:g}. A column whose every value belongs to one class and that "
+            f"has more values than the target has classes is medium: the target is a "
+            f"function of it. "
             f"Identifiers and the row position tell the target when the Mann–Whitney z "
-            f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high). "
+            f"reaches {order} (power {th.order(th.order_power, Level.HIGH):g} for high); the "
+            f"row position takes the level of an identifier found at high when the file is "
+            f"stored in its order. "
             f"Under {settings.min_rows} labelled rows levels stop at medium."
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
-        if table.target is None or table.y is None:
-            return [], [
-                Skip(
-                    self.name,
-                    "no target given: pass --target or give a column the "
-                    "role target in the dictionary",
-                )
-            ]
-        if table.target_problem:
-            return [], [Skip(self.name, table.target_problem)]
+        if table.target is None or table.y is None or table.target_problem:
+            return [], [Skip(self.name, table.target_problem or "no target values")]
         row_keys = order_keys(table.frame, [table.target, *table.features], settings.seed + 104729)
         t = make_target(
             table.y,
@@ -431,12 +211,6 @@ class Solo(Probe):
             settings.seed,
             row_keys,
         )
-        # quantile edges from the rows of smallest key: the same rows in any file order
-        edge_rows = (
-            np.sort(np.argpartition(row_keys, EDGE_ROWS - 1)[:EDGE_ROWS])
-            if table.n_rows > EDGE_ROWS
-            else None
-        )
         if len(t.rows) < 4 * settings.folds:
             return [], [
                 Skip(
@@ -445,46 +219,9 @@ class Solo(Probe):
                 )
             ]
         small = len(t.rows) < settings.min_rows
-        skipped: list[Skip] = []
-        scores: dict[str, CellScore] = {}
-        bins: dict[str, Bins] = {}
-
-        def one(name: str) -> tuple[str, Bins, CellScore | None]:
-            b = bin_codes(
-                table.frame[name],
-                settings.bins,
-                order=name in table.id_columns,
-                seed=settings.seed,
-                sample=EDGE_ROWS,
-                pool=edge_rows,
-            )
-            if not (b.codes[t.rows] > 0).any():
-                return name, b, None
-            score = score_bins(b.codes, b.n_bins, t)
-            if not _encoded_in_peer_test(table.frame[name], t):
-                b.codes = None  # type: ignore[assignment]  # only encoded columns keep codes
-            return name, b, score
-
-        # numpy releases the GIL in its sorting and searching loops: one thread per CPU
-        for name, b, score in column_map(one, table.id_columns + table.features, settings.n_jobs):
-            if score is None:
-                skipped.append(Skip(self.name, "no values in the labelled rows", name))
-            else:
-                bins[name], scores[name] = b, score
+        scores, bins, skipped = _score_columns(table, t, settings, row_keys, self.name)
         features = [c for c in table.features if c in scores]
-        ids = {
-            name: _order_evidence(name, scores[name], bins[name], t, small, "identifier")
-            for name in table.id_columns
-            if name in scores
-        }
-        for name, ev in list(ids.items()):
-            if Level.parse(ev.level) >= Level.HIGH:
-                ids[name] = _within_partitions(ev, table, name, t, small, settings)
-        strong_ids = {name: ev for name, ev in ids.items() if Level.parse(ev.level) >= Level.HIGH}
-        follows = {
-            name: followed_feature(table, t, name, scores, features, settings.seed)
-            for name in strong_ids
-        }
+        ids, follows = _identifiers(table, t, scores, bins, features, settings, small)
         lifted = [n for n, f in follows.items() if f is None]
         peers, ref = _peer_figures(table, t, features, scores, bins, settings, small, lifted)
         evidence = [
@@ -504,23 +241,90 @@ class Solo(Probe):
             )
             for name in features
         ]
-        position = (
-            np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows, settings.bins - 1)
-            + 1
-        )
-        pos_score = score_bins(position, settings.bins + 1, t)
-        pos_bins = Bins(
-            position,
-            ["(none)"]
-            + [
-                f"rows {i * 100 // settings.bins}–{(i + 1) * 100 // settings.bins}%"
-                for i in range(settings.bins)
-            ],
-            "order",
-        )
-        row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
-        evidence.append(_position_capped(row, split_given=table.heldout is not None))
+        row = _position_evidence(table, t, settings, small)
+        evidence.append(_position_carried(row, table, evidence))
         return evidence, skipped
+
+
+def _score_columns(
+    table: AuditTable, t: Target, settings: Settings, row_keys: np.ndarray, probe: str
+) -> tuple[dict[str, CellScore], dict[str, Bins], list[Skip]]:
+    """Every identifier and feature binned and scored out of fold; quantile edges from the
+    rows of smallest key (the same rows in any file order)."""
+    edge_rows = (
+        np.sort(np.argpartition(row_keys, EDGE_ROWS - 1)[:EDGE_ROWS])
+        if table.n_rows > EDGE_ROWS
+        else None
+    )
+    skipped: list[Skip] = []
+    scores: dict[str, CellScore] = {}
+    bins: dict[str, Bins] = {}
+
+    def one(name: str) -> tuple[str, Bins, CellScore | None]:
+        b = bin_codes(
+            table.frame[name],
+            settings.bins,
+            order=name in table.id_columns,
+            seed=settings.seed,
+            sample=EDGE_ROWS,
+            pool=edge_rows,
+        )
+        if not (b.codes[t.rows] > 0).any():
+            return name, b, None
+        score = score_bins(b.codes, b.n_bins, t)
+        if not _encoded_in_peer_test(table.frame[name], t):
+            b.codes = None  # type: ignore[assignment]  # only encoded columns keep codes
+        return name, b, score
+
+    # numpy releases the GIL in its sorting and searching loops: one thread per CPU
+    for name, b, score in column_map(one, table.id_columns + table.features, settings.n_jobs):
+        if score is None:
+            skipped.append(Skip(probe, "no values in the labelled rows", name))
+        else:
+            bins[name], scores[name] = b, score
+    return scores, bins, skipped
+
+
+def _identifiers(
+    table: AuditTable,
+    t: Target,
+    scores: dict[str, CellScore],
+    bins: dict[str, Bins],
+    features: list[str],
+    settings: Settings,
+    small: bool,
+) -> tuple[dict[str, Evidence], dict[str, dict | None]]:
+    """The identifiers' order evidence (judged within partitions when high), and for those
+    still at high the feature whose order each follows (None: none)."""
+    ids = {
+        name: _order_evidence(name, scores[name], bins[name], t, small, "identifier")
+        for name in table.id_columns
+        if name in scores
+    }
+    for name, ev in list(ids.items()):
+        if Level.parse(ev.level) >= Level.HIGH:
+            ids[name] = _within_partitions(ev, table, name, t, small, settings)
+    follows = {
+        name: followed_feature(table, t, name, scores, features, settings.seed)
+        for name, ev in ids.items()
+        if Level.parse(ev.level) >= Level.HIGH
+    }
+    return ids, follows
+
+
+def _position_evidence(table: AuditTable, t: Target, settings: Settings, small: bool) -> Evidence:
+    """The row position in ``bins`` equal slices, audited as an identifier and capped."""
+    position = (
+        np.minimum(np.arange(table.n_rows) * settings.bins // table.n_rows, settings.bins - 1) + 1
+    )
+    pos_score = score_bins(position, settings.bins + 1, t)
+    labels = [
+        f"rows {i * 100 // settings.bins}–{(i + 1) * 100 // settings.bins}%"
+        for i in range(settings.bins)
+    ]
+    pos_bins = Bins(position, ["(none)", *labels], "order")
+    row = _order_evidence(None, pos_score, pos_bins, t, small, "row position")
+    return _position_capped(row, split_given=table.heldout is not None)
 
 
 def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidence:
@@ -539,7 +343,7 @@ def _id_capped(ev: Evidence, follows: dict | None, lift: dict | None) -> Evidenc
         )
     elif (
         lift is not None
-        and _measurable(lift["error_without"], lift.get("error_rows"), th)
+        and measurable(lift["error_without"], lift.get("error_rows"), th)
         and lift["value"] < th.lift_nil
     ):
         why = (
@@ -607,6 +411,31 @@ def _position_capped(ev: Evidence, split_given: bool) -> Evidence:
     )
 
 
+def _position_carried(ev: Evidence, table: AuditTable, found: list[Evidence]) -> Evidence:
+    """The row position takes the level of an identifier found at high or above when the file
+    is stored in that identifier's order: the order then reaches a model through a column it
+    reads, and the two findings say the same thing (issue 24, class 8)."""
+    carriers = [
+        e
+        for e in found
+        if e.kind == "row_order_tells_target"
+        and e.column is not None
+        and Level.parse(e.level) >= Level.HIGH
+        and Level.parse(e.level) > Level.parse(ev.level)
+        and stored_in_order(table.frame[e.column])
+    ]
+    if not carriers:
+        return ev
+    top = max(carriers, key=lambda e: Level.parse(e.level))
+    return replace(
+        ev,
+        level=top.level,
+        detail={**ev.detail, "carried_by": top.column, "level_before_carried": ev.level},
+        summary=f"{ev.summary}; the file is stored in the order of {top.column}, a column found "
+        f"at {top.level}: the order reaches a model through it",
+    )
+
+
 def _encoded_in_peer_test(s, t: Target) -> bool:  # noqa: ANN001
     """Whether the peer test represents this column by its out-of-fold encoding."""
     values = numeric_view(s)
@@ -664,9 +493,14 @@ def _proxy_figures(
     small: bool,
     n_peers: int,
     lift: dict | None = None,
+    kind: str = "",
 ) -> ProxyFigures:
     """The figures ``decide_proxy`` reads, from the column's score and its peer test."""
     lift = lift if lift is not None else peer.get("unique_lift")
+    rest = None
+    if lift is not None:  # what the other columns reach without it, as a power
+        e = float(lift["error_without"])
+        rest = max(0.0, 1.0 - e if t.task == "numeric" else 1.0 - 2.0 * e)
     return ProxyFigures(
         score.power,
         score.determinism,
@@ -685,7 +519,25 @@ def _proxy_figures(
         lift_error_rows=None if lift is None else lift.get("error_rows"),
         presence=_presence_power(score, t),
         typical_beyond=peer.get("typical_beyond"),
+        r2_target=peer.get("r2_target") or 0.0,
+        rest_power=rest,
+        fellow=bool(peer.get("fellow_of")),
+        lookup=_lookup(score, kind, t),
     )
+
+
+def _lookup(score: CellScore, kind: str, t: Target) -> bool:
+    """Whether every value of a coded column belongs to one class and the column is finer
+    than the target (more values than classes): the target is then a function of it, as a
+    vehicle class is of a model name. Read on the labelled rows' bins, missing values a bin."""
+    if t.task == "numeric" or kind not in ("categories", "values"):
+        return False
+    rows = score.bin_rows > 0
+    if int(rows.sum()) <= t.n_classes:
+        return False
+    stat = np.nan_to_num(score.bin_stat[rows])
+    pure = (stat <= 0.0) | (stat >= 1.0) if t.n_classes == 2 else stat >= 1.0
+    return bool(pure.all())
 
 
 def _presence_power(score: CellScore, t: Target) -> float:
@@ -702,6 +554,45 @@ def _presence_power(score: CellScore, t: Target) -> float:
     return float(np.max(np.abs(pos / n_pos - neg / n_neg)))
 
 
+def _shown(rule: Rule, rank: Level, f: ProxyFigures, score: CellScore, t: Target):  # noqa: ANN202
+    """The statistic, value and threshold a rule shows on the evidence."""
+    th = THRESHOLDS
+    if rule.shows == "share" and f.share is not None:
+        # the rules that hold a share at its level show that level's floor; the ones that
+        # lower a share from high show the high floor it reached
+        held = rule.name in ("share_critical", "share_high", "share_medium", "share_low")
+        floor = th.share(rank if held else Level.HIGH)
+        return "target_share_beyond_peers", f.share, f.typical_share + floor
+    if rule.shows == "determinism":
+        return (
+            "determinism_given_target",
+            f.determinism,
+            dict((lv, u) for lv, u, _ in th.function_of_target)[rule.level],
+        )
+    if rule.shows == "match" and f.others_power is not None:
+        return score.statistic, score.value, _threshold(t, f.others_power - th.match_margin)
+    if rule.name.startswith("deterministic"):
+        return score.statistic, score.value, _threshold(t, th.deterministic)
+    return score.statistic, score.value, _threshold(t, th.share_min_power(Level.HIGH))
+
+
+def _says(rule: Rule, f: ProxyFigures, score: CellScore) -> str:
+    """The rule's sentence filled with the column's figures."""
+    lift = (
+        "not measured"
+        if f.lift is None
+        else f"{f.lift:.2f}, {f.lift_low:.2f} to "
+        + (f"{f.lift_high:.2f} over folds" if f.lift_high is not None else "?")
+    )
+    return rule.says.format(
+        txt=_power_text(score),
+        share=f.share or 0.0,
+        determinism=score.determinism,
+        others=(1 + (f.others_power or 0.0)) / 2 if score.statistic != "oof_r2" else f.others_power,
+        lift=lift,
+    )
+
+
 def _proxy_evidence(
     name: str,
     score: CellScore,
@@ -712,97 +603,172 @@ def _proxy_evidence(
     small: bool,
     n_peers: int,
 ) -> Evidence:
-    th = THRESHOLDS
-    figures = _proxy_figures(score, t, peer, ref, small, n_peers)
-    power, share, typical = figures.power, figures.share, figures.typical_share
-    others, beyond = figures.others_power, figures.peers_beyond_target
-    effect_like = beyond is not None and beyond <= th.beyond_max
-    expected = figures.expected_r2_if_effect
-    rank, why = decide_proxy(figures, th)
-    level = rank.label
-    enough_peers = n_peers >= th.min_peers and share is not None
-    statistic, value = score.statistic, score.value
-    threshold = _threshold(t, th.share_min_power(Level.HIGH))
-    txt = _power_text(score)
-    if why == "share":
-        assert share is not None  # decide_proxy reads the share only when it was measured
-        statistic, value, threshold = "target_share_beyond_peers", share, typical + th.share(rank)
-        summary = (
-            f"the target explains {share:.0%} of what the other columns leave "
-            f"unexplained in it ({txt}): it looks caused by the outcome"
-        )
-    elif why == "share_untold":
-        assert share is not None
-        statistic, value = "target_share_beyond_peers", share
-        threshold = typical + th.share(Level.HIGH)
-        reason = (
-            "the other columns explain it beyond the target, as they would an honest feature"
-            if not effect_like
-            else "the other columns say too little about "
-            "the target to tell an effect of the outcome from a strong cause"
-        )
-        summary = (
-            f"the target explains {share:.0%} of what the other columns leave "
-            f"unexplained in it ({txt}), but {reason}"
-        )
-    elif why == "deterministic":
-        threshold = _threshold(t, th.deterministic)
-        summary = f"alone predicts the target almost exactly ({txt})"
-    elif why == "function":
-        statistic, value = "determinism_given_target", score.determinism
-        threshold = {lv: u for lv, u, _ in th.function_of_target}[rank]
-        summary = (
-            f"is almost a function of the target: the target accounts for "
-            f"{score.determinism:.0%} of its entropy ({txt})"
-        )
-    elif why == "match":
-        assert others is not None  # decide_proxy matches only against a measured power
-        threshold = _threshold(t, others - th.match_margin)
-        summary = (
-            f"alone ({txt}) matches all the other columns together ({_threshold(t, others):.3f})"
-        )
-    else:
-        share_txt = f"; the target adds {share:.0%} beyond its peers" if share is not None else ""
-        summary = f"{txt}{share_txt}" + (
-            ", so it is explained by other columns" if why == "strong" else ""
-        )
-    if small and level != "none":
+    figures = _proxy_figures(score, t, peer, ref, small, n_peers, kind=b.kind)
+    x = facts(figures)
+    rank, rule = decide(x)
+    statistic, value, threshold = _shown(rule, rule.level, figures, score, t)
+    summary = _says(rule, figures, score)
+    if small and rank != Level.NONE:
         summary += f" (small sample: {len(t.rows)} labelled rows)"
-    if not enough_peers and level != "none" and why not in ("deterministic", "function"):
+    if not x.enough_peers and rank != Level.NONE and rule.needs_peers:
         summary += " (too few other columns to compare with)"
+    share = figures.share
     detail = {
         **common_detail(score, b, t),
         "share_beyond_peers": share,
-        "typical_share": typical,
+        "typical_share": figures.typical_share,
         "r2_on_peers": peer.get("r2_peers"),
         "r2_on_peers_and_target": peer.get("r2_peers_target"),
         "r2_on_target": peer.get("r2_target"),
-        "peers_beyond_target": beyond,
+        "peers_beyond_target": figures.peers_beyond_target,
         "target_r2_on_peers": peer.get("target_r2_on_peers"),
-        "expected_r2_on_peers_if_effect": expected,
+        "expected_r2_on_peers_if_effect": figures.expected_r2_if_effect,
         "peers": peer.get("peers"),
-        "reference_power": others,
+        "reference_power": figures.others_power,
         "reference_rows": ref.get("rows"),
         "reference_columns": ref.get("columns"),
-        "decided_by": why,
+        "decided_by": rule.name,
         "share_z": peer.get("share_z"),
         "typical_peers_beyond_target": figures.typical_beyond,
         "presence_power": figures.presence,
         "unique_lift": peer.get("unique_lift"),
     }
-    severity = 0.5 * power + 0.5 * min(1.0, (share or 0.0) / 0.5)
+    severity = 0.5 * score.power + 0.5 * min(1.0, (share or 0.0) / 0.5)
     return Evidence(
         "solo",
         "target_proxy",
         statistic,
         value,
         threshold,
-        level,
+        rank.label,
         column=name,
         summary=summary,
         severity=severity,
         detail=detail,
     )
+
+
+def _sample_rows(
+    table: AuditTable, t: Target, features: list[str], settings: Settings
+) -> np.ndarray:
+    """The reference sample: at most ``reference_rows`` labelled rows of smallest content key
+    (per class), in content order (then target: rows tied on the key share their features),
+    so the reference's folds and its trees' sums see the same rows in the same order
+    whatever the file's order (wine, shuffled: 0.9985 vs 0.9970 reference power flipped a
+    noisy copy of the target between medium and high)."""
+    n = len(t.rows)
+    take = min(n, settings.reference_rows)
+    keys = content_keys(table.frame.iloc[t.rows], features, settings.seed + 1)
+    pick = np.arange(n)
+    if take < n:  # the rows of smallest content key (per class): the file's order plays no part
+        groups = (
+            [np.arange(n)]
+            if t.task == "numeric"
+            else [np.flatnonzero(t.y == k) for k in range(t.n_classes)]
+        )
+        pick = np.sort(
+            np.concatenate(
+                [
+                    g[np.argsort(keys[g], kind="stable")[: max(1, round(take * g.size / n))]]
+                    for g in groups
+                    if g.size
+                ]
+            )
+        )
+    return pick[np.lexsort((t.y[pick], keys[pick]))]
+
+
+def _sample_column(
+    table: AuditTable, t: Target, name: str, score: CellScore, b: Bins, pick: np.ndarray
+) -> np.ndarray:
+    """One column on the sample, standardised, NaN where missing: its normal scores, or its
+    out-of-fold encoding (the most varied class's score for several classes)."""
+    if b.codes is None:  # run() kept codes only for encoded columns
+        values = numeric_view(table.frame[name])
+        assert values is not None  # a column without codes is numeric
+        raw = normal_scores(values[t.rows][pick])
+    else:
+        pred = score.row_scores(t, b.codes)[pick]
+        if pred.ndim == 2:
+            pred = pred[:, int(np.argmax(pred.var(axis=0)))] if t.n_classes > 2 else pred[:, 1]
+        raw = pred.astype(np.float64)
+    mu, sd = np.nanmean(raw) if np.isfinite(raw).any() else 0.0, np.nanstd(raw)
+    return (raw - mu) / sd if sd > 0 else np.zeros_like(raw)
+
+
+def _peer_input(
+    table: AuditTable,
+    t: Target,
+    features: list[str],
+    scores: dict[str, CellScore],
+    bins: dict[str, Bins],
+    pick: np.ndarray,
+    ids: list[str],
+) -> tuple[PeerInput, PeerInput]:
+    """The sample's columns and target for the peer test, and the same with the identifiers
+    ``ids`` after the features (for the fits only)."""
+    trees = [_sample_column(table, t, c, scores[c], bins[c], pick) for c in features]
+    cols = [np.nan_to_num(z, nan=0.0) for z in trees]
+    y = t.y[pick]
+    y_main = 0
+    if t.task == "numeric":
+        y_block, y_main = _target_basis(normal_scores(y)), 1
+    else:
+        y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
+    power = np.array([scores[c].power for c in features])
+    inp = PeerInput(
+        features, np.column_stack(cols), np.column_stack(trees), y_block, y, power, y_main
+    )
+    if not ids:
+        return inp, inp
+    extra = [normal_scores(order_values(table.frame[c])[t.rows][pick]) for c in ids]
+    extra = [np.nan_to_num((e - np.nanmean(e)) / (np.nanstd(e) or 1.0)) for e in extra]
+    with_ids = PeerInput(
+        features + ids,
+        np.column_stack(cols + extra),
+        np.column_stack(trees + extra),
+        y_block,
+        y,
+        np.r_[power, [scores[c].power for c in ids]],
+        y_main,
+    )
+    return inp, with_ids
+
+
+# the lift that would raise a column most: large, with a rest that tells the target well
+_BIG_LIFT = {
+    "value": 1.0,
+    "low": 1.0,
+    "high": 1.0,
+    "folds": 0,
+    "error_without": THRESHOLDS.lift_error_floor,
+}
+
+
+@dataclass
+class _Peers:
+    """What the lifts of one audit share: the sample's fits, figures and columns."""
+
+    t: Target
+    features: list[str]
+    scores: dict[str, CellScore]
+    bins: dict[str, Bins]
+    shares: dict[str, dict]
+    ref: dict
+    small: bool
+    fits: _Fits
+    keep: np.ndarray  # the reference columns, strongest first
+    power: np.ndarray
+    smallest: int | None
+
+    def figures(self, i: int, lift: dict | None = None) -> ProxyFigures:
+        name = self.features[i]
+        n_peers = len(self.features) - 1
+        score, peer, kind = self.scores[name], self.shares[name], self.bins[name].kind
+        return _proxy_figures(score, self.t, peer, self.ref, self.small, n_peers, lift, kind)
+
+    def lift(self, base: np.ndarray, i: int) -> dict:
+        return unique_lift(self.fits(base), self.fits(np.r_[base, i]), self.smallest)
 
 
 def _peer_figures(
@@ -820,53 +786,40 @@ def _peer_figures(
     sample."""
     if len(features) < 2:
         return {}, {}
-    n = len(t.rows)
-    take = min(n, settings.reference_rows)
-    keys = content_keys(table.frame.iloc[t.rows], features, settings.seed + 1)
-    pick = np.arange(n)
-    if take < n:  # the rows of smallest content key (per class): the file's order plays no part
-        groups = [np.flatnonzero(t.y == k) for k in range(t.n_classes)]
-        if t.task == "numeric":
-            groups = [np.arange(n)]
-        pick = np.sort(
-            np.concatenate(
-                [
-                    g[np.argsort(keys[g], kind="stable")[: max(1, round(take * g.size / n))]]
-                    for g in groups
-                    if g.size
-                ]
-            )
-        )
-    # the sample in content order (then target: rows tied on the key share their features),
-    # so the reference's folds and its trees' sums see the same rows in the same order
-    # whatever the file's order (wine, shuffled: 0.9985 vs 0.9970 reference power flipped a
-    # noisy copy of the target between medium and high)
-    pick = pick[np.lexsort((t.y[pick], keys[pick]))]
-    cols, trees = [], []
-    for name in features:
-        if bins[name].codes is None:  # run() kept codes only for encoded columns
-            values = numeric_view(table.frame[name])
-            assert values is not None  # a column without codes is numeric
-            raw = normal_scores(values[t.rows][pick])
-        else:
-            pred = scores[name].row_scores(t, bins[name].codes)[pick]
-            if pred.ndim == 2:
-                pred = pred[:, int(np.argmax(pred.var(axis=0)))] if t.n_classes > 2 else pred[:, 1]
-            raw = pred.astype(np.float64)
-        mu, sd = np.nanmean(raw) if np.isfinite(raw).any() else 0.0, np.nanstd(raw)
-        z = (raw - mu) / sd if sd > 0 else np.zeros_like(raw)
-        trees.append(z)
-        cols.append(np.nan_to_num(z, nan=0.0))
-    y = t.y[pick]
-    y_main = 0
-    if t.task == "numeric":
-        y_block, y_main = _target_basis(normal_scores(y)), 1
-    else:
-        y_block = np.stack([(y == k).astype(float) for k in range(max(1, t.n_classes - 1))], 1)
-    power = np.array([scores[c].power for c in features])
-    inp = PeerInput(
-        features, np.column_stack(cols), np.column_stack(trees), y_block, y, power, y_main
-    )
+    pick = _sample_rows(table, t, features, settings)
+    ids = list(ids or ())
+    inp, fit_inp = _peer_input(table, t, features, scores, bins, pick, ids)
+    shares, flagged = _shares(inp)
+    power = inp.power
+    keep = np.array(
+        [i for i in np.argsort(-power) if features[i] not in flagged][: THRESHOLDS.max_reference],
+        dtype=np.int64,
+    )  # the reference
+    fits = _Fits(fit_inp, t, settings)
+    rows = min(len(t.rows), settings.reference_rows)
+    ref = {"power": fits(keep).power, "rows": int(rows), "columns": int(keep.size)}
+    counts = np.bincount(inp.y_codes.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
+    smallest = int(counts[counts > 0].min()) if counts.size else None
+    p = _Peers(t, features, scores, bins, shares, ref, small, fits, keep, power, smallest)
+    suspects, strong, chosen = _examined(p, flagged)
+    left_out = {features[k] for k in suspects} | flagged
+    for i in chosen:
+        _column_lift(p, i, suspects, strong, left_out)
+    if ids:  # identifiers sit after the features in the fits' input
+        base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
+        lifts = [p.lift(base, len(features) + j) for j in range(len(ids))]
+        ref["identifier_lift"] = {
+            c: {**lift, **_lift_label(t, left_out)} for c, lift in zip(ids, lifts, strict=True)
+        }
+    for i in strong:  # what all the other columns reach together, for the match rule
+        shares[features[i]]["others_power"] = fits(keep[keep != i]).power
+    return shares, ref
+
+
+def _shares(inp: PeerInput) -> tuple[dict[str, dict], set[str]]:
+    """Each column's dependence share, its z among the table's and the table's typical
+    ``peers_beyond_target``; and the columns flagged as outcome-caused (left out of the
+    reference)."""
     shares = dependence_shares(
         inp,
         flag_share=THRESHOLDS.share(Level.HIGH),
@@ -874,91 +827,106 @@ def _peer_figures(
         min_power=0.0,
         flag_beyond=THRESHOLDS.beyond_max,
     )
-    flagged = {c for c, v in shares.items() if v["flag_round"] is not None}
     _share_z(shares)
     _typical_beyond(shares)
-    keep = np.array(
-        [i for i in np.argsort(-power) if features[i] not in flagged][: THRESHOLDS.max_reference],
-        dtype=np.int64,
-    )  # the reference
-    ids = ids or []
-    if ids:  # identifiers join the sample's columns for the fits only, after the features
-        extra = [normal_scores(order_values(table.frame[c])[t.rows][pick]) for c in ids]
-        extra = [np.nan_to_num((e - np.nanmean(e)) / (np.nanstd(e) or 1.0)) for e in extra]
-        inp = PeerInput(
-            features + ids,
-            np.column_stack(cols + extra),
-            np.column_stack(trees + extra),
-            y_block,
-            y,
-            np.r_[power, [scores[c].power for c in ids]],
-            y_main,
-        )
-    fits: dict[tuple[int, ...], RefFit] = {}
+    return shares, {c for c, v in shares.items() if v["flag_round"] is not None}
 
-    def fit(columns: np.ndarray) -> RefFit:
-        key = tuple(sorted(int(c) for c in columns))
-        if key not in fits:
-            fits[key] = reference_fit(
-                inp,
-                np.array(key, dtype=np.int64),
-                t.task,
-                t.n_classes,
-                settings.seed,
-                n_jobs=settings.n_jobs,
-            )
-        return fits[key]
 
-    ref = {"power": fit(keep).power, "rows": int(take), "columns": int(keep.size)}
-    counts = np.bincount(y.astype(np.int64)) if t.task != "numeric" else np.zeros(0)
-    smallest = int(counts[counts > 0].min()) if counts.size else None
-    n_peers = len(features) - 1
-    # suspects: the columns a large unique lift would raise to high, strongest first
-    big = {
-        "value": 1.0,
-        "low": 1.0,
-        "high": 1.0,
-        "folds": 0,
-        "error_without": 1.0,
-        "error_with": 0.0,
-    }
-    suspects = [
-        i
-        for i in np.argsort(-power, kind="stable")
-        if decide_proxy(
-            _proxy_figures(scores[features[i]], t, shares[features[i]], ref, small, n_peers, big)
-        )[0]
-        >= Level.HIGH
+def _examined(p: _Peers, flagged: set[str]) -> tuple[list[int], list[int], list[int]]:
+    """The suspects (the columns a large unique lift would raise to high), the strongest
+    unflagged columns (for the match rule), and the ones of either that get a lift, at most
+    ``lift_columns``, strongest first."""
+    th, power = THRESHOLDS, p.power
+    by_power = np.argsort(-power, kind="stable")
+    big = [decide_proxy(replace(p.figures(i, _BIG_LIFT), rest_power=None))[0] for i in by_power]
+    suspects = [i for i, lv in zip(by_power, big, strict=True) if lv >= Level.HIGH]
+    unflagged = [i for i in by_power if p.features[i] not in flagged]
+    strong = [i for i in unflagged if power[i] >= th.match_power][: th.strong_reference_fits]
+    chosen = [i for i in dict.fromkeys(suspects + strong) if power[i] >= th.lift_power]
+    return suspects, strong, chosen[: th.lift_columns]
+
+
+def _lift_label(t: Target, without: set[str]) -> dict:
+    return {"statistic": "1 - R2" if t.task == "numeric" else "1 - AUC", "without": sorted(without)}
+
+
+def _column_lift(
+    p: _Peers, i: int, suspects: list[int], strong: list[int], left_out: set[str]
+) -> None:
+    """The unique lift of column ``i``: no other suspect, nor a near-perfect fellow of a
+    suspect, serves as the peer that explains it away; its fellows are marked when it is
+    found at high."""
+    base = np.array([k for k in p.keep if k != i and k not in suspects], dtype=np.int64)
+    lift = p.lift(base, i)
+    fellows: list[int] = []
+    if i in suspects and not (lift["value"] >= THRESHOLDS.lift_large and lift["low"] > 0):
+        # a suspect a strong column explains away: is that column a near-perfect fellow?
+        fellows = _fellows(i, base, strong, suspects, p.power, p.fits)
+        base = np.array([k for k in base if k not in fellows], dtype=np.int64)
+        lift = p.lift(base, i)
+    name = p.features[i]
+    without = left_out - {name} | {p.features[k] for k in fellows}
+    p.shares[name]["unique_lift"] = {**lift, **_lift_label(p.t, without)}
+    if fellows and decide_proxy(p.figures(i))[0] >= Level.HIGH:
+        for k in fellows:
+            p.shares[p.features[k]]["fellow_of"] = name
+
+
+def _fellows(
+    i: int,
+    base: np.ndarray,
+    strong: list[int],
+    suspects: list[int],
+    power: np.ndarray,
+    fits: _Fits,
+) -> list[int]:
+    """The strong columns that alone predict the target as well as the rest of the table
+    without them and without the suspect ``i``: near-perfect partners (an amount and its
+    share of income), which must not serve as the honest explanation of each other."""
+    th = THRESHOLDS
+    return [
+        k
+        for k in strong
+        if k != i
+        and k not in suspects
+        and k in base
+        and power[k] >= th.strong_alone
+        and power[k] >= fits(base[base != k]).power - th.match_margin
+        and _partners(fits.inp, k, i, base)
     ]
-    strong = [
-        i
-        for i in np.argsort(-power, kind="stable")
-        if features[i] not in flagged and power[i] >= THRESHOLDS.match_power
-    ][: THRESHOLDS.strong_reference_fits]
-    chosen = list(dict.fromkeys(suspects + strong))
-    chosen = [i for i in chosen if power[i] >= THRESHOLDS.lift_power][: THRESHOLDS.lift_columns]
-    for i in chosen:
-        # no other suspect serves as the peer that explains this one away
-        base = np.array([k for k in keep if k != i and k not in suspects], dtype=np.int64)
-        without, with_ = fit(base), fit(np.r_[base, i])
-        shares[features[i]]["unique_lift"] = {
-            **unique_lift(without, with_, smallest),
-            "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
-            "without": sorted(({features[k] for k in suspects} | flagged) - {features[i]}),
-        }
-    if ids:
-        base = np.array([k for k in keep if k not in suspects], dtype=np.int64)
-        ref["identifier_lift"] = {
-            c: {
-                **unique_lift(fit(base), fit(np.r_[base, len(features) + j]), smallest),
-                "statistic": "1 - R2" if t.task == "numeric" else "1 - AUC",
-                "without": sorted({features[k] for k in suspects} | flagged),
-            }
-            for j, c in enumerate(ids)
-        }
-    for i in strong:  # what all the other columns reach together, for the match rule
-        shares[features[i]]["others_power"] = fit(keep[keep != i]).power
-    return shares, ref
+
+
+def _partners(inp: PeerInput, k: int, i: int, base: np.ndarray) -> bool:
+    """Whether column ``k`` explains the suspect ``i`` beyond the target at least as much as
+    all of ``i``'s other peers together, and clearly (partial R² × rows, an F statistic with
+    one degree of freedom, at least the square of the z the probe asks for high): the two
+    carry one thing besides the outcome (a spend and its share of income), not two views of
+    the outcome (a travel time and a noisy copy of the choice, independent given it)."""
+    alone = beyond_target(inp, i, np.array([k]))
+    others = beyond_target(inp, i, base[base != k])
+    z_high = THRESHOLDS.order(THRESHOLDS.order_z, Level.HIGH)
+    return alone >= others and alone * inp.z.shape[0] >= z_high**2
+
+
+class _Fits:
+    """Reference fits on sets of the sample's columns, each set fitted once."""
+
+    def __init__(self, inp: PeerInput, t: Target, settings: Settings) -> None:
+        self.inp, self.t, self.settings = inp, t, settings
+        self.done: dict[tuple[int, ...], RefFit] = {}
+
+    def __call__(self, columns: np.ndarray) -> RefFit:
+        key = tuple(sorted(int(c) for c in columns))
+        if key not in self.done:
+            self.done[key] = reference_fit(
+                self.inp,
+                np.array(key, dtype=np.int64),
+                self.t.task,
+                self.t.n_classes,
+                self.settings.seed,
+                n_jobs=self.settings.n_jobs,
+            )
+        return self.done[key]
 
 
 def _target_basis(ns: np.ndarray) -> np.ndarray:

@@ -114,3 +114,15 @@ def within_partition_order(table: AuditTable, name: str) -> pd.Series | None:
     values = pd.Series(order_values(table.frame[name]))
     ranks = values.groupby(pd.Series(groups, dtype=object)).rank(method="average", pct=True)
     return ranks
+
+
+def stored_in_order(s: pd.Series) -> bool:
+    """Whether the file's rows are stored in the order of this identifier (its values, where
+    present, never fall or never rise down the file, with at least two of them distinct):
+    the row position then carries the identifier's order and tells what it tells."""
+    values = order_values(s)
+    values = values[np.isfinite(values)]
+    if np.unique(values).size < 2:
+        return False
+    step = np.diff(values)
+    return bool((step >= 0).all() or (step <= 0).all())

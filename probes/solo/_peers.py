@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 from scipy.special import ndtri
 
+from featureaudit.models import lgbm_params
 from featureaudit.threads import limited_blas, model_threads
 
 __all__ = [
@@ -139,47 +140,68 @@ def dependence_shares(
     out: dict[str, dict] = {}
     for round_no in range(1, rounds + 1):
         for j in range(p):
-            if not usable[j]:
-                out[inp.names[j]] = {
-                    "share": None,
-                    "flag_round": None,
-                    "peers": 0,
-                    "typical_share": None,
-                }
-                continue
-            peers = np.array(
-                [
-                    k
-                    for k in order
-                    if k != j and usable[k] and k not in flagged and abs(corr[j, k]) < COPY_CORR
-                ][:MAX_PEERS],
-                dtype=np.int64,
-            )
-            figs = _figures(corr, j, peers, ys, main)
-            out[inp.names[j]] = {
-                **figs,
-                "flag_round": flagged.get(j),
-                "peers": int(peers.size),
-            }
-        new = []
-        for j, name in enumerate(inp.names):
-            typical = typical_share(out, power, name, min_power)
-            out[name]["typical_share"] = typical
-            share = out[name]["share"]
-            if (
-                j not in flagged
-                and share is not None
-                and inp.power[j] >= flag_power
-                and share >= typical + flag_share
-                and out[name]["peers_beyond_target"] <= flag_beyond
-            ):
-                new.append(j)
+            out[inp.names[j]] = _column_figures(corr, j, order, usable, flagged, ys, main)
+        new = _newly_flagged(
+            inp, out, flagged, power, min_power, flag_share, flag_power, flag_beyond
+        )
         if not new:
             break
         for j in new:
             flagged[j] = round_no
             out[inp.names[j]]["flag_round"] = round_no
     return out
+
+
+def _column_figures(
+    corr: np.ndarray,
+    j: int,
+    order: np.ndarray,
+    usable: np.ndarray,
+    flagged: dict[int, int],
+    ys: np.ndarray,
+    main: np.ndarray,
+) -> dict:
+    """Column ``j``'s figures against its peers: the strongest usable columns, not flagged,
+    not copies of it, at most ``MAX_PEERS``."""
+    if not usable[j]:
+        return {"share": None, "flag_round": None, "peers": 0, "typical_share": None}
+    peers = np.array(
+        [
+            k
+            for k in order
+            if k != j and usable[k] and k not in flagged and abs(corr[j, k]) < COPY_CORR
+        ][:MAX_PEERS],
+        dtype=np.int64,
+    )
+    figs = _figures(corr, j, peers, ys, main)
+    return {**figs, "flag_round": flagged.get(j), "peers": int(peers.size)}
+
+
+def _newly_flagged(
+    inp: PeerInput,
+    out: dict[str, dict],
+    flagged: dict[int, int],
+    power: dict[str, float],
+    min_power: float,
+    flag_share: float,
+    flag_power: float,
+    flag_beyond: float,
+) -> list[int]:
+    """The columns this round flags (and each column's typical share, set on ``out``)."""
+    new = []
+    for j, name in enumerate(inp.names):
+        typical = typical_share(out, power, name, min_power)
+        out[name]["typical_share"] = typical
+        share = out[name]["share"]
+        if (
+            j not in flagged
+            and share is not None
+            and inp.power[j] >= flag_power
+            and share >= typical + flag_share
+            and out[name]["peers_beyond_target"] <= flag_beyond
+        ):
+            new.append(j)
+    return new
 
 
 @dataclass(frozen=True)
@@ -226,21 +248,7 @@ def reference_fit(
         )
     x = inp.z_tree[:, columns]
     y = inp.y_codes
-    params: dict[str, Any] = dict(
-        n_estimators=40,
-        learning_rate=0.15,
-        num_leaves=15,
-        min_child_samples=10,
-        subsample=0.8,
-        subsample_freq=1,
-        colsample_bytree=0.8,
-        random_state=seed,
-        n_jobs=model_threads(n_jobs, len(inp.y_codes)),
-        verbose=-1,
-        deterministic=True,
-        force_row_wise=True,
-        max_bin=31,
-    )
+    params = lgbm_params(seed, model_threads(n_jobs, len(inp.y_codes)))
     with limited_blas():
         return _reference_fit(x, y, params, task, n_classes, seed, folds)
 
@@ -325,3 +333,17 @@ def _reference_fit(
     error = _errors(y, prob, task, n_classes)
     fold_errors = tuple(_errors(y[te], prob[te], task, n_classes) for _, te in split)
     return RefFit(max(0.0, 1.0 - 2 * error), error, fold_errors)
+
+
+def beyond_target(inp: PeerInput, j: int, peers: np.ndarray) -> float:
+    """What the ``peers`` explain of column ``j`` beyond the target: (R²(j | peers, target) −
+    R²(j | target)) / (1 − R²(j | target)), linear, on the sample's standardised columns."""
+    if peers.size == 0:
+        return 0.0
+    full = np.c_[inp.z[:, [j, *peers.tolist()]], inp.y_block]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = np.nan_to_num(np.corrcoef(full, rowvar=False))
+    ys = np.arange(1 + peers.size, full.shape[1])
+    b = _r2(corr, 0, ys)
+    c = max(_r2(corr, 0, np.r_[np.arange(1, 1 + peers.size), ys]), b)
+    return (c - b) / (1 - b) if b < 1 else 0.0

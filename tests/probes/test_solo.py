@@ -80,9 +80,12 @@ def test_sorted_by_target_with_sequential_id_raises_row_order(breast_cancer):
     position = [
         f for f in result.document["dataset_findings"] if f["kind"] == "row_order_tells_target"
     ]
-    # the position is no model input: at most medium, the uncapped verdict kept beside it
-    assert position and position[0]["level"] == "medium"
+    # the position is no model input: at most medium, the uncapped verdict kept beside it,
+    # but the file is stored in the order of record_id, an input: the two findings agree
+    assert position and position[0]["level"] == row["level"]
     assert position[0]["detail"]["level_before_cap"] in HIGH
+    assert position[0]["detail"]["level_before_carried"] == "medium"
+    assert position[0]["detail"]["carried_by"] == "record_id"
 
 
 def test_file_order_alone_is_low_once_a_split_is_given(breast_cancer):
@@ -235,11 +238,11 @@ def test_decide_proxy_share_rule_needs_an_effect_the_peers_can_tell():
         expected_r2_if_effect=0.2,
         n_peers=10,
     )
-    assert decide_proxy(ProxyFigures(**base)) == (Level.CRITICAL, "share")
+    assert decide_proxy(ProxyFigures(**base)) == (Level.CRITICAL, "share_critical")
     # the peers add much beyond the target: an honest feature, held at medium
     assert decide_proxy(ProxyFigures(**{**base, "peers_beyond_target": 0.5})) == (
         Level.MEDIUM,
-        "share_untold",
+        "share_explained_beyond",
     )
     # too few peers to compare with: the share rule does not apply
     assert decide_proxy(ProxyFigures(**{**base, "n_peers": 2}))[0] == Level.NONE
@@ -257,9 +260,15 @@ def test_decide_proxy_power_rules():
         n_peers=10,
     )
     assert decide_proxy(ProxyFigures(0.85, 0.1, **explained)) == (Level.LOW, "strong")
-    assert decide_proxy(ProxyFigures(0.99, 0.1, **explained)) == (Level.HIGH, "deterministic")
+    assert decide_proxy(ProxyFigures(0.99, 0.1, **explained)) == (
+        Level.HIGH,
+        "deterministic_explained",
+    )
     assert decide_proxy(ProxyFigures(0.99, 0.1)) == (Level.CRITICAL, "deterministic")
-    assert decide_proxy(ProxyFigures(0.85, 0.75, **explained)) == (Level.CRITICAL, "function")
+    assert decide_proxy(ProxyFigures(0.85, 0.75, **explained)) == (
+        Level.CRITICAL,
+        "function_critical",
+    )
     assert decide_proxy(ProxyFigures(0.1, 0.0, **explained)) == (Level.NONE, "explained")
 
 
@@ -333,7 +342,7 @@ def test_class2_an_honest_code_the_class_nearly_determines_is_not_a_leak():
     assert levels["ward"] in HIGH
     assert levels["island"] in BELOW_MEDIUM
     assert _detail(result, "island")["determinism_given_target"] > 0.5
-    assert _detail(result, "island")["decided_by"] == "no_lift"
+    assert _detail(result, "island")["decided_by"] == "function_unmeasured"
 
 
 def test_class3_a_near_copy_with_jitter_stands_out_from_the_table(breast_cancer):
@@ -412,10 +421,10 @@ def test_decide_proxy_unique_lift_gates_determinism_and_presence():
     )
     assert decide_proxy(ProxyFigures(**base))[0] == Level.HIGH  # not measured: as before
     nil = dict(lift=0.01, lift_low=-0.2, lift_error=0.05)
-    assert decide_proxy(ProxyFigures(**base, **nil)) == (Level.LOW, "no_lift")
+    assert decide_proxy(ProxyFigures(**base, **nil)) == (Level.LOW, "function_no_lift")
     # the rest predicts the target almost exactly: the lift cannot tell, the share must
     tiny = dict(lift=0.7, lift_low=0.5, lift_error=THRESHOLDS.lift_error_floor / 2)
-    assert decide_proxy(ProxyFigures(**base, **tiny)) == (Level.LOW, "no_lift")
+    assert decide_proxy(ProxyFigures(**base, **tiny)) == (Level.LOW, "function_unmeasured")
     assert decide_proxy(ProxyFigures(**{**base, "share": 0.4}, **tiny))[0] == Level.HIGH
     weak = dict(base, determinism=0.1, power=0.9, others_power=0.3)
     large = dict(lift=0.8, lift_low=0.7, lift_error=0.3)
@@ -468,19 +477,25 @@ def test_decide_proxy_near_function_needs_a_large_lift_or_a_share_that_stands_ou
     # perfect
     near = dict(typical_share=0.1, peers_beyond_target=0.05, expected_r2_if_effect=0.6, n_peers=12)
     copy = ProxyFigures(0.88, 0.75, share=0.33, share_z=2.6, lift=0.94, lift_error=0.002, **near)
-    assert decide_proxy(copy) == (Level.CRITICAL, "function")
+    assert decide_proxy(copy) == (Level.CRITICAL, "function_critical")
     island = ProxyFigures(0.64, 0.51, share=0.12, share_z=0.2, lift=0.56, lift_error=0.002, **near)
-    assert decide_proxy(island) == (Level.LOW, "no_lift")  # unmeasurable: nothing to weigh
+    assert decide_proxy(island) == (
+        Level.LOW,
+        "function_unmeasured",
+    )  # unmeasurable: nothing to weigh
     # near-identity with the target (the critical figures) holds at high even so
-    assert decide_proxy(replace(copy, share=0.12, share_z=0.2)) == (Level.HIGH, "function")
+    assert decide_proxy(replace(copy, share=0.12, share_z=0.2)) == (
+        Level.HIGH,
+        "function_unmeasured_identity",
+    )
     some = replace(island, lift=0.2, lift_low=0.05, lift_error=0.05)
-    assert decide_proxy(some) == (Level.MEDIUM, "no_lift")
+    assert decide_proxy(some) == (Level.MEDIUM, "function_some_lift")
     large = replace(some, lift=0.6, lift_low=0.3)
-    assert decide_proxy(large) == (Level.HIGH, "function")
+    assert decide_proxy(large) == (Level.HIGH, "function_high")
     assert decide_proxy(replace(large, lift=0.05))[0] == Level.LOW  # nil: low
     # an error of under one row of the smallest class is as unmeasurable as a tiny one
     few = replace(large, lift_error_rows=0.5)
-    assert decide_proxy(few) == (Level.LOW, "no_lift")
+    assert decide_proxy(few) == (Level.LOW, "function_unmeasured")
 
 
 def test_unique_lift_skips_folds_already_without_error():
@@ -578,3 +593,17 @@ def test_quantile_edges_in_a_large_table_do_not_follow_row_order():
     first = bins(f)
     assert all(first.values())
     assert bins(f.sample(frac=1, random_state=3).reset_index(drop=True)) == first
+
+
+def test_small_table_with_a_function_of_the_target_is_reported_not_crashed():
+    # Real data: statsmodels' engel (first 90 rows, under min_rows): the target's quintile
+    # number is a function of the target; the small sample lowers it to medium, which once
+    # raised KeyError looking up the threshold of that level.
+    import statsmodels.api as sm
+
+    frame = sm.datasets.engel.load_pandas().data.iloc[:90].copy()
+    frame["quintile"] = pd.qcut(frame["income"], 5, labels=False)
+    doc = fa.audit(frame, target="income", probes=["solo"]).document
+    col = next(c for c in doc["columns"] if c["column"] == "quintile")
+    assert col["level"] == "medium"
+    assert col["evidence"][0]["threshold"] is not None

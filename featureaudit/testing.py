@@ -1,34 +1,45 @@
-"""Named checks that every registered probe must pass, in the manner of scikit-learn's
-``sklearn.utils.estimator_checks``: :func:`yield_checks` yields ``(name, check)`` pairs and
-``tests/test_common.py`` runs each one per probe. A new probe gets the whole suite for free.
+"""The common checks every probe must pass, for built-in and third-party probes alike, in the
+manner of scikit-learn's ``sklearn.utils.estimator_checks``.
 
-Each check asserts what the probe must say (a skip with a reason, or the levels it may
-reach), not only that it does not crash.
+A plugin's test suite runs them in one line::
+
+    from featureaudit.testing import parametrize_with_checks
+
+    @parametrize_with_checks([MyProbe])
+    def test_my_probe(probe, check):
+        check(probe)
+
+:func:`yield_checks` yields ``(name, check)`` pairs for one probe. Each check asserts what the
+probe must say (a skip with a reason, or the levels it may reach), not only that it does not
+crash. Probes run here as the pipeline runs them: through the gate of their declared
+capabilities first.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import json
-from collections.abc import Callable, Iterator
+import re
+from collections.abc import Callable, Iterable, Iterator
+from typing import Any
 
 import numpy as np
 import pandas as pd
 
-from featureaudit.evidence import KINDS, Evidence, Skip
+from featureaudit.evidence import Evidence, Skip
+from featureaudit.kinds import KINDS, PAIR_KINDS
 from featureaudit.levels import LEVEL_NAMES, Level
-from featureaudit.registry import Probe
+from featureaudit.pipeline import capability_skip
+from featureaudit.registry import PAIRS, Capabilities, Probe, thresholds_dict
 from featureaudit.settings import Settings
+from featureaudit.splits import pair_views
 from featureaudit.table import AuditTable, build_table
 
+__all__ = ["Check", "awkward_frame", "noise_frame", "parametrize_with_checks", "yield_checks"]
+
 Check = Callable[[type[Probe]], None]
+# kinds that need a target to mean anything
 TARGET_KINDS = ("target_proxy", "row_order_tells_target")
-SPLIT_KINDS = (
-    "duplicate_rows_across_split",
-    "shared_entities_across_split",
-    "time_overlap_across_split",
-    "split_shift",
-)
 
 
 def awkward_frame(n: int = 300, seed: int = 0) -> pd.DataFrame:
@@ -82,6 +93,9 @@ def awkward_table() -> AuditTable:
 def _run(
     cls: type[Probe], table: AuditTable, settings: Settings | None = None
 ) -> tuple[list[Evidence], list[Skip]]:
+    gate = capability_skip(cls, table)
+    if gate is not None:
+        return [], [gate]
     evidence, skipped = cls().run(table, settings or Settings())
     assert isinstance(evidence, list) and isinstance(skipped, list)
     for e in evidence:
@@ -104,9 +118,46 @@ def _highest(evidence: list[Evidence]) -> Level:
 def check_declares_itself(cls: type[Probe]) -> None:
     assert cls.scope in ("column", "table") and cls.kinds and set(cls.kinds) <= set(KINDS)
     assert len((cls.__doc__ or "").strip()) > 40
+    assert isinstance(cls.capabilities, Capabilities)
+    assert set(cls.capabilities.pairs) <= set(PAIRS)
+    if cls.capabilities.compares_sides:  # it must report something judged per pair
+        assert set(cls.kinds) & set(PAIR_KINDS), (cls.kinds, PAIR_KINDS)
     if cls.thresholds is not None:
         assert dataclasses.is_dataclass(cls.thresholds)
-        assert type(cls.thresholds).__dataclass_params__.frozen  # type: ignore[attr-defined]
+        declared: Any = type(cls.thresholds)
+        assert declared.__dataclass_params__.frozen
+
+
+def _numbers(value: Any) -> Iterator[float]:
+    if isinstance(value, dict):
+        for v in value.values():
+            yield from _numbers(v)
+    elif isinstance(value, (list, tuple)):
+        for v in value:
+            yield from _numbers(v)
+    elif isinstance(value, (int, float)) and not isinstance(value, bool):
+        yield float(value)
+
+
+def _spellings(x: float) -> set[str]:
+    """How a description may write ``x``: as given, rounded, as a percentage, with commas."""
+    out = {f"{x:g}", f"{x:,g}", f"{x:.2f}", f"{x:.3f}", f"{x:,.0f}", f"{100 * x:g}"}
+    if x == int(x):
+        out |= {str(int(x)), f"{int(x):,}"}
+    return out
+
+
+def check_describe_names_every_threshold(cls: type[Probe]) -> None:
+    """The methods section and ``settings.methods`` come from ``describe``: every number the
+    probe's levels use must be stated there."""
+    text = cls.describe(Settings())
+    assert isinstance(text, str) and len(text.split()) >= 20, text
+    if cls.thresholds is None:
+        return
+    words = set(re.findall(r"[0-9][0-9,]*(?:\.[0-9]+)?(?:e[-+]?[0-9]+)?", text))
+    numbers = set(_numbers(thresholds_dict(cls.thresholds)))
+    missing = sorted(x for x in numbers if not _spellings(x) & words)
+    assert not missing, f"{cls.name}.describe() does not state thresholds {missing}"
 
 
 def check_valid_evidence_on_awkward_columns(cls: type[Probe]) -> None:
@@ -127,6 +178,7 @@ def check_deterministic_for_a_seed(cls: type[Probe]) -> None:
 
 def check_does_not_mutate_its_input(cls: type[Probe]) -> None:
     table = awkward_table()
+    assert table.y is not None and table.heldout is not None
     frame, y, heldout = table.frame.copy(), table.y.copy(), table.heldout.copy()
     _run(cls, table)
     pd.testing.assert_frame_equal(table.frame, frame)
@@ -204,10 +256,48 @@ def check_one_class_target(cls: type[Probe]) -> None:
     assert not [e for e in evidence if e.kind == "target_proxy" and e.rank > Level.NONE]
 
 
+def check_runs_on_a_sampled_table(cls: type[Probe]) -> None:
+    """An engine hands probes a sample of a larger table (``population_rows`` above the rows
+    held): a probe judges it, or is skipped there for the reason it declares."""
+    table = dataclasses.replace(awkward_table(), population_rows=30_000)
+    evidence, skipped = _run(cls, table)
+    _says_something(evidence, skipped)
+    if cls.capabilities.needs_every_row:
+        assert not evidence and any("sample" in s.reason for s in skipped)
+
+
+def partitioned_table() -> AuditTable:
+    """Training rows in three CV folds, and two held-out partitions (valid, test)."""
+    frame = noise_frame(n=600, seed=5)
+    rng = np.random.default_rng(5)
+    frame["split"] = rng.choice(["train", "train", "train", "valid", "test"], len(frame))
+    frame["fold"] = np.where(frame["split"] == "train", rng.integers(0, 3, len(frame)), -1)
+    frame.loc[frame["split"] != "train", "fold"] = np.nan
+    return build_table(frame, target="y", split_column="split", fold_column="fold")
+
+
+def check_compares_every_partition_pair(cls: type[Probe]) -> None:
+    """A probe that compares sides runs on every pair it declares (training against each
+    partition, partitions against each other, folds), with valid evidence on each."""
+    caps = cls.capabilities
+    if not caps.compares_sides:
+        return
+    table = partitioned_table()
+    views = pair_views(table, {pair: (cls.name,) for pair in caps.pairs})
+    assert views, "a partitioned table with folds gives pairs to compare"
+    for view in views:
+        evidence, skipped = _run(cls, view.table)
+        _says_something(evidence, skipped)
+        assert _highest(evidence) < Level.HIGH, (view.sides, [e.summary for e in evidence])
+
+
 def yield_checks(cls: type[Probe]) -> Iterator[tuple[str, Check]]:
     """Every check that applies to ``cls``, by name."""
     for check in (
         check_declares_itself,
+        check_describe_names_every_threshold,
+        check_runs_on_a_sampled_table,
+        check_compares_every_partition_pair,
         check_valid_evidence_on_awkward_columns,
         check_deterministic_for_a_seed,
         check_does_not_mutate_its_input,
@@ -221,3 +311,16 @@ def yield_checks(cls: type[Probe]) -> Iterator[tuple[str, Check]]:
         check_one_class_target,
     ):
         yield check.__name__.removeprefix("check_"), check
+
+
+def parametrize_with_checks(probes: Iterable[type[Probe]]) -> Any:
+    """A ``pytest.mark.parametrize`` over every common check of every probe in ``probes``,
+    with arguments ``probe`` and ``check`` and ids ``<probe>-<check>``."""
+    import pytest
+
+    cases = [
+        pytest.param(cls, check, id=f"{cls.name}-{name}")
+        for cls in probes
+        for name, check in yield_checks(cls)
+    ]
+    return pytest.mark.parametrize(("probe", "check"), cases)
