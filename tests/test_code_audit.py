@@ -6,6 +6,7 @@ import json
 import runpy
 import sys
 from pathlib import Path
+from typing import Any
 
 import pytest
 from typer.testing import CliRunner
@@ -252,6 +253,18 @@ model = LogisticRegression().fit(train.drop(columns="malignant"), train["maligna
 """
 
 
+def _code_evidence(column: dict[str, Any]) -> list[dict[str, Any]]:
+    return [e for e in column["evidence"] if e["probe"] == "code"]
+
+
+def _assert_scaled_on_all_rows(column: dict[str, Any]) -> None:
+    # the scaled columns train the model: a fit on all rows that reaches it is high
+    ev = _code_evidence(column)
+    assert [e["kind"] for e in ev] == ["fit_on_all_rows"]
+    assert ev[0]["level"] == "high" and ev[0]["detail"]["line"] == 8
+    assert "fit_on_all_rows" in column["kinds"]
+
+
 def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_cancer) -> None:
     import featureaudit as fa
 
@@ -262,16 +275,13 @@ def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_c
     assert [f["kind"] for f in doc["code_findings"]] == ["fit_before_split"]
     assert doc["code_findings"][0]["line"] == 8
     cols = {c["column"]: c for c in doc["columns"]}
-    for name in ("mean radius", "mean texture"):
-        ev = [e for e in cols[name]["evidence"] if e["probe"] == "code"]
-        # the scaled columns train the model: a fit on all rows that reaches it is high
-        assert [e["kind"] for e in ev] == ["fit_on_all_rows"] and ev[0]["level"] == "high"
-        assert ev[0]["detail"]["line"] == 8 and "fit_on_all_rows" in cols[name]["kinds"]
+    _assert_scaled_on_all_rows(cols["mean radius"])
+    _assert_scaled_on_all_rows(cols["mean texture"])
     # solo finds nothing strong on "mean texture", so the code evidence sets its level and its
     # remedy: refit, not drop
     assert cols["mean texture"]["level"] == "high"
     assert cols["mean texture"]["remedy"] == "refit_on_training_rows"
-    assert not [e for e in cols["worst area"]["evidence"] if e["probe"] == "code"]
+    assert not _code_evidence(cols["worst area"])
     html = result.write(tmp_path / "report")
     dossier = (tmp_path / "report" / "dossier.html").read_text()
     assert html and "<h2>Training code</h2>" in dossier and "StandardScaler" in dossier
@@ -346,9 +356,9 @@ def test_corpus_check_half_meets_the_bar() -> None:
         "test_reused",
         "selection_on_all_rows",
     ):
-        hit, right, n_got, n_want = t[(kind, Level.MEDIUM)]  # type: ignore[misc]
+        hit, right, n_got, n_want = t[(kind, Level.MEDIUM)]
         assert n_want >= 5 and right / n_got >= 0.9 and hit / n_want >= 0.9, kind
-    hit, _, _, n_want = t[("fit_before_split", Level.HIGH)]  # type: ignore[misc]
+    hit, _, _, n_want = t[("fit_before_split", Level.HIGH)]
     assert hit == n_want
 
 

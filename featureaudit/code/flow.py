@@ -19,7 +19,7 @@ import ast
 import contextlib
 import re
 from dataclasses import replace
-from typing import Any
+from typing import Any, TypeGuard
 
 from featureaudit.code.parse import Unit
 from featureaudit.code.values import ALL, HELDOUT, TEST, TRAIN, VALID, Event, Split, Val, name_role
@@ -396,19 +396,15 @@ class Flow:
             self.ev(e.slice)
             return None
         if base.kind == "tuple":
-            s = e.slice
-            if (
-                isinstance(s, ast.Constant)
-                and isinstance(s.value, int)
-                and -len(base.items) <= s.value < len(base.items)
-            ):
-                return base.items[s.value]
-            return None
+            return _item(base, e.slice)
         if base.kind in ("stat", "score"):
             cols = self._columns(e.slice) if base.cls == "groupby" else ()
             return replace(base, columns=cols) if cols else base
-        if base.kind != "rows":
-            return None
+        return self._rows_subscript(base, e) if base.kind == "rows" else None
+
+    def _rows_subscript(self, base: Val, e: ast.Subscript) -> Val:
+        """Rows indexed: a positional slice, a mask or fold indices (a split), columns chosen
+        by a statistic (a selection), or named columns."""
         index = e.slice.elts[0] if isinstance(e.slice, ast.Tuple) and e.slice.elts else e.slice
         if isinstance(index, ast.Slice):
             return self._positional(base, index, e)
@@ -454,15 +450,10 @@ class Flow:
         assert self.unit is not None
         role = sel.role or TRAIN
         if sel.cls == "time":
-            key = f"M[{root_name(e.value) or '?'}]"
-            self.mask_roles.setdefault(key, set()).add(role)
-            if self.known_masks is not None and len(self.known_masks.get(key, ())) < 2:
+            got = self._time_side(role, e)
+            if got is None:
                 return base
-            side = f"{key}@{self.unit.cell or 0}:{e.lineno}:{e.col_offset}"
-            if side in self.known_sides:
-                role = TRAIN
-            elif any(s.startswith(key) for s in self.known_sides):
-                role = TEST
+            role, side = got
         else:
             side = sel.prov[0] if sel.prov else f"M@{self.unit.cell or 0}:{e.lineno}:{role}"
         if base.role == TRAIN and role == TEST:
@@ -471,6 +462,20 @@ class Flow:
         how = "fold indices" if cv else "a mask"
         self.splits.append(Split(self.unit, e.lineno, how, base.prov, cv=cv))
         return replace(base, role=role, prov=(*base.prov, side)).step(f"{how} at line {e.lineno}")
+
+    def _time_side(self, role: str, e: ast.Subscript) -> tuple[str, str] | None:
+        """The role and side of a mask on time, or None when it is a lone filter."""
+        assert self.unit is not None
+        key = f"M[{root_name(e.value) or '?'}]"
+        self.mask_roles.setdefault(key, set()).add(role)
+        if self.known_masks is not None and len(self.known_masks.get(key, ())) < 2:
+            return None
+        side = f"{key}@{self.unit.cell or 0}:{e.lineno}:{e.col_offset}"
+        if side in self.known_sides:
+            role = TRAIN
+        elif any(s.startswith(key) for s in self.known_sides):
+            role = TEST
+        return role, side
 
     def part(self, base: Val, role: str, side: str, line: int, how: str) -> Val:
         """One side of a split of ``base`` (recorded as a split of its rows)."""
@@ -520,12 +525,13 @@ class Flow:
     ) -> frozenset[int]:
         """A statistic of some rows applied to rows (fill, scale, clip, centre): an event, whose
         index the result carries."""
-        stats = [v for v in vals if v is not None and v.kind == "stat" and v.role is not None]
-        rows = [v for v in rows_side if v is not None and v.kind == "rows"]
+        stats = [v for v in vals if _is_stat(v)]
+        rows = rows_of([v for v in rows_side if v is None or v.kind == "rows"])
         if not (stats and rows):
             return frozenset()
         stat = next((s for s in stats if s.role == ALL), stats[0])
         assert self.unit is not None
+        grouped = stat.columns if stat.cls == "groupby" else None
         self.events.append(
             Event(
                 "stat_use",
@@ -536,10 +542,7 @@ class Flow:
                 columns=rows[0].columns or stat.columns,
                 loop=self.loops[-1] if self.loops else None,
                 prov=stat.prov,
-                extra={
-                    "applied_to": rows[0].role,
-                    "grouped": stat.columns if stat.cls == "groupby" else None,
-                },
+                extra={"applied_to": rows[0].role, "grouped": grouped},
             )
         )
         return frozenset({len(self.events) - 1})
@@ -589,22 +592,45 @@ class Flow:
         return ret
 
 
+def _item(base: Val, index: ast.AST) -> Val | None:
+    """``pair[1]`` of a tuple value."""
+    if not (isinstance(index, ast.Constant) and isinstance(index.value, int)):
+        return None
+    i = index.value
+    return base.items[i] if -len(base.items) <= i < len(base.items) else None
+
+
+def _is_stat(v: Val | None) -> TypeGuard[Val]:
+    return v is not None and v.kind == "stat" and v.role is not None
+
+
+def _compared_column(e: ast.Compare) -> str:
+    if isinstance(e.left, ast.Subscript) and isinstance(e.left.slice, ast.Constant):
+        return str(e.left.slice.value).lower()
+    return e.left.attr.lower() if isinstance(e.left, ast.Attribute) else ""
+
+
+def _named_part(op: ast.cmpop, value: object) -> Val | None:
+    """``== "train"``, ``== "test"``, ``!= "train"``: a mask naming its part."""
+    if not isinstance(value, str):
+        return None
+    for role, words in _WORDS.items():
+        if value.lower() not in words:
+            continue
+        if isinstance(op, ast.Eq):
+            return Val("mask", role)
+        if isinstance(op, ast.NotEq) and role == TRAIN:
+            return Val("mask", TEST)
+    return None
+
+
 def _mask(e: ast.Compare) -> Val | None:
     """The part of the rows a comparison selects, when its words or its column say so."""
-    column = ""
-    if isinstance(e.left, ast.Subscript) and isinstance(e.left.slice, ast.Constant):
-        column = str(e.left.slice.value).lower()
-    elif isinstance(e.left, ast.Attribute):
-        column = e.left.attr.lower()
+    column = _compared_column(e)
     op, right = e.ops[0], e.comparators[0]
-    value = right.value if isinstance(right, ast.Constant) else None
-    if isinstance(value, str):
-        for role, words in _WORDS.items():
-            if value.lower() in words:
-                if isinstance(op, ast.Eq):
-                    return Val("mask", role)
-                if isinstance(op, ast.NotEq) and role == TRAIN:
-                    return Val("mask", TEST)
+    named = _named_part(op, right.value if isinstance(right, ast.Constant) else None)
+    if named is not None:
+        return named
     if re.search(r"date|time|year|month|day|period", column):
         if isinstance(op, ast.Lt | ast.LtE):
             return Val("mask", TRAIN, cls="time")
