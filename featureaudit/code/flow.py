@@ -434,7 +434,7 @@ class Flow:
             role = held
         else:
             role = TRAIN if index.lower is None else held
-        self.splits.append(
+        self.splits.append(  # a lone slice may be a preview: reach is left to the model fit
             Split(self.unit, e.lineno, "positional slices", base.prov, key=key, side=side)
         )
         return replace(base, role=role, prov=(*base.prov, side)).step(
@@ -460,7 +460,7 @@ class Flow:
             role = VALID
         cv = sel.kind == "index"
         how = "fold indices" if cv else "a mask"
-        self.splits.append(Split(self.unit, e.lineno, how, base.prov, cv=cv))
+        self.add_split(Split(self.unit, e.lineno, how, base.prov, cv=cv), base)
         return replace(base, role=role, prov=(*base.prov, side)).step(f"{how} at line {e.lineno}")
 
     def _time_side(self, role: str, e: ast.Subscript) -> tuple[str, str] | None:
@@ -480,7 +480,7 @@ class Flow:
     def part(self, base: Val, role: str, side: str, line: int, how: str) -> Val:
         """One side of a split of ``base`` (recorded as a split of its rows)."""
         assert self.unit is not None
-        self.splits.append(Split(self.unit, line, how, base.prov))
+        self.add_split(Split(self.unit, line, how, base.prov), base)
         return replace(base, role=role, prov=(*base.prov, side)).step(f"{how} at line {line}")
 
     def _columns(self, node: ast.AST) -> tuple[str, ...]:
@@ -501,6 +501,12 @@ class Flow:
         from featureaudit.code.calls import dispatch
 
         return dispatch(self, e)
+
+    def add_split(self, split: Split, rows: Val) -> None:
+        """Record a split of ``rows``: what shaped them now reaches the evaluation, even when
+        the model that follows is not in the file (a script that stops at the split)."""
+        self.splits.append(split)
+        self.reached |= rows.taint
 
     def event(self, what: str, rows: Val | None, line: int, **extra: Any) -> int:
         """Record an event on ``rows`` and return its index."""
