@@ -2,7 +2,7 @@
 
 1. tests/code_cases: each case states its expected kinds before the code (`# expect: KIND` or
    `clean` on the first line of a script; `metadata.featureaudit_expect` of a notebook).
-2. benchmarks/code_corpus: 154 scripts and notebooks of ordinary ML code whose labels
+2. benchmarks/code_corpus: 203 scripts and notebooks of ordinary ML code whose labels
    (labels.csv: file, half, family, kind, level floor, line) were written with the files,
    before the tool ran (benchmarks/write_code_corpus.py). Halves are fixed by pattern family:
    rules are tuned on `tune`, figures quoted on `check`.
@@ -96,27 +96,42 @@ def findings_of(corpus: Path = CORPUS) -> tuple[dict[str, list[tuple[Spot, Level
     return out, skipped
 
 
-def table(
-    rows: list[dict[str, str]], found: dict[str, list[tuple[Spot, Level]]], half: str
-) -> dict[tuple[str, Level], tuple[int, int, int]]:
-    """(kind or "all", level) -> (true positives, found at that level, labelled at that level)."""
-    files = {r["file"] for r in rows if r["half"] == half}
-    want = [
+Counts = tuple[int, int, int, int]  # labels found, findings right, findings, labels
+
+
+def _labelled(rows: list[dict[str, str]], half: str) -> list[tuple[Spot, Level]]:
+    return [
         (_spot(r["file"], r["kind"], r["line"]), Level.parse(r["level"]))
         for r in rows
         if r["half"] == half and r["kind"] != "clean"
     ]
-    got = [f for name in sorted(files) for f in found.get(name, [])]
-    out: dict[tuple[str, Level], tuple[int, int, int]] = {}
-    for kind in [*KINDS, "all"]:
-        for level in LEVELS:
-            w = [s for s, floor in want if floor >= level and kind in ("all", s[1])]
-            g = [s for s, lv in got if lv >= level and kind in ("all", s[1])]
-            anyw = [s for s, _ in want if kind in ("all", s[1])]
-            hit = sum(1 for s in w if any(_near(s, x) for x in g))
-            right = sum(1 for x in g if any(_near(s, x) for s in anyw))
-            out[(kind, level)] = (hit, right, len(g), len(w))  # type: ignore[assignment]
-    return out
+
+
+def _counts(
+    want: list[tuple[Spot, Level]], got: list[tuple[Spot, Level]], kind: str, level: Level
+) -> Counts:
+    """Counts for one kind ("all" for every kind) at one level (see the module docstring)."""
+    mine = [(s, lv) for s, lv in want if kind in ("all", s[1])]
+    w = [s for s, floor in mine if floor >= level]
+    g = [s for s, lv in got if lv >= level and kind in ("all", s[1])]
+    hit = sum(1 for s in w if any(_near(s, x) for x in g))
+    right = sum(1 for x in g if any(_near(s, x) for s, _ in mine))
+    return hit, right, len(g), len(w)
+
+
+def table(
+    rows: list[dict[str, str]], found: dict[str, list[tuple[Spot, Level]]], half: str
+) -> dict[tuple[str, Level], Counts]:
+    """(kind or "all", level) -> (labels found, findings right, findings, labels) at that
+    level, over the files of one half."""
+    files = sorted({r["file"] for r in rows if r["half"] == half})
+    want = _labelled(rows, half)
+    got = [f for name in files for f in found.get(name, [])]
+    return {
+        (kind, level): _counts(want, got, kind, level)
+        for kind in [*KINDS, "all"]
+        for level in LEVELS
+    }
 
 
 def _ratio(a: int, b: int) -> str:
@@ -132,12 +147,24 @@ def report(rows: Iterable[dict[str, str]] | None = None) -> list[str]:
     for half in ("tune", "check"):
         t = table(rows, found, half)
         lines.append(f"{half}: kind                      level    precision        recall")
-        for (kind, level), (hit, right, n_got, n_want) in t.items():  # type: ignore[misc]
+        for (kind, level), (hit, right, n_got, n_want) in t.items():
             lines.append(
                 f"  {kind:26s} {level.label:7s} {_ratio(right, n_got)} ({right:3d}/{n_got:3d})"
                 f"  {_ratio(hit, n_want)} ({hit:3d}/{n_want:3d})"
             )
     return lines
+
+
+def _file_misses(name: str, want: list[Spot], got: list[tuple[Spot, Level]]) -> list[str]:
+    out = []
+    for s in want:
+        if not any(_near(s, x) and lv >= Level.MEDIUM for x, lv in got):
+            lev = [lv.label for x, lv in got if _near(s, x)]
+            out.append(f"{name}: missed {s[1]} at {s[2]}:{s[3]} {lev}")
+    for x, lv in got:
+        if lv >= Level.MEDIUM and not any(_near(s, x) for s in want):
+            out.append(f"{name}: false {x[1]} {lv.label} at {x[2]}:{x[3]}")
+    return out
 
 
 def misses(half: str | None = None) -> list[str]:
@@ -146,19 +173,9 @@ def misses(half: str | None = None) -> list[str]:
     found, _ = findings_of()
     out = []
     for name in sorted({r["file"] for r in rows if half in (None, r["half"])}):
-        want = [
-            _spot(r["file"], r["kind"], r["line"])
-            for r in rows
-            if r["file"] == name and r["kind"] != "clean"
-        ]
-        got = [(s, lv) for s, lv in found.get(name, [])]
-        for s in want:
-            if not any(_near(s, x) and lv >= Level.MEDIUM for x, lv in got):
-                lev = [lv.label for x, lv in got if _near(s, x)]
-                out.append(f"{name}: missed {s[1]} at {s[2]}:{s[3]} {lev}")
-        for x, lv in got:
-            if lv >= Level.MEDIUM and not any(_near(s, x) for s in want):
-                out.append(f"{name}: false {x[1]} {lv.label} at {x[2]}:{x[3]}")
+        mine = [r for r in rows if r["file"] == name and r["kind"] != "clean"]
+        want = [_spot(name, r["kind"], r["line"]) for r in mine]
+        out += _file_misses(name, want, found.get(name, []))
     return out
 
 

@@ -6,6 +6,7 @@ import json
 import runpy
 import sys
 from pathlib import Path
+from typing import Any
 
 import pytest
 from typer.testing import CliRunner
@@ -138,6 +139,14 @@ def test_sarif_has_the_fields_the_standard_requires() -> None:
         assert run["tool"]["driver"]["rules"][r["ruleIndex"]]["id"] == r["ruleId"]
 
 
+def test_sarif_of_the_development_corpus_has_the_required_fields() -> None:
+    jsonschema = pytest.importorskip("jsonschema")
+    doc = sarif(audit_code([ROOT / "benchmarks" / "code_corpus"]))
+    jsonschema.validate(doc, SARIF_REQUIRED)
+    levels = {r["level"] for r in doc["runs"][0]["results"]}
+    assert {"error", "warning"} <= levels
+
+
 def test_cli_writes_json_and_sarif_and_fails_at(tmp_path: Path) -> None:
     res = CliRunner().invoke(
         app,
@@ -244,6 +253,18 @@ model = LogisticRegression().fit(train.drop(columns="malignant"), train["maligna
 """
 
 
+def _code_evidence(column: dict[str, Any]) -> list[dict[str, Any]]:
+    return [e for e in column["evidence"] if e["probe"] == "code"]
+
+
+def _assert_scaled_on_all_rows(column: dict[str, Any]) -> None:
+    # the scaled columns train the model: a fit on all rows that reaches it is high
+    ev = _code_evidence(column)
+    assert [e["kind"] for e in ev] == ["fit_on_all_rows"]
+    assert ev[0]["level"] == "high" and ev[0]["detail"]["line"] == 8
+    assert "fit_on_all_rows" in column["kinds"]
+
+
 def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_cancer) -> None:
     import featureaudit as fa
 
@@ -254,16 +275,13 @@ def test_scan_code_joins_the_column_evidence_and_refits(tmp_path: Path, breast_c
     assert [f["kind"] for f in doc["code_findings"]] == ["fit_before_split"]
     assert doc["code_findings"][0]["line"] == 8
     cols = {c["column"]: c for c in doc["columns"]}
-    for name in ("mean radius", "mean texture"):
-        ev = [e for e in cols[name]["evidence"] if e["probe"] == "code"]
-        # the scaled columns train the model: a fit on all rows that reaches it is high
-        assert [e["kind"] for e in ev] == ["fit_on_all_rows"] and ev[0]["level"] == "high"
-        assert ev[0]["detail"]["line"] == 8 and "fit_on_all_rows" in cols[name]["kinds"]
+    _assert_scaled_on_all_rows(cols["mean radius"])
+    _assert_scaled_on_all_rows(cols["mean texture"])
     # solo finds nothing strong on "mean texture", so the code evidence sets its level and its
     # remedy: refit, not drop
     assert cols["mean texture"]["level"] == "high"
     assert cols["mean texture"]["remedy"] == "refit_on_training_rows"
-    assert not [e for e in cols["worst area"]["evidence"] if e["probe"] == "code"]
+    assert not _code_evidence(cols["worst area"])
     html = result.write(tmp_path / "report")
     dossier = (tmp_path / "report" / "dossier.html").read_text()
     assert html and "<h2>Training code</h2>" in dossier and "StandardScaler" in dossier
@@ -338,9 +356,9 @@ def test_corpus_check_half_meets_the_bar() -> None:
         "test_reused",
         "selection_on_all_rows",
     ):
-        hit, right, n_got, n_want = t[(kind, Level.MEDIUM)]  # type: ignore[misc]
+        hit, right, n_got, n_want = t[(kind, Level.MEDIUM)]
         assert n_want >= 5 and right / n_got >= 0.9 and hit / n_want >= 0.9, kind
-    hit, _, _, n_want = t[("fit_before_split", Level.HIGH)]  # type: ignore[misc]
+    hit, _, _, n_want = t[("fit_before_split", Level.HIGH)]
     assert hit == n_want
 
 
@@ -495,12 +513,13 @@ def test_notebook_percent_continuation_question_mark_and_number_cells_are_audite
             ["print('rows: %d'\n", "      % len(X))\n", "q = '''is it high?\n", "no'''\n"],
             3,
             None,
-            ["X = StandardScaler().fit_transform(X)\n", FIT],
+            ["%%bash\n", "ls -la | head\n"],
+            ["%%time\n", "X = StandardScaler().fit_transform(X)\n", FIT],
         ],
     )
     found, units = audit_file(nb)
-    assert units == 5
-    assert [(f.cell, f.line, f.kind) for f in found] == [(5, 1, "fit_before_split")]
+    assert units == 6
+    assert [(f.cell, f.line, f.kind) for f in found] == [(6, 2, "fit_before_split")]
 
 
 @pytest.mark.parametrize(
@@ -551,3 +570,34 @@ def test_frames_of_two_sources_joined_then_sliced_apart_are_one_table(tmp_path: 
     assert [(f.kind, f.line, f.level) for f in audit_file(script)[0]] == [
         ("fit_before_split", 6, Level.HIGH)
     ]
+
+
+def test_a_lone_time_mask_filters_and_two_split_with_sides_read_from_use(tmp_path: Path) -> None:
+    # df[df.year > 2000] alone keeps recent rows (no held-out part); with its complement it
+    # is a split by time, and the side the model is fitted on is the training side
+    head = "import pandas as pd\ndf = pd.read_csv('sales.csv')\n"
+    lone = tmp_path / "lone.py"
+    lone.write_text(
+        head + "recent = df[df.year > 2000]\nsc = StandardScaler().fit(recent[['x']])\n"
+        "m = Ridge().fit(sc.transform(recent[['x']]), recent['y'])\n"
+    )
+    assert audit_file(lone)[0] == []
+    two = "old = df[df.year <= 2000]\nrecent = df[df.year > 2000]\n"
+    for model_on, refit_on in (("old", "recent"), ("recent", "old")):
+        path = tmp_path / f"{model_on}.py"
+        path.write_text(
+            head + two + f"m = Ridge().fit({model_on}[['x']], {model_on}['y'])\n"
+            f"z = StandardScaler().fit_transform({refit_on}[['x']])\n"
+        )
+        assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 6)]
+
+
+def test_a_loop_over_frames_visits_each_frame(tmp_path: Path) -> None:
+    # the fit on the test frame happens on the loop's last pass, with or without names
+    for head in (
+        "for frame in [X_train, X_test]:\n",
+        "for name, frame in [('a', X_train), ('b', X_test)]:\n",
+    ):
+        path = tmp_path / "frames.py"
+        path.write_text(LOAD + FIT + head + "    frame = StandardScaler().fit_transform(frame)\n")
+        assert [(f.kind, f.line) for f in audit_file(path)[0]] == [("fit_on_heldout", 10)]

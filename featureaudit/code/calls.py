@@ -211,7 +211,7 @@ def _tts(c: Call) -> Val:
         if base.prov and base.prov not in seen:
             seen.add(base.prov)
             assert c.flow.unit is not None
-            c.flow.splits.append(Split(c.flow.unit, c.line, "train_test_split", base.prov))
+            c.flow.add_split(Split(c.flow.unit, c.line, "train_test_split", base.prov), base)
         for role, side in zip(roles, ("a", "b"), strict=True):
             part = replace(
                 base, role=role, prov=(*base.prov, f"{site}:{side}") if base.prov else ()
@@ -441,7 +441,7 @@ def _split(c: Call, est: Val) -> Val | None:
         return None
     x = c.x
     if x is not None and x.kind == "rows":
-        c.flow.splits.append(Split(c.flow.unit, c.line, f"{est.cls}().split", x.prov, cv=True))
+        c.flow.add_split(Split(c.flow.unit, c.line, f"{est.cls}().split", x.prov, cv=True), x)
     return Val("folds", cls=f"K@{c.site()}")
 
 
@@ -551,12 +551,12 @@ def _drop(c: Call, rows: Val) -> Val | None:
             side = other.prov[-1][:-1] + "b" if other.prov else "drop"
             role = TEST if other.role == TRAIN else TRAIN
             return c.flow.part(rows, role, side, c.line, "df.drop(part.index)")
-    taint = frozenset().union(*(a.taint for a in rows_or_stats(c)))
+    taint = frozenset().union(*(a.taint for a in _stats_of(c)))
     c.flow.applied |= taint
     return rows.tainted(taint)
 
 
-def rows_or_stats(c: Call) -> list[Val]:
+def _stats_of(c: Call) -> list[Val]:
     return [a for a in [*c.args, *c.kw.values()] if a is not None and a.kind == "stat"]
 
 

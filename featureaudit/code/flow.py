@@ -19,7 +19,7 @@ import ast
 import contextlib
 import re
 from dataclasses import replace
-from typing import Any
+from typing import Any, TypeGuard
 
 from featureaudit.code.parse import Unit
 from featureaudit.code.values import ALL, HELDOUT, TEST, TRAIN, VALID, Event, Split, Val, name_role
@@ -43,10 +43,8 @@ def dotted(node: ast.AST) -> str:
     while isinstance(node, ast.Attribute):
         parts.append(node.attr)
         node = node.value
-    if isinstance(node, ast.Call):
-        parts.append(dotted(node.func) + "()") if not isinstance(
-            node.func, ast.Call
-        ) else parts.append("?")
+    if isinstance(node, ast.Call) and not isinstance(node.func, ast.Call):
+        parts.append(dotted(node.func) + "()")
     else:
         parts.append(node.id if isinstance(node, ast.Name) else "?")
     return ".".join(reversed(parts))
@@ -97,7 +95,11 @@ def rows_of(vals: list[Val | None]) -> list[Val]:
 class Flow:
     """Walk the units of one file and collect events and splits (see the module docstring)."""
 
-    def __init__(self, fitted_sides: frozenset[str] = frozenset()) -> None:
+    def __init__(
+        self,
+        fitted_sides: frozenset[str] = frozenset(),
+        mask_roles: dict[str, set[str]] | None = None,
+    ) -> None:
         self.env: dict[str, Val] = {}
         self.assigned: set[str] = set()
         self.consts: dict[str, Any] = {}
@@ -111,6 +113,8 @@ class Flow:
         self.targets: set[str] = set()  # columns models were trained to predict
         self.model_sides: set[str] = set()  # positional sides a model was fitted on
         self.known_sides = fitted_sides  # ... as found by the first walk
+        self.mask_roles: dict[str, set[str]] = {}  # parts each masked table was cut into
+        self.known_masks = mask_roles  # ... as found by the first walk (None: this is it)
         self.loops: list[int] = []
         self.loop_selects: set[int] = set()
         self.unit: Unit | None = None
@@ -171,7 +175,7 @@ class Flow:
             self.loop_selects.add(id(s))
         frames = [x for x in it.items if x is not None] if it and it.kind == "tuple" else []
         ret = None
-        if frames and len(frames) <= MAX_FRAMES and all(x.kind == "rows" for x in frames):
+        if frames and len(frames) <= MAX_FRAMES and all(rows_of([x]) for x in frames):
             for frame in frames:  # one pass per frame: a fit on each of train, valid, test
                 self.bind(s.target, frame, s.lineno, None)
                 ret = self.block(s.body) or ret
@@ -392,19 +396,15 @@ class Flow:
             self.ev(e.slice)
             return None
         if base.kind == "tuple":
-            s = e.slice
-            if (
-                isinstance(s, ast.Constant)
-                and isinstance(s.value, int)
-                and -len(base.items) <= s.value < len(base.items)
-            ):
-                return base.items[s.value]
-            return None
+            return _item(base, e.slice)
         if base.kind in ("stat", "score"):
             cols = self._columns(e.slice) if base.cls == "groupby" else ()
             return replace(base, columns=cols) if cols else base
-        if base.kind != "rows":
-            return None
+        return self._rows_subscript(base, e) if base.kind == "rows" else None
+
+    def _rows_subscript(self, base: Val, e: ast.Subscript) -> Val:
+        """Rows indexed: a positional slice, a mask or fold indices (a split), columns chosen
+        by a statistic (a selection), or named columns."""
         index = e.slice.elts[0] if isinstance(e.slice, ast.Tuple) and e.slice.elts else e.slice
         if isinstance(index, ast.Slice):
             return self._positional(base, index, e)
@@ -434,7 +434,7 @@ class Flow:
             role = held
         else:
             role = TRAIN if index.lower is None else held
-        self.splits.append(
+        self.splits.append(  # a lone slice may be a preview: reach is left to the model fit
             Split(self.unit, e.lineno, "positional slices", base.prov, key=key, side=side)
         )
         return replace(base, role=role, prov=(*base.prov, side)).step(
@@ -442,22 +442,45 @@ class Flow:
         )
 
     def _by_mask(self, base: Val, sel: Val, e: ast.Subscript) -> Val:
-        role = sel.role or TRAIN
-        if base.role == TRAIN and role == TEST:
-            role = VALID
+        """Rows chosen by a mask or fold indices. A mask naming its part (``== "train"``) or
+        a fold splits; a mask on time alone filters (``df[df.year > 2000]``), and with its
+        complement splits, the side a model is fitted on being the training side."""
         if base.role in HELDOUT:
             return base
         assert self.unit is not None
-        side = sel.prov[0] if sel.prov else f"M@{self.unit.cell or 0}:{e.lineno}:{role}"
+        role = sel.role or TRAIN
+        if sel.cls == "time":
+            got = self._time_side(role, e)
+            if got is None:
+                return base
+            role, side = got
+        else:
+            side = sel.prov[0] if sel.prov else f"M@{self.unit.cell or 0}:{e.lineno}:{role}"
+        if base.role == TRAIN and role == TEST:
+            role = VALID
         cv = sel.kind == "index"
         how = "fold indices" if cv else "a mask"
-        self.splits.append(Split(self.unit, e.lineno, how, base.prov, cv=cv))
+        self.add_split(Split(self.unit, e.lineno, how, base.prov, cv=cv), base)
         return replace(base, role=role, prov=(*base.prov, side)).step(f"{how} at line {e.lineno}")
+
+    def _time_side(self, role: str, e: ast.Subscript) -> tuple[str, str] | None:
+        """The role and side of a mask on time, or None when it is a lone filter."""
+        assert self.unit is not None
+        key = f"M[{root_name(e.value) or '?'}]"
+        self.mask_roles.setdefault(key, set()).add(role)
+        if self.known_masks is not None and len(self.known_masks.get(key, ())) < 2:
+            return None
+        side = f"{key}@{self.unit.cell or 0}:{e.lineno}:{e.col_offset}"
+        if side in self.known_sides:
+            role = TRAIN
+        elif any(s.startswith(key) for s in self.known_sides):
+            role = TEST
+        return role, side
 
     def part(self, base: Val, role: str, side: str, line: int, how: str) -> Val:
         """One side of a split of ``base`` (recorded as a split of its rows)."""
         assert self.unit is not None
-        self.splits.append(Split(self.unit, line, how, base.prov))
+        self.add_split(Split(self.unit, line, how, base.prov), base)
         return replace(base, role=role, prov=(*base.prov, side)).step(f"{how} at line {line}")
 
     def _columns(self, node: ast.AST) -> tuple[str, ...]:
@@ -478,6 +501,12 @@ class Flow:
         from featureaudit.code.calls import dispatch
 
         return dispatch(self, e)
+
+    def add_split(self, split: Split, rows: Val) -> None:
+        """Record a split of ``rows``: what shaped them now reaches the evaluation, even when
+        the model that follows is not in the file (a script that stops at the split)."""
+        self.splits.append(split)
+        self.reached |= rows.taint
 
     def event(self, what: str, rows: Val | None, line: int, **extra: Any) -> int:
         """Record an event on ``rows`` and return its index."""
@@ -502,12 +531,13 @@ class Flow:
     ) -> frozenset[int]:
         """A statistic of some rows applied to rows (fill, scale, clip, centre): an event, whose
         index the result carries."""
-        stats = [v for v in vals if v is not None and v.kind == "stat" and v.role is not None]
-        rows = [v for v in rows_side if v is not None and v.kind == "rows"]
+        stats = [v for v in vals if _is_stat(v)]
+        rows = rows_of([v for v in rows_side if v is None or v.kind == "rows"])
         if not (stats and rows):
             return frozenset()
         stat = next((s for s in stats if s.role == ALL), stats[0])
         assert self.unit is not None
+        grouped = stat.columns if stat.cls == "groupby" else None
         self.events.append(
             Event(
                 "stat_use",
@@ -518,10 +548,7 @@ class Flow:
                 columns=rows[0].columns or stat.columns,
                 loop=self.loops[-1] if self.loops else None,
                 prov=stat.prov,
-                extra={
-                    "applied_to": rows[0].role,
-                    "grouped": stat.columns if stat.cls == "groupby" else None,
-                },
+                extra={"applied_to": rows[0].role, "grouped": grouped},
             )
         )
         return frozenset({len(self.events) - 1})
@@ -545,7 +572,7 @@ class Flow:
             self.targets.update(y.columns)
         if rows is not None:
             self.model_provs.add(rows.prov)
-            self.model_sides.update(s for s in rows.prov if s.startswith("P["))
+            self.model_sides.update(s for s in rows.prov if s.startswith(("P[", "M[")))
 
     def call_function(
         self, fn: ast.FunctionDef, args: list[Val | None], kw: dict[str, Val | None]
@@ -571,38 +598,62 @@ class Flow:
         return ret
 
 
+def _item(base: Val, index: ast.AST) -> Val | None:
+    """``pair[1]`` of a tuple value."""
+    if not (isinstance(index, ast.Constant) and isinstance(index.value, int)):
+        return None
+    i = index.value
+    return base.items[i] if -len(base.items) <= i < len(base.items) else None
+
+
+def _is_stat(v: Val | None) -> TypeGuard[Val]:
+    return v is not None and v.kind == "stat" and v.role is not None
+
+
+def _compared_column(e: ast.Compare) -> str:
+    if isinstance(e.left, ast.Subscript) and isinstance(e.left.slice, ast.Constant):
+        return str(e.left.slice.value).lower()
+    return e.left.attr.lower() if isinstance(e.left, ast.Attribute) else ""
+
+
+def _named_part(op: ast.cmpop, value: object) -> Val | None:
+    """``== "train"``, ``== "test"``, ``!= "train"``: a mask naming its part."""
+    if not isinstance(value, str):
+        return None
+    for role, words in _WORDS.items():
+        if value.lower() not in words:
+            continue
+        if isinstance(op, ast.Eq):
+            return Val("mask", role)
+        if isinstance(op, ast.NotEq) and role == TRAIN:
+            return Val("mask", TEST)
+    return None
+
+
 def _mask(e: ast.Compare) -> Val | None:
     """The part of the rows a comparison selects, when its words or its column say so."""
-    column = ""
-    if isinstance(e.left, ast.Subscript) and isinstance(e.left.slice, ast.Constant):
-        column = str(e.left.slice.value).lower()
-    elif isinstance(e.left, ast.Attribute):
-        column = e.left.attr.lower()
+    column = _compared_column(e)
     op, right = e.ops[0], e.comparators[0]
-    value = right.value if isinstance(right, ast.Constant) else None
-    if isinstance(value, str):
-        for role, words in _WORDS.items():
-            if value.lower() in words:
-                if isinstance(op, ast.Eq):
-                    return Val("mask", role)
-                if isinstance(op, ast.NotEq) and role == TRAIN:
-                    return Val("mask", TEST)
+    named = _named_part(op, right.value if isinstance(right, ast.Constant) else None)
+    if named is not None:
+        return named
     if re.search(r"date|time|year|month|day|period", column):
         if isinstance(op, ast.Lt | ast.LtE):
-            return Val("mask", TRAIN)
+            return Val("mask", TRAIN, cls="time")
         if isinstance(op, ast.Gt | ast.GtE):
-            return Val("mask", TEST)
+            return Val("mask", TEST, cls="time")
     if "fold" in column:
         return Val("mask", VALID if isinstance(op, ast.Eq) else TRAIN)
     return None
 
 
 def analyse(units: list[Unit]) -> Flow:
-    """Walk the file twice: the first walk finds which positional sides models are fitted on,
-    the second reads every other side as held out."""
+    """Walk the file twice: the first walk finds which positional sides models are fitted on
+    and which masked tables are cut into two parts; the second reads every other positional
+    side as held out and a lone mask as a filter."""
     first = Flow()
     first.run(units)
-    flow = Flow(frozenset(first.model_sides))
+    flow = Flow(frozenset(first.model_sides), first.mask_roles)
     flow.run(units)
     return flow
 

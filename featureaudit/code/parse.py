@@ -64,6 +64,19 @@ def _strip_magics(source: str) -> str:
     return "\n".join(lines)
 
 
+PYTHON_CELL_MAGICS = {"time", "timeit", "capture", "prun", "debug"}
+
+
+def _foreign_cell(source: str) -> bool:
+    """A cell run by another interpreter (``%%bash``, ``%%sql``, ``%%writefile x.py``): not
+    Python the notebook runs, so not audited."""
+    head = next((ln.strip() for ln in source.splitlines() if ln.strip()), "")
+    if not head.startswith("%%"):
+        return False
+    name = head[2:].split(maxsplit=1)[0] if head[2:].strip() else ""
+    return name not in PYTHON_CELL_MAGICS
+
+
 def _cell_source(src: object) -> str:
     """A cell's source as text: a list of lines, one string, or anything else (a number)."""
     if isinstance(src, list):
@@ -126,6 +139,8 @@ def read_units(path: str | Path) -> list[Unit]:
         if not isinstance(cell, dict) or cell.get("cell_type") != "code":
             continue
         source = _cell_source(cell.get("source", ""))
+        if _foreign_cell(source):
+            source = ""
         clean = source
         try:
             ast.parse(source)
