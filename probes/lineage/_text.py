@@ -21,10 +21,17 @@ from sklearn.feature_extraction.text import CountVectorizer
 from sklearn.linear_model import LogisticRegression, Ridge
 from sklearn.metrics import r2_score, roc_auc_score
 
+from featureaudit.evidence import Evidence
 from featureaudit.io import numeric_view
-from featureaudit.probes.lineage._thresholds import LineageThresholds
+from featureaudit.levels import Level
+from featureaudit.probes.lineage._kit import LATER, make_evidence
+from featureaudit.probes.lineage._rules import TEXT_RULES, decide
+from featureaudit.probes.lineage._thresholds import THRESHOLDS, LineageThresholds
+from featureaudit.sample import content_keys
+from featureaudit.settings import Settings
+from featureaudit.table import AuditTable
 
-__all__ = ["TextFigures", "text_figures", "is_free_text"]
+__all__ = ["TextFigures", "text_figures", "is_free_text", "text_evidence"]
 
 MAX_PHRASES = 5
 # phrases are made of words (letters only): a number in a note is the row's own value, which
@@ -212,3 +219,48 @@ def text_figures(
     return TextFigures(
         power, reference, gain, coverage, count, named, numeric, "oof_r2" if numeric else "oof_auc"
     )
+
+
+def _sentence(f: TextFigures) -> str:
+    """The text reading in words: its power, what it adds, and the phrases of one outcome."""
+    metric = "R²" if f.numeric else "AUC"
+    phrases = "; ".join(f"{p!r} (only {o!r}, {n} rows)" for p, o, n in f.named)
+    tail = (
+        f"; phrases that occur with one outcome only: {phrases}, in {f.coverage:.0%} of rows"
+        if f.named
+        else ""
+    )
+    return (
+        f"free text whose words alone predict the target out of fold ({metric} {f.power:.3f}) "
+        f"and remove {max(f.gain, 0):.0%} of the error the other columns together leave "
+        f"({metric} {f.reference:.3f}){tail}"
+    )
+
+
+def text_evidence(table: AuditTable, settings: Settings) -> list[Evidence]:
+    th, out = THRESHOLDS, []
+    rows = np.flatnonzero(table.labelled)
+    assert table.y is not None
+    numeric = table.task == "numeric"
+    for name in table.features + table.id_columns:
+        if not is_free_text(table.frame[name], th):
+            continue
+        others = [c for c in table.features if c != name and not is_free_text(table.frame[c], th)]
+        keys = content_keys(table.frame, [name, str(table.target)], settings.seed + 15485863)
+        folds = (keys % np.uint64(settings.folds)).astype(np.int64)
+        frame = table.frame.iloc[rows]
+        f = text_figures(
+            frame[name], table.y[rows], other_columns(frame, others), folds[rows],
+            table.classes, numeric, settings.seed, th,
+        )  # fmt: skip
+        rule = decide(TEXT_RULES, f, th)
+        kinds = ["target_proxy", LATER] if rule.level >= Level.MEDIUM else ["target_proxy"]
+        detail = {"phrases": [list(p) for p in f.named], "coverage": f.coverage,
+                  "reference": f.reference, "distinct_phrases": f.phrases}  # fmt: skip
+        threshold = th.r2_floor if numeric else th.auc_floor
+        out += [
+            make_evidence(name, k, rule, f.statistic, f.power, threshold, _sentence(f),
+                      f.power, detail)
+            for k in kinds
+        ]  # fmt: skip
+    return out
