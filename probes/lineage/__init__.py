@@ -26,7 +26,7 @@ import pandas as pd
 from featureaudit.evidence import Evidence, Skip
 from featureaudit.io import numeric_view
 from featureaudit.levels import Level
-from featureaudit.probes.lineage._entity import scaling_evidence
+from featureaudit.probes.lineage._entity import aggregate_evidence, scaling_evidence
 from featureaudit.probes.lineage._groups import group_figures, grouping_codes
 from featureaudit.probes.lineage._kit import LATER, NAME, make_evidence
 from featureaudit.probes.lineage._rules import (
@@ -82,7 +82,9 @@ class Lineage(Probe):
             f"and at most {th.ratio:g} of what the best earlier window leaves, is high "
             f"({th.close:g} and {th.ratio_medium:g}: medium). Mean 0 and SD 1 within "
             f"{th.entity_share:.0%} of entities over all their periods but not over their "
-            "training periods (or over the whole history without a split) is high. A column "
+            "training periods (or over the whole history without a split) is high, and so is "
+            "a column constant within entities equal to another column's mean, sum, minimum, "
+            "maximum or SD over each entity's periods, held-out or later ones included. A column "
             f"constant within at least {th.min_groups} groups of another column that equals "
             "their in-sample target mean (also shrunk) is high when a content-chosen half "
             f"of the rows explains {1 / th.ratio:g} times less; leave-one-out means are "
@@ -107,6 +109,7 @@ class Lineage(Probe):
         if y is not None:
             evidence += _windows(table, numbers, y, skipped)
             evidence += scaling_evidence(table, numbers)
+            evidence += aggregate_evidence(table, numbers)
             evidence += _group_means(table, numbers, y, settings)
         else:
             skipped.append(Skip(NAME, "windows and group means need a binary or numeric target"))
