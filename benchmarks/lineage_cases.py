@@ -6,7 +6,8 @@ Four classes, each with clean twins built the honest way:
   includes the outcome, next period's value used as a lag; clean: a trailing window that
   ends before the row, a correct lag;
 - ``scaling``: last period's target standardised within each entity over all periods
-  (held-out periods included); clean: standardised on the entity's training periods;
+  (held-out periods included), and its mean over all periods; clean: both computed on the
+  entity's training periods;
 - ``group``: the entity's target mean over all rows (held-out rows included); clean: the
   same mean cross-fitted over 5 content-chosen folds;
 - ``text``: notes built from the row's own values, with an outcome phrase added on 60 % of
@@ -145,9 +146,13 @@ def scaling_case(p: Panel, seed: int) -> Case:
     frame["lag_z_train"] = (frame["lag"] - frame[p.entity].map(fit["mean"])) / frame[p.entity].map(
         fit["std"]
     )
+    # whole-history aggregate (added with the aggregate reading, before running it)
+    frame["lag_mean_all"] = lag.transform("mean")
+    frame["lag_mean_train"] = frame[p.entity].map(fit["mean"])
     frame = frame.sample(frac=1.0, random_state=seed).reset_index(drop=True)
     build = {"target": p.target, "order": p.period, "entity": p.entity, "split_column": "split"}
-    return Case(p.source, p.name, "scaling", frame, build, ("lag_z_all",), ("lag_z_train", "lag"))
+    planted, clean = ("lag_z_all", "lag_mean_all"), ("lag_z_train", "lag", "lag_mean_train")
+    return Case(p.source, p.name, "scaling", frame, build, planted, clean)
 
 
 def group_case(p: Panel, seed: int) -> Case:
