@@ -149,7 +149,7 @@ def scaling_case(p: Panel, seed: int) -> Case:
     # whole-history aggregate (added with the aggregate reading, before running it). Its twin
     # was mis-specified: the mean of the lag over the training periods holds each training
     # row's own outcome (as the next row's lag), so the group-means reading rightly calls it
-    # an in-sample encoding (the 2026-12-05 run: 14 of its 39 runs at medium or above)
+    # an in-sample encoding (the 2026-12-05 run: 12 of its 39 runs at medium or above)
     frame["lag_mean_all"] = lag.transform("mean")
     frame["lag_mean_train"] = frame[p.entity].map(fit["mean"])
     frame = frame.sample(frac=1.0, random_state=seed).reset_index(drop=True)
