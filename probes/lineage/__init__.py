@@ -74,27 +74,16 @@ class Lineage(Probe):
     def describe(cls, settings: Settings) -> str:
         th = cls.thresholds
         return (
-            "With an order within entities (cutoff time, label time or --order), each "
-            "numeric column is matched against the target's mean over windows ending from "
-            f"{th.max_lag} periods before the row to {th.max_lead} after, 1 to "
-            f"{th.max_width} periods wide, and expanding windows; a window that reaches the "
-            f"label or later and leaves at most {th.exact:g} of the column unexplained, "
-            f"and at most {th.ratio:g} of what the best earlier window leaves, is high "
-            f"({th.close:g} and {th.ratio_medium:g}: medium). Mean 0 and SD 1 within "
-            f"{th.entity_share:.0%} of entities over all their periods but not over their "
-            "training periods (or over the whole history without a split) is high, and so is "
-            "a column constant within entities equal to another column's mean, sum, minimum, "
-            "maximum or SD over each entity's periods, held-out or later ones included. A column "
-            f"constant within at least {th.min_groups} groups of another column that equals "
-            "their in-sample target mean (also shrunk) is high when a content-chosen half "
-            f"of the rows explains {1 / th.ratio:g} times less; leave-one-out means are "
-            "high as target proxies; cross-fitted ones are clean. Free text (values at "
-            f"least {th.text_distinct:.0%} distinct, three words or more) is read with "
-            f"scikit-learn's CountVectorizer out of {settings.folds} content-chosen folds: "
-            f"AUC at least {th.auc_floor:g} (R² {th.r2_floor:g}), and added to the other "
-            f"columns removing {th.gain_high:.0%} of the error they leave, with phrases of "
-            f"one outcome (in {th.phrase_min_docs}+ rows, binomial chance below "
-            f"{th.phrase_alpha:g} after Bonferroni) covering {th.coverage:.0%} of rows, is high."
+            "With an order within entities, a numeric column that a window of the target "
+            f"reaching the label or later explains to within {th.exact:g} of its variance, and "
+            f"{th.ratio:g} of what the best earlier window leaves, is high; so are mean 0 and "
+            f"SD 1 within {th.entity_share:.0%} of entities over all their periods but not the "
+            "training ones, whole-history aggregates of another column, and a column constant "
+            f"within {th.min_groups}+ groups equal to their in-sample target mean (leave-one-out "
+            "means are target proxies; cross-fitted ones clean). Free text is read with "
+            f"CountVectorizer over {settings.folds} content-chosen folds: high when its words "
+            f"remove {th.gain_high:.0%} of the error the other columns leave and phrases of one "
+            f"outcome cover {th.coverage:.0%} of rows."
         )
 
     def run(self, table: AuditTable, settings: Settings) -> ProbeOutput:
