@@ -28,25 +28,22 @@ from featureaudit.kit.sample import content_keys
 from featureaudit.load.io import numeric_view
 from featureaudit.load.settings import Settings
 from featureaudit.load.table import AuditTable
+from featureaudit.probes.lineage._entity import aggregate_evidence, scaling_evidence
 from featureaudit.probes.lineage._groups import group_figures, grouping_codes
+from featureaudit.probes.lineage._kit import LATER, NAME, make_evidence
 from featureaudit.probes.lineage._rules import (
     GROUP_RULES,
-    SCALE_RULES,
-    TEXT_RULES,
     WINDOW_RULES,
     Rule,
     decide,
 )
-from featureaudit.probes.lineage._scaled import scale_figures
 from featureaudit.probes.lineage._sequence import sequence
-from featureaudit.probes.lineage._text import is_free_text, other_columns, text_figures
+from featureaudit.probes.lineage._text import text_evidence
 from featureaudit.probes.lineage._thresholds import THRESHOLDS, LineageThresholds
 from featureaudit.probes.lineage._windows import target_windows, window_figures
 from featureaudit.probes.lineage._words import (
     group_sentence,
     honest_window_sentence,
-    scale_sentence,
-    text_sentence,
     window_sentence,
 )
 from featureaudit.vocab.evidence import Evidence, Skip
@@ -54,8 +51,6 @@ from featureaudit.vocab.levels import Level
 
 __all__ = ["Lineage", "LineageThresholds"]
 
-NAME = "lineage"
-LATER = "computed_from_later_rows"
 MAX_PAIRS = 400  # column x grouping pairs examined (cost bound)
 SAMPLED = (
     "windows and per-entity statistics need every row of an entity; audit the table with "
@@ -121,11 +116,12 @@ class Lineage(Probe):
         y = _target_values(table)
         if y is not None:
             evidence += _windows(table, numbers, y, skipped)
-            evidence += _scaling(table, numbers, skipped)
+            evidence += scaling_evidence(table, numbers)
+            evidence += aggregate_evidence(table, numbers)
             evidence += _group_means(table, numbers, y, settings)
         else:
             skipped.append(Skip(NAME, "windows and group means need a binary or numeric target"))
-        evidence += _texts(table, settings)
+        evidence += text_evidence(table, settings)
         return evidence, skipped
 
 
@@ -148,16 +144,6 @@ def _target_values(table: AuditTable) -> np.ndarray | None:
     if table.task == "binary":
         return np.where(table.labelled, table.y, np.nan).astype("float64")
     return None
-
-
-def _evidence(
-    column: str, kind: str, rule: Rule, statistic: str, value: float, threshold: float,
-    summary: str, severity: float, detail: dict,
-) -> Evidence:  # fmt: skip
-    return Evidence(
-        NAME, kind, statistic, value, threshold, rule.level, column, summary,
-        min(max(severity, 0.0), 1.0), {"rule": rule.name, **detail},
-    )  # fmt: skip
 
 
 def _windows(
@@ -186,45 +172,16 @@ def _windows(
             text = window_sentence(f, target, seq.source)
             kinds = [LATER, "target_proxy"] if f.later.holds_label else [LATER]
             out += [
-                _evidence(name, k, rule, "later_window_r2", 1 - f.u_later, 1 - th.exact,
+                make_evidence(name, k, rule, "later_window_r2", 1 - f.u_later, 1 - th.exact,
                           text, severity, detail)
                 for k in kinds
             ]  # fmt: skip
         elif f.u_earlier <= th.exact:
             text = honest_window_sentence(f, target)
             out.append(
-                _evidence(name, LATER, rule, "later_window_r2", 1 - f.u_later, 1 - th.exact,
+                make_evidence(name, LATER, rule, "later_window_r2", 1 - f.u_later, 1 - th.exact,
                           text, 0.0, {**detail, "explains": ["target_proxy"]})
             )  # fmt: skip
-    return out
-
-
-def _scaling(
-    table: AuditTable, numbers: dict[str, np.ndarray], skipped: list[Skip]
-) -> list[Evidence]:
-    if table.entity is None:
-        return []
-    seq, _ = sequence(table)
-    split = table.heldout is not None and table.heldout_rows > 0
-    if seq is None and not split:
-        return []
-    codes, _ = pd.factorize(table.frame[table.entity], sort=True, use_na_sentinel=True)
-    train = ~table.heldout if split and table.heldout is not None else None
-    order = seq.source if seq is not None else "the split"
-    th, out = THRESHOLDS, []
-    for name, values in numbers.items():
-        f = scale_figures(codes, values, train, th.min_entity_rows)
-        if f is None or f.holds_all < th.entity_share and f.holds_train < th.entity_share:
-            continue
-        rule = decide(SCALE_RULES, f, th)
-        text = scale_sentence(f, table.entity, order)
-        kinds = [LATER, "fit_on_all_rows"] if f.split and rule.level >= Level.HIGH else [LATER]
-        detail = {"entities": f.entities, "holds_train": f.holds_train, "shift": f.shift}
-        out += [
-            _evidence(name, k, rule, "entity_share_scaled", f.holds_all, th.entity_share,
-                      text, f.holds_all, detail)
-            for k in kinds
-        ]  # fmt: skip
     return out
 
 
@@ -269,7 +226,7 @@ def _group_means(
         detail = {"group": g_name, "variant": f.variant, "scope": f.scope, "groups": f.groups,
                   "r2_half": 1 - f.u_half, "shrink": f.shrink, "means": f.means}  # fmt: skip
         out += [
-            _evidence(x_name, k, rule, "group_mean_r2", 1 - f.u_fit, 1 - th.exact, text,
+            make_evidence(x_name, k, rule, "group_mean_r2", 1 - f.u_fit, 1 - th.exact, text,
                       1 - f.u_fit, detail)
             for k in _group_kinds(f.variant, f.scope, rule, len(scopes) > 1)
         ]  # fmt: skip
@@ -282,32 +239,3 @@ def _group_kinds(variant: str, scope: str, rule: Rule, split: bool) -> list[str]
     if rule.level < Level.MEDIUM:
         return [LATER]
     return [LATER, "fit_on_all_rows" if split and scope == "all labelled rows" else "target_proxy"]
-
-
-def _texts(table: AuditTable, settings: Settings) -> list[Evidence]:
-    th, out = THRESHOLDS, []
-    rows = np.flatnonzero(table.labelled)
-    assert table.y is not None
-    numeric = table.task == "numeric"
-    for name in table.features + table.id_columns:
-        if not is_free_text(table.frame[name], th):
-            continue
-        others = [c for c in table.features if c != name and not is_free_text(table.frame[c], th)]
-        keys = content_keys(table.frame, [name, str(table.target)], settings.seed + 15485863)
-        folds = (keys % np.uint64(settings.folds)).astype(np.int64)
-        frame = table.frame.iloc[rows]
-        f = text_figures(
-            frame[name], table.y[rows], other_columns(frame, others), folds[rows],
-            table.classes, numeric, settings.seed, th,
-        )  # fmt: skip
-        rule = decide(TEXT_RULES, f, th)
-        kinds = ["target_proxy", LATER] if rule.level >= Level.MEDIUM else ["target_proxy"]
-        detail = {"phrases": [list(p) for p in f.named], "coverage": f.coverage,
-                  "reference": f.reference, "distinct_phrases": f.phrases}  # fmt: skip
-        threshold = th.r2_floor if numeric else th.auc_floor
-        out += [
-            _evidence(name, k, rule, f.statistic, f.power, threshold, text_sentence(f),
-                      f.power, detail)
-            for k in kinds
-        ]  # fmt: skip
-    return out

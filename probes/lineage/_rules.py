@@ -14,7 +14,15 @@ from typing import Any
 from featureaudit.probes.lineage._thresholds import LineageThresholds
 from featureaudit.vocab.levels import Level
 
-__all__ = ["Rule", "decide", "WINDOW_RULES", "SCALE_RULES", "GROUP_RULES", "TEXT_RULES"]
+__all__ = [
+    "Rule",
+    "decide",
+    "WINDOW_RULES",
+    "SCALE_RULES",
+    "AGGREGATE_RULES",
+    "GROUP_RULES",
+    "TEXT_RULES",
+]
 
 
 @dataclass(frozen=True)
@@ -93,6 +101,29 @@ SCALE_RULES = (
         "standardised within each entity over its whole history, later periods included",
     ),
     Rule("not_scaled_per_entity", Level.NONE, _always, "not standardised within entities"),
+)
+
+# figures: u_all, u_train (unexplained shares), split
+AGGREGATE_RULES = (
+    Rule(
+        "aggregate_over_heldout_periods",
+        Level.HIGH,
+        lambda f, th: f.split and f.u_all <= th.exact and f.u_all < th.ratio * f.u_train,
+        "an aggregate of another column over each entity's periods, held-out ones included",
+    ),
+    Rule(
+        "aggregate_over_training_periods",
+        Level.NONE,
+        lambda f, th: f.split and f.u_train <= th.exact,
+        "an aggregate of another column over each entity's training periods",
+    ),
+    Rule(
+        "aggregate_over_whole_history",
+        Level.HIGH,
+        lambda f, th: not f.split and f.u_all <= th.exact,
+        "an aggregate of another column over each entity's whole history, later periods included",
+    ),
+    Rule("no_aggregate", Level.NONE, _always, "not an aggregate of another column"),
 )
 
 # figures: variant ("in_sample", "leave_one_out", "varies"), u_fit, u_half, groups

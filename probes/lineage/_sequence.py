@@ -74,10 +74,7 @@ def sequence(table: AuditTable) -> tuple[Sequence | None, str]:
     """The rows in entity-then-time order, or None and the reason it cannot be built."""
     found = order_source(table)
     if found is None:
-        return None, (
-            "no order within entities: pass --label-time, --cutoff-time or --order (or give "
-            "a column the role order) to read windows, lags and per-entity statistics"
-        )
+        return None, "windows not read: no order (pass --label-time, --cutoff-time or --order)"
     key, source = found
     if table.entity is not None:
         entity = table.frame[table.entity]
@@ -91,9 +88,8 @@ def sequence(table: AuditTable) -> tuple[Sequence | None, str]:
     tied = (group[1:] == group[:-1]) & (moment[1:] == moment[:-1])
     if tied.any():
         return None, (
-            f"{int(tied.sum())} rows share their entity's moment with another row ({name}); "
-            "earlier and later rows cannot be told apart there: pass --entity or --order "
-            "so each entity has one row per moment"
+            f"windows not read: {int(tied.sum())} rows share their entity's moment ({name}); "
+            "pass --order with one row per entity and moment"
         )
     starts = np.r_[True, group[1:] != group[:-1]]
     first = np.maximum.accumulate(np.where(starts, np.arange(len(rows)), 0))

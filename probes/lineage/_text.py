@@ -21,10 +21,17 @@ from sklearn.feature_extraction.text import CountVectorizer
 from sklearn.linear_model import LogisticRegression, Ridge
 from sklearn.metrics import r2_score, roc_auc_score
 
+from featureaudit.kit.sample import content_keys
 from featureaudit.load.io import numeric_view
-from featureaudit.probes.lineage._thresholds import LineageThresholds
+from featureaudit.load.settings import Settings
+from featureaudit.load.table import AuditTable
+from featureaudit.probes.lineage._kit import LATER, make_evidence
+from featureaudit.probes.lineage._rules import TEXT_RULES, decide
+from featureaudit.probes.lineage._thresholds import THRESHOLDS, LineageThresholds
+from featureaudit.vocab.evidence import Evidence
+from featureaudit.vocab.levels import Level
 
-__all__ = ["TextFigures", "text_figures", "is_free_text"]
+__all__ = ["TextFigures", "text_figures", "is_free_text", "text_evidence"]
 
 MAX_PHRASES = 5
 # phrases are made of words (letters only): a number in a note is the row's own value, which
@@ -39,7 +46,7 @@ class TextFigures:
     power: float
     reference: float
     gain: float  # share of the other columns' error (1 - AUC or 1 - R²) the words remove
-    # when added to them (out of fold, the words' own out-of-fold score as one more input)
+    # when blended with them (both out-of-fold scores, blended out of fold)
     coverage: float  # share of labelled rows holding a phrase of one outcome
     phrases: int
     named: list[tuple[str, str, int]]  # (phrase, outcome, rows)
@@ -111,6 +118,33 @@ def _oof_reference(
     return out
 
 
+def _logit(p: np.ndarray) -> np.ndarray:
+    q = np.clip(p, 1e-4, 1 - 1e-4)
+    return np.log(q / (1 - q))
+
+
+def _blend(
+    ref: np.ndarray, p: np.ndarray, y: np.ndarray, folds: np.ndarray, numeric: bool, k: int
+) -> np.ndarray:
+    """Out-of-fold blend of two out-of-fold scores (log-odds for classes), so the figure says
+    what the words add to the other columns rather than what they say alone."""
+    if numeric:
+        x = np.column_stack([ref, p])
+    else:
+        x = np.column_stack([_logit(ref).reshape(len(y), -1), _logit(p).reshape(len(y), -1)])
+    out = np.zeros(len(y)) if numeric or k == 2 else np.zeros((len(y), k))
+    for f in np.unique(folds):
+        fit, score = folds != f, folds == f
+        if numeric:
+            out[score] = Ridge(alpha=1.0).fit(x[fit], y[fit]).predict(x[score])
+            continue
+        if np.unique(y[fit]).size < k:
+            continue
+        prob = LogisticRegression(C=1.0, max_iter=1000).fit(x[fit], y[fit]).predict_proba(x[score])
+        out[score] = prob[:, 1] if k == 2 else prob
+    return out
+
+
 def other_columns(frame: pd.DataFrame, names: list[str]) -> np.ndarray:
     """The other columns as numbers: numeric ones as they are, text as sorted-value codes."""
     cols = []
@@ -178,10 +212,55 @@ def text_figures(
         outcome, names = y.astype(int), classes
     named, coverage, count = _phrases(text, outcome, names, th)
     power, reference = _power(y, p, numeric), _power(y, ref, numeric)
-    # what the words add to the other columns: the reference refitted with the words' score
-    score = p.reshape(len(y), -1)
-    both = _oof_reference(np.column_stack([others, score]), y, folds, numeric, k, seed)
+    # what the words add to the other columns: the two out-of-fold scores blended by a
+    # linear model fitted out of fold on the same folds (stable on a few hundred rows)
+    both = _blend(ref, p, y, folds, numeric, k)
     gain = 1.0 - (1.0 - _power(y, both, numeric)) / max(1.0 - reference, 1e-9)
     return TextFigures(
         power, reference, gain, coverage, count, named, numeric, "oof_r2" if numeric else "oof_auc"
     )
+
+
+def _sentence(f: TextFigures) -> str:
+    """The text reading in words: its power, what it adds, and the phrases of one outcome."""
+    metric = "R²" if f.numeric else "AUC"
+    phrases = "; ".join(f"{p!r} (only {o!r}, {n} rows)" for p, o, n in f.named)
+    tail = (
+        f"; phrases that occur with one outcome only: {phrases}, in {f.coverage:.0%} of rows"
+        if f.named
+        else ""
+    )
+    return (
+        f"free text whose words alone predict the target out of fold ({metric} {f.power:.3f}) "
+        f"and remove {max(f.gain, 0):.0%} of the error the other columns together leave "
+        f"({metric} {f.reference:.3f}){tail}"
+    )
+
+
+def text_evidence(table: AuditTable, settings: Settings) -> list[Evidence]:
+    th, out = THRESHOLDS, []
+    rows = np.flatnonzero(table.labelled)
+    assert table.y is not None
+    numeric = table.task == "numeric"
+    for name in table.features + table.id_columns:
+        if not is_free_text(table.frame[name], th):
+            continue
+        others = [c for c in table.features if c != name and not is_free_text(table.frame[c], th)]
+        keys = content_keys(table.frame, [name, str(table.target)], settings.seed + 15485863)
+        folds = (keys % np.uint64(settings.folds)).astype(np.int64)
+        frame = table.frame.iloc[rows]
+        f = text_figures(
+            frame[name], table.y[rows], other_columns(frame, others), folds[rows],
+            table.classes, numeric, settings.seed, th,
+        )  # fmt: skip
+        rule = decide(TEXT_RULES, f, th)
+        kinds = ["target_proxy", LATER] if rule.level >= Level.MEDIUM else ["target_proxy"]
+        detail = {"phrases": [list(p) for p in f.named], "coverage": f.coverage,
+                  "reference": f.reference, "distinct_phrases": f.phrases}  # fmt: skip
+        threshold = th.r2_floor if numeric else th.auc_floor
+        out += [
+            make_evidence(name, k, rule, f.statistic, f.power, threshold, _sentence(f),
+                      f.power, detail)
+            for k in kinds
+        ]  # fmt: skip
+    return out

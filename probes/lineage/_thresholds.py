@@ -30,10 +30,11 @@ class LineageThresholds:
     phrase is named when it occurs in 5 rows or more and all of them have one outcome with a
     chance below 0.01 after Bonferroni over the phrases (binomial tail, a textbook formula).
     ``auc_floor`` / ``r2_floor``: the text alone, out of fold, must predict at all (common
-    practice, no source); ``gain_high`` / ``gain_medium``: added to the other columns (its
-    out-of-fold score as one more input of the same model), the words must remove half (a
-    quarter) of the error (1 − AUC or 1 − R²) those columns leave, so an honest description
-    of the row's own values is not a finding (common practice, no source);
+    practice, no source); ``gain_high`` / ``gain_medium``: blended with the other columns'
+    out-of-fold score (a logistic or ridge model on the two scores, out of fold), the words
+    must remove half (a quarter) of the error (1 − AUC or 1 − R²) those columns leave, so
+    an honest description of the row's own values is not a finding (common practice, no
+    source);
     ``coverage``: phrases of one outcome in at least 10 % of rows (common practice, no
     source).
     """

@@ -4,10 +4,9 @@ from __future__ import annotations
 
 from featureaudit.probes.lineage._groups import GroupFigures
 from featureaudit.probes.lineage._scaled import ScaleFigures
-from featureaudit.probes.lineage._text import TextFigures
 from featureaudit.probes.lineage._windows import WindowFigures
 
-__all__ = ["window_sentence", "group_sentence", "scale_sentence", "text_sentence"]
+__all__ = ["window_sentence", "group_sentence", "scale_sentence"]
 
 
 def window_sentence(f: WindowFigures, target: str, order: str) -> str:
@@ -76,19 +75,4 @@ def scale_sentence(f: ScaleFigures, entity: str, order: str) -> str:
     return (
         f"standardised within each {entity!r} over its whole history ({share}, ordered by "
         f"{order}): each row was scaled with its entity's later periods"
-    )
-
-
-def text_sentence(f: TextFigures) -> str:
-    metric = "R²" if f.numeric else "AUC"
-    phrases = "; ".join(f"{p!r} (only {o!r}, {n} rows)" for p, o, n in f.named)
-    tail = (
-        f"; phrases that occur with one outcome only: {phrases}, in {f.coverage:.0%} of rows"
-        if f.named
-        else ""
-    )
-    return (
-        f"free text whose words alone predict the target out of fold ({metric} {f.power:.3f}) "
-        f"and remove {max(f.gain, 0):.0%} of the error the other columns together leave "
-        f"({metric} {f.reference:.3f}){tail}"
     )

@@ -16,6 +16,7 @@ import featureaudit as fa
 from featureaudit.judge.findings import droplist
 from featureaudit.judge.remedy import column_remedy
 from featureaudit.probes.lineage._rules import (
+    AGGREGATE_RULES,
     GROUP_RULES,
     SCALE_RULES,
     TEXT_RULES,
@@ -46,6 +47,8 @@ def _grunfeld() -> pd.DataFrame:
     g["value_z_all"] = value.transform(lambda s: (s - s.mean()) / s.std())
     fit = g[train].groupby("firm")["value"].agg(["mean", "std"])
     g["value_z_train"] = (g["value"] - g["firm"].map(fit["mean"])) / g["firm"].map(fit["std"])
+    g["capital_max_all"] = g.groupby("firm")["capital"].transform("max")  # whole history
+    g["capital_max_train"] = g["firm"].map(g[train].groupby("firm")["capital"].max())
     # shuffled: a verdict must not depend on the order of rows in the file
     return g.sample(frac=1.0, random_state=3).reset_index(drop=True)
 
@@ -108,6 +111,16 @@ def test_per_entity_standardisation_over_heldout_periods(grunfeld_result):
     assert _level(cols["value_z_train"]) < Level.MEDIUM
 
 
+def test_whole_history_aggregate_of_another_column(grunfeld_result):
+    cols = _by_column(grunfeld_result)
+    leak = cols["capital_max_all"]
+    assert _level(leak) >= Level.HIGH and {LATER, "fit_on_all_rows"} <= set(leak["kinds"])
+    ev = _lineage(leak)[0]
+    assert ev["detail"]["source"] == "capital" and ev["detail"]["statistic"] == "max"
+    assert "'firm''s max of 'capital'" in ev["summary"]
+    assert _level(cols["capital_max_train"]) < Level.MEDIUM
+
+
 def test_group_mean_over_all_rows_is_high_and_names_the_group(grunfeld_result):
     g = _grunfeld()
     g["firm_invest_mean"] = g.groupby("firm")["invest"].transform("mean")
@@ -117,7 +130,7 @@ def test_group_mean_over_all_rows_is_high_and_names_the_group(grunfeld_result):
     leak = cols["firm_invest_mean"]
     assert _level(leak) >= Level.HIGH
     assert {LATER, "fit_on_all_rows"} <= set(leak["kinds"])
-    ev = _lineage(leak)[0]
+    ev = next(e for e in _lineage(leak) if "group" in e["detail"])
     assert ev["detail"]["group"] == "firm" and ev["detail"]["variant"] == "in_sample"
     assert "held-out rows included" in ev["summary"]
     assert column_remedy(leak) == "recompute_before_cutoff"
@@ -296,6 +309,19 @@ def test_scale_rules(figures, rule):
     assert decide(SCALE_RULES, figures, TH).name == rule
 
 
+@pytest.mark.parametrize(
+    ("figures", "rule"),
+    [
+        (SimpleNamespace(split=True, u_all=0.0, u_train=0.2), "aggregate_over_heldout_periods"),
+        (SimpleNamespace(split=True, u_all=0.3, u_train=0.0), "aggregate_over_training_periods"),
+        (SimpleNamespace(split=False, u_all=0.0, u_train=1.0), "aggregate_over_whole_history"),
+        (SimpleNamespace(split=False, u_all=0.1, u_train=1.0), "no_aggregate"),
+    ],
+)
+def test_aggregate_rules(figures, rule):
+    assert decide(AGGREGATE_RULES, figures, TH).name == rule
+
+
 def _g(variant: str, u_fit: float = 0.0, u_half: float = 0.1, groups: int = 10):
     return SimpleNamespace(variant=variant, u_fit=u_fit, u_half=u_half, groups=groups)
 
@@ -336,7 +362,7 @@ def test_text_rules(figures, rule):
 
 
 def test_every_rule_table_ends_with_a_rule_that_always_holds():
-    for table in (WINDOW_RULES, SCALE_RULES, GROUP_RULES, TEXT_RULES):
+    for table in (WINDOW_RULES, SCALE_RULES, AGGREGATE_RULES, GROUP_RULES, TEXT_RULES):
         assert table[-1].condition(SimpleNamespace(), TH) is True
         assert len({r.name for r in table}) == len(table)
 
