@@ -117,7 +117,13 @@ def main() -> None:
     args = parser.parse_args()
     start = time.perf_counter()
     tally: dict[tuple[str, bool], tuple[int, int]] = {}
-    for build in (class1, class3, class4, class8):
+    builds: list[Callable[[pd.DataFrame, str, np.random.Generator], Case]] = [
+        class1,
+        class3,
+        class4,
+        class8,
+    ]
+    for build in builds:
         for source, (load, income) in SOURCES.items():
             for seed in range(args.seeds):
                 frame, expect, kw = build(load(), income, np.random.default_rng(seed))
