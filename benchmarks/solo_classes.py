@@ -14,7 +14,7 @@ from collections.abc import Callable
 import numpy as np
 import pandas as pd
 
-import featureaudit as fa
+from featureaudit.api import audit
 
 HIGH = ("high", "critical")
 
@@ -127,7 +127,7 @@ def main() -> None:
         for source, (load, income) in SOURCES.items():
             for seed in range(args.seeds):
                 frame, expect, kw = build(load(), income, np.random.default_rng(seed))
-                result = fa.audit(frame, target="y", probes=["solo"], seed=seed, **kw)
+                result = audit(frame, target="y", probes=["solo"], seed=seed, **kw)
                 cols = result.columns.set_index("column")
                 for column, want in expect.items():
                     if column == "@position":
