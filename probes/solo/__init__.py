@@ -72,6 +72,7 @@ from typing import Any
 
 import numpy as np
 from scipy.special import ndtri
+from scipy.stats import norm
 
 from featureaudit.kit.oof import CellScore, Target, make_target, score_bins
 from featureaudit.kit.registry import Capabilities, Probe, ProbeOutput, register
@@ -538,7 +539,17 @@ def _lookup(score: CellScore, kind: str, t: Target) -> bool:
         return False
     stat = np.nan_to_num(score.bin_stat[rows])
     pure = (stat <= 0.0) | (stat >= 1.0) if t.n_classes == 2 else stat >= 1.0
-    return bool(pure.all())
+    if not pure.all():
+        return False
+    # every value pure by chance? Under labels drawn at the class rates p_k a value of n rows
+    # is pure with probability sum_k p_k^n (1 for a single row): the lookup must be beyond
+    # the z the probe asks for high (a column of singletons is pure and says nothing)
+    p = np.bincount(t.y.astype(np.int64), minlength=t.n_classes) / len(t.y)
+    p = p[p > 0]
+    n = score.bin_rows[rows]
+    log_chance = float(np.sum(np.log(np.sum(p[None, :] ** n[:, None], axis=1))))
+    z_high = THRESHOLDS.order(THRESHOLDS.order_z, Level.HIGH)
+    return log_chance <= float(norm.logsf(z_high))
 
 
 def _presence_power(score: CellScore, t: Target) -> float:

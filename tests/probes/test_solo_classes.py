@@ -129,3 +129,26 @@ def test_class8_row_position_agrees_with_the_id_that_carries_the_shipped_order(s
         f for f in result.document["dataset_findings"] if f["kind"] == "row_order_tells_target"
     ][0]
     assert position["level"] == "low"
+
+
+def test_class4_values_pure_by_chance_are_no_lookup():
+    # palmerpenguins' sex: a code whose values are pure only because they are small (ten
+    # pairs of same-sex rows, the rest single rows) is pure with probability 0.5 per pair
+    # (0.5^10, beyond z 4 it is not); six codes per class of ~28 rows each are a lookup
+    from featureaudit.kit.oof import make_target, score_bins
+    from featureaudit.probes.solo import _lookup
+
+    frame, _ = _penguins()
+    y = frame["y"].to_numpy()
+    t = make_target(y, np.ones(len(y), bool), "binary", 2, 5, 0)
+    males, females = np.flatnonzero(y == 1), np.flatnonzero(y == 0)
+    codes = np.arange(1, len(y) + 1)  # every row its own value
+    for j in range(5):  # ten pairs, each of one sex
+        codes[males[2 * j + 1]] = codes[males[2 * j]]
+        codes[females[2 * j + 1]] = codes[females[2 * j]]
+    codes = np.unique(codes, return_inverse=True)[1] + 1
+    small = score_bins(codes, int(codes.max()) + 1, t)
+    assert not _lookup(small, "categories", t)
+    lookup = 1 + y * 6 + np.random.default_rng(0).integers(0, 6, len(y))
+    assert _lookup(score_bins(lookup, 13, t), "categories", t)
+    assert not _lookup(score_bins(lookup, 13, t), "quantile", t)  # numbers in quantile bins
