@@ -15,7 +15,11 @@ the rate natural copies give, and the held-out rows are queried against the same
 both rates see the same partners. The excess of the held-out rate (rescaled to the whole
 training set) over the natural one, averaged over a few draws, with a one-sided
 confidence bound, plus the share of near copies, sets the level; twins whose labels agree
-no more than chance lower it. Thresholds are in :class:`TwinsThresholds`.
+no more than chance lower it. That baseline rises with a leak that copies rows before the
+split (oversampling copies rows inside the training part too), so copies that no natural tie
+explains (``_unexplained``: values no other distinct row holds, no row one column apart) are
+counted against no baseline at all. Thresholds are in :class:`TwinsThresholds`; the level
+is the rule table ``_rules.COPY_RULES``.
 """
 
 from __future__ import annotations
