@@ -234,18 +234,13 @@ def column_tolerance(
     name, unit = resolution(cutoff)
     floor = float(parse_duration(th.clock_skew_floor).value)
     ns = max(unit, floor)
-    reason = (
-        f"automatic: the cutoff is written to the {name}, so a value is late from the next {name}"
-    )
+    reason = f"automatic: late from the cutoff's next {name}"
     if ns > unit:
-        reason = (
-            f"automatic: clock-skew floor {th.clock_skew_floor} "
-            f"(the cutoff is written to the {name})"
-        )
+        reason = f"automatic: clock-skew floor {th.clock_skew_floor}"
     if horizon is not None and 0 < float(horizon.value) < ns:
         ns, reason = (
             float(horizon.value),
-            f"automatic: the horizon {horizon}, shorter than the cutoff's {name}",
+            f"automatic: at most the horizon {horizon}",
         )
     return Tolerance(ns, reason, inclusive=True)
 

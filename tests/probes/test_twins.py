@@ -602,3 +602,17 @@ def test_unexplained_copies_need_values_no_other_row_holds():
     frame2 = pd.DataFrame({"a": [0, 0, 1], "b": [5.0, 5.0, 5.0], "c": [1.0, 1.0, 1.0]})
     h2 = row_hashes(frame2, cols)
     assert one_column_apart(frame2, cols, h2, np.array([0])).tolist() == [True]
+
+
+def test_a_panels_repeated_person_years_are_no_copies():
+    # statsmodels' randhie without its visit count: a person's columns repeat every year of
+    # the study, so rows repeat exactly and no value is shared outside the person; the
+    # outcome (any visit that year) varies by year, as a copied row's would not
+    d = sm_data("randhie")
+    d["y"] = (d.pop("mdvis") > 0).astype(int)
+    held = np.random.default_rng(0).random(len(d)) < 0.25
+    found = _copy_level(d.assign(split=np.where(held, "test", "train")))
+    assert found["level"] not in HIGH, found["summary"]
+    unexplained = found["detail"]["unexplained_copies"]
+    assert unexplained["share"] >= 0.05 and unexplained["counted_share"] == 0.0
+    assert unexplained["label_agreement"] < 0.95
