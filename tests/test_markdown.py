@@ -164,3 +164,30 @@ def test_demo_like_summary_has_one_item_per_split_finding(tmp_path):
     text = render_summary(_doc())
     split = text.split("## Split findings", 1)[1].split("##", 1)[0]
     assert [line for line in split.splitlines() if line.startswith("- ")].__len__() == 2
+
+
+def _any_name_doc(name: str) -> Findings:
+    doc = _doc().document
+    return Findings({**doc, "columns": [_column(name, "high", "drop")], "dataset_findings": []})
+
+
+def test_any_column_name_round_trips_through_summary_md():
+    """Property: whatever a column is called, every code span summary.md shows for it reads,
+    by droplist.txt's rule (``names.unquote_name``), as the name itself, in the table and in
+    the drop list alike."""
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    from featureaudit.vocab.names import unquote_name
+
+    md = _parser()
+
+    @settings(max_examples=150, deadline=None, derandomize=True)
+    @given(st.text(min_size=1, max_size=12))
+    def check(name):
+        tokens = md.parse(render_summary(_any_name_doc(name)))
+        spans = [s for s in _code_in(tokens) if unquote_name(s) == name]
+        # the drop list and the suspects table each show the name once
+        assert len(spans) >= 2, (name, _code_in(tokens))
+
+    check()

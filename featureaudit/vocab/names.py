@@ -9,6 +9,7 @@ dictionary all use this rule, and :func:`unquote_name` reverses it.
 from __future__ import annotations
 
 import json
+import re
 
 __all__ = ["quote_name", "unquote_name", "needs_quotes"]
 
@@ -23,9 +24,18 @@ def needs_quotes(name: str) -> bool:
     )
 
 
+# JSON leaves these raw inside a string; written raw, some readers break the line there or
+# show them as nothing, so a quoted name carries them as \u escapes (JSON reads them back)
+_RAW_IN_JSON = re.compile("[\x7f\x85\u2028\u2029]")
+
+
 def quote_name(name: str) -> str:
-    """``name`` as it is, or as a JSON string when written bare it would be misread."""
-    return json.dumps(name, ensure_ascii=False) if needs_quotes(name) else name
+    """``name`` as it is, or as a JSON string when written bare it would be misread (every
+    control character escaped, so the quoted name is one line of visible text)."""
+    if not needs_quotes(name):
+        return name
+    quoted = json.dumps(name, ensure_ascii=False)
+    return _RAW_IN_JSON.sub(lambda m: f"\\u{ord(m.group()):04x}", quoted)
 
 
 def unquote_name(text: str) -> str:
