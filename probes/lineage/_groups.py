@@ -53,10 +53,15 @@ def grouping_codes(s: pd.Series, n_rows: int, th: LineageThresholds) -> np.ndarr
 
 
 def _encoding(codes: np.ndarray, y: np.ndarray, rows: np.ndarray, m: float, k: int) -> np.ndarray:
-    """Each row's group mean of ``y`` over ``rows`` shrunk toward the mean by weight ``m``."""
-    sums = np.bincount(codes[rows], weights=y[rows], minlength=k)
-    counts = np.bincount(codes[rows], minlength=k).astype("float64")
-    overall = float(y[rows].mean())
+    """Each row's group mean of ``y`` over ``rows`` shrunk toward the mean by weight ``m``;
+    rows whose group is missing (code -1) take part in no mean."""
+    idx = np.flatnonzero(rows) if rows.dtype == bool else np.asarray(rows)
+    idx = idx[codes[idx] >= 0]
+    if idx.size == 0:
+        return np.full(len(codes), np.nan)
+    sums = np.bincount(codes[idx], weights=y[idx], minlength=k)
+    counts = np.bincount(codes[idx], minlength=k).astype("float64")
+    overall = float(y[idx].mean())
     with np.errstate(invalid="ignore", divide="ignore"):
         enc = (sums + m * overall) / (counts + m)
     enc[counts == 0] = np.nan
