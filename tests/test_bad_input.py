@@ -1224,6 +1224,9 @@ def test_sigterm_during_interpreter_exit_after_a_new_report(tmp_path):
     proc = subprocess.Popen(
         [sys.executable, "-c", code, "scan", str(path), "--target", "y", "--out", str(out)],
         stderr=subprocess.PIPE, stdout=subprocess.DEVNULL, text=True,
+        # away from the source tree: `-c` puts the working folder first on sys.path, and the
+        # source's featureaudit/ lacks the probes that an installed (not editable) package holds
+        cwd=tmp_path,
     )  # fmt: skip
     lines = []
     deadline = time.monotonic() + 240
