@@ -158,7 +158,8 @@ def droplist(
 
     Columns whose remedy is ``refit_on_training_rows`` are to be refitted, not dropped, so
     they are left out unless ``refit`` is true; columns a reviewer accepted (``--accepted``)
-    are left out unless ``accepted`` is true.
+    are left out unless ``accepted`` is true. Columns to recompute from earlier rows
+    (``recompute_before_cutoff``) stay in: as they are, they leak until recomputed.
     """
     floor = Level.parse(at_least)
     cols = [
