@@ -124,8 +124,9 @@ def _in_sample(codes, x, y, scopes, half, k, groups, th) -> GroupFigures | None:
 
 def _varying(codes, x, y, scopes, k, groups, th) -> GroupFigures | None:  # noqa: ANN001
     scope, rows = next(iter(scopes.items()))
-    sums = np.bincount(codes[rows], weights=y[rows], minlength=k)
-    counts = np.bincount(codes[rows], minlength=k).astype("float64")
+    grouped = rows & (codes >= 0)  # a row whose group is missing joins no group's mean
+    sums = np.bincount(codes[grouped], weights=y[grouped], minlength=k)
+    counts = np.bincount(codes[grouped], minlength=k).astype("float64")
     loo = np.full(len(x), np.nan)
     fit = rows & (counts[np.maximum(codes, 0)] >= 2) & (codes >= 0)
     loo[fit] = (sums[codes[fit]] - y[fit]) / (counts[codes[fit]] - 1)

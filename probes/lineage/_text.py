@@ -98,6 +98,13 @@ def _oof_text(
     return out
 
 
+def _varied_columns(x: np.ndarray) -> np.ndarray:
+    """Columns holding at least two distinct finite values."""
+    return np.array(
+        [np.unique(col[np.isfinite(col)]).size >= 2 for col in x.T], dtype=bool
+    ).reshape(-1)
+
+
 def _oof_reference(
     x: np.ndarray, y: np.ndarray, folds: np.ndarray, numeric: bool, k: int, seed: int
 ) -> np.ndarray:
@@ -106,14 +113,20 @@ def _oof_reference(
         return out
     for f in np.unique(folds):
         fit, score = folds != f, folds == f
+        # scikit-learn's binning needs two distinct values in a column (an all-missing or
+        # constant column over the fitted rows fails there and tells nothing)
+        cols = _varied_columns(x[fit])
+        if not cols.any():
+            continue
+        xf, xs = x[fit][:, cols], x[score][:, cols]
         if numeric:
             model = HistGradientBoostingRegressor(max_iter=100, random_state=seed)
-            out[score] = model.fit(x[fit], y[fit]).predict(x[score])
+            out[score] = model.fit(xf, y[fit]).predict(xs)
             continue
         if np.unique(y[fit]).size < k:
             continue
         clf = HistGradientBoostingClassifier(max_iter=100, random_state=seed)
-        prob = clf.fit(x[fit], y[fit]).predict_proba(x[score])
+        prob = clf.fit(xf, y[fit]).predict_proba(xs)
         out[score] = prob[:, 1] if k == 2 else prob
     return out
 

@@ -395,3 +395,23 @@ def test_a_grouping_column_with_missing_values_is_read_not_crashed():
     f["occ_rate"] = f.groupby("occupation_noted")["had_affair"].transform("mean")
     cols = _by_column(fa.audit(f, target="had_affair", probes=["lineage"]))
     assert Level.parse(_lineage(cols["occ_rate"])[0]["level"]) >= Level.HIGH
+
+
+def test_missing_groups_in_a_varying_column_and_an_empty_column_beside_text():
+    """A leave-one-out mean over groups with missing values, and free text read beside a
+    column with no values (the text reference's model failed on it: scikit-learn's binning
+    needs two distinct values), are judged, not crashed."""
+    f = _fair()
+    f["occupation_noted"] = f["occupation"].astype("Int64")
+    f.loc[f.index % 7 == 0, "occupation_noted"] = pd.NA
+    by = f.groupby("occupation_noted")["had_affair"]
+    f["occ_rate_loo"] = (by.transform("sum") - f["had_affair"]) / (by.transform("count") - 1)
+    f["blank"] = np.nan
+    words = ["calm", "busy", "long", "short", "quiet", "loud", "early", "late"]
+    f["note"] = [
+        f"{words[i % 8]} week {words[(i * 3) % 8]} visit {words[(i * 5) % 8]} day {i}"
+        for i in range(len(f))
+    ]
+    result = fa.audit(f, target="had_affair", probes=["lineage"])
+    assert not [s for s in result.document["skipped"] if "failed" in s["reason"]]
+    assert "occ_rate_loo" in _by_column(result)
