@@ -22,7 +22,7 @@ from featureaudit.vocab.evidence import Evidence, Skip
 if TYPE_CHECKING:
     from featureaudit.code.audit import CodeAudit
 
-__all__ = ["run_audit", "MIN_ROWS"]
+__all__ = ["run_audit", "capability_skip", "MIN_ROWS", "NO_TARGET"]
 
 # common practice, no source: with fewer rows no part can be held out and compared
 MIN_ROWS = 3
