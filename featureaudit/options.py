@@ -18,7 +18,7 @@ import typer
 from featureaudit.load.inputs import InputSpec, input_specs
 from featureaudit.load.settings import Settings
 
-__all__ = ["declared_options", "flag_names"]
+__all__ = ["declared_options"]
 
 _TYPES: dict[str, Any] = {
     "text": str | None,
@@ -58,11 +58,6 @@ def _declared() -> list[inspect.Parameter]:
         kind = "whole" if f.type in (int, "int") else "text"
         params.append(_setting_option(f.name, f.metadata, kind))
     return params
-
-
-def flag_names() -> set[str]:
-    """The names of every declared option (the keys ``flags`` holds)."""
-    return {p.name for p in _declared()}
 
 
 def declared_options(command: Callable[..., Any]) -> Callable[..., Any]:
