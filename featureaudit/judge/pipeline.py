@@ -63,19 +63,11 @@ def run_audit(
     for i, name in enumerate(names, start=1):
         if show:
             print(f"[{i}/{len(names)}] {name} …", file=sys.stderr, flush=True)
-        start = time.perf_counter()
         gate = capability_skip(available[name], table)
         if gate is not None:
             skipped.append(gate)
             continue
-        try:
-            with limited_blas():  # per-column pools and model fits set their own threads
-                found, skips = available[name]().run(table, settings)
-        except FeatureAuditError:
-            raise
-        except Exception as exc:
-            raise ProbeFailed(name, exc) from exc
-        timings[name] = round(time.perf_counter() - start, 3)
+        found, skips = _run_probe(available[name], table, settings, timings)
         evidence.extend(found)
         skipped.extend(skips)
     evidence.extend(_audit_pairs(table, settings, names, available, timings))
@@ -138,6 +130,24 @@ def run_audit(
 _FOLD_NOTE = "; this biases the cross-validated score, not the test score"
 
 
+def _run_probe(
+    probe: type[Probe], table: AuditTable, settings: Settings, timings: dict[str, float]
+) -> tuple[list[Evidence], list[Skip]]:
+    """Run one probe on one table (its time added to ``timings``). Anything but a
+    :class:`FeatureAuditError` is a bug: :class:`ProbeFailed`, so no run reports findings with
+    a probe missing."""
+    start = time.perf_counter()
+    try:
+        with limited_blas():  # per-column pools and model fits set their own threads
+            found, skips = probe().run(table, settings)
+    except FeatureAuditError:
+        raise
+    except Exception as exc:
+        raise ProbeFailed(probe.name, exc) from exc
+    timings[probe.name] = round(timings.get(probe.name, 0.0) + time.perf_counter() - start, 3)
+    return found, skips
+
+
 def _audit_pairs(
     table: AuditTable,
     settings: Settings,
@@ -164,15 +174,7 @@ def _audit_pairs(
         for name in view.probes:
             if capability_skip(available[name], view.table) is not None:
                 continue
-            start = time.perf_counter()
-            try:
-                with limited_blas():
-                    found, _ = available[name]().run(view.table, settings)
-            except FeatureAuditError:
-                raise
-            except Exception as exc:
-                raise ProbeFailed(name, exc) from exc
-            timings[name] = round(timings.get(name, 0.0) + time.perf_counter() - start, 3)
+            found, _ = _run_probe(available[name], view.table, settings, timings)
             label = f" ({view.sides[0]} vs {view.sides[1]})"
             for e in found:
                 if e.kind not in PAIR_KINDS or (e.column is not None and e.rank < 1):
